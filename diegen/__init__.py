@@ -1,0 +1,7 @@
+"""diegen: form-block (die) and flat-blank design for rubber-pad pressed wing ribs.
+
+Everything inside the package works in millimetres, newtons, MPa and degrees;
+units are converted once, at the spec boundary (see :mod:`diegen.units`).
+"""
+
+__version__ = "0.1.0"

@@ -1,0 +1,142 @@
+"""DXF writer and reader for flat-blank drawings (ezdxf).
+
+Output is DXF R2010 in millimetres (``$INSUNITS`` = 4, ``$MEASUREMENT`` = 1,
+header variables as defined in the DXF Reference, HEADER section).  Layers:
+
+* ``CUT``    outer and inner contours as closed LWPOLYLINEs, plain and pilot holes as CIRCLEs;
+* ``DRILL``  tooling-pin holes as CIRCLEs;
+* ``SCRIBE`` bend (tangent) lines as open LWPOLYLINEs, dashed;
+* ``NOTE``   part id, material, notes (TEXT) and the grain arrow (LINEs).
+
+Polylines are written vertex for vertex, no arcs are fitted: the geometry
+layer is expected to deliver curved edges with a chordal error of at most
+0.01 mm.
+"""
+
+from __future__ import annotations
+
+import math
+import os
+from dataclasses import dataclass
+from pathlib import Path
+
+from diegen.errors import OutputError
+from diegen.export.drawing import CUT, DRILL, LAYERS, NOTE, SCRIBE, BlankDrawing, Circle, Polyline
+from diegen.fileio import write_with
+
+DXF_VERSION = "R2010"
+INSUNITS_MM = 4  # DXF Reference, HEADER $INSUNITS: 4 = millimetres
+MEASUREMENT_METRIC = 1  # DXF Reference, HEADER $MEASUREMENT: 1 = metric
+BEND_LINETYPE = "BENDLINE"  # 6 mm dash, 3 mm gap
+
+
+def build_dxf(drawing: BlankDrawing):  # -> ezdxf.document.Drawing (kept untyped so ezdxf loads lazily)
+    """Build the in-memory ezdxf document for ``drawing`` (mm)."""
+    import ezdxf
+
+    doc = ezdxf.new(DXF_VERSION, setup=False, units=INSUNITS_MM)
+    doc.header["$INSUNITS"] = INSUNITS_MM
+    doc.header["$MEASUREMENT"] = MEASUREMENT_METRIC
+    for style in LAYERS:
+        layer = doc.layers.add(style.name, color=style.aci)
+        layer.description = style.purpose
+    # pattern: total length, then dash (+) and gap (-) lengths in mm
+    doc.linetypes.add(BEND_LINETYPE, pattern=[9.0, 6.0, -3.0], description="Bend line ______   ______")
+    doc.layers.get(SCRIBE.name).dxf.linetype = BEND_LINETYPE
+    msp = doc.modelspace()
+
+    cut = {"layer": CUT.name}
+    msp.add_lwpolyline(drawing.outer, format="xy", close=True, dxfattribs=cut)
+    for contour in drawing.inner:
+        msp.add_lwpolyline(contour, format="xy", close=True, dxfattribs=cut)
+    for c in drawing.cut_circles:
+        msp.add_circle((c.x, c.y), c.r, dxfattribs=cut)
+    for c in drawing.drill_circles:
+        msp.add_circle((c.x, c.y), c.r, dxfattribs={"layer": DRILL.name})
+    for line in drawing.scribe_lines:
+        msp.add_lwpolyline(line, format="xy", close=False, dxfattribs={"layer": SCRIBE.name})
+
+    note = {"layer": NOTE.name}
+    title = drawing.title_block()
+    for n in drawing.notes + title.notes:
+        msp.add_text(n.text, height=n.height, dxfattribs=note).set_placement((n.x, n.y))
+    for s in title.arrow:
+        msp.add_line((s.x0, s.y0), (s.x1, s.y1), dxfattribs={"layer": NOTE.name})
+
+    xmin, ymin, xmax, ymax = drawing.extent()
+    doc.header["$EXTMIN"] = (xmin, ymin, 0.0)
+    doc.header["$EXTMAX"] = (xmax, ymax, 0.0)
+    doc.set_modelspace_vport(height=1.1 * max(ymax - ymin, 1.0), center=(0.5 * (xmin + xmax), 0.5 * (ymin + ymax)))
+    return doc
+
+
+def write_dxf(drawing: BlankDrawing, path: str | os.PathLike[str]) -> Path:
+    """Write ``drawing`` as a DXF R2010 file in mm to ``path`` atomically; return the path."""
+    doc = build_dxf(drawing)
+    target = Path(path)
+    try:
+        write_with(target, lambda tmp: doc.saveas(tmp))
+    except OSError as exc:
+        raise OutputError(f"cannot write DXF {target}: {exc}") from exc
+    return target
+
+
+@dataclass(frozen=True)
+class DxfOutline:
+    """What :func:`read_dxf_outline` found on the CUT and DRILL layers (mm)."""
+
+    outer: Polyline
+    inner: tuple[Polyline, ...]
+    cut_circles: tuple[Circle, ...]
+    drill_circles: tuple[Circle, ...]
+    insunits: int
+
+
+def _shoelace(points: Polyline) -> float:
+    n = len(points)
+    return 0.5 * sum(points[i][0] * points[(i + 1) % n][1] - points[(i + 1) % n][0] * points[i][1] for i in range(n))
+
+
+def _closed_points(entity) -> Polyline:  # entity: ezdxf LWPolyline
+    """Vertices of a closed LWPOLYLINE; arcs (bulges) flattened to 0.01 mm."""
+    if any(abs(b) > 0.0 for (b,) in entity.get_points("b")):
+        from ezdxf import path as dxfpath
+
+        pts = tuple((v.x, v.y) for v in dxfpath.make_path(entity).flattening(0.01))
+    else:
+        pts = tuple((float(x), float(y)) for x, y in entity.get_points("xy"))
+    if len(pts) > 1 and math.dist(pts[0], pts[-1]) < 1e-9:
+        pts = pts[:-1]
+    return pts
+
+
+def read_dxf_outline(path: str | os.PathLike[str]) -> DxfOutline:
+    """Read a blank DXF back: the largest closed CUT polyline is the outer contour.
+
+    Other closed CUT polylines are returned as inner contours, CUT circles as
+    cut holes and DRILL circles as pin holes.  Lengths in the file's units
+    (``insunits`` tells which; this package writes mm).
+    """
+    import ezdxf
+
+    try:
+        doc = ezdxf.readfile(str(path))
+    except (OSError, ezdxf.DXFError) as exc:
+        raise OutputError(f"cannot read DXF {path}: {exc}") from exc
+    msp = doc.modelspace()
+    contours = [_closed_points(e) for e in msp.query(f'LWPOLYLINE[layer=="{CUT.name}"]') if e.closed]
+    if not contours:
+        raise OutputError(f"{path}: no closed polyline on layer {CUT.name}")
+    contours.sort(key=lambda c: abs(_shoelace(c)), reverse=True)
+
+    def circles(layer: str) -> tuple[Circle, ...]:
+        found = msp.query(f'CIRCLE[layer=="{layer}"]')
+        return tuple(Circle(e.dxf.center.x, e.dxf.center.y, 2.0 * e.dxf.radius) for e in found)
+
+    return DxfOutline(
+        outer=contours[0],
+        inner=tuple(contours[1:]),
+        cut_circles=circles(CUT.name),
+        drill_circles=circles(DRILL.name),
+        insunits=int(doc.header.get("$INSUNITS", 0)),
+    )

@@ -1,0 +1,402 @@
+"""Relief for contoured flanges: where the shrink passes its limit, flutes or V-notches.
+
+A shrink flange has more material at its free edge than the formed edge can
+hold.  Over a run of outline where the edge shrink ``|e|`` passes the limit,
+the length to be taken up at the flange edge is::
+
+    excess = integral of (|e| - limit)+ ds_edge
+
+(``ds_edge = (1 + w*kappa) ds`` along the bend line, so that with no limit the
+excess is exactly the blank-edge length minus the formed-edge length).  Two
+ways to take it up:
+
+* **flutes** -- grooves cut in the die wall, into which the rubber pushes the
+  surplus sheet; each gathers its profile length minus its chord;
+* **V-notches** -- wedges cut out of the blank flange that close up on forming.
+
+The flute and notch sizing rules here are models of our own (common practice,
+no source) unless a line says otherwise; trial parts decide.  Lengths in mm,
+strains dimensionless.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from typing import Literal
+
+import numpy as np
+
+from diegen.errors import FormingError
+from diegen.forming.strain import FloatArray, StrainProfile
+
+FluteProfile = Literal["arc", "vee"]
+FLUTE_PROFILES: tuple[str, ...] = ("arc", "vee")
+
+#: Flute depth at most this fraction of the flange height (common practice, no source).
+FLUTE_DEPTH_FRACTION = 0.25
+#: Included angle of the widest V-notch (model of our own, no source).
+NOTCH_MAX_ANGLE_DEG = 30.0
+
+
+@dataclass(frozen=True)
+class OutlineRun:
+    """A stretch of outline (bend line) between two arc-length positions, mm.
+
+    On a closed outline the run may wrap through s = 0, then ``s_end_mm <
+    s_start_mm``; ``length_mm`` is always the run's own length.
+    """
+
+    s_start_mm: float
+    s_end_mm: float
+    length_mm: float
+    outline_length_mm: float
+    closed: bool
+
+    def position(self, fraction: float) -> float:
+        """Arc-length position (mm) a ``fraction`` (0..1) of the way along the run."""
+        s = self.s_start_mm + fraction * self.length_mm
+        return s % self.outline_length_mm if self.closed else s
+
+
+@dataclass(frozen=True, kw_only=True)
+class ShrinkRun(OutlineRun):
+    """A run whose edge shrink passes the limit, with the length to take up (mm)."""
+
+    excess_mm: float
+    peak_strain: float  # most negative edge strain in the run
+    limit: float
+
+
+@dataclass(frozen=True, kw_only=True)
+class StretchRun(OutlineRun):
+    """A run whose edge stretch passes the limit (or cannot be formed at all)."""
+
+    peak_strain: float  # largest stretch, inf where not formable
+    min_radius_mm: float  # tightest concave plan radius in the run
+    formable: bool
+    limit: float
+    allowed_width_mm: float  # widest flange that passes the limit at min_radius
+
+
+def _runs(s: FloatArray, g: FloatArray, total: float, closed: bool) -> list[tuple[float, float, list[int], float]]:
+    """Maximal runs where ``g > 0``: (start, length, sample indices, integral of g+).
+
+    ``g`` must vary linearly between samples for the end crossings (found by
+    linear interpolation) and the trapezoid integral to be exact.
+    """
+    n = len(s)
+    flag = g > 0.0
+    if not flag.any():
+        return []
+    gaps = np.diff(s)
+    if closed:
+        gaps = np.append(gaps, total - s[-1] + s[0])
+
+    def seg(j: int) -> float:  # segment j -> j+1 (cyclic on closed outlines)
+        return float(gaps[j % len(gaps)])
+
+    if closed and flag.all():
+        area = sum(0.5 * (g[j] + g[(j + 1) % n]) * seg(j) for j in range(n))
+        return [(0.0, total, list(range(n)), float(area))]
+
+    starts = [i for i in range(n) if flag[i] and ((i == 0 and not closed) or not flag[i - 1])]
+    out: list[tuple[float, float, list[int], float]] = []
+    for i0 in starts:
+        idx = [i0]
+        j = i0
+        while True:
+            nxt = j + 1
+            if closed:
+                nxt %= n
+            elif nxt >= n:
+                break
+            if not flag[nxt]:
+                break
+            idx.append(nxt)
+            j = nxt
+        area = sum(0.5 * (g[a] + g[b]) * seg(a) for a, b in zip(idx[:-1], idx[1:]))
+        length = sum(seg(a) for a in idx[:-1])
+        start = float(s[i0])
+        if closed or i0 > 0:  # lead-in crossing
+            p = (i0 - 1) % n
+            d = seg(p)
+            x = g[i0] / (g[i0] - g[p])
+            area += 0.5 * g[i0] * x * d
+            start -= x * d
+            length += x * d
+        last = idx[-1]
+        if closed or last < n - 1:  # lead-out crossing
+            d = seg(last)
+            x = g[last] / (g[last] - g[(last + 1) % n])
+            area += 0.5 * g[last] * x * d
+            length += x * d
+        if closed:
+            start %= total
+        out.append((float(start), float(length), idx, float(area)))
+    return out
+
+
+def _check_limit(limit: float) -> None:
+    if not math.isfinite(limit) or not 0.0 <= limit < 1.0:
+        raise FormingError(f"strain limit must lie in [0, 1), got {limit!r}")
+
+
+def shrink_runs(profile: StrainProfile, limit: float) -> tuple[ShrinkRun, ...]:
+    """Runs of outline where the edge shrink passes ``limit`` (a positive strain, e.g. 0.04).
+
+    In the shrink region ``(|e| - limit)*(1 + w*kappa) = w*kappa - limit*(1 + w*kappa)``,
+    linear in the sampled curvature, so the excess integral and the run ends
+    are found exactly on the profile's samples.
+    """
+    _check_limit(limit)
+    w = profile.width_mm
+    kappa = profile.curvature_per_mm
+    g = w * kappa - limit * (1.0 + w * kappa)
+    total = profile.length_mm
+    runs = []
+    for start, length, idx, area in _runs(profile.s_mm, g, total, profile.closed):
+        end = (start + length) % total if profile.closed else start + length
+        runs.append(
+            ShrinkRun(
+                s_start_mm=start,
+                s_end_mm=end,
+                length_mm=length,
+                outline_length_mm=total,
+                closed=profile.closed,
+                excess_mm=area,
+                peak_strain=float(np.min(profile.strain[idx])),
+                limit=limit,
+            )
+        )
+    return tuple(runs)
+
+
+def stretch_limit_width(radius: float, limit: float) -> float:
+    """Widest flange (mm) whose edge stretch ``w/(rho - w)`` stays within ``limit`` on plan radius ``radius`` (mm).
+
+    Inverse of the stretch-flange formula: ``w = limit*rho/(1 + limit)``.
+    """
+    _check_limit(limit)
+    if not radius > 0.0:
+        raise FormingError(f"plan radius must be > 0 mm, got {radius!r}")
+    return math.inf if math.isinf(radius) else limit * radius / (1.0 + limit)
+
+
+def shrink_limit_width(radius: float, limit: float) -> float:
+    """Widest flange (mm) whose edge shrink ``w/(rho + w)`` stays within ``limit`` on plan radius ``radius`` (mm).
+
+    Inverse of the shrink-flange formula: ``w = limit*rho/(1 - limit)``.
+    """
+    _check_limit(limit)
+    if not radius > 0.0:
+        raise FormingError(f"plan radius must be > 0 mm, got {radius!r}")
+    return math.inf if math.isinf(radius) else limit * radius / (1.0 - limit)
+
+
+def stretch_runs(profile: StrainProfile, limit: float) -> tuple[StretchRun, ...]:
+    """Runs of outline where the edge stretch passes ``limit`` (or the flange is not formable).
+
+    ``e > limit`` on a concave contour is ``-w*kappa > limit/(1 + limit)``,
+    again linear in the sampled curvature.  Each run carries the widest
+    flange that would pass the limit at its tightest radius.
+    """
+    _check_limit(limit)
+    w = profile.width_mm
+    g = -w * profile.curvature_per_mm - limit / (1.0 + limit)
+    total = profile.length_mm
+    runs = []
+    for start, length, idx, _ in _runs(profile.s_mm, g, total, profile.closed):
+        end = (start + length) % total if profile.closed else start + length
+        r_min = float(np.min(profile.plan_radius_mm[idx]))
+        runs.append(
+            StretchRun(
+                s_start_mm=start,
+                s_end_mm=end,
+                length_mm=length,
+                outline_length_mm=total,
+                closed=profile.closed,
+                peak_strain=float(np.max(profile.strain[idx])),
+                min_radius_mm=r_min,
+                formable=bool(np.all(profile.formable[idx])),
+                limit=limit,
+                allowed_width_mm=stretch_limit_width(r_min, limit),
+            )
+        )
+    return tuple(runs)
+
+
+# --- flutes ---------------------------------------------------------------------
+
+
+def flute_gather(width: float, depth: float, profile: FluteProfile = "arc") -> float:
+    """Flange-edge length (mm) one flute of chord ``width`` and depth ``depth`` (mm) takes up.
+
+    Model of our own: the sheet is pushed to the flute's profile, so it
+    gathers the profile length minus the chord.  ``"arc"``: a circular segment
+    (a semicircle when depth = width/2) of length ``2*a*(b/2)/sin(a)``, where
+    ``a = 2*atan(2d/b)`` is half the angle it subtends; ``"vee"``: two straight
+    flanks of total length ``2*sqrt((b/2)^2 + d^2)``.
+    """
+    if profile not in FLUTE_PROFILES:
+        raise FormingError(f"flute profile must be one of {', '.join(FLUTE_PROFILES)}, got {profile!r}")
+    if not (math.isfinite(width) and width > 0.0):
+        raise FormingError(f"flute width must be > 0 mm, got {width!r}")
+    if not (math.isfinite(depth) and 0.0 <= depth <= width / 2.0):
+        raise FormingError(f"flute depth must lie in [0, width/2] = [0, {width / 2:.3f}] mm, got {depth!r}")
+    if depth == 0.0:
+        return 0.0
+    half = width / 2.0
+    if profile == "vee":
+        return 2.0 * math.hypot(half, depth) - width
+    alpha = 2.0 * math.atan(depth / half)  # half the angle the arc subtends
+    return 2.0 * alpha * half / math.sin(alpha) - width
+
+
+def flute_size(flange_height: float, thickness: float, bend_radius: float) -> tuple[float, float]:
+    """Default flute (width, depth) in mm at the flange edge.
+
+    Common practice, no source (a model of our own): the width is
+    ``2*(R + 2*T)``, room for the sheet to fold into the groove with at least
+    the bend radius inside; the depth is at most a quarter of the flange
+    height and at most half the width (a semicircle).  The flute tapers to
+    zero depth at the bend line, where the flange has no excess.
+    """
+    for name, v in (("flange height", flange_height), ("thickness", thickness)):
+        if not (math.isfinite(v) and v > 0.0):
+            raise FormingError(f"{name} must be > 0 mm, got {v!r}")
+    if not (math.isfinite(bend_radius) and bend_radius >= 0.0):
+        raise FormingError(f"bend radius must be >= 0 mm, got {bend_radius!r}")
+    width = 2.0 * (bend_radius + 2.0 * thickness)
+    depth = min(width / 2.0, FLUTE_DEPTH_FRACTION * flange_height)
+    return width, depth
+
+
+@dataclass(frozen=True)
+class Flute:
+    """One flute in the die wall: centre position along the outline and size, mm."""
+
+    s_mm: float
+    width_mm: float  # chord at the flange edge
+    depth_mm: float  # depth at the flange edge, tapering to 0 at the bend line
+    gather_mm: float
+
+
+@dataclass(frozen=True)
+class FluteSet:
+    """Flutes for one shrink run."""
+
+    run: ShrinkRun
+    profile: FluteProfile
+    flutes: tuple[Flute, ...]
+    excess_mm: float
+    gathered_mm: float  # sum of the flutes' gather, >= excess
+    fits: bool  # False when the flutes side by side would not fit in the run
+    note: str
+
+
+def flutes(
+    run: ShrinkRun,
+    flange_height: float,
+    thickness: float,
+    bend_radius: float,
+    *,
+    width: float | None = None,
+    depth: float | None = None,
+    profile: FluteProfile = "arc",
+) -> FluteSet:
+    """Flutes, evenly spaced over ``run``, that gather its excess (mm).
+
+    count = ceil(excess / gather per flute); sizes from :func:`flute_size`
+    unless given.  Model of our own (common practice, no source).
+    """
+    dw, dd = flute_size(flange_height, thickness, bend_radius)
+    b = dw if width is None else float(width)
+    d = min(dd, b / 2.0) if depth is None else float(depth)
+    gather = flute_gather(b, d, profile)
+    excess = run.excess_mm
+    if excess <= 0.0:
+        return FluteSet(run, profile, (), 0.0, 0.0, True, "no excess: no flutes needed")
+    if gather <= 0.0:
+        raise FormingError("flutes of zero depth gather nothing: give a depth > 0 mm")
+    count = math.ceil(excess / gather - 1e-12)
+    items = tuple(Flute(run.position((i + 0.5) / count), b, d, gather) for i in range(count))
+    fits = count * b <= run.length_mm
+    note = (
+        f"{count} flute(s) {b:.1f} mm wide x {d:.1f} mm deep gather {count * gather:.1f} mm "
+        f"of {excess:.1f} mm excess over {run.length_mm:.0f} mm of outline"
+    )
+    if not fits:
+        note += "; they do not fit side by side: lower the flange or add notches"
+    return FluteSet(run, profile, items, excess, count * gather, fits, note)
+
+
+# --- V-notches -------------------------------------------------------------------
+
+
+@dataclass(frozen=True)
+class Notch:
+    """One V-notch cut in the blank flange: centre position along the outline and size, mm."""
+
+    s_mm: float
+    opening_mm: float  # width of the V at the flange edge
+    depth_mm: float  # from the flange edge toward the bend line
+
+
+@dataclass(frozen=True)
+class NotchSet:
+    """V-notches for one shrink run."""
+
+    run: ShrinkRun
+    notches: tuple[Notch, ...]
+    excess_mm: float
+    removed_mm: float  # sum of the openings = excess
+    max_opening_mm: float
+    fits: bool
+    note: str
+
+
+def notch_depth(flange_width: float, thickness: float, bend_radius: float) -> float:
+    """Depth (mm) of a V-notch from the flange edge: stop ``T + R`` short of the bend tangent line.
+
+    The set-back of a relief notch when none is specified is at least sheet
+    thickness + bend radius (sheetmetalworkbook.com, "Reliefs"); applying it
+    to flange V-notches is our own choice.
+    """
+    depth = flange_width - (thickness + bend_radius)
+    if depth <= 0.0:
+        raise FormingError(
+            f"a {flange_width:.2f} mm flange leaves no room for V-notches (set-back T + R = "
+            f"{thickness + bend_radius:.2f} mm): use flutes or a lower flange"
+        )
+    return depth
+
+
+def notches(
+    run: ShrinkRun,
+    flange_width: float,
+    thickness: float,
+    bend_radius: float,
+    *,
+    max_opening: float | None = None,
+) -> NotchSet:
+    """V-notches evenly spaced over ``run`` that remove its excess.
+
+    count = ceil(excess / max opening); each opening = excess / count.  The
+    default widest opening is a V of 30 deg included angle over the notch
+    depth (model of our own, no source).  ``flange_width`` is the developed
+    flange width (mm).
+    """
+    depth = notch_depth(flange_width, thickness, bend_radius)
+    b_max = 2.0 * depth * math.tan(math.radians(NOTCH_MAX_ANGLE_DEG) / 2.0) if max_opening is None else max_opening
+    if not (math.isfinite(b_max) and b_max > 0.0):
+        raise FormingError(f"largest notch opening must be > 0 mm, got {max_opening!r}")
+    excess = run.excess_mm
+    if excess <= 0.0:
+        return NotchSet(run, (), 0.0, 0.0, b_max, True, "no excess: no notches needed")
+    count = math.ceil(excess / b_max - 1e-12)
+    opening = excess / count
+    items = tuple(Notch(run.position((i + 0.5) / count), opening, depth) for i in range(count))
+    fits = count * opening <= run.length_mm
+    note = f"{count} V-notch(es) {opening:.2f} mm open x {depth:.1f} mm deep remove {excess:.1f} mm excess"
+    return NotchSet(run, items, excess, excess, b_max, fits, note)

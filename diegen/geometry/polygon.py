@@ -1,0 +1,77 @@
+"""Small helpers on closed point loops and shapely polygons (mm)."""
+
+from __future__ import annotations
+
+import numpy as np
+import shapely
+from shapely.geometry import Polygon
+
+from diegen.errors import GeometryError
+from diegen.geometry.types import Points
+
+# Segments per quarter circle for offsets: the chordal error of a round join of
+# radius r is r·(1 − cos(π/(4·QUAD_SEGS))), 0.0012·r at 16.
+QUAD_SEGS = 16
+
+
+def loop_array(points: Points) -> np.ndarray:
+    return np.asarray(points, dtype=float).reshape(-1, 2)
+
+
+def loop_length(points: Points) -> float:
+    """Perimeter of the closed loop, mm."""
+    p = loop_array(points)
+    return float(np.sum(np.hypot(*(np.roll(p, -1, axis=0) - p).T)))
+
+
+def loop_area(points: Points) -> float:
+    """Signed area of the loop (positive when counter-clockwise), mm²."""
+    x, y = loop_array(points).T
+    return float(0.5 * np.sum(x * np.roll(y, -1) - np.roll(x, -1) * y))
+
+
+def as_points(polygon: Polygon) -> Points:
+    """Exterior of ``polygon`` as a counter-clockwise loop without the closing point."""
+    ring = shapely.geometry.polygon.orient(polygon, 1.0).exterior
+    coords = np.asarray(ring.coords)[:-1]
+    return tuple((float(x), float(y)) for x, y in coords)
+
+
+def single_polygon(geometry: shapely.Geometry, what: str) -> Polygon:
+    """The one polygon of ``geometry`` (dropping slivers under 1 mm²); fail clearly if none or several."""
+    if geometry.is_empty:
+        raise GeometryError(f"{what}: nothing is left")
+    parts = [g for g in getattr(geometry, "geoms", [geometry]) if isinstance(g, Polygon) and g.area > 1.0]
+    if not parts:
+        raise GeometryError(f"{what}: nothing is left")
+    if len(parts) > 1:
+        parts.sort(key=lambda g: g.area, reverse=True)
+        raise GeometryError(f"{what}: splits into {len(parts)} separate pieces (largest {parts[0].area:.0f} mm², "
+                            f"next {parts[1].area:.0f} mm²)")
+    return parts[0]
+
+
+def offset_inward(polygon: Polygon, distance: float, what: str) -> Polygon:
+    """True normal offset of ``polygon`` inward by ``distance`` mm (round joins)."""
+    return single_polygon(polygon.buffer(-distance, quad_segs=QUAD_SEGS, join_style="round"), what)
+
+
+def round_concave_corners(polygon: Polygon, radius: float) -> Polygon:
+    """Morphological closing: concave corners get at least ``radius``; convex ones and smooth curves stay."""
+    if radius <= 0:
+        return polygon
+    closed = polygon.buffer(radius, quad_segs=QUAD_SEGS, join_style="round").buffer(
+        -radius, quad_segs=QUAD_SEGS, join_style="round")
+    return single_polygon(closed, "rounding concave corners to the cutter radius")
+
+
+def vertical_extent(polygon: Polygon, x: float) -> tuple[float, float] | None:
+    """Lowest and highest y of ``polygon`` on the vertical line at ``x`` (None if it misses)."""
+    minx, miny, maxx, maxy = polygon.bounds
+    if not minx < x < maxx:
+        return None
+    cut = polygon.intersection(shapely.geometry.LineString([(x, miny - 1), (x, maxy + 1)]))
+    if cut.is_empty:
+        return None
+    _, y0, _, y1 = cut.bounds
+    return y0, y1

@@ -1,0 +1,138 @@
+"""A rib at one station: mold-line offsets, pieces at the spars, joggles, holes and pins.
+
+Pure numpy/shapely: nothing here imports the solid kernel (``diegen check`` runs on this alone).
+"""
+
+from __future__ import annotations
+
+from functools import lru_cache
+
+import numpy as np
+from shapely.geometry import Polygon
+
+from diegen.errors import GeometryError
+from diegen.geometry import holes as hole_rules
+from diegen.geometry import pins as pin_rules
+from diegen.geometry.pieces import SparCut, depth_at, joggles_for, piece_runs, relief_points, split_surfaces, tail_end
+from diegen.geometry.polygon import as_points, offset_inward, vertical_extent
+from diegen.geometry.types import Hole, PieceGeometry, RibGeometry
+from diegen.spec.model import AirfoilSource, RibSpec
+
+DEPTH_SAMPLES = 64
+
+
+@lru_cache(maxsize=64)
+def load_section(source: AirfoilSource) -> np.ndarray:
+    """The unit-chord section loop of ``source``, smoothly re-sampled (CCW, LE at the origin)."""
+    from diegen.geometry.coordfile import read_coordinates
+    from diegen.geometry.naca import naca_section
+    from diegen.geometry.section import resample
+
+    raw = naca_section(source.naca, n_points=801, closed_te=source.closed_te) if source.naca else read_coordinates(source.file)
+    section = resample(raw, source.points)
+    section.setflags(write=False)
+    return section
+
+
+def min_tail_depth(spec: RibSpec) -> float:
+    """Depth where the tail piece ends (mm): the spec's value, else 2 × flange height + 10 mm."""
+    flange = spec.shared.flange
+    return flange.min_tail_depth_mm if flange.min_tail_depth_mm is not None else 2 * flange.height_mm + 10.0
+
+
+def rib_geometry(spec: RibSpec, section: np.ndarray | None = None) -> RibGeometry:
+    """Compute the rib's 2D geometry; ``section`` (unit chord) defaults to the spec's airfoil."""
+    shared = spec.shared
+    unit = load_section(spec.airfoil) if section is None else np.asarray(section, float)
+    scaled = unit * spec.chord_mm
+    airfoil = Polygon(scaled)
+    if not airfoil.is_valid:
+        raise GeometryError(f"the {spec.airfoil.label} section is not a simple outline at {spec.chord_mm:.0f} mm chord")
+    skin, sheet_t = shared.skin_thickness_mm, shared.sheet.thickness_mm
+    oml = offset_inward(airfoil, skin, f"offsetting the section inward by the skin ({skin:.3f} mm)")
+    die = offset_inward(oml, sheet_t, f"offsetting the outer mold line inward by the rib sheet ({sheet_t:.3f} mm)")
+    upper, lower = split_surfaces(np.asarray(as_points(die)))
+    spars = [SparCut(s.at * spec.chord_mm, s.web_mm, s.cap_thickness_mm, s.cap_width_mm) for s in spec.spars]
+    warnings: list[str] = []
+    pieces = []
+    for name, x0, x1, aft_flanged in _piece_ranges(spec, spars, upper, lower, warnings):
+        pieces.append(_piece(spec, name, x0, x1, aft_flanged, upper, lower, spars))
+    return RibGeometry(spec.id, spec.chord_mm, _tuple(scaled), as_points(oml), as_points(die), tuple(pieces),
+                       tuple(warnings))
+
+
+def _piece_ranges(spec: RibSpec, spars: list[SparCut], upper: np.ndarray, lower: np.ndarray,
+                  warnings: list[str]) -> list[tuple[str, float | None, float, bool]]:
+    t = spec.shared.sheet.thickness_mm
+    ranges: list[tuple[str, float | None, float, bool]] = []
+    for name in spec.shared.pieces:
+        if name == "nose":
+            ranges.append((name, None, spars[0].x_front_mm - t, True))
+        elif name == "center":
+            ranges.append((name, spars[0].x_aft_mm + t, spars[1].x_front_mm - t, True))
+        else:
+            start = spars[-1].x_aft_mm + t
+            limit = min_tail_depth(spec)
+            end = tail_end(upper, lower, start, limit)
+            if end is None or end - start < 2 * spec.shared.flange.height_mm:
+                depth = depth_at(upper, lower, start)
+                warnings.append(f"no tail piece: the die depth aft of the rear spar is {depth:.1f} mm and it falls "
+                                f"below the minimum tail depth of {limit:.1f} mm within "
+                                f"{0 if end is None else end - start:.1f} mm (set flange.min_tail_depth to change this)")
+                continue
+            ranges.append((name, start, end, False))
+    return ranges
+
+
+def _piece(spec: RibSpec, name: str, x0: float | None, x1: float, aft_flanged: bool, upper: np.ndarray,
+           lower: np.ndarray, spars: list[SparCut]) -> PieceGeometry:
+    shared = spec.shared
+    part_id = f"{spec.id}-{name}"
+    lo = float(upper[0, 0]) if x0 is None else float(x0)
+    x1 = float(x1)
+    if x1 - lo < 1.0:
+        raise GeometryError(f"the {name} piece of rib {spec.id} has no length (from x = {lo:.1f} to {x1:.1f} mm)")
+    joggles = joggles_for(lo, x1, spars, shared.joggle_runout, shared.die.cutter_diameter_mm / 2)
+    runs = piece_runs(upper, lower, x0, x1, joggles, aft_flanged)
+    points = [p for run in runs for p in run.points[:-1]]
+    polygon = Polygon(points)
+    if not polygon.is_valid or polygon.area <= 0:
+        raise GeometryError(f"the {name} piece of rib {spec.id} is not a simple outline (joggles deeper than the section?)")
+    radius = shared.flange.bend_radius_mm
+    holes = _holes(spec, name, polygon, (lo, x1), radius)
+    pins = _pins(spec, name, polygon, (lo, x1), radius, holes)
+    return PieceGeometry(name, part_id, (lo, x1), runs, tuple(joggles), holes, pins, relief_points(runs),
+                         _depth_range(polygon, lo, x1, name))
+
+
+def _holes(spec: RibSpec, name: str, polygon: Polygon, x_range: tuple[float, float], radius: float) -> tuple[Hole, ...]:
+    holes = spec.shared.holes
+    if holes.mode == "none":
+        return ()
+    if holes.mode == "list":
+        return hole_rules.explicit_holes(polygon, x_range, radius, holes.rules, holes.explicit, name)
+    return hole_rules.auto_holes(polygon, radius, holes.rules)
+
+
+def _pins(spec: RibSpec, name: str, polygon: Polygon, x_range: tuple[float, float], radius: float,
+          holes: tuple[Hole, ...]) -> tuple:
+    pins = spec.shared.pins
+    margin = spec.shared.holes.rules.edge_margin_mm
+    if pins.mode == "list":
+        return pin_rules.explicit_pins(polygon, x_range, radius, margin, pins.diameter_mm, holes, pins.explicit, name)
+    return pin_rules.auto_pins(polygon, radius, margin, pins.diameter_mm, holes, name)
+
+
+def _depth_range(polygon: Polygon, x0: float, x1: float, name: str) -> tuple[float, float]:
+    """Smallest and largest web depth (mm); the nose is sampled from a tenth of its length (its tip has none)."""
+    start = x0 + (0.1 * (x1 - x0) if name == "nose" else 1e-6)
+    depths = []
+    for x in np.linspace(start, x1 - 1e-6, DEPTH_SAMPLES):
+        extent = vertical_extent(polygon, float(x))
+        if extent:
+            depths.append(extent[1] - extent[0])
+    return (round(min(depths), 3), round(max(depths), 3)) if depths else (0.0, 0.0)
+
+
+def _tuple(points: np.ndarray):
+    return tuple((float(x), float(y)) for x, y in points)

@@ -1,0 +1,318 @@
+"""Airfoil section loops: normalise, validate, split, re-sample and blend.
+
+Loop convention (the whole project): an ``np.ndarray`` of shape (N, 2), chord 1
+along +X, leading edge at (0, 0), trailing edge near (1, 0), points in Selig
+order: upper TE -> upper surface -> LE -> lower surface -> lower TE, which is
+counter-clockwise (positive signed area) with X right and Y up.  The closing
+segment (last -> first point) is implicit and no point repeats; a closed
+(sharp) trailing edge is one point, listed first.
+
+All lengths are fractions of the chord.
+"""
+
+from __future__ import annotations
+
+import re
+
+import numpy as np
+import shapely
+import shapely.validation
+from numpy.typing import ArrayLike, NDArray
+from scipy.interpolate import CubicSpline
+
+from diegen.errors import AirfoilError
+
+FloatArray = NDArray[np.float64]
+IntArray = NDArray[np.intp]
+
+MIN_POINTS = 10
+# Two points closer than this (fraction of the outline's size) are the same point.
+DUPLICATE_TOL = 1e-9
+# A closing segment within this angle of the last surface segment continues the
+# surface into a single (closed) trailing-edge point; an open trailing edge has
+# a base roughly square to the surface (degrees).
+_CLOSED_TE_ANGLE = 45.0
+# Two re-sampled TE points closer than this (fraction of chord) are one point.
+_TE_MERGE_TOL = 1e-9
+# Samples of the spline per input segment used to measure its arc length.
+_ARC_SAMPLES_PER_SEGMENT = 16
+
+
+def signed_area(points: ArrayLike) -> float:
+    """Shoelace area of the closed polygon through ``points``; > 0 if counter-clockwise."""
+    p = np.asarray(points, dtype=float)
+    x, y = p[:, 0], p[:, 1]
+    return 0.5 * float(np.dot(x, np.roll(y, -1)) - np.dot(y, np.roll(x, -1)))
+
+
+def _as_points(points: ArrayLike, name: str) -> FloatArray:
+    try:
+        p = np.array(points, dtype=float)
+    except (TypeError, ValueError) as exc:
+        raise AirfoilError(f"{name}: points are not numbers ({exc})") from None
+    if p.ndim != 2 or p.shape[1] != 2:
+        raise AirfoilError(f"{name}: points must have shape (N, 2), got {p.shape}")
+    if not np.all(np.isfinite(p)):
+        raise AirfoilError(f"{name}: points contain NaN or infinite values")
+    return p
+
+
+def _te_is_closed(chain: FloatArray) -> bool:
+    """True if the chain's first point is a single (closed) trailing-edge point.
+
+    The chain runs from one TE end to the other.  For an open TE the closing
+    segment (last -> first) is the TE base, roughly square to the surface; for a
+    closed TE listed once, it is the last surface segment into the TE point and
+    so points along the preceding segment.
+    """
+    closing = chain[0] - chain[-1]
+    before = chain[-1] - chain[-2]
+    norms = np.linalg.norm(closing) * np.linalg.norm(before)
+    if norms == 0.0:
+        return True
+    cos_angle = float(np.dot(closing, before)) / norms
+    return cos_angle > np.cos(np.radians(_CLOSED_TE_ANGLE))
+
+
+def _drop_duplicates(chain: FloatArray, index: IntArray) -> tuple[FloatArray, IntArray]:
+    """Drop consecutive repeated points and a last point that repeats the first."""
+    scale = float(np.ptp(chain, axis=0).max()) if len(chain) else 0.0
+    tol = DUPLICATE_TOL * max(scale, 1e-300)
+    keep = np.ones(len(chain), dtype=bool)
+    keep[1:] = np.linalg.norm(np.diff(chain, axis=0), axis=1) > tol
+    chain, index = chain[keep], index[keep]
+    while len(chain) > 1 and np.linalg.norm(chain[-1] - chain[0]) <= tol:
+        chain, index = chain[:-1], index[:-1]
+    return chain, index
+
+
+def normalise_with_index(points: ArrayLike, name: str = "<points>") -> tuple[FloatArray, IntArray]:
+    """Like :func:`normalise`, also returning, for each loop point, its row in ``points``."""
+    chain = _as_points(points, name)
+    chain, index = _drop_duplicates(chain, np.arange(len(chain)))
+    if len(chain) < 3:
+        raise AirfoilError(f"{name}: only {len(chain)} distinct points, at least {MIN_POINTS} needed")
+    closed = _te_is_closed(chain)
+    te = chain[0].copy() if closed else 0.5 * (chain[0] + chain[-1])
+    distance = np.linalg.norm(chain - te, axis=1)
+    i_le = int(np.argmax(distance))
+    chord = float(distance[i_le])
+    if chord <= 0.0:
+        raise AirfoilError(f"{name}: all points coincide, the section has no chord")
+    le = chain[i_le].copy()
+    cos_a, sin_a = (te - le) / chord
+    rotate = np.array([[cos_a, -sin_a], [sin_a, cos_a]])  # row-vector form: p @ rotate
+    loop = (chain - le) @ rotate / chord
+    loop[i_le] = (0.0, 0.0)
+    if signed_area(loop) < 0.0:
+        order = np.concatenate(([0], np.arange(len(loop) - 1, 0, -1))) if closed else np.arange(len(loop))[::-1]
+        loop, index = loop[order], index[order]
+    return loop, index
+
+
+def normalise(points: ArrayLike) -> FloatArray:
+    """Put a section outline in the project's loop convention.
+
+    ``points`` (shape (N, 2), any units) run from one trailing-edge end to the
+    other, in either direction, as listed in a coordinate file.  The trailing
+    edge is the midpoint of the two end points (or the single TE point of a
+    closed TE, listed at one end or at both); the leading edge is the point
+    farthest from it.  The result is translated to put the LE at (0, 0),
+    rotated so the TE lies on +X, scaled to chord 1, cleared of repeated
+    points and ordered counter-clockwise from the upper TE.
+    """
+    return normalise_with_index(points)[0]
+
+
+def leading_edge_index(loop: ArrayLike) -> int:
+    """Index of the loop's leading-edge point (the vertex nearest (0, 0))."""
+    p = np.asarray(loop, dtype=float)
+    return int(np.argmin(np.einsum("ij,ij->i", p, p)))
+
+
+def split_surfaces(loop: ArrayLike) -> tuple[FloatArray, FloatArray]:
+    """Upper and lower surfaces of a loop, each running LE -> TE (fractions of chord).
+
+    Both start with the LE point; with a closed trailing edge both end with
+    the shared TE point.
+    """
+    p = np.asarray(loop, dtype=float)
+    i_le = leading_edge_index(p)
+    upper = p[: i_le + 1][::-1].copy()
+    lower = p[i_le:].copy()
+    if _te_is_closed(p):
+        lower = np.vstack((lower, p[:1]))
+    return upper, lower
+
+
+def first_x_reversal(loop: ArrayLike, tol: float = 1e-3) -> int | None:
+    """Index of the first loop point where a surface turns back in x, or None.
+
+    Along each surface from the LE to the TE, x may not fall by more than
+    ``tol`` (fraction of chord) below the largest x reached so far.
+    """
+    p = np.asarray(loop, dtype=float)
+    i_le = leading_edge_index(p)
+    upper_x = p[: i_le + 1, 0][::-1]  # LE -> TE, loop indices i_le .. 0
+    lower_x = p[i_le:, 0]  # LE -> TE, loop indices i_le .. N-1
+    hits: list[int] = []
+    for xs, to_loop in ((upper_x, lambda k: i_le - k), (lower_x, lambda k: i_le + k)):
+        drop = np.maximum.accumulate(xs) - xs
+        bad = np.nonzero(drop > tol)[0]
+        if len(bad):
+            hits.append(int(to_loop(int(bad[0]))))
+    return min(hits) if hits else None
+
+
+_POINT_IN_MESSAGE = re.compile(r"\[\s*([-+0-9.eE]+)\s+([-+0-9.eE]+)")
+
+
+def self_intersection_index(loop: ArrayLike) -> int | None:
+    """Index of a loop point next to where the closed outline crosses itself, or None."""
+    p = np.asarray(loop, dtype=float)
+    ring = shapely.LinearRing(p)
+    if ring.is_simple and shapely.Polygon(ring).is_valid:
+        return None
+    reason = shapely.validation.explain_validity(shapely.Polygon(ring))
+    match = _POINT_IN_MESSAGE.search(reason)
+    if match is None:
+        return 0
+    where = np.array([float(match.group(1)), float(match.group(2))])
+    return int(np.argmin(np.linalg.norm(p - where, axis=1)))
+
+
+def validate(loop: ArrayLike, name: str = "<section>") -> None:
+    """Raise :class:`AirfoilError` unless ``loop`` is a usable section outline.
+
+    Checks: shape (N, 2) of finite numbers, at least 10 points, a simple
+    polygon (no self-intersection or touching), counter-clockwise.
+    """
+    p = _as_points(loop, name)
+    if len(p) < MIN_POINTS:
+        raise AirfoilError(f"{name}: only {len(p)} points, at least {MIN_POINTS} needed")
+    i = self_intersection_index(p)
+    if i is not None:
+        raise AirfoilError(f"{name}: the outline crosses or touches itself near point {i} {tuple(p[i].round(6))}")
+    if signed_area(p) <= 0.0:
+        raise AirfoilError(f"{name}: the outline is not counter-clockwise (Selig order) or has no area")
+
+
+# --------------------------------------------------------------------------- resample
+
+
+def _surface_sample_counts(n_points: int) -> tuple[int, int]:
+    """Points on the upper and lower surface, each counting the LE and the TE."""
+    if isinstance(n_points, bool) or not isinstance(n_points, (int, np.integer)) or n_points < MIN_POINTS:
+        raise AirfoilError(f"n_points must be an integer of at least {MIN_POINTS}, got {n_points!r}")
+    n_upper = int(n_points) // 2 + 1
+    return n_upper, int(n_points) + 1 - n_upper
+
+
+def surface_fractions(n: int) -> FloatArray:
+    """Cosine distribution of ``n`` arc-length fractions from the LE (0) to the TE (1).
+
+    Dense at the nose (and, less so, at the TE): s_k = (1 - cos(pi k / (n - 1))) / 2.
+    """
+    s = 0.5 * (1.0 - np.cos(np.linspace(0.0, np.pi, n)))
+    s[0], s[-1] = 0.0, 1.0
+    return s
+
+
+def _resample_surfaces(loop: ArrayLike, n_points: int) -> tuple[FloatArray, FloatArray]:
+    """Re-sampled upper and lower surfaces (LE -> TE), with fixed counts for ``n_points``.
+
+    One cubic spline (not-a-knot ends) through the whole chain TE -> LE -> TE,
+    on a cumulative chord-length parameter, keeps the curve smooth over the nose;
+    the LE and both TE points are knots and are reproduced exactly.  Each
+    surface is then sampled at cosine-spaced fractions of its own arc length.
+    """
+    n_upper, n_lower = _surface_sample_counts(n_points)
+    upper, lower = split_surfaces(loop)
+    if len(upper) < 2 or len(lower) < 2:
+        raise AirfoilError("section has no point on one surface; cannot re-sample")
+    chain = np.vstack((upper[::-1], lower[1:]))  # upper TE -> LE -> lower TE
+    i_le = len(upper) - 1
+    seg = np.linalg.norm(np.diff(chain, axis=0), axis=1)
+    if np.any(seg <= 0.0):
+        raise AirfoilError("section has repeated points; normalise it before re-sampling")
+    t = np.concatenate(([0.0], np.cumsum(seg)))
+    spline = CubicSpline(t, chain, axis=0, bc_type="not-a-knot")
+
+    out = []
+    for t0, t1, count in ((t[i_le], t[0], n_upper), (t[i_le], t[-1], n_lower)):
+        n_fine = max(_ARC_SAMPLES_PER_SEGMENT * int(round(abs(t1 - t0) / np.mean(seg))), 200)
+        tf = np.linspace(t0, t1, n_fine)
+        pts = spline(tf)
+        arc = np.concatenate(([0.0], np.cumsum(np.linalg.norm(np.diff(pts, axis=0), axis=1))))
+        arc /= arc[-1]
+        samples = spline(np.interp(surface_fractions(count), arc, tf))
+        samples[0] = chain[i_le]
+        samples[-1] = chain[0] if t1 == t[0] else chain[-1]
+        out.append(samples)
+    return out[0], out[1]
+
+
+def _assemble(upper: FloatArray, lower: FloatArray) -> FloatArray:
+    """Join LE -> TE surfaces into a Selig loop, merging coincident TE points."""
+    if np.linalg.norm(upper[-1] - lower[-1]) <= _TE_MERGE_TOL:
+        te = 0.5 * (upper[-1] + lower[-1])
+        return np.vstack((te, upper[-2::-1], lower[1:-1]))
+    return np.vstack((upper[::-1], lower[1:]))
+
+
+def resample(loop: ArrayLike, n_points: int = 241) -> FloatArray:
+    """Smoothly re-sample a section loop for machining.
+
+    Returns ``n_points`` points for an open trailing edge, one fewer for a
+    closed one (the two surfaces share the TE point).  The upper surface always
+    gets ``n_points // 2 + 1`` points (counting LE and TE), so the LE index is
+    ``n_points // 2`` for every section, and every section re-sampled with the
+    same ``n_points`` has the same per-surface arc-length fractions: point k of
+    one corresponds to point k of another (see :func:`blend`).
+    """
+    return _assemble(*_resample_surfaces(loop, n_points))
+
+
+def blend(root_loop: ArrayLike, tip_loop: ArrayLike, fraction: float, n_points: int = 241) -> FloatArray:
+    """Section between ``root_loop`` (fraction 0) and ``tip_loop`` (fraction 1).
+
+    Both are re-sampled identically (:func:`resample`) and interpolated point by
+    point, surface by surface.  Fraction 0 and 1 reproduce the re-sampled root
+    and tip exactly.
+    """
+    f = float(fraction)
+    if not np.isfinite(f):
+        raise AirfoilError(f"blend fraction must be a finite number, got {fraction!r}")
+    ru, rl = _resample_surfaces(root_loop, n_points)
+    tu, tl = _resample_surfaces(tip_loop, n_points)
+    if f == 0.0:
+        return _assemble(ru, rl)
+    if f == 1.0:
+        return _assemble(tu, tl)
+    return _assemble((1.0 - f) * ru + f * tu, (1.0 - f) * rl + f * tl)
+
+
+def thickness_at(loop: ArrayLike, x: ArrayLike) -> FloatArray:
+    """Local depth of the section (highest minus lowest outline point) at chord fractions ``x``.
+
+    Vectorised over ``x``; zero where the vertical line misses the outline.
+    """
+    p = np.asarray(loop, dtype=float)
+    xs = np.atleast_1d(np.asarray(x, dtype=float))
+    a, b = p, np.roll(p, -1, axis=0)  # segments a -> b, closing segment included
+    lo, hi = np.minimum(a[:, 0], b[:, 0]), np.maximum(a[:, 0], b[:, 0])
+    dx = b[:, 0] - a[:, 0]
+    result = np.zeros(xs.shape)
+    chunk = max(1, 2_000_000 // max(len(p), 1))
+    for start in range(0, len(xs), chunk):
+        xc = xs[start : start + chunk, None]
+        hit = (xc >= lo) & (xc <= hi)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            u = np.where(dx != 0.0, (xc - a[:, 0]) / np.where(dx != 0.0, dx, 1.0), 0.0)
+        y = a[:, 1] + u * (b[:, 1] - a[:, 1])
+        # Vertical segments (dx == 0) hit at both ends: include both ordinates.
+        y_top = np.where(hit, np.where(dx == 0.0, np.maximum(a[:, 1], b[:, 1]), y), -np.inf)
+        y_bot = np.where(hit, np.where(dx == 0.0, np.minimum(a[:, 1], b[:, 1]), y), np.inf)
+        top, bot = y_top.max(axis=1), y_bot.min(axis=1)
+        result[start : start + chunk] = np.where(np.isfinite(top) & np.isfinite(bot), top - bot, 0.0)
+    return result.reshape(np.shape(x)) if np.ndim(x) else result.reshape(())

@@ -1,0 +1,107 @@
+"""Plain data produced by the geometry layer (mm, rib plane X–Y, X aft from the leading edge, Y up).
+
+Point sequences are tuples of ``(x, y)`` so values can be hashed and compared;
+numpy arrays stay inside the functions that compute them.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Literal
+
+Point = tuple[float, float]
+Points = tuple[Point, ...]
+
+
+@dataclass(frozen=True)
+class Run:
+    """A stretch of a die outline: a smooth contour or a straight end face.
+
+    ``flanged`` is False for a cut end (the tail's aft end) that gets no flange.
+    Consecutive runs share their end points; all runs of a piece form one closed
+    counter-clockwise loop.
+    """
+
+    kind: Literal["curve", "line"]
+    points: Points
+    flanged: bool = True
+
+
+@dataclass(frozen=True)
+class Joggle:
+    """A recess of the die wall where the rib flange laps a spar cap."""
+
+    spar: int  # index into the spec's spars
+    surface: Literal["upper", "lower"]
+    x_start_mm: float  # full-depth zone, along the chord
+    x_end_mm: float
+    depth_mm: float
+    ramp_mm: float  # run-out length at each open end of the zone
+
+
+@dataclass(frozen=True)
+class Hole:
+    """A lightening hole: ``d`` is the hole's diameter at the web (the die bore when flanged)."""
+
+    x: float
+    y: float
+    d: float
+    flanged: bool
+    flange_height: float
+
+
+@dataclass(frozen=True)
+class Pin:
+    """A tooling-pin (dowel) spot shared by the die and the blank."""
+
+    x: float
+    y: float
+    d: float
+
+
+@dataclass(frozen=True)
+class PieceGeometry:
+    """One rib piece's die outline and web features."""
+
+    name: str  # nose | center | tail
+    part_id: str
+    x_range_mm: tuple[float, float]
+    runs: tuple[Run, ...]
+    joggles: tuple[Joggle, ...]
+    holes: tuple[Hole, ...]
+    pins: tuple[Pin, ...]
+    relief_points: Points  # corners where a flanged contour meets a flanged end face
+    depth_range_mm: tuple[float, float]
+
+    @property
+    def outline(self) -> Points:
+        """The closed die outline as one point loop (no repeated closing point)."""
+        points: list[Point] = []
+        for run in self.runs:
+            points.extend(run.points[:-1])
+        return tuple(points)
+
+    @property
+    def length_mm(self) -> float:
+        from diegen.geometry.polygon import loop_length
+
+        return loop_length(self.outline)
+
+    @property
+    def area_mm2(self) -> float:
+        from diegen.geometry.polygon import loop_area
+
+        return loop_area(self.outline)
+
+
+@dataclass(frozen=True)
+class RibGeometry:
+    """Everything the 2D layer knows about one rib at one station."""
+
+    rib_id: str
+    chord_mm: float
+    section: Points  # the airfoil scaled to the chord
+    oml: Points  # outer mold line: section offset inward by the skin
+    die_outline: Points  # inner mold line of the flange: OML offset inward by the rib sheet
+    pieces: tuple[PieceGeometry, ...]
+    warnings: tuple[str, ...] = ()

@@ -1,0 +1,97 @@
+"""Plain-data input of the die (form block) builder.
+
+Conventions (all lengths in mm, all angles in degrees):
+
+* Rib plane X–Y: X along the chord from the leading edge, Y up.
+* The die's top face (the face the blank is pinned to) lies at z = 0 and the
+  block extends downwards to z = −height_mm.
+* The outline is the die's *mold line*: the line where the plane of the top
+  face meets the (extended) plane of the side wall.  The wall leans inward by
+  ``undercut_deg`` going down, so the bottom outline is the outline offset
+  inward by ``height_mm·tan(undercut)``.  The top edge is rounded by
+  ``top_radius_mm``, tangent to the top face and to the leaning wall, so the
+  flat part of the top face ends at the outline offset inward by the setback
+  ``top_radius·(1 + sin α)/cos α`` (see :mod:`diegen.solid.profile`).
+
+Nothing here imports the solid-modelling kernel.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Literal
+
+RunKind = Literal["curve", "line"]
+RUN_KINDS: tuple[RunKind, ...] = ("curve", "line")
+
+
+@dataclass(frozen=True)
+class OutlineRun:
+    """A piece of the die's top-face outline (mold line), in mm.
+
+    ``kind`` "curve" is a smooth contour (airfoil, joggle ramps), interpolated
+    smoothly through ``points``; "line" is a straight end face (at a spar),
+    one straight edge between each pair of consecutive points.  Consecutive
+    runs share end points; all runs together form one closed counter-clockwise
+    loop.
+    """
+
+    kind: RunKind
+    points: tuple[tuple[float, float], ...]
+
+
+@dataclass(frozen=True)
+class Flute:
+    """A relief groove in the die wall.
+
+    ``s_mm`` is the arc length along the whole outline, measured from its first
+    point, of the groove's centre; ``width_mm`` the groove's width at the wall
+    where it is deepest; ``depth_mm`` its full depth into the wall.
+    """
+
+    s_mm: float
+    width_mm: float
+    depth_mm: float
+
+
+@dataclass(frozen=True)
+class Bore:
+    """A through bore for a flanged lightening hole; ``d`` is the hole flange's outside diameter (mm)."""
+
+    x: float
+    y: float
+    d: float
+
+
+@dataclass(frozen=True)
+class Pin:
+    """A dowel (tooling pin) hole of diameter ``d`` drilled ``depth`` deep from the top face (mm)."""
+
+    x: float
+    y: float
+    d: float
+    depth: float
+
+
+@dataclass(frozen=True)
+class DieInput:
+    """Everything the die builder needs, in mm and degrees (see the module docstring)."""
+
+    part_id: str
+    outline: tuple[OutlineRun, ...]
+    height_mm: float  # stock thickness
+    top_radius_mm: float  # springback-compensated die radius on the top edge
+    undercut_deg: float  # side walls lean inward going down by this angle (over-bend)
+    cutter_radius_mm: float  # no internal concave corner tighter than this
+    # grooves in the wall, depth tapering from 0 at the top (bend line) to full at flange-edge depth
+    flutes: tuple[Flute, ...] = ()
+    flute_length_mm: float = 0.0  # how far down the wall the flute tapers (the flange height)
+    bores: tuple[Bore, ...] = ()
+    pins: tuple[Pin, ...] = ()
+    engraving: tuple[str, ...] = ()  # lines engraved on the BOTTOM face, plus an orientation arrow
+    bore_top_radius_mm: float | None = None  # defaults to top_radius_mm
+
+    @property
+    def bore_radius_mm(self) -> float:
+        """Radius on the top edge of every bore (mm)."""
+        return self.top_radius_mm if self.bore_top_radius_mm is None else self.bore_top_radius_mm

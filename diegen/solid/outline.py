@@ -1,0 +1,352 @@
+"""Smooth model of the die outline and its exact inward normal offsets (no kernel).
+
+Each "curve" run is interpolated by a cubic spline through its points
+(parameter = cumulative chord length, mm); each "line" run is one straight
+edge per pair of consecutive points.  The offset of a section at inset ``u``
+moves every point along the inward normal (exact normal offset); at each
+junction between segments the two offset segments are trimmed (or, for a
+tangent-continuous junction, met) at their intersection, found by Newton's
+method.  Every section therefore has the same sequence of segments, and each
+curve segment is sampled at the same parameter fractions, so the lofted
+sections match edge to edge and point to point.
+
+Checks made here raise :class:`diegen.errors.GeometryError` with the place
+(x, y in mm) and what to change: an open or clockwise loop, a concave spot
+tighter than the router cutter radius, a convex spot tighter than the largest
+inset, and an offset that crosses itself (a piece too thin for its wall).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+from numpy.typing import NDArray
+from scipy.interpolate import BSpline, make_interp_spline
+from shapely.geometry import Polygon
+from shapely.validation import explain_validity
+
+from diegen.errors import GeometryError
+from diegen.solid.die_input import OutlineRun, RunKind
+
+Array = NDArray[np.float64]
+
+JOIN_TOL_MM = 1e-6  # consecutive runs must share end points to this distance
+CONCAVE_JUNCTION_DEG = 0.5  # a sharper concave turn at a run junction is a corner no cutter can make
+MAX_EXTENSION_MM = 0.05  # how far a segment may be extended past its end to meet its neighbour
+
+
+def _rot90(v: Array) -> Array:
+    """Rotate vectors by +90° (the inward normal of a counter-clockwise loop)."""
+    return np.stack([-v[..., 1], v[..., 0]], axis=-1)
+
+
+class _Segment:
+    """One edge of the outline model; parameter ``s`` in mm from 0 to ``length``."""
+
+    kind: RunKind
+    length: float
+
+    def point(self, s: Array | float, inset: float) -> Array:  # pragma: no cover - interface
+        raise NotImplementedError
+
+    def deriv(self, s: Array | float, inset: float) -> Array:  # pragma: no cover - interface
+        raise NotImplementedError
+
+
+class _LineSegment(_Segment):
+    def __init__(self, a: Array, b: Array) -> None:
+        self.kind = "line"
+        self.a = a
+        self.length = float(np.linalg.norm(b - a))
+        self.t = (b - a) / self.length
+        self.n = _rot90(self.t)
+
+    def point(self, s: Array | float, inset: float) -> Array:
+        s = np.asarray(s, dtype=float)
+        return self.a + s[..., None] * self.t + inset * self.n
+
+    def deriv(self, s: Array | float, inset: float) -> Array:
+        s = np.asarray(s, dtype=float)
+        return np.broadcast_to(self.t, s.shape + (2,)).copy()
+
+    def tangent(self, s: Array | float) -> Array:
+        return self.deriv(s, 0.0)
+
+
+class _CurveSegment(_Segment):
+    def __init__(self, pts: Array, periodic: bool) -> None:
+        self.kind = "curve"
+        chord = np.linalg.norm(np.diff(pts, axis=0), axis=1)
+        if np.any(chord < 1e-9):
+            i = int(np.argmin(chord))
+            raise GeometryError(
+                f"outline curve has two coincident points at ({pts[i, 0]:.3f}, {pts[i, 1]:.3f}) mm: remove the duplicate"
+            )
+        u = np.concatenate([[0.0], np.cumsum(chord)])
+        self.length = float(u[-1])
+        k = min(3, len(pts) - 1)
+        bc = "periodic" if periodic else None
+        self.spline: BSpline = make_interp_spline(u, pts, k=k, bc_type=bc)
+        self.d1 = self.spline.derivative(1)
+        self.d2 = self.spline.derivative(2) if k >= 2 else None
+
+    def base(self, s: Array | float) -> Array:
+        return np.asarray(self.spline(s))
+
+    def tangent(self, s: Array | float) -> Array:
+        d = np.asarray(self.d1(s))
+        return d / np.linalg.norm(d, axis=-1, keepdims=True)
+
+    def curvature(self, s: Array | float) -> Array:
+        """Signed curvature (1/mm), positive where the loop turns left (convex)."""
+        d = np.asarray(self.d1(s))
+        if self.d2 is None:
+            return np.zeros(d.shape[:-1])
+        dd = np.asarray(self.d2(s))
+        cross = d[..., 0] * dd[..., 1] - d[..., 1] * dd[..., 0]
+        return cross / np.linalg.norm(d, axis=-1) ** 3
+
+    def point(self, s: Array | float, inset: float) -> Array:
+        return self.base(s) + inset * _rot90(self.tangent(s))
+
+    def deriv(self, s: Array | float, inset: float) -> Array:
+        d = np.asarray(self.d1(s))
+        k = self.curvature(s)[..., None]
+        return d * (1.0 - inset * k)
+
+
+@dataclass(frozen=True)
+class OffsetPiece:
+    """One edge of an offset section: its kind and its points (mm).
+
+    A "line" piece has its two end points; a "curve" piece its samples at the
+    fixed parameter fractions of its segment.
+    """
+
+    kind: RunKind
+    points: tuple[tuple[float, float], ...]
+
+
+class OutlineModel:
+    """The die outline as segments, with exact inward offsets.
+
+    ``max_inset_mm`` is the largest inset any section will use (mm); it sets the
+    convex-radius check and the sampling density.
+    """
+
+    def __init__(self, runs: tuple[OutlineRun, ...], cutter_radius_mm: float, max_inset_mm: float,
+                 sample_tol_mm: float = 0.001, max_spacing_mm: float = 8.0) -> None:
+        self.cutter_radius_mm = cutter_radius_mm
+        self.max_inset_mm = max_inset_mm
+        self.segments: list[_Segment] = []
+        self.periodic = False
+        self._build(runs)
+        self._check_loop()
+        self._check_curvature()
+        self.fractions: list[Array | None] = [
+            self._fractions(seg, sample_tol_mm, max_spacing_mm) if isinstance(seg, _CurveSegment) else None
+            for seg in self.segments
+        ]
+
+    # -- construction and checks ------------------------------------------------
+    def _build(self, runs: tuple[OutlineRun, ...]) -> None:
+        if not runs:
+            raise GeometryError("die outline is empty: give at least one run")
+        arrays = []
+        for i, run in enumerate(runs):
+            if run.kind not in ("curve", "line"):
+                raise GeometryError(f"outline run {i}: kind {run.kind!r} is not one of 'curve', 'line'")
+            pts = np.asarray(run.points, dtype=float)
+            if pts.ndim != 2 or pts.shape[1] != 2 or len(pts) < 2:
+                raise GeometryError(f"outline run {i}: needs at least two (x, y) points")
+            if not np.all(np.isfinite(pts)):
+                raise GeometryError(f"outline run {i}: has a point that is not a finite number")
+            arrays.append(pts)
+        for i, pts in enumerate(arrays):
+            nxt = arrays[(i + 1) % len(arrays)]
+            gap = float(np.linalg.norm(pts[-1] - nxt[0]))
+            if gap > JOIN_TOL_MM:
+                raise GeometryError(
+                    f"outline run {i} ends at ({pts[-1, 0]:.3f}, {pts[-1, 1]:.3f}) mm but the next run starts "
+                    f"{gap:.3f} mm away: consecutive runs must share end points and close the loop"
+                )
+        if len(runs) == 1 and runs[0].kind == "curve":
+            self.periodic = True
+            self.segments.append(_CurveSegment(arrays[0], periodic=True))
+            return
+        for run, pts in zip(runs, arrays):
+            if run.kind == "curve":
+                self.segments.append(_CurveSegment(pts, periodic=False))
+            else:
+                for a, b in zip(pts[:-1], pts[1:]):
+                    if np.linalg.norm(b - a) < 1e-6:
+                        raise GeometryError(f"outline line run has a zero-length edge at ({a[0]:.3f}, {a[1]:.3f}) mm")
+                    self.segments.append(_LineSegment(a, b))
+        if len(self.segments) < 2 and self.segments[0].kind == "line":
+            raise GeometryError("die outline of a single straight edge encloses nothing")
+
+    def _check_loop(self) -> None:
+        ring = self.dense_base()
+        poly = Polygon(ring)
+        if not poly.is_valid:
+            raise GeometryError(f"die outline crosses itself: {explain_validity(poly)}")
+        if not poly.exterior.is_ccw:
+            raise GeometryError("die outline runs clockwise: list the runs counter-clockwise (interior on the left)")
+        # junction turns
+        n = len(self.segments)
+        for i in range(n if not self.periodic else 0):
+            a, b = self.segments[i], self.segments[(i + 1) % n]
+            ta = a.tangent(a.length)
+            tb = b.tangent(0.0)
+            cross = float(ta[0] * tb[1] - ta[1] * tb[0])
+            turn = math.degrees(math.atan2(cross, float(np.dot(ta, tb))))
+            if turn < -CONCAVE_JUNCTION_DEG:
+                p = a.point(a.length, 0.0)
+                raise GeometryError(
+                    f"sharp inside corner ({-turn:.1f}°) in the die outline at ({p[0]:.2f}, {p[1]:.2f}) mm: "
+                    f"a router cutter of radius {self.cutter_radius_mm:g} mm cannot make it; round it to at least "
+                    "that radius"
+                )
+
+    def _check_curvature(self) -> None:
+        for seg in self.segments:
+            if not isinstance(seg, _CurveSegment):
+                continue
+            s = np.linspace(0.0, seg.length, max(16, int(seg.length / 0.2) + 1))
+            k = seg.curvature(s)
+            i = int(np.argmin(k))
+            if k[i] < 0 and 1.0 / -k[i] < self.cutter_radius_mm * (1.0 - 1e-3):
+                p = seg.base(s[i])
+                raise GeometryError(
+                    f"inside curve of radius {1.0 / -k[i]:.2f} mm in the die outline at ({p[0]:.2f}, {p[1]:.2f}) mm "
+                    f"is tighter than the router cutter radius {self.cutter_radius_mm:g} mm: round it to at least that"
+                )
+            i = int(np.argmax(k))
+            if k[i] > 0 and 1.0 / k[i] < self.max_inset_mm + 0.05:
+                p = seg.base(s[i])
+                raise GeometryError(
+                    f"outside curve of radius {1.0 / k[i]:.2f} mm in the die outline at ({p[0]:.2f}, {p[1]:.2f}) mm "
+                    f"is tighter than the die's top-edge setback {self.max_inset_mm:.2f} mm: round it to a larger "
+                    "radius, lower the top radius, or start a new run at a true corner"
+                )
+
+    @staticmethod
+    def _fractions(seg: _CurveSegment, tol: float, max_spacing: float) -> Array:
+        """Sample fractions for a curve segment: spacing from the spline error bound h⁴/(384·ρ³) ≤ tol."""
+        s = np.linspace(0.0, seg.length, max(32, int(seg.length / 0.25) + 1))
+        rho = 1.0 / np.maximum(np.abs(seg.curvature(s)), 1e-9)
+        h = np.clip((384.0 * tol * rho**3) ** 0.25, 0.25, max_spacing)
+        density = np.concatenate([[0.0], np.cumsum(0.5 * (1 / h[1:] + 1 / h[:-1]) * np.diff(s))])
+        count = max(4, int(math.ceil(density[-1])) + 1)
+        targets = np.linspace(0.0, density[-1], count)
+        return np.interp(targets, density, s) / seg.length
+
+    # -- queries -------------------------------------------------------------------
+    @property
+    def perimeter_mm(self) -> float:
+        """Length of the outline (mm), along the smooth model."""
+        return float(sum(self._arc_length(seg) for seg in self.segments))
+
+    @staticmethod
+    def _arc_length(seg: _Segment, upto: float | None = None) -> float:
+        end = seg.length if upto is None else upto
+        if isinstance(seg, _LineSegment):
+            return end
+        s = np.linspace(0.0, end, max(8, int(end / 0.1) + 1))
+        return float(np.sum(np.linalg.norm(np.diff(seg.point(s, 0.0), axis=0), axis=1)))
+
+    def locate(self, s_mm: float) -> tuple[Array, Array]:
+        """Point and inward unit normal of the outline at arc length ``s_mm`` from its first point."""
+        remaining = s_mm % self.perimeter_mm
+        for seg in self.segments:
+            length = self._arc_length(seg)
+            if remaining <= length or seg is self.segments[-1]:
+                if isinstance(seg, _LineSegment):
+                    s = min(remaining, seg.length)
+                else:
+                    grid = np.linspace(0.0, seg.length, max(8, int(seg.length / 0.1) + 1))
+                    arc = np.concatenate([[0.0], np.cumsum(np.linalg.norm(np.diff(seg.point(grid, 0.0), axis=0), axis=1))])
+                    s = float(np.interp(remaining, arc, grid))
+                return seg.point(s, 0.0), _rot90(seg.tangent(s))
+            remaining -= length
+        raise AssertionError("unreachable")
+
+    def dense_base(self, spacing_mm: float = 0.5) -> Array:
+        """The outline as a dense closed polyline (first point not repeated), mm."""
+        parts = []
+        for seg in self.segments:
+            s = np.linspace(0.0, seg.length, max(2, int(seg.length / spacing_mm) + 1))[:-1]
+            parts.append(seg.point(s, 0.0))
+        return np.concatenate(parts)
+
+    # -- offsets ------------------------------------------------------------------
+    def _junction(self, a: _Segment, b: _Segment, inset: float) -> tuple[float, float]:
+        """Parameters (on a, on b) where the offsets of a and b meet at ``inset``."""
+        sa, sb = a.length, 0.0
+        for _ in range(50):
+            f = a.point(sa, inset) - b.point(sb, inset)
+            if float(np.linalg.norm(f)) < 1e-10:
+                break
+            jac = np.column_stack([a.deriv(sa, inset), -b.deriv(sb, inset)])
+            step = np.linalg.lstsq(jac, -f, rcond=1e-12)[0]
+            sa, sb = sa + float(step[0]), sb + float(step[1])
+        f = a.point(sa, inset) - b.point(sb, inset)
+        if float(np.linalg.norm(f)) > 1e-7 or sa > a.length + MAX_EXTENSION_MM or sb < -MAX_EXTENSION_MM \
+                or sa < 0.0 or sb > b.length:
+            p = a.point(a.length, 0.0)
+            raise GeometryError(
+                f"the die outline offset inward by {inset:.3f} mm cannot be closed at the corner "
+                f"({p[0]:.2f}, {p[1]:.2f}) mm: an edge next to it is too short or the corner too sharp"
+            )
+        return sa, sb
+
+    def offset(self, inset: float) -> list[OffsetPiece]:
+        """The outline offset inward by ``inset`` mm, one piece per segment, same structure for every inset."""
+        n = len(self.segments)
+        if self.periodic:
+            seg = self.segments[0]
+            fr = self.fractions[0]
+            assert fr is not None
+            pts = seg.point(fr[:-1] * seg.length, inset)
+            pieces = [OffsetPiece("curve", tuple(map(tuple, pts.tolist())))]
+        else:
+            starts = [0.0] * n
+            stops = [0.0] * n
+            for i in range(n):
+                sa, sb = self._junction(self.segments[i], self.segments[(i + 1) % n], inset)
+                stops[i] = sa
+                starts[(i + 1) % n] = sb
+            pieces = []
+            corner = [self.segments[i].point(stops[i], inset) for i in range(n)]
+            for i, seg in enumerate(self.segments):
+                p0 = corner[i - 1]
+                p1 = corner[i]
+                if seg.kind == "line":
+                    pts = np.array([p0, p1])
+                else:
+                    fr = self.fractions[i]
+                    assert fr is not None
+                    s = starts[i] + fr * (stops[i] - starts[i])
+                    pts = seg.point(s, inset)
+                    pts[0], pts[-1] = p0, p1  # exactly the shared corners
+                pieces.append(OffsetPiece(seg.kind, tuple(map(tuple, pts.tolist()))))
+        self._check_simple(pieces, inset)
+        return pieces
+
+    @staticmethod
+    def _check_simple(pieces: list[OffsetPiece], inset: float) -> None:
+        ring = np.concatenate([np.asarray(p.points)[:-1] if len(pieces) > 1 else np.asarray(p.points) for p in pieces])
+        poly = Polygon(ring)
+        if not poly.is_valid or poly.area <= 0.0:
+            raise GeometryError(
+                f"the die outline offset inward by {inset:.3f} mm crosses itself ({explain_validity(poly)}): "
+                "the piece is too thin there for its wall; lower the top radius or the undercut, or end the piece sooner"
+            )
+
+
+def pieces_to_polygon(pieces: list[OffsetPiece]) -> Polygon:
+    """A shapely polygon of an offset section (curve pieces as their sample polylines)."""
+    ring = np.concatenate([np.asarray(p.points)[:-1] for p in pieces]) if len(pieces) > 1 else np.asarray(pieces[0].points)
+    return Polygon(ring)

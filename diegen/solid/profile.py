@@ -1,0 +1,69 @@
+"""The die's wall profile, in the plane normal to the outline.
+
+Coordinates of the profile: ``inset`` (mm) measured horizontally inward from
+the outline (the mold line), ``depth`` (mm) measured down from the top face.
+The wall is the straight line ``inset = depth·tan α`` (α = undercut); the top
+edge is a circular arc of radius R tangent to the top face and to that wall.
+The arc spans 90° + α.  Elementary plane geometry (a circle inscribed in the
+corner between two lines) gives:
+
+* setback of the tangent point on the top face: ``t = R·(1 + sin α)/cos α``
+  (= R·cot((90° − α)/2));
+* arc centre at ``(t, R)``; point at arc angle θ (0 at the top face):
+  ``inset = t − R·sin θ``, ``depth = R·(1 − cos θ)``, θ ∈ [0, 90° + α];
+* the arc meets the wall at depth ``R·(1 + sin α)``;
+* bottom outline (depth H): inset ``H·tan α`` — the top radius changes only the
+  top edge, not the bottom outline;
+* widest point of the die: the arc's vertical tangent, inset ``t − R``.
+
+For α = 0 this reduces to the familiar inset R·(1 − sin θ), depth R·(1 − cos θ).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+
+@dataclass(frozen=True)
+class Section:
+    """One section of the die loft: the outline offset inward by ``inset_mm`` at depth ``depth_mm``."""
+
+    inset_mm: float
+    depth_mm: float
+
+
+def top_setback_mm(radius_mm: float, undercut_deg: float) -> float:
+    """Inset of the top-face tangent line from the outline, ``R·(1 + sin α)/cos α`` (mm)."""
+    a = math.radians(undercut_deg)
+    return radius_mm * (1.0 + math.sin(a)) / math.cos(a)
+
+
+def fillet_end_depth_mm(radius_mm: float, undercut_deg: float) -> float:
+    """Depth where the top-edge arc meets the straight wall, ``R·(1 + sin α)`` (mm)."""
+    return radius_mm * (1.0 + math.sin(math.radians(undercut_deg)))
+
+
+def wall_inset_mm(depth_mm: float, undercut_deg: float) -> float:
+    """Inset of the straight wall at ``depth_mm`` below the top face, ``depth·tan α`` (mm)."""
+    return depth_mm * math.tan(math.radians(undercut_deg))
+
+
+def fillet_point(radius_mm: float, undercut_deg: float, theta_deg: float) -> Section:
+    """Point of the top-edge arc at arc angle ``theta_deg`` (0 = on the top face, 90 + α = on the wall)."""
+    t = top_setback_mm(radius_mm, undercut_deg)
+    th = math.radians(theta_deg)
+    return Section(t - radius_mm * math.sin(th), radius_mm * (1.0 - math.cos(th)))
+
+
+def fillet_sections(radius_mm: float, undercut_deg: float, count: int) -> tuple[Section, ...]:
+    """``count`` (>= 2) sections evenly spaced in arc angle over the whole top-edge arc."""
+    if count < 2:
+        raise ValueError("at least two fillet sections are needed")
+    span = 90.0 + undercut_deg
+    return tuple(fillet_point(radius_mm, undercut_deg, span * i / (count - 1)) for i in range(count))
+
+
+def bottom_section(height_mm: float, undercut_deg: float) -> Section:
+    """The bottom face's section: inset ``H·tan α`` at depth H."""
+    return Section(wall_inset_mm(height_mm, undercut_deg), height_mm)

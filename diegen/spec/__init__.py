@@ -1,0 +1,45 @@
+"""Reading and validating spec files (YAML) into plain data in mm / N / MPa."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+from diegen.errors import Problem, SpecError
+from diegen.spec.model import RibSpec, Spec, WingSpec
+from diegen.spec.reader import Reader
+from diegen.spec.schema import read_rib, read_wing
+from diegen.spec.yamltree import YNode, load_file, load_text
+from diegen.units import SPEC_UNITS
+
+__all__ = ["RibSpec", "Spec", "SpecError", "WingSpec", "load_spec", "parse_spec"]
+
+
+def _validate(tree: YNode, file: str, spec_dir: Path) -> Spec:
+    if not tree.is_map:
+        raise SpecError(Problem("expected a mapping of keys at the top of the spec", file, tree.line, tree.column))
+    root = tree.value
+    pre = Reader(file)
+    units_name = pre.choice(root.get("units"), "units", SPEC_UNITS) if "units" in root else None
+    kind = pre.choice(root.get("kind"), "kind", ("rib", "wing")) if "kind" in root else None
+    for key, value in (("units", units_name), ("kind", kind)):
+        if key not in root:
+            pre.problem(tree, key, f"missing required key {key!r}" + (" (in or mm)" if key == "units" else " (rib or wing)"))
+    if pre.problems and kind is None:
+        raise SpecError(pre.problems)
+    reader = Reader(file, units_name or "mm")
+    reader.problems.extend(pre.problems)
+    spec = read_rib(reader, root, spec_dir) if kind == "rib" else read_wing(reader, root, spec_dir)
+    if reader.problems:
+        raise SpecError(sorted(reader.problems, key=lambda p: (p.line or 0, p.column or 0)))
+    return spec
+
+
+def load_spec(path: str | Path) -> Spec:
+    """Load and validate the spec file at ``path``; raise :class:`SpecError` listing every problem."""
+    path = Path(path)
+    return _validate(load_file(path), str(path), path.resolve().parent)
+
+
+def parse_spec(text: str, file: str = "<spec>", spec_dir: str | Path = ".") -> Spec:
+    """Validate spec ``text`` (relative airfoil files are found from ``spec_dir``)."""
+    return _validate(load_text(text, file), file, Path(spec_dir).resolve())

@@ -1,0 +1,190 @@
+"""The validated spec as plain, frozen data in millimetres, newtons and MPa.
+
+These are what every later layer receives; none of them knows about YAML or
+the units the spec was written in (``units`` is kept only to print numbers back
+in the builder's own units).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Literal
+
+PieceName = Literal["nose", "center", "tail"]
+PIECE_NAMES: tuple[str, ...] = ("nose", "center", "tail")
+ReliefPolicy = Literal["flutes", "notches", "none"]
+RELIEF_POLICIES: tuple[str, ...] = ("flutes", "notches", "none")
+RibOrientation = Literal["streamwise", "normal-to-spar"]
+RIB_ORIENTATIONS: tuple[str, ...] = ("streamwise", "normal-to-spar")
+
+
+@dataclass(frozen=True)
+class AirfoilSource:
+    """Where a section comes from: a NACA designation or a coordinate file (absolute path)."""
+
+    naca: str | None = None
+    file: str | None = None
+    closed_te: bool = True
+    points: int = 241  # points after smooth re-sampling
+
+    @property
+    def label(self) -> str:
+        return f"NACA {self.naca}" if self.naca else str(self.file)
+
+
+@dataclass(frozen=True)
+class Sheet:
+    alloy: str
+    thickness_mm: float
+
+
+@dataclass(frozen=True)
+class Flange:
+    height_mm: float  # mold-line height of the perimeter flange
+    bend_radius_mm: float  # the finished part's inside bend radius
+    radius_table: str = "aa"  # which minimum-bend-radius table to check against
+    min_tail_depth_mm: float | None = None  # None: 2 x height + 10 mm
+
+
+@dataclass(frozen=True)
+class Spar:
+    at: float  # chord fraction of the web's forward face
+    web_mm: float
+    cap_thickness_mm: float  # joggle depth where the rib flange laps the cap
+    cap_width_mm: float
+
+
+@dataclass(frozen=True)
+class HoleSpec:
+    x_mm: float  # from the leading edge along the chord
+    d_mm: float
+    y_mm: float | None = None  # None: centred in the local depth
+    flanged: bool = True
+    flange_height_mm: float | None = None  # None: from the hole rules
+
+
+@dataclass(frozen=True)
+class HoleRules:
+    edge_margin_mm: float  # clear web between a hole and the flange bend line
+    ligament_mm: float  # clear web between neighbouring holes
+    min_diameter_mm: float
+    flanged: bool
+    flange_height_mm: float
+
+
+@dataclass(frozen=True)
+class Holes:
+    mode: Literal["auto", "list", "none"]
+    rules: HoleRules
+    explicit: tuple[HoleSpec, ...] = ()
+
+
+@dataclass(frozen=True)
+class PinSpot:
+    x_mm: float
+    y_mm: float | None = None  # None: centred in the local depth
+
+
+@dataclass(frozen=True)
+class Pins:
+    mode: Literal["auto", "list"]
+    diameter_mm: float
+    explicit: tuple[PinSpot, ...] = ()
+
+
+@dataclass(frozen=True)
+class Die:
+    material: str
+    stock_thickness_mm: float
+    cutter_diameter_mm: float
+    print_bed_mm: tuple[float, float] | None = None
+    stl_tolerance_mm: float = 0.05
+
+
+@dataclass(frozen=True)
+class Rubber:
+    durometer: float  # Shore A
+    thickness_mm: float
+
+
+@dataclass(frozen=True)
+class Press:
+    force_n: float
+    box_mm: tuple[float, float]  # inside width and length of the rubber box
+    rubber: Rubber
+    wall_clearance_mm: float = 25.4
+
+
+@dataclass(frozen=True)
+class Shared:
+    """The sections a rib and a wing spec have in common."""
+
+    skin_thickness_mm: float
+    sheet: Sheet
+    flange: Flange
+    pieces: tuple[str, ...]
+    holes: Holes
+    pins: Pins
+    relief: str
+    die: Die
+    press: Press
+    joggle_runout: float = 4.0  # ramp length as a multiple of the joggle depth
+
+
+@dataclass(frozen=True)
+class RibSpec:
+    id: str
+    units: str
+    airfoil: AirfoilSource
+    chord_mm: float
+    spars: tuple[Spar, ...]
+    shared: Shared
+    file: str = ""
+    title: str = ""
+
+
+@dataclass(frozen=True)
+class WingSpar:
+    root_at: float
+    tip_at: float
+    web_mm: float
+    cap_thickness_mm: float
+    cap_width_mm: float
+
+
+@dataclass(frozen=True)
+class Stations:
+    """Rib stations: exactly one of positions / count / pitch, in mm from the root rib."""
+
+    positions_mm: tuple[float, ...] = ()
+    count: int | None = None
+    pitch_mm: float | None = None
+
+
+@dataclass(frozen=True)
+class RibOverride:
+    ribs: tuple[int, ...]  # 1-based rib numbers
+    changes: dict[str, object] = field(default_factory=dict)  # Shared field name -> validated value
+
+
+@dataclass(frozen=True)
+class WingSpec:
+    id: str
+    units: str
+    root_chord_mm: float
+    tip_chord_mm: float
+    span_mm: float
+    sweep_deg: float
+    sweep_line: float  # chord fraction of the line the sweep is measured on
+    stations: Stations
+    root_airfoil: AirfoilSource
+    tip_airfoil: AirfoilSource
+    spars: tuple[WingSpar, ...]
+    rib_orientation: str
+    shared: Shared
+    overrides: tuple[RibOverride, ...] = ()
+    file: str = ""
+    title: str = ""
+
+
+Spec = RibSpec | WingSpec
