@@ -108,6 +108,9 @@ def main(argv: Sequence[str] | None = None) -> int:
     except DiegenError as error:
         _print_problems(error)
         return EXIT_BAD_INPUT
+    except BrokenPipeError:  # output piped into a pager or head that closed early
+        sys.stderr.close()
+        return EXIT_OK
     except KeyboardInterrupt:
         print("diegen: interrupted; finished files are complete, nothing partial was left", file=sys.stderr)
         return 130

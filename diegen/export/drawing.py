@@ -191,8 +191,10 @@ class BlankDrawing:
     def __post_init__(self) -> None:
         set_ = object.__setattr__
         set_(self, "outer", _points(self.outer, f"{self.part_id}: outer contour", closed=True))
-        set_(self, "inner", tuple(_points(c, f"{self.part_id}: inner contour {i}", True) for i, c in enumerate(self.inner)))
-        set_(self, "scribe_lines", tuple(_points(c, f"{self.part_id}: scribe line {i}", False) for i, c in enumerate(self.scribe_lines)))
+        inner = (_points(c, f"{self.part_id}: inner contour {i}", True) for i, c in enumerate(self.inner))
+        set_(self, "inner", tuple(inner))
+        scribe = (_points(c, f"{self.part_id}: scribe line {i}", False) for i, c in enumerate(self.scribe_lines))
+        set_(self, "scribe_lines", tuple(scribe))
         set_(self, "cut_circles", tuple(self.cut_circles))
         set_(self, "drill_circles", tuple(self.drill_circles))
         set_(self, "notes", tuple(self.notes))
@@ -215,7 +217,8 @@ class BlankDrawing:
         """(xmin, ymin, xmax, ymax) in mm of the geometry plus scribe lines and notes (no title block)."""
         boxes = [self.bbox()]
         for line in self.scribe_lines:
-            boxes.append((min(p[0] for p in line), min(p[1] for p in line), max(p[0] for p in line), max(p[1] for p in line)))
+            xs, ys = [p[0] for p in line], [p[1] for p in line]
+            boxes.append((min(xs), min(ys), max(xs), max(ys)))
         boxes += [n.bbox() for n in self.notes]
         return _union(boxes)
 

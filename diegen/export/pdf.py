@@ -39,6 +39,7 @@ PAPER_MM: Final[dict[str, tuple[float, float]]] = {
 MM_PER_INCH: Final = 25.4
 PT_PER_INCH: Final = 72.0  # PDF default user-space unit, ISO 32000-1 §8.3.2.3
 SCALE_SQUARE_MM: Final = 50.0
+SCALE_LABEL: Final = "50 mm — measure to check 100 % scale"
 FOOTER_MM: Final = 56.0
 """Height of the band at the foot of every page for the scale check and title, mm."""
 FOOTER_GAP_MM: Final = 3.0
@@ -159,7 +160,9 @@ def plan_tiles(
     paper = parse_paper(paper)
     orientation = parse_orientation(orientation)
     if not 5.0 <= margin <= 40.0:
-        raise OutputError(f"page margin {margin} mm is outside 5..40 mm (most printers cannot print nearer the edge than 5 mm)")
+        raise OutputError(
+            f"page margin {margin} mm is outside 5..40 mm (most printers cannot print nearer the edge than 5 mm)"
+        )
     xmin, ymin, xmax, ymax = drawing.content_bbox()
     pad = 3.0
     extent = (xmin - pad, ymin - pad, xmax + pad, ymax + pad)
@@ -271,7 +274,7 @@ def _draw_page_furniture(ax: Any, drawing: BlankDrawing, plan: TilePlan, tile: T
     s = SCALE_SQUARE_MM
     sq_x, sq_y = m, m + 2.0
     ax.add_patch(Rectangle((sq_x, sq_y), s, s, fill=False, edgecolor="black", linewidth=0.5))
-    ax.text(sq_x + 0.5 * s, sq_y + s - 4.0, "50 mm — measure to check 100 % scale", fontsize=5.6, ha="center", va="center")
+    ax.text(sq_x + 0.5 * s, sq_y + s - 4.0, SCALE_LABEL, fontsize=5.6, ha="center", va="center")
     ax.text(sq_x + 0.5 * s, sq_y + 0.5 * s, "50 mm", fontsize=14, ha="center", va="center", weight="bold")
     ax.text(sq_x + 0.5 * s, sq_y + 0.5 * s - 7.0, "× 50 mm", fontsize=8, ha="center", va="center")
 
@@ -317,7 +320,8 @@ def _page_figure(drawing: BlankDrawing, plan: TilePlan, tile: Tile, index: int) 
     page.set_xlim(0.0, lay.width)
     page.set_ylim(0.0, lay.height)
     page.set_axis_off()
-    ax = fig.add_axes((lay.region_x / lay.width, lay.region_y / lay.height, lay.region_w / lay.width, lay.region_h / lay.height))
+    frac = (lay.region_x / lay.width, lay.region_y / lay.height, lay.region_w / lay.width, lay.region_h / lay.height)
+    ax = fig.add_axes(frac)
     ax.set_xlim(tile.x0, tile.x0 + lay.region_w)  # 1 data mm == 1 paper mm
     ax.set_ylim(tile.y0, tile.y0 + lay.region_h)
     ax.set_autoscale_on(False)

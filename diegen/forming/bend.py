@@ -32,7 +32,9 @@ def _check_bend(radius: float, thickness: float, angle_deg: float, *, max_angle:
 
 def _check_k(k: float) -> None:
     if not math.isfinite(k) or not 0.0 <= k <= 0.5:
-        raise FormingError(f"K-factor (neutral line from the inside surface, / thickness) must lie in [0, 0.5], got {k!r}")
+        raise FormingError(
+            f"K-factor (neutral line from the inside surface, / thickness) must lie in [0, 0.5], got {k!r}"
+        )
 
 
 def bend_allowance(radius: float, thickness: float, angle_deg: float, k: float) -> float:

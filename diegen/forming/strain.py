@@ -24,6 +24,7 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 from diegen.errors import FormingError
+from diegen.forming.bend import flange_layout
 
 FloatArray = NDArray[np.float64]
 
@@ -273,8 +274,6 @@ def pilot_diameter(hole_d: float, flange_height: float, thickness: float, radius
 
     which reduces to ``hole_d/2 - h`` for thin sheet and a sharp bend.
     """
-    from diegen.forming.bend import flange_layout
-
     if not math.isfinite(hole_d) or hole_d <= 0.0:
         raise FormingError(f"hole diameter must be a finite length > 0 mm, got {hole_d!r}")
     layout = flange_layout(flange_height, radius, thickness, k, 90.0)

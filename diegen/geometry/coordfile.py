@@ -161,7 +161,7 @@ def parse_coordinates(text: str, name: str = "<text>") -> FloatArray:
             f"{name}:{point_lines[i]}: a surface doubles back in x here "
             "(each surface must run from the leading edge to the trailing edge)"
         )
-    validate(loop, name)
+    validate(loop, f"{name}:{lines[0]}")
     return loop
 
 

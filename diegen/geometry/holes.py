@@ -34,8 +34,24 @@ def usable_web(piece: Polygon, bend_radius: float, rules: HoleRules) -> Polygon:
     return piece.buffer(-(bend_radius + rules.edge_margin_mm), quad_segs=QUAD_SEGS)
 
 
-def auto_holes(piece: Polygon, bend_radius: float, rules: HoleRules, keep_clear: Sequence[Polygon] = ()) -> tuple[Hole, ...]:
-    """Greedy largest-first hole placement in ``piece`` (mm)."""
+def hole_flange_height(d: float, wanted: float, stretch_limit: float) -> float:
+    """The hole flange height (mm) that keeps the edge stretch h/(R − h) within ``stretch_limit``.
+
+    Inverting the stretch-flange strain gives h ≤ limit·R/(1 + limit); the
+    result is rounded down to 0.1 mm.
+    """
+    allowed = stretch_limit * (d / 2) / (1 + stretch_limit)
+    return min(wanted, math.floor(allowed * 10) / 10)
+
+
+def auto_holes(piece: Polygon, bend_radius: float, rules: HoleRules, stretch_limit: float = math.inf,
+               min_flange_mm: float = 0.0, keep_clear: Sequence[Polygon] = ()) -> tuple[Hole, ...]:
+    """Greedy largest-first hole placement in ``piece`` (mm).
+
+    Flanged holes get the rules' flange height, lowered where a small hole would
+    stretch its flange edge past ``stretch_limit``; a hole whose flange would
+    then be lower than ``min_flange_mm`` (too short to bend) is left plain.
+    """
     room = usable_web(piece, bend_radius, rules)
     for area in keep_clear:
         room = room.difference(area)
@@ -53,7 +69,9 @@ def auto_holes(piece: Polygon, bend_radius: float, rules: HoleRules, keep_clear:
         y = centre.y if extent is None else 0.5 * (extent[0] + extent[1])
         if not room.contains(ShapelyPoint(centre.x, y)):
             y = centre.y
-        holes.append(Hole(round(centre.x, 3), round(y, 3), d, rules.flanged, rules.flange_height_mm))
+        height = hole_flange_height(d, rules.flange_height_mm, stretch_limit) if rules.flanged else 0.0
+        flanged = rules.flanged and height >= min_flange_mm
+        holes.append(Hole(round(centre.x, 3), round(y, 3), d, flanged, height if flanged else 0.0))
         # one row of holes along the piece: the band the hole stands in is taken out whole
         band = d / 2 + rules.ligament_mm
         minx, miny, maxx, maxy = room.bounds

@@ -3,9 +3,10 @@
 Sources:
 
 * Abbott, von Doenhoff and Stivers, *Summary of Airfoil Data*, NACA Report 824
-  (1945), and Abbott & von Doenhoff, *Theory of Wing Sections* (1959), §6.4
-  and Appendix I/II: thickness distribution, mean lines, designation digits and
-  the way the surfaces are laid off perpendicular to the mean line.
+  (1945), and Abbott & von Doenhoff, *Theory of Wing Sections* (1959), ch. 6
+  (families of wing sections) and Appendices I-II: thickness distribution, mean
+  lines, designation digits and the way the surfaces are laid off perpendicular
+  to the mean line.
 * Ladson, Brooks, Hill and Sproles, *Computer Program To Obtain Ordinates for
   NACA Airfoils*, NASA TM 4741 (1996): the constants (m, k1) of the standard
   5-digit mean lines, as tabulated for a design lift coefficient of 0.3.
@@ -28,11 +29,12 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 from diegen.errors import AirfoilError
+from diegen.geometry.section import MIN_POINTS
 
 FloatArray = NDArray[np.float64]
 
 # Thickness-distribution coefficients, NACA Report 824 / Theory of Wing Sections
-# eq. 6.2: yt = 5 t (0.29690 sqrt(x) - 0.12600 x - 0.35160 x^2 + 0.28430 x^3 - 0.10150 x^4).
+# ch. 6: yt = 5 t (0.29690 sqrt(x) - 0.12600 x - 0.35160 x^2 + 0.28430 x^3 - 0.10150 x^4).
 _A0, _A1, _A2, _A3, _A4 = 0.2969, -0.1260, -0.3516, 0.2843, -0.1015
 # Closed trailing edge: the last coefficient becomes -0.1036, because the first
 # four sum to exactly 0.1036 so that yt(1) = 0.  This is a common modification,
@@ -40,10 +42,9 @@ _A0, _A1, _A2, _A3, _A4 = 0.2969, -0.1260, -0.3516, 0.2843, -0.1015
 _A4_CLOSED = -0.1036
 
 # Leading-edge radius of the 4-digit thickness form, Theory of Wing Sections
-# §6.4: rt = 1.1019 t^2 (it equals (5 * 0.2969)^2 / 2, the limit of y^2 / 2x at the nose).
+# ch. 6: rt = 1.1019 t^2 (it equals (5 * 0.2969)^2 / 2, the limit of y^2 / 2x at the nose).
 _LE_RADIUS_FACTOR = 1.1019
 
-MIN_POINTS = 10
 
 
 @dataclass(frozen=True)
@@ -56,7 +57,7 @@ class _MeanLine5:
 
 
 # Standard (non-reflexed) 5-digit mean lines, design CL = 0.3: NASA TM 4741,
-# after Theory of Wing Sections §6.4 (p = position of maximum camber).
+# after Theory of Wing Sections ch. 6 (p = position of maximum camber).
 _STANDARD_MEAN_LINES: dict[int, _MeanLine5] = {
     1: _MeanLine5(m=0.0580, k1=361.400),  # 210, p = 0.05
     2: _MeanLine5(m=0.1260, k1=51.640),  # 220, p = 0.10
@@ -107,7 +108,8 @@ def naca4_camber(x: ArrayLike, m: float, p: float) -> tuple[FloatArray, FloatArr
     if not 0.0 < p < 1.0:
         raise AirfoilError(f"NACA 4-digit camber position p = {p} must lie strictly between 0 and 1")
     front = xa < p
-    yc = np.where(front, m / p**2 * (2.0 * p * xa - xa**2), m / (1.0 - p) ** 2 * ((1.0 - 2.0 * p) + 2.0 * p * xa - xa**2))
+    aft = m / (1.0 - p) ** 2 * ((1.0 - 2.0 * p) + 2.0 * p * xa - xa**2)
+    yc = np.where(front, m / p**2 * (2.0 * p * xa - xa**2), aft)
     slope = np.where(front, 2.0 * m / p**2 * (p - xa), 2.0 * m / (1.0 - p) ** 2 * (p - xa))
     return yc, slope
 
@@ -137,7 +139,7 @@ def naca5_camber(x: ArrayLike, mean_line: str | int) -> tuple[FloatArray, FloatA
     """NACA 5-digit mean line: ordinate yc and slope dyc/dx (fractions of chord).
 
     ``mean_line`` is the first three digits of the designation: "210" .. "250"
-    (standard, Theory of Wing Sections §6.4 / NASA TM 4741) or "221" .. "251"
+    (standard, Theory of Wing Sections ch. 6 / NASA TM 4741) or "221" .. "251"
     (reflexed).  Standard: yc = k1/6 (x^3 - 3 m x^2 + m^2 (3 - m) x) ahead of m and
     k1 m^3 / 6 (1 - x) behind.
     """
@@ -160,7 +162,7 @@ def naca5_camber(x: ArrayLike, mean_line: str | int) -> tuple[FloatArray, FloatA
 def leading_edge_radius(t: float) -> float:
     """Leading-edge radius of a NACA 4-/5-digit thickness form, fraction of chord.
 
-    r = 1.1019 t^2 (Theory of Wing Sections §6.4); ``t`` is thickness / chord.
+    r = 1.1019 t^2 (Theory of Wing Sections ch. 6); ``t`` is thickness / chord.
     """
     return _LE_RADIUS_FACTOR * t * t
 

@@ -22,14 +22,22 @@ DEPTH_SAMPLES = 64
 
 
 @lru_cache(maxsize=64)
-def load_section(source: AirfoilSource) -> np.ndarray:
-    """The unit-chord section loop of ``source``, smoothly re-sampled (CCW, LE at the origin)."""
+def raw_section(source: AirfoilSource) -> np.ndarray:
+    """The unit-chord section loop of ``source`` as generated or read (CCW, LE at the origin)."""
     from diegen.geometry.coordfile import read_coordinates
     from diegen.geometry.naca import naca_section
-    from diegen.geometry.section import resample
 
     raw = naca_section(source.naca, n_points=801, closed_te=source.closed_te) if source.naca else read_coordinates(source.file)
-    section = resample(raw, source.points)
+    raw.setflags(write=False)
+    return raw
+
+
+@lru_cache(maxsize=64)
+def load_section(source: AirfoilSource) -> np.ndarray:
+    """The section of ``source`` smoothly re-sampled to ``source.points`` points for machining."""
+    from diegen.geometry.section import resample
+
+    section = resample(raw_section(source), source.points)
     section.setflags(write=False)
     return section
 
@@ -101,8 +109,9 @@ def _piece(spec: RibSpec, name: str, x0: float | None, x1: float, aft_flanged: b
     radius = shared.flange.bend_radius_mm
     holes = _holes(spec, name, polygon, (lo, x1), radius)
     pins = _pins(spec, name, polygon, (lo, x1), radius, holes)
+    plain = piece_runs(upper, lower, x0, x1, (), aft_flanged) if joggles else runs
     return PieceGeometry(name, part_id, (lo, x1), runs, tuple(joggles), holes, pins, relief_points(runs),
-                         _depth_range(polygon, lo, x1, name))
+                         _depth_range(polygon, lo, x1, name), plain)
 
 
 def _holes(spec: RibSpec, name: str, polygon: Polygon, x_range: tuple[float, float], radius: float) -> tuple[Hole, ...]:
@@ -111,7 +120,12 @@ def _holes(spec: RibSpec, name: str, polygon: Polygon, x_range: tuple[float, flo
         return ()
     if holes.mode == "list":
         return hole_rules.explicit_holes(polygon, x_range, radius, holes.rules, holes.explicit, name)
-    return hole_rules.auto_holes(polygon, radius, holes.rules)
+    from diegen import materials
+
+    limit = materials.sheet_alloy(spec.shared.sheet.alloy).stretch_limit
+    # a hole flange needs a straight leg beyond its bend: at least R + T + 1 mm high
+    shortest = radius + spec.shared.sheet.thickness_mm + 1.0
+    return hole_rules.auto_holes(polygon, radius, holes.rules, limit, shortest)
 
 
 def _pins(spec: RibSpec, name: str, polygon: Polygon, x_range: tuple[float, float], radius: float,

@@ -239,15 +239,13 @@ def _resample_surfaces(loop: ArrayLike, n_points: int) -> tuple[FloatArray, Floa
     spline = CubicSpline(t, chain, axis=0, bc_type="not-a-knot")
 
     out = []
-    for t0, t1, count in ((t[i_le], t[0], n_upper), (t[i_le], t[-1], n_lower)):
-        n_fine = max(_ARC_SAMPLES_PER_SEGMENT * int(round(abs(t1 - t0) / np.mean(seg))), 200)
-        tf = np.linspace(t0, t1, n_fine)
+    for t_end, end_point, count in ((t[0], chain[0], n_upper), (t[-1], chain[-1], n_lower)):
+        n_fine = max(_ARC_SAMPLES_PER_SEGMENT * int(round(abs(t_end - t[i_le]) / np.mean(seg))), 200)
+        tf = np.linspace(t[i_le], t_end, n_fine)
         pts = spline(tf)
         arc = np.concatenate(([0.0], np.cumsum(np.linalg.norm(np.diff(pts, axis=0), axis=1))))
-        arc /= arc[-1]
-        samples = spline(np.interp(surface_fractions(count), arc, tf))
-        samples[0] = chain[i_le]
-        samples[-1] = chain[0] if t1 == t[0] else chain[-1]
+        samples = spline(np.interp(surface_fractions(count), arc / arc[-1], tf))
+        samples[0], samples[-1] = chain[i_le], end_point  # LE and TE kept exactly
         out.append(samples)
     return out[0], out[1]
 
@@ -298,7 +296,7 @@ def thickness_at(loop: ArrayLike, x: ArrayLike) -> FloatArray:
     Vectorised over ``x``; zero where the vertical line misses the outline.
     """
     p = np.asarray(loop, dtype=float)
-    xs = np.atleast_1d(np.asarray(x, dtype=float))
+    xs = np.asarray(x, dtype=float).ravel()
     a, b = p, np.roll(p, -1, axis=0)  # segments a -> b, closing segment included
     lo, hi = np.minimum(a[:, 0], b[:, 0]), np.maximum(a[:, 0], b[:, 0])
     dx = b[:, 0] - a[:, 0]

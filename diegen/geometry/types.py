@@ -72,6 +72,9 @@ class PieceGeometry:
     pins: tuple[Pin, ...]
     relief_points: Points  # corners where a flanged contour meets a flanged end face
     depth_range_mm: tuple[float, float]
+    # The same outline without joggle recesses: contoured-flange strain is judged on it,
+    # since a joggle's short S-ramp is a local offset, not a plan curve the flange shrinks or stretches over.
+    plain_runs: tuple[Run, ...] = ()
 
     @property
     def outline(self) -> Points:

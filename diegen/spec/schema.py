@@ -204,7 +204,7 @@ def default_hole_rules(units_name: str) -> HoleRules:
     """Common practice, no source: margins a builder can work with in a small shop."""
     return HoleRules(edge_margin_mm=by_units(units_name, 0.25, 6.0), ligament_mm=by_units(units_name, 0.5, 12.0),
                      min_diameter_mm=by_units(units_name, 0.75, 20.0), flanged=True,
-                     flange_height_mm=by_units(units_name, 0.15, 4.0))
+                     flange_height_mm=by_units(units_name, 0.25, 6.0))
 
 
 def read_hole_rules(r: Reader, node: YNode | None, path: str, base: HoleRules) -> HoleRules:

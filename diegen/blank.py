@@ -1,0 +1,129 @@
+"""Flat-pattern development of a rib piece: the blank that is pinned to the die and pressed.
+
+The blank is the web (the die's top face) plus, along every flanged edge, the
+developed flange: bend allowance + straight leg (FAA-H-8083-31, ch. 4), laid
+out along the true normal of the die outline.  The web's bend tangent line lies
+one die radius inside the die wall, so the blank edge stands
+``developed width − die radius`` outside the die outline.
+
+Corners where a perimeter flange meets an end flange get a relief: the
+overlapping corner square is cut away and a relief hole is drilled at the
+intersection of the bend tangent lines (FAA-H-8083-31, ch. 4, "folding a box":
+relief holes at least 1/8 in for sheet up to 0.064 in, 3/16 in for 0.072–0.128 in;
+common practice takes the larger of that and twice the bend radius).
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+
+import numpy as np
+import shapely
+from shapely.geometry import LineString, Polygon
+
+from diegen.export.drawing import BlankDrawing, Circle
+from diegen.geometry.polygon import QUAD_SEGS, single_polygon
+from diegen.geometry.types import PieceGeometry, Point
+
+IN = 25.4
+
+
+def relief_hole_diameter(thickness_mm: float, bend_radius_mm: float) -> float:
+    """Corner relief hole (mm): FAA-H-8083-31 minimum by thickness, or 2 × bend radius if larger."""
+    minimum = (1 / 8 if thickness_mm <= 0.064 * IN + 1e-9 else 3 / 16) * IN
+    return max(minimum, 2 * bend_radius_mm)
+
+
+def _unit(v: np.ndarray) -> np.ndarray:
+    return v / np.linalg.norm(v)
+
+
+def _corner_cut(piece: PieceGeometry, corner: Point, reach: float) -> Polygon:
+    """The wedge beyond both flanges at a corner (between the two edges' outward normals)."""
+    loop = np.asarray(piece.outline)
+    index = int(np.argmin(np.hypot(*(loop - np.asarray(corner)).T)))
+    c = loop[index]
+    before, after = loop[index - 1], loop[(index + 1) % len(loop)]
+    n_in = _unit(c - before) @ np.array([[0, 1], [-1, 0]])  # right normal of a CCW edge points outward
+    n_out = _unit(after - c) @ np.array([[0, 1], [-1, 0]])
+    far = reach * 3
+    return Polygon([c, c + far * n_in, c + far * (n_in + n_out), c + far * n_out])
+
+
+def _tangent_point(piece: PieceGeometry, corner: Point, inset: float) -> Point:
+    """Intersection of the two edges' bend tangent lines, ``inset`` inside the corner."""
+    loop = np.asarray(piece.outline)
+    index = int(np.argmin(np.hypot(*(loop - np.asarray(corner)).T)))
+    c = loop[index]
+    d_in = _unit(c - loop[index - 1])
+    d_out = _unit(loop[(index + 1) % len(loop)] - c)
+    # both tangent lines are offset `inset` to the left (inside); solve c + inset*n_in + a*d_in = c + inset*n_out + b*d_out
+    n_in, n_out = np.array([-d_in[1], d_in[0]]), np.array([-d_out[1], d_out[0]])
+    matrix = np.column_stack([d_in, -d_out])
+    a, _ = np.linalg.solve(matrix, inset * (n_out - n_in))
+    p = c + inset * n_in + a * d_in
+    return float(p[0]), float(p[1])
+
+
+def develop_blank(piece: PieceGeometry, *, offset_mm: float, die_radius_mm: float, thickness_mm: float,
+                  material: str, pilot_diameters: Sequence[float], notch_cuts: Sequence[Polygon] = ()) -> BlankDrawing:
+    """The flat blank of ``piece`` (mm).
+
+    ``offset_mm`` is the distance from the die outline to the blank edge;
+    ``pilot_diameters`` gives, per hole of the piece, the pilot hole for a
+    flanged hole (ignored for plain holes, which are cut to size).
+    """
+    web = Polygon(piece.outline)
+    blank = web.buffer(offset_mm, quad_segs=QUAD_SEGS, join_style="mitre", mitre_limit=10.0)
+    for run in piece.runs:  # a cut end (no flange) stops the blank at the die's end face
+        if run.kind == "line" and not run.flanged:
+            x_cut = max(p[0] for p in run.points)
+            minx, miny, maxx, maxy = blank.bounds
+            blank = blank.difference(shapely.box(x_cut, miny - 1, maxx + 1, maxy + 1))
+    relief_d = relief_hole_diameter(thickness_mm, die_radius_mm)
+    reliefs = []
+    for corner in piece.relief_points:
+        blank = blank.difference(_corner_cut(piece, corner, offset_mm + relief_d))
+        x, y = _tangent_point(piece, corner, die_radius_mm)
+        reliefs.append(Circle(x, y, relief_d))
+    for cut in notch_cuts:
+        blank = blank.difference(cut)
+    blank = single_polygon(blank, f"developing the blank of {piece.part_id}")
+    blank = shapely.geometry.polygon.orient(blank, 1.0)
+    cut_circles = list(reliefs)
+    for hole, pilot in zip(piece.holes, pilot_diameters):
+        cut_circles.append(Circle(hole.x, hole.y, pilot if hole.flanged else hole.d))
+    scribe = []
+    for run in piece.runs:
+        if run.flanged and len(run.points) >= 2:
+            line = LineString(run.points).offset_curve(die_radius_mm, quad_segs=QUAD_SEGS, join_style="round")
+            for part in getattr(line, "geoms", [line]):
+                scribe.append(tuple((float(x), float(y)) for x, y in part.coords))
+    outer = tuple((float(x), float(y)) for x, y in np.asarray(blank.exterior.coords)[:-1])
+    inner = tuple(tuple((float(x), float(y)) for x, y in np.asarray(r.coords)[:-1]) for r in blank.interiors)
+    return BlankDrawing(part_id=piece.part_id, material=material, outer=outer, inner=inner,
+                        cut_circles=tuple(cut_circles),
+                        drill_circles=tuple(Circle(p.x, p.y, p.d) for p in piece.pins),
+                        scribe_lines=tuple(scribe), grain_angle_deg=0.0)
+
+
+def notch_polygon(piece: PieceGeometry, s_mm: float, opening_mm: float, depth_mm: float, offset_mm: float) -> Polygon:
+    """A V-notch in the blank flange at arc length ``s_mm`` along the die outline (mm)."""
+    ring = LineString(list(piece.outline) + [piece.outline[0]])
+    s = s_mm % ring.length
+    p = np.asarray(ring.interpolate(s).coords[0])
+    q = np.asarray(ring.interpolate(min(s + 0.5, ring.length)).coords[0]) - np.asarray(
+        ring.interpolate(max(s - 0.5, 0.0)).coords[0])
+    t = _unit(q)
+    n = np.array([t[1], -t[0]])  # outward for a CCW loop
+    edge = p + n * offset_mm
+    tip = p + n * max(offset_mm - depth_mm, 0.0)
+    far = edge + n * 1.0
+    half = 0.5 * opening_mm
+    return Polygon([tip, edge + t * half, far + t * half, far - t * half, edge - t * half])
+
+
+def flange_band_area(blank: BlankDrawing, piece: PieceGeometry) -> float:
+    """Blank area outside the die outline (mm²): the developed flanges."""
+    return float(Polygon(blank.outer).difference(Polygon(piece.outline)).area)
+

@@ -1,0 +1,154 @@
+"""The forming report: one JSON-ready dict per piece, and the same as readable text.
+
+Numbers in mm / MPa / degrees; strains as positive fractions.  Readable text
+also shows lengths in the spec's own units when those are inches.
+"""
+
+from __future__ import annotations
+
+from typing import Any
+
+from diegen import __version__
+from diegen.analysis import MODELS, PieceAnalysis, RibAnalysis
+from diegen.export.drawing import BlankDrawing
+from diegen.units import MM_PER_IN, mpa_to_psi
+
+SAFETY = (
+    "A shop press stores a great deal of energy: rubber, blank or a split die or box can be ejected. Guard the "
+    "press, keep hands clear and stay within its rating. Flight structure must follow the aircraft designer's "
+    "drawings, the alloy's heat-treatment specification and the inspection the local authority requires; "
+    "defer to local codes and licensed practice."
+)
+
+
+def _r(value: float, digits: int = 3) -> float:
+    return round(float(value), digits)
+
+
+def blank_numbers(blank: BlankDrawing) -> dict[str, float]:
+    from shapely.geometry import Polygon
+
+    outer = Polygon(blank.outer)
+    return {"area_mm2": _r(blank.net_area(), 1), "perimeter_mm": _r(outer.length, 2)}
+
+
+def piece_json(rib: RibAnalysis, p: PieceAnalysis) -> dict[str, Any]:
+    """The report of one piece (the keys ``diegen check --json`` documents)."""
+    g = p.piece
+    flange = rib.spec.shared.flange
+    return {
+        "id": g.part_id,
+        "piece": g.name,
+        "rib": rib.spec.id,
+        "chord_mm": _r(rib.geometry.chord_mm),
+        "x_range_mm": [_r(g.x_range_mm[0]), _r(g.x_range_mm[1])],
+        "depth_range_mm": [_r(g.depth_range_mm[0]), _r(g.depth_range_mm[1])],
+        "bend": {
+            "part_radius_mm": _r(p.springback.part_radius_mm),
+            "die_radius_mm": _r(p.springback.die_radius_mm),
+            "die_angle_deg": _r(p.springback.die_angle_deg),
+            "overbend_deg": _r(p.springback.overbend_deg),
+            "k_factor": _r(p.layout.k_factor),
+            "bend_allowance_mm": _r(p.layout.bend_allowance_mm),
+            "bend_allowance_aviation_mm": _r(p.layout.bend_allowance_aviation_mm),
+            "setback_mm": _r(p.layout.setback_mm),
+            "min_radius_mm": _r(p.min_radius.radius_mm),
+            "min_radius_table": p.min_radius.citation,
+        },
+        "flange": {
+            "height_mm": _r(flange.height_mm),
+            "developed_width_mm": _r(p.layout.developed_width_mm),
+            "max_shrink_strain": _r(p.max_shrink, 4),
+            "max_stretch_strain": _r(p.max_stretch, 4),
+            "shrink_limit": p.alloy.shrink_limit,
+            "stretch_limit": p.alloy.stretch_limit,
+            "flutes": [{"s_mm": _r(f.s_mm, 1), "width_mm": _r(f.width_mm), "depth_mm": _r(f.depth_mm)} for f in p.flutes],
+            "notches": [{"s_mm": _r(n.s_mm, 1), "opening_mm": _r(n.opening_mm), "depth_mm": _r(n.depth_mm)}
+                        for n in p.notches],
+            "relief_policy": rib.spec.shared.relief,
+            "relief_notes": list(p.relief_notes),
+        },
+        "die": {
+            "outline_length_mm": _r(g.length_mm, 2),
+            "area_mm2": _r(g.area_mm2, 1),
+            "height_mm": _r(p.die_height_mm),
+            "layers": p.die_layers,
+            "material": rib.spec.shared.die.material,
+            "joggles": [{"spar": j.spar, "surface": j.surface, "x_start_mm": _r(j.x_start_mm), "x_end_mm": _r(j.x_end_mm),
+                         "depth_mm": _r(j.depth_mm), "ramp_mm": _r(j.ramp_mm)} for j in g.joggles],
+        },
+        "blank": blank_numbers(p.blank),
+        "holes": [{"x_mm": _r(h.x), "y_mm": _r(h.y), "d_mm": _r(h.d), "flanged": h.flanged,
+                   "flange_height_mm": _r(h.flange_height), "pilot_d_mm": _r(c.pilot_d_mm),
+                   "stretch_strain": _r(c.stretch_strain, 4)} for h, c in zip(g.holes, p.holes)],
+        "pins": [{"x_mm": _r(q.x), "y_mm": _r(q.y), "d_mm": _r(q.d)} for q in g.pins],
+        "press": {
+            "force_n": _r(rib.spec.shared.press.force_n, 1),
+            "box_area_mm2": _r(rib.spec.shared.press.box_mm[0] * rib.spec.shared.press.box_mm[1], 1),
+            "pressure_mpa": _r(p.press.pressure_mpa, 4),
+            "die_contact_pressure_mpa": _r(p.press.die_contact_pressure_mpa, 4),
+            "needed_mpa": _r(p.press.needed_mpa, 4),
+            "verdict": p.press.verdict,
+            "fits_box": p.press.fits_box,
+            "rubber_ok": p.press.rubber_ok,
+            "die_crush_ok": p.press.die_crush_ok,
+            "durometer_advice": p.press.durometer_advice,
+        },
+        "warnings": list(p.warnings),
+    }
+
+
+def rib_json(rib: RibAnalysis) -> dict[str, Any]:
+    return {"diegen_version": __version__, "spec": rib.spec.id, "models": MODELS, "safety": SAFETY,
+            "warnings": list(rib.geometry.warnings), "parts": [piece_json(rib, p) for p in rib.pieces]}
+
+
+def _len(mm: float, units: str) -> str:
+    shown = f"{mm:.3f} mm" if mm < 10 else f"{mm:.1f} mm"
+    return f"{shown} ({mm / MM_PER_IN:.3f} in)" if units == "in" else shown
+
+
+def piece_text(rib: RibAnalysis, p: PieceAnalysis) -> str:
+    g, u, d = p.piece, rib.spec.units, piece_json(rib, p)
+    lines = [
+        f"== {g.part_id} ({g.name} piece)  x {g.x_range_mm[0]:.1f}–{g.x_range_mm[1]:.1f} mm of {rib.geometry.chord_mm:.1f} mm chord",
+        f"  die outline   length {_len(g.length_mm, u)}, area {g.area_mm2:.0f} mm², depth {g.depth_range_mm[0]:.1f}–"
+        f"{g.depth_range_mm[1]:.1f} mm, height {_len(p.die_height_mm, u)} ({p.die_layers} layer(s) of stock)",
+        f"  bend          part R {p.springback.part_radius_mm:.3f} mm (min {p.min_radius.radius_mm:.3f} mm, "
+        f"{p.min_radius.table} table); die R {p.springback.die_radius_mm:.3f} mm; die angle "
+        f"{p.springback.die_angle_deg:.2f}° → over-bend {p.springback.overbend_deg:.2f}°",
+        f"                BA {p.layout.bend_allowance_mm:.3f} mm (k = {p.layout.k_factor:.3f}); aviation formula "
+        f"{p.layout.bend_allowance_aviation_mm:.3f} mm; setback {p.layout.setback_mm:.3f} mm; developed flange "
+        f"{p.layout.developed_width_mm:.2f} mm",
+        f"  flange strain max shrink {p.max_shrink:.3f} (limit {p.alloy.shrink_limit:.3f}), max stretch "
+        f"{p.max_stretch:.3f} (limit {p.alloy.stretch_limit:.3f})",
+    ]
+    if p.flutes or p.notches:
+        lines += [f"  relief        {note}" for note in p.relief_notes]
+    else:
+        lines.append(f"  relief        none needed (policy: {rib.spec.shared.relief})")
+    for j in g.joggles:
+        lines.append(f"  joggle        spar {j.spar + 1} {j.surface}: {j.depth_mm:.2f} mm deep over x {j.x_start_mm:.1f}–"
+                     f"{j.x_end_mm:.1f} mm, ramps {j.ramp_mm:.1f} mm")
+    for h in d["holes"]:
+        kind = f"flanged {h['flange_height_mm']:.1f} mm, pilot Ø{h['pilot_d_mm']:.1f}" if h["flanged"] else "plain"
+        lines.append(f"  hole          Ø{h['d_mm']:.0f} mm at ({h['x_mm']:.1f}, {h['y_mm']:.1f}) {kind}, "
+                     f"stretch {h['stretch_strain']:.3f}")
+    lines.append("  pins          " + ", ".join(f"Ø{q.d:.2f} at ({q.x:.1f}, {q.y:.1f})" for q in g.pins))
+    pr = p.press
+    lines += [
+        f"  press         {pr.pressure_mpa:.2f} MPa ({mpa_to_psi(pr.pressure_mpa):.0f} psi) over the box; "
+        f"{pr.die_contact_pressure_mpa:.2f} MPa on the die early in the stroke; flanges need up to "
+        f"{pr.needed_mpa:.2f} MPa ({mpa_to_psi(pr.needed_mpa):.0f} psi) → {pr.verdict.upper()}",
+        f"  blank         {d['blank']['area_mm2']:.0f} mm², perimeter {d['blank']['perimeter_mm']:.0f} mm",
+    ]
+    lines += [f"  warning       {w}" for w in p.warnings]
+    return "\n".join(lines)
+
+
+def rib_text(rib: RibAnalysis) -> str:
+    head = [f"diegen {__version__} — rib {rib.spec.id}" + (f": {rib.spec.title}" if rib.spec.title else ""),
+            f"  {rib.spec.airfoil.label}, chord {_len(rib.spec.chord_mm, rib.spec.units)}, "
+            f"{rib.spec.shared.sheet.alloy} {_len(rib.spec.shared.sheet.thickness_mm, rib.spec.units)}"]
+    head += [f"  warning: {w}" for w in rib.geometry.warnings]
+    return "\n".join(head + [piece_text(rib, p) for p in rib.pieces] + ["", "Safety: " + SAFETY])

@@ -1,0 +1,307 @@
+"""Features cut into the die body: dowel holes, bores, flutes and the bottom engraving.
+
+Conventions as in :mod:`diegen.solid.form_block` (mm, degrees, top face at z = 0,
+block down to z = −height).  Placement is checked in 2D first (raising
+:class:`GeometryError` with the feature and what to change); a kernel failure
+raises :class:`SolidError` naming the feature at fault.
+
+* Pin: a flat-bottomed hole of diameter d, ``depth`` deep from the top face
+  (through if ``depth`` equals the height).
+* Bore: a through hole of diameter d whose top edge is rounded by the bore top
+  radius (the lightening-hole flange bends down into it).
+* Flute: a groove in the wall.  In every horizontal plane its cross-section is
+  a circle of radius r = (w²/4 + D²)/(2D), so that at full depth D it is w wide
+  at the wall; its penetration into the wall grows linearly from 0 at the top
+  face to D at ``flute_length_mm`` below it, then stays D to the bottom.
+* Engraving: the part id and the given lines, cut ``engrave_depth_mm`` into the
+  bottom face, written on a plane facing down so it reads when the die is
+  turned over, with an arrow pointing forward (towards −X, the leading edge).
+"""
+
+from __future__ import annotations
+
+import math
+from typing import TYPE_CHECKING, Any
+
+import numpy as np
+from shapely.geometry import Point, Polygon, box
+from shapely.ops import polylabel
+
+from diegen.errors import GeometryError, SolidError
+from diegen.solid import profile
+from diegen.solid.die_input import Bore, DieInput, Flute, Pin
+from diegen.solid.outline import OutlineModel, pieces_to_polygon
+from diegen.solid.settings import BuildSettings
+from diegen.solid.validate import solid_problems
+
+if TYPE_CHECKING:  # pragma: no cover
+    import cadquery as cq
+
+CLEAR_MM = 0.5  # how far cutting tools reach past the faces they open (mm)
+
+
+def flute_radius_mm(flute: Flute) -> float:
+    """Radius of the flute's circular cross-section, r = (w²/4 + D²)/(2D) (mm)."""
+    return (flute.width_mm**2 / 4.0 + flute.depth_mm**2) / (2.0 * flute.depth_mm)
+
+
+def _smallest_section(die: DieInput, model: OutlineModel) -> Polygon:
+    inset = max(profile.top_setback_mm(die.top_radius_mm, die.undercut_deg),
+                profile.wall_inset_mm(die.height_mm, die.undercut_deg))
+    return pieces_to_polygon(model.offset(inset))
+
+
+def check_placement(die: DieInput, model: OutlineModel, settings: BuildSettings) -> None:
+    """Raise :class:`GeometryError` for a hole or flute the die cannot carry."""
+    inner = _smallest_section(die, model)
+    wall = settings.min_wall_mm
+    footprints: list[tuple[str, Polygon]] = []
+    for pin in die.pins:
+        name = f"pin hole at ({pin.x:g}, {pin.y:g}) mm"
+        if not (pin.d > 0 and pin.depth > 0):
+            raise GeometryError(f"die {die.part_id}: {name}: diameter and depth must be positive")
+        if pin.depth > die.height_mm + 1e-9:
+            raise GeometryError(
+                f"die {die.part_id}: {name} is {pin.depth:g} mm deep, deeper than the {die.height_mm:g} mm block"
+            )
+        footprints.append((name, Point(pin.x, pin.y).buffer(pin.d / 2.0, quad_segs=32)))
+    for bore in die.bores:
+        name = f"bore at ({bore.x:g}, {bore.y:g}) mm"
+        if not bore.d > 0:
+            raise GeometryError(f"die {die.part_id}: {name}: diameter must be positive")
+        footprints.append((name, Point(bore.x, bore.y).buffer(bore.d / 2.0 + die.bore_radius_mm, quad_segs=32)))
+    for name, shape in footprints:
+        if not inner.buffer(-wall).contains(shape):
+            raise GeometryError(
+                f"die {die.part_id}: {name} (with its edge rounding) comes closer than {wall:g} mm to the die's "
+                "edge: move it inward or make it smaller"
+            )
+    for i, (name_a, a) in enumerate(footprints):
+        for name_b, b in footprints[i + 1:]:
+            if a.distance(b) < wall:
+                raise GeometryError(
+                    f"die {die.part_id}: {name_a} and {name_b} are closer than {wall:g} mm: move them apart"
+                )
+    if die.flutes and not 0 < die.flute_length_mm <= die.height_mm:
+        raise GeometryError(
+            f"die {die.part_id}: flute length {die.flute_length_mm:g} mm must be positive and no more than the "
+            f"block height {die.height_mm:g} mm (set it to the flange height)"
+        )
+    for flute in die.flutes:
+        name = f"flute at s = {flute.s_mm:g} mm"
+        if not (flute.width_mm > 0 and flute.depth_mm > 0):
+            raise GeometryError(f"die {die.part_id}: {name}: width and depth must be positive")
+        if flute.depth_mm > flute.width_mm / 2.0 + 1e-9:
+            raise GeometryError(
+                f"die {die.part_id}: {name} is {flute.depth_mm:g} mm deep but only {flute.width_mm:g} mm wide: "
+                "a groove deeper than half its width cannot be cut from the side; widen it or make it shallower"
+            )
+        if not 0.0 <= flute.s_mm < model.perimeter_mm:
+            raise GeometryError(
+                f"die {die.part_id}: {name} lies outside the outline (length {model.perimeter_mm:.1f} mm)"
+            )
+
+
+def _pin_tool(die: DieInput, pin: Pin) -> "cq.Solid":
+    import cadquery as cq
+
+    through = pin.depth >= die.height_mm - 1e-9
+    bottom = -die.height_mm - CLEAR_MM if through else -pin.depth
+    return cq.Solid.makeCylinder(pin.d / 2.0, CLEAR_MM - bottom, cq.Vector(pin.x, pin.y, bottom), cq.Vector(0, 0, 1))
+
+
+def _bore_tool(die: DieInput, bore: Bore) -> "cq.Solid":
+    import cadquery as cq
+
+    z0 = -die.height_mm - CLEAR_MM
+    return cq.Solid.makeCylinder(bore.d / 2.0, die.height_mm + 2 * CLEAR_MM, cq.Vector(bore.x, bore.y, z0),
+                                 cq.Vector(0, 0, 1))
+
+
+def _flute_tool(die: DieInput, model: OutlineModel, flute: Flute) -> "cq.Solid":
+    import cadquery as cq
+
+    p, n = model.locate(flute.s_mm)
+    r = flute_radius_mm(flute)
+    length = die.flute_length_mm
+
+    def centre(depth: float) -> cq.Vector:
+        penetration = flute.depth_mm * min(depth / length, 1.0) if depth >= 0 else flute.depth_mm * depth / length
+        inset = profile.wall_inset_mm(depth, die.undercut_deg) - (r - penetration)
+        return cq.Vector(float(p[0] + inset * n[0]), float(p[1] + inset * n[1]), -depth)
+
+    depths = [-CLEAR_MM, length, die.height_mm + CLEAR_MM]
+    if length >= die.height_mm - 1e-9:
+        depths = [-CLEAR_MM, die.height_mm + CLEAR_MM]
+    wires = [cq.Wire.makeCircle(r, centre(d), cq.Vector(0, 0, 1)) for d in depths]
+    return cq.Solid.makeLoft(wires, ruled=True)
+
+
+def _cut(body: "cq.Shape", tools: list[tuple[str, Any]], die: DieInput) -> "cq.Shape":
+    """Cut all tools at once; on failure find the first tool that fails alone and name it."""
+    if not tools:
+        return body
+    try:
+        result = body.cut(*[t for _, t in tools])
+        if not solid_problems(result):
+            return result
+    except Exception:  # noqa: BLE001 - kernel failure, diagnosed below
+        pass
+    current = body
+    for name, tool in tools:
+        try:
+            nxt = current.cut(tool)
+        except Exception as exc:  # noqa: BLE001
+            raise SolidError(f"die {die.part_id}: the kernel failed cutting the {name} ({exc}); move or resize it") from exc
+        problems = solid_problems(nxt)
+        if problems:
+            raise SolidError(
+                f"die {die.part_id}: cutting the {name} gives an invalid solid ({'; '.join(problems)}); "
+                "move it away from other features and the die's edge, or resize it"
+            )
+        current = nxt
+    return current
+
+
+def _round_bores(body: "cq.Shape", die: DieInput) -> "cq.Shape":
+    """Round the top edge of every bore by the bore top radius."""
+    if not die.bores:
+        return body
+    edges = []
+    for bore in die.bores:
+        found = None
+        for e in body.Edges():
+            if e.geomType() != "CIRCLE":
+                continue
+            c = e.Center()
+            if abs(c.z) < 1e-6 and math.hypot(c.x - bore.x, c.y - bore.y) < 1e-4 and abs(e.radius() - bore.d / 2) < 1e-6:
+                found = e
+                break
+        if found is None:
+            raise SolidError(f"die {die.part_id}: the top edge of the bore at ({bore.x:g}, {bore.y:g}) mm was not found")
+        edges.append(found)
+    try:
+        result = body.fillet(die.bore_radius_mm, edges)
+    except Exception as exc:  # noqa: BLE001
+        raise SolidError(
+            f"die {die.part_id}: the kernel could not round the bore top edges by {die.bore_radius_mm:g} mm ({exc}); "
+            "lower the bore top radius"
+        ) from exc
+    problems = solid_problems(result)
+    if problems:
+        raise SolidError(
+            f"die {die.part_id}: rounding the bore top edges by {die.bore_radius_mm:g} mm gives an invalid solid "
+            f"({'; '.join(problems)}); lower the bore top radius"
+        )
+    return result
+
+
+def _engraving_tools(die: DieInput, model: OutlineModel, settings: BuildSettings) -> list[tuple[str, Any]]:
+    """Text and arrow solids for the bottom face, fitted into the free area."""
+    import cadquery as cq
+
+    lines = [line for line in die.engraving if line.strip()]
+    if not lines:
+        return []
+    depth = settings.engrave_depth_mm
+    margin = max(settings.min_wall_mm, 2.0)
+    free = pieces_to_polygon(model.offset(profile.wall_inset_mm(die.height_mm, die.undercut_deg))).buffer(-margin)
+    for bore in die.bores:
+        free = free.difference(Point(bore.x, bore.y).buffer(bore.d / 2.0 + margin))
+    for pin in die.pins:
+        if pin.depth >= die.height_mm - depth - settings.min_wall_mm:
+            free = free.difference(Point(pin.x, pin.y).buffer(pin.d / 2.0 + margin))
+
+    def text(line: str, size: float, plane: cq.Plane) -> cq.Shape:
+        return cq.Compound.makeText(line, size, depth + CLEAR_MM, font=settings.engrave_font, halign="center",
+                                    valign="center", position=plane)
+
+    unit = [text(line, 1.0, cq.Plane(origin=(0, 0, 0), xDir=(1, 0, 0), normal=(0, 0, -1))).BoundingBox()
+            for line in lines]
+    widths = [bb.xlen for bb in unit]
+    pitch = 1.5  # line pitch as a multiple of the font size
+    size = settings.engrave_max_height_mm
+    while size >= settings.engrave_min_height_mm - 1e-9:
+        block_w = max(max(widths) * size, 4.0 * size)
+        block_h = pitch * size * (len(lines) + 1)
+        spot = _find_spot(free, block_w, block_h)
+        if spot is not None:
+            break
+        size *= 0.85
+    else:
+        raise GeometryError(
+            f"die {die.part_id}: no room on the bottom face for the engraving {lines!r} at "
+            f"{settings.engrave_min_height_mm:g} mm letter size: shorten it or leave it out"
+        )
+    cx, cy = spot
+    z0 = -die.height_mm + depth  # the text plane faces down (−Z) and is extruded down through the bottom face
+    tools: list[tuple[str, Any]] = []
+    # local y of the plane points to global −Y, so the first line (top of the block) has the smallest global Y
+    top_local = block_h / 2.0 - pitch * size / 2.0
+    for i, line in enumerate(lines):
+        local_y = top_local - i * pitch * size
+        plane = cq.Plane(origin=(cx, cy - local_y, z0), xDir=(1, 0, 0), normal=(0, 0, -1))
+        tools.append((f"engraving {line!r}", text(line, size, plane)))
+    arrow_y = cy - (top_local - len(lines) * pitch * size)
+    tools.append(("orientation arrow", _arrow(cx, arrow_y, 3.0 * size, 0.8 * size, z0, depth + CLEAR_MM)))
+    return tools
+
+
+def _find_spot(free: Any, w: float, h: float) -> tuple[float, float] | None:
+    """Centre of a w × h rectangle lying inside ``free`` (the pole of inaccessibility first, then a grid)."""
+    if free.is_empty:
+        return None
+    parts = list(free.geoms) if hasattr(free, "geoms") else [free]
+    parts.sort(key=lambda g: -g.area)
+    for part in parts:
+        candidates = [polylabel(part, tolerance=0.5).coords[0]]
+        x0, y0, x1, y1 = part.bounds
+        for x in np.linspace(x0 + w / 2, x1 - w / 2, 25) if x1 - x0 > w else []:
+            for y in np.linspace(y0 + h / 2, y1 - h / 2, 9) if y1 - y0 > h else []:
+                candidates.append((float(x), float(y)))
+        best = None
+        for cx, cy in candidates:
+            rect = box(cx - w / 2, cy - h / 2, cx + w / 2, cy + h / 2)
+            if part.contains(rect):
+                clearance = part.exterior.distance(rect)
+                if best is None or clearance > best[0]:
+                    best = (clearance, (cx, cy))
+        if best is not None:
+            return best[1]
+    return None
+
+
+def _arrow(cx: float, cy: float, length: float, width: float, z0: float, height: float) -> "cq.Solid":
+    """A flat arrow centred at (cx, cy) pointing towards −X, extruded down from z0 by ``height``."""
+    import cadquery as cq
+
+    half, shaft, head = length / 2.0, width * 0.35, length * 0.35
+    pts = [(half, shaft), (-half + head, shaft), (-half + head, width), (-half, 0.0), (-half + head, -width),
+           (-half + head, -shaft), (half, -shaft)]
+    wire = cq.Wire.makePolygon([cq.Vector(cx + x, cy + y, z0) for x, y in pts], close=True)
+    return cq.Solid.extrudeLinear(cq.Face.makeFromWires(wire), cq.Vector(0, 0, -height))
+
+
+def cut_features(body: "cq.Shape", die: DieInput, model: OutlineModel, settings: BuildSettings) -> "cq.Shape":
+    """Cut pins, bores (rounded at the top), flutes and the engraving into ``body``."""
+    check_placement(die, model, settings)
+    tools: list[tuple[str, Any]] = []
+    tools += [(f"pin hole at ({p.x:g}, {p.y:g}) mm", _pin_tool(die, p)) for p in die.pins]
+    tools += [(f"bore at ({b.x:g}, {b.y:g}) mm", _bore_tool(die, b)) for b in die.bores]
+    tools += [(f"flute at s = {f.s_mm:g} mm", _flute_tool(die, model, f)) for f in die.flutes]
+    shape = _cut(body, tools, die)
+    shape = _round_bores(shape, die)
+    shape = _cut(shape, _engraving_tools(die, model, settings), die)
+    return _single_solid(shape, die)
+
+
+def _single_solid(shape: "cq.Shape", die: DieInput) -> "cq.Solid":
+    import cadquery as cq
+
+    solids = shape.Solids()
+    if len(solids) != 1:
+        raise SolidError(
+            f"die {die.part_id}: the cuts split the die into {len(solids)} pieces: a flute or hole cuts right through "
+            "a narrow spot; move it or make it smaller"
+        )
+    return cq.Solid(solids[0].wrapped)

@@ -1,0 +1,137 @@
+"""Validity checks of die solids and their exported files.
+
+A solid counts as good only if OCCT's ``BRepCheck_Analyzer`` finds it valid,
+it is exactly one solid, every shell is closed and its volume is positive.
+An STL counts as good only if every edge is shared by exactly two triangles
+running in opposite directions (watertight, consistently wound).
+"""
+
+from __future__ import annotations
+
+import os
+from typing import Any
+
+import numpy as np
+
+from diegen.errors import SolidError
+from diegen.solid.settings import VOLUME_EPS
+
+
+def volume_mm3(shape: Any) -> float:
+    """Volume of a cadquery/OCP shape (mm³), by adaptive integration (see ``VOLUME_EPS``)."""
+    from OCP.BRepGProp import BRepGProp
+    from OCP.GProp import GProp_GProps
+
+    props = GProp_GProps()
+    BRepGProp.VolumeProperties_s(_wrapped(shape), props, VOLUME_EPS)
+    return float(props.Mass())
+
+
+def _wrapped(shape: Any) -> Any:
+    return getattr(shape, "wrapped", shape)
+
+
+def solid_problems(shape: Any) -> list[str]:
+    """Everything wrong with ``shape`` as a die solid; an empty list when it is good."""
+    from OCP.BRep import BRep_Tool
+    from OCP.BRepCheck import BRepCheck_Analyzer
+    from OCP.TopAbs import TopAbs_SHELL, TopAbs_SOLID
+    from OCP.TopExp import TopExp_Explorer
+
+    raw = _wrapped(shape)
+    problems = []
+    if raw is None or raw.IsNull():
+        return ["the kernel returned no shape"]
+    if not BRepCheck_Analyzer(raw).IsValid():
+        problems.append("the kernel's shape check (BRepCheck_Analyzer) finds it invalid")
+    solids = 0
+    exp = TopExp_Explorer(raw, TopAbs_SOLID)
+    while exp.More():
+        solids += 1
+        exp.Next()
+    if solids != 1:
+        problems.append(f"it has {solids} solids, not exactly one")
+    exp = TopExp_Explorer(raw, TopAbs_SHELL)
+    while exp.More():
+        if not BRep_Tool.IsClosed_s(exp.Current()):
+            problems.append("a shell is open (not watertight)")
+            break
+        exp.Next()
+    if not problems and volume_mm3(raw) <= 0.0:
+        problems.append("its volume is not positive")
+    return problems
+
+
+def check_solid(shape: Any, what: str, hint: str = "") -> None:
+    """Raise :class:`SolidError` naming ``what`` and ``hint`` unless ``shape`` is one valid closed solid."""
+    problems = solid_problems(shape)
+    if problems:
+        tail = f" {hint}" if hint else ""
+        raise SolidError(f"{what}: {'; '.join(problems)}.{tail}")
+
+
+def read_step(path: str | os.PathLike[str]) -> Any:
+    """Read a STEP file into one OCP shape; raise :class:`SolidError` if it cannot be read."""
+    from OCP.IFSelect import IFSelect_RetDone
+    from OCP.STEPControl import STEPControl_Reader
+
+    reader = STEPControl_Reader()
+    if reader.ReadFile(os.fspath(path)) != IFSelect_RetDone:
+        raise SolidError(f"STEP file {os.fspath(path)!r} cannot be read back")
+    reader.TransferRoots()
+    return reader.OneShape()
+
+
+def check_step_file(path: str | os.PathLike[str], expected_volume_mm3: float | None = None,
+                    rel_tol: float = 1e-4) -> None:
+    """Re-read a STEP file and check it holds one valid closed solid (of the expected volume)."""
+    shape = read_step(path)
+    check_solid(shape, f"STEP file {os.fspath(path)!r} read back")
+    if expected_volume_mm3 is not None:
+        vol = volume_mm3(shape)
+        if abs(vol - expected_volume_mm3) > rel_tol * abs(expected_volume_mm3):
+            raise SolidError(
+                f"STEP file {os.fspath(path)!r} read back with volume {vol:.1f} mm³, "
+                f"expected {expected_volume_mm3:.1f} mm³"
+            )
+
+
+def read_stl_triangles(path: str | os.PathLike[str]) -> np.ndarray:
+    """Triangles of an STL file (binary or ASCII) as an (n, 3, 3) float32 array (file units)."""
+    data = open(path, "rb").read()
+    if len(data) >= 84:
+        count = int.from_bytes(data[80:84], "little")
+        if len(data) == 84 + 50 * count:
+            rec = np.dtype([("n", "<f4", 3), ("v", "<f4", (3, 3)), ("attr", "<u2")])
+            return np.frombuffer(data, dtype=rec, offset=84, count=count)["v"].copy()
+    words = data.decode("ascii", errors="replace").split()
+    coords = [tuple(float(v) for v in words[i + 1:i + 4]) for i, w in enumerate(words) if w == "vertex"]
+    return np.asarray(coords, dtype=np.float32).reshape(-1, 3, 3)
+
+
+def stl_problems(path: str | os.PathLike[str]) -> list[str]:
+    """Everything wrong with an STL as a printable closed mesh; an empty list when it is good."""
+    tri = read_stl_triangles(path)
+    if len(tri) == 0:
+        return ["it holds no triangles"]
+    _, index = np.unique(tri.reshape(-1, 3), axis=0, return_inverse=True)
+    faces = index.reshape(-1, 3)
+    keep = (faces[:, 0] != faces[:, 1]) & (faces[:, 1] != faces[:, 2]) & (faces[:, 0] != faces[:, 2])
+    faces = faces[keep]
+    directed = np.concatenate([faces[:, [0, 1]], faces[:, [1, 2]], faces[:, [2, 0]]])
+    problems = []
+    uniq, counts = np.unique(directed, axis=0, return_counts=True)
+    if np.any(counts > 1):
+        problems.append(f"{int(np.sum(counts > 1))} edges run the same way in two triangles (inconsistent winding)")
+    undirected = np.sort(directed, axis=1)
+    _, ucounts = np.unique(undirected, axis=0, return_counts=True)
+    if np.any(ucounts != 2):
+        problems.append(f"{int(np.sum(ucounts != 2))} edges are not shared by exactly two triangles (not watertight)")
+    return problems
+
+
+def check_stl_file(path: str | os.PathLike[str]) -> None:
+    """Raise :class:`SolidError` unless the STL is watertight and consistently wound."""
+    problems = stl_problems(path)
+    if problems:
+        raise SolidError(f"STL file {os.fspath(path)!r}: {'; '.join(problems)}")

@@ -1,0 +1,175 @@
+"""Shrink-flange relief (flutes, V-notches) and stretch-flange warnings.
+
+The excess length checks come from plan geometry (derived): a shrink flange of
+width w round a full convex circle has a blank edge 2 pi (rho + w) long that
+must close to 2 pi rho, an excess of exactly 2 pi w; with a strain limit L the
+excess beyond the limit is integral (|e| - L) ds_edge = 2 pi (w - L (rho + w)).
+The flute and notch sizing rules are models of our own (no source); the tests
+check their own arithmetic and the requirement that relief takes up the excess.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pytest
+
+from diegen.errors import FormingError
+from diegen.forming.relief import (
+    flute_gather,
+    flute_size,
+    flutes,
+    notch_depth,
+    notches,
+    shrink_limit_width,
+    shrink_runs,
+    stretch_limit_width,
+    stretch_runs,
+)
+from diegen.forming.strain import flange_edge_strain, strain_along
+
+
+def _circle(radius: float, n: int = 1500) -> np.ndarray:
+    th = np.linspace(0.0, 2.0 * np.pi, n, endpoint=False)
+    return np.column_stack((radius * np.cos(th), radius * np.sin(th)))
+
+
+def _arc(radius: float, length: float, n: int = 600, ccw: bool = True) -> np.ndarray:
+    sweep = length / radius
+    th = np.linspace(0.0, sweep, n) if ccw else np.linspace(sweep, 0.0, n)
+    return np.column_stack((radius * np.cos(th), radius * np.sin(th)))
+
+
+def test_full_circle_excess_without_limit_is_two_pi_w() -> None:
+    # Derived: blank edge 2 pi (rho + w) minus formed edge 2 pi rho.
+    prof = strain_along(_circle(100.0), 10.0, closed=True)
+    (run,) = shrink_runs(prof, 0.0)
+    assert run.length_mm == pytest.approx(prof.length_mm, rel=1e-12)
+    assert run.excess_mm == pytest.approx(2.0 * math.pi * 10.0, rel=2e-6)
+    assert run.peak_strain == pytest.approx(-10.0 / 110.0, rel=2e-6)
+
+
+@pytest.mark.parametrize("limit", [0.02, 0.05, 0.08])
+def test_full_circle_excess_beyond_limit(limit: float) -> None:
+    # Derived: 2 pi (w - L (rho + w)).
+    prof = strain_along(_circle(100.0), 10.0, closed=True)
+    (run,) = shrink_runs(prof, limit)
+    assert run.excess_mm == pytest.approx(2.0 * math.pi * (10.0 - limit * 110.0), rel=1e-5)
+
+
+def test_circle_under_limit_needs_nothing() -> None:
+    prof = strain_along(_circle(100.0), 10.0, closed=True)
+    assert shrink_runs(prof, 0.1) == ()  # |e| = 0.0909 < 0.1
+
+
+def test_straight_edge_needs_no_relief() -> None:
+    pts = np.column_stack((np.linspace(0.0, 300.0, 31), np.zeros(31)))
+    prof = strain_along(pts, 12.0, closed=False)
+    assert shrink_runs(prof, 0.0) == ()
+    assert stretch_runs(prof, 0.0) == ()
+
+
+def test_counts_grow_with_curvature() -> None:
+    # Same 300 mm run of outline, tighter plan radius -> more excess -> more flutes and notches.
+    w, t, r, limit = 12.0, 0.8, 2.5, 0.03
+    flute_counts, notch_counts = [], []
+    for rho in (800.0, 300.0, 150.0, 75.0, 40.0):
+        prof = strain_along(_arc(rho, 300.0), w, closed=False)
+        runs = shrink_runs(prof, limit)
+        excess = sum(run.excess_mm for run in runs)
+        flute_counts.append(sum(len(flutes(run, w, t, r).flutes) for run in runs))
+        notch_counts.append(sum(len(notches(run, w, t, r).notches) for run in runs))
+        if rho == 800.0:
+            assert excess == 0.0  # 12/812 = 1.5 % < 3 %
+    assert flute_counts == sorted(flute_counts) and flute_counts[0] == 0 and flute_counts[-1] > flute_counts[1]
+    assert notch_counts == sorted(notch_counts) and notch_counts[0] == 0 and notch_counts[-1] > notch_counts[1]
+
+
+@pytest.mark.parametrize("profile", ["arc", "vee"])
+def test_flutes_gather_at_least_the_excess(profile: str) -> None:
+    prof = strain_along(_arc(60.0, 150.0), 12.0, closed=False)
+    (run,) = shrink_runs(prof, 0.02)
+    fs = flutes(run, 12.0, 0.8, 2.5, profile=profile)  # type: ignore[arg-type]
+    assert fs.gathered_mm >= run.excess_mm > 0.0
+    assert fs.gathered_mm - fs.flutes[0].gather_mm < run.excess_mm  # one fewer would not do
+    s = np.array([f.s_mm for f in fs.flutes])
+    assert np.all((s > run.s_start_mm) & (s < run.s_start_mm + run.length_mm))
+    assert np.diff(s) == pytest.approx(np.full(len(s) - 1, run.length_mm / len(s)), rel=1e-12)  # evenly spaced
+
+
+def test_notches_remove_exactly_the_excess() -> None:
+    prof = strain_along(_arc(60.0, 150.0), 12.0, closed=False)
+    (run,) = shrink_runs(prof, 0.02)
+    ns = notches(run, 12.0, 0.8, 2.5)
+    assert sum(n.opening_mm for n in ns.notches) == pytest.approx(run.excess_mm, rel=1e-12)
+    assert all(n.opening_mm <= ns.max_opening_mm for n in ns.notches)
+    assert len(ns.notches) == math.ceil(run.excess_mm / ns.max_opening_mm)
+    # our own default: a 30 deg V over the notch depth, which stops T + R short of the bend line
+    assert ns.notches[0].depth_mm == pytest.approx(12.0 - 3.3)
+    assert ns.max_opening_mm == pytest.approx(2.0 * 8.7 * math.tan(math.radians(15.0)))
+
+
+def test_flute_gather_geometry() -> None:
+    # Semicircle of diameter b: arc pi b / 2, gather b (pi/2 - 1); right-angle V: b (sqrt 2 - 1).
+    assert flute_gather(8.0, 4.0, "arc") == pytest.approx(8.0 * (math.pi / 2.0 - 1.0), rel=1e-12)
+    assert flute_gather(8.0, 4.0, "vee") == pytest.approx(8.0 * (math.sqrt(2.0) - 1.0), rel=1e-12)
+    # shallow circular segment, chord 8, sagitta 1: radius 8.5, half angle asin(4/8.5)
+    assert flute_gather(8.0, 1.0, "arc") == pytest.approx(2.0 * 8.5 * math.asin(4.0 / 8.5) - 8.0, rel=1e-12)
+    assert flute_gather(8.0, 0.0) == 0.0
+    with pytest.raises(FormingError):
+        flute_gather(8.0, 5.0)
+    with pytest.raises(FormingError):
+        flute_gather(8.0, 1.0, "square")  # type: ignore[arg-type]
+
+
+def test_flute_size_rule() -> None:
+    # Our own rule: width 2 (R + 2T); depth <= a quarter of the flange height and <= width / 2.
+    assert flute_size(12.0, 0.8, 2.5) == pytest.approx((8.2, 3.0))
+    assert flute_size(40.0, 0.8, 2.5) == pytest.approx((8.2, 4.1))
+
+
+def test_run_wrapping_through_start_of_closed_outline() -> None:
+    # Rectangle from (0, 0): the corner at s = 0 gives one run that wraps through s = 0.
+    rect = np.array([[0.0, 0.0], [400.0, 0.0], [400.0, 200.0], [0.0, 200.0]])
+    prof = strain_along(rect, 10.0, closed=True)
+    runs = shrink_runs(prof, 0.05)
+    assert len(runs) == 4
+    lengths = [run.length_mm for run in runs]
+    assert lengths == pytest.approx([lengths[0]] * 4, rel=1e-9)
+    wrap = [run for run in runs if run.s_end_mm < run.s_start_mm]
+    assert len(wrap) == 1 and wrap[0].s_start_mm > 1100.0 and wrap[0].s_end_mm < 100.0
+    # relief is centred on the corner, positions wrap into [0, perimeter)
+    fs = flutes(wrap[0], 10.0, 0.8, 2.5)
+    s = sorted(f.s_mm for f in fs.flutes)
+    assert all(0.0 <= v < 1200.0 for v in s)
+    centre = wrap[0].position(0.5)
+    assert min(abs(centre - 0.0), abs(centre - 1200.0)) < 1e-9
+    # the corner turns 90 deg: without a limit the excess is w pi/2 (derived, as for the circle)
+    (run0,) = [r for r in shrink_runs(prof, 0.0) if r.s_end_mm < r.s_start_mm]
+    assert run0.excess_mm == pytest.approx(10.0 * math.pi / 2.0, rel=1e-9)
+
+
+@pytest.mark.parametrize(("rho", "limit"), [(50.0, 0.05), (120.0, 0.10), (30.0, 0.20)])
+def test_limit_widths_invert_the_strain_formulas(rho: float, limit: float) -> None:
+    w = stretch_limit_width(rho, limit)
+    assert flange_edge_strain(rho, w, convex=False) == pytest.approx(limit, rel=1e-12)
+    w = shrink_limit_width(rho, limit)
+    assert -flange_edge_strain(rho, w, convex=True) == pytest.approx(limit, rel=1e-12)
+    assert stretch_limit_width(math.inf, limit) == math.inf
+
+
+def test_stretch_runs_report_allowed_width() -> None:
+    rho, w = 80.0, 10.0
+    prof = strain_along(_arc(rho, 200.0, ccw=False), w, closed=False)
+    (run,) = stretch_runs(prof, 0.1)  # e = 10/70 = 14.3 % > 10 %
+    assert run.peak_strain == pytest.approx(w / (rho - w), rel=2e-5)
+    assert run.min_radius_mm == pytest.approx(rho, rel=2e-5)
+    assert run.allowed_width_mm == pytest.approx(0.1 * rho / 1.1, rel=2e-5)
+    assert run.formable
+    assert stretch_runs(prof, 0.15) == ()
+
+
+def test_notches_need_room() -> None:
+    with pytest.raises(FormingError, match="no room"):
+        notch_depth(3.0, 0.8, 2.5)
