@@ -44,8 +44,8 @@ def _corner_cut(piece: PieceGeometry, corner: Point, reach: float) -> Polygon:
     index = int(np.argmin(np.hypot(*(loop - np.asarray(corner)).T)))
     c = loop[index]
     before, after = loop[index - 1], loop[(index + 1) % len(loop)]
-    n_in = _unit(c - before) @ np.array([[0, 1], [-1, 0]])  # right normal of a CCW edge points outward
-    n_out = _unit(after - c) @ np.array([[0, 1], [-1, 0]])
+    n_in = _unit(c - before) @ np.array([[0, -1], [1, 0]])  # right normal of a CCW edge points outward
+    n_out = _unit(after - c) @ np.array([[0, -1], [1, 0]])
     far = reach * 3
     return Polygon([c, c + far * n_in, c + far * (n_in + n_out), c + far * n_out])
 

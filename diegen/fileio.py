@@ -14,6 +14,10 @@ from pathlib import Path
 from typing import Iterator
 
 
+_UMASK = os.umask(0)
+os.umask(_UMASK)
+
+
 @contextmanager
 def atomic_path(target: str | os.PathLike[str]) -> Iterator[Path]:
     """Yield a temporary path beside ``target``; rename it over ``target`` on success.
@@ -25,6 +29,7 @@ def atomic_path(target: str | os.PathLike[str]) -> Iterator[Path]:
     target = Path(target)
     target.parent.mkdir(parents=True, exist_ok=True)
     fd, tmp = tempfile.mkstemp(prefix=f".{target.stem}.", suffix=f".part{target.suffix}", dir=target.parent)
+    os.fchmod(fd, 0o666 & ~_UMASK)  # mkstemp makes 0600; outputs are ordinary files
     os.close(fd)
     tmp_path = Path(tmp)
     try:

@@ -213,7 +213,7 @@ def _engraving_tools(die: DieInput, model: OutlineModel, settings: BuildSettings
             free = free.difference(Point(pin.x, pin.y).buffer(pin.d / 2.0 + margin))
 
     def text(line: str, size: float, plane: cq.Plane) -> cq.Shape:
-        return cq.Compound.makeText(line, size, depth + CLEAR_MM, font=settings.engrave_font, halign="center",
+        return cq.Compound.makeText(line, size, depth, font=settings.engrave_font, halign="center",
                                     valign="center", position=plane)
 
     unit = [text(line, 1.0, cq.Plane(origin=(0, 0, 0), xDir=(1, 0, 0), normal=(0, 0, -1))).BoundingBox()
@@ -234,7 +234,7 @@ def _engraving_tools(die: DieInput, model: OutlineModel, settings: BuildSettings
             f"{settings.engrave_min_height_mm:g} mm letter size: shorten it or leave it out"
         )
     cx, cy = spot
-    z0 = -die.height_mm + depth  # the text plane faces down (−Z) and is extruded down through the bottom face
+    z0 = -die.height_mm + depth  # the text plane faces down (−Z) and is extruded down to the bottom face
     tools: list[tuple[str, Any]] = []
     # local y of the plane points to global −Y, so the first line (top of the block) has the smallest global Y
     top_local = block_h / 2.0 - pitch * size / 2.0
@@ -243,7 +243,7 @@ def _engraving_tools(die: DieInput, model: OutlineModel, settings: BuildSettings
         plane = cq.Plane(origin=(cx, cy - local_y, z0), xDir=(1, 0, 0), normal=(0, 0, -1))
         tools.append((f"engraving {line!r}", text(line, size, plane)))
     arrow_y = cy - (top_local - len(lines) * pitch * size)
-    tools.append(("orientation arrow", _arrow(cx, arrow_y, 3.0 * size, 0.8 * size, z0, depth + CLEAR_MM)))
+    tools.append(("orientation arrow", _arrow(cx, arrow_y, 3.0 * size, 0.8 * size, z0, depth)))
     return tools
 
 
@@ -291,8 +291,76 @@ def cut_features(body: "cq.Shape", die: DieInput, model: OutlineModel, settings:
     tools += [(f"flute at s = {f.s_mm:g} mm", _flute_tool(die, model, f)) for f in die.flutes]
     shape = _cut(body, tools, die)
     shape = _round_bores(shape, die)
-    shape = _cut(shape, _engraving_tools(die, model, settings), die)
-    return _single_solid(shape, die)
+    shape = _single_solid(shape, die)
+    return _engrave(shape, _engraving_tools(die, model, settings), die)
+
+
+def _engrave(body: "cq.Solid", tools: list[tuple[str, Any]], die: DieInput) -> "cq.Solid":
+    """Sink the engraving pockets into the bottom face.
+
+    A plain boolean cut takes seconds here: the kernel tests every letter face
+    against the long lofted wall faces.  The pockets touch only the bottom
+    face, so the bottom face is cut in its plane (a fast 2D boolean) and the
+    pockets' floor and side faces are sewn in its place.
+    """
+    import cadquery as cq
+    from OCP.BRepAdaptor import BRepAdaptor_Surface
+    from OCP.BRepAlgoAPI import BRepAlgoAPI_Cut
+    from OCP.GeomAbs import GeomAbs_Plane
+    from OCP.BRepBuilderAPI import BRepBuilderAPI_MakeSolid, BRepBuilderAPI_Sewing
+    from OCP.BRepLib import BRepLib
+    from OCP.TopAbs import TopAbs_SHELL
+    from OCP.TopExp import TopExp_Explorer
+    from OCP.TopoDS import TopoDS
+
+    if not tools:
+        return body
+    z_bottom = -die.height_mm
+    hint = "the engraving overlaps a hole or the die's edge; shorten it or leave it out"
+    try:
+        pocket = tools[0][1].fuse(*[t for _, t in tools[1:]]) if len(tools) > 1 else tools[0][1]
+
+        def on_bottom(face: Any) -> bool:
+            surf = BRepAdaptor_Surface(face.wrapped)
+            if surf.GetType() != GeomAbs_Plane:
+                return False
+            ax = surf.Plane().Axis()
+            return abs(abs(ax.Direction().Z()) - 1.0) < 1e-9 and abs(ax.Location().Z() - z_bottom) < 1e-6
+
+        old_bottom = [f for f in body.Faces() if on_bottom(f)]
+        pocket_mouth = [f for f in pocket.Faces() if on_bottom(f)]
+        pocket_rest = [f for f in pocket.Faces() if not on_bottom(f)]
+        cut = BRepAlgoAPI_Cut(cq.Compound.makeCompound(old_bottom).wrapped,
+                              cq.Compound.makeCompound(pocket_mouth).wrapped)
+        if not cut.IsDone():
+            raise SolidError(f"die {die.part_id}: the kernel could not cut the engraving into the bottom face; {hint}")
+        new_bottom = cq.Shape.cast(cut.Shape()).Faces()
+        area_old = sum(f.Area() for f in old_bottom)
+        area_new = sum(f.Area() for f in new_bottom)
+        area_mouth = sum(f.Area() for f in pocket_mouth)
+        if abs(area_old - area_mouth - area_new) > 1e-6 * area_old + 1e-6:
+            raise SolidError(f"die {die.part_id}: the engraving does not lie wholly on the bottom face; {hint}")
+        sew = BRepBuilderAPI_Sewing(1e-6)
+        for f in body.Faces():
+            if not on_bottom(f):
+                sew.Add(f.wrapped)
+        for f in new_bottom + pocket_rest:
+            sew.Add(f.wrapped)
+        sew.Perform()
+        exp = TopExp_Explorer(sew.SewedShape(), TopAbs_SHELL)
+        shells = []
+        while exp.More():
+            shells.append(TopoDS.Shell_s(exp.Current()))
+            exp.Next()
+        if len(shells) != 1:
+            raise SolidError(f"die {die.part_id}: the engraved faces did not close into one shell; {hint}")
+        solid = BRepBuilderAPI_MakeSolid(shells[0]).Solid()
+        BRepLib.OrientClosedSolid_s(solid)
+    except SolidError:
+        raise
+    except Exception as exc:  # noqa: BLE001 - OCP's Standard_Failure family
+        raise SolidError(f"die {die.part_id}: the kernel failed engraving the bottom face ({exc}); {hint}") from exc
+    return cq.Solid(solid)  # checked by the caller
 
 
 def _single_solid(shape: "cq.Shape", die: DieInput) -> "cq.Solid":

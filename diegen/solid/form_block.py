@@ -157,7 +157,9 @@ def build_die(die: DieInput, settings: BuildSettings = DEFAULT_SETTINGS) -> "cq.
     model = outline_model(die, settings)
     body = build_body(die, model, settings)
     result = cut_features(body, die, model, settings)
-    check_solid(result, f"die {die.part_id}", "try again without flutes and engraving to find the feature at fault")
+    check_solid(result, f"die {die.part_id}",
+                "if the die has an engraving, shorten it or leave it out; otherwise move the flutes and holes "
+                "away from each other and from the die's edge")
     return result
 
 

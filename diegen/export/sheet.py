@@ -1,0 +1,135 @@
+"""The shop sheet: a Markdown page for the person who cuts the die, cuts the blank and runs the press."""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+
+from diegen.analysis import PieceAnalysis, RibAnalysis
+from diegen.report import SAFETY
+from diegen.units import MM_PER_IN, mpa_to_psi
+
+# Standard round-over bit radii (common practice, no source): 1/16 to 1/2 in by 1/32 in, and 1 to 12 mm.
+_INCH_ROUND_OVERS = tuple(n / 32 * MM_PER_IN for n in range(2, 17))
+_MM_ROUND_OVERS = tuple(float(r) for r in range(1, 13))
+
+
+def _both(mm: float) -> str:
+    return f"{mm:.2f} mm ({mm / MM_PER_IN:.3f} in)"
+
+
+def nearest_round_over(radius_mm: float, inch: bool) -> float:
+    """The standard round-over bit radius closest to ``radius_mm`` (mm)."""
+    sizes = _INCH_ROUND_OVERS if inch else _MM_ROUND_OVERS
+    return min(sizes, key=lambda r: abs(r - radius_mm))
+
+
+def shop_sheet(rib: RibAnalysis, piece: PieceAnalysis, die_notes: Sequence[str] = ()) -> str:
+    """The Markdown shop sheet of one piece."""
+    g, spec = piece.piece, rib.spec
+    shared = spec.shared
+    inch = spec.units == "in"
+    sb = piece.springback
+    xs = [p[0] for p in g.outline]
+    ys = [p[1] for p in g.outline]
+    bx = [p[0] for p in piece.blank.outer]
+    by = [p[1] for p in piece.blank.outer]
+    margin = 10.0
+    round_over = nearest_round_over(sb.die_radius_mm, inch)
+    press = piece.press
+    lines = [
+        f"# Shop sheet — {g.part_id}",
+        "",
+        f"Rib **{spec.id}**{' — ' + spec.title if spec.title else ''}, **{g.name}** piece, "
+        f"x = {g.x_range_mm[0]:.1f} … {g.x_range_mm[1]:.1f} mm from the leading edge. "
+        f"Sheet **{piece.alloy.name} {_both(shared.sheet.thickness_mm)}**; flange {_both(shared.flange.height_mm)} "
+        f"at inside radius {_both(sb.part_radius_mm)}.",
+        "",
+        "> **Caution.** " + SAFETY,
+        "",
+        "## 1. Stock to cut",
+        "",
+        f"* Die: {shared.die.material} ({piece.die_layers} layer(s) of {_both(shared.die.stock_thickness_mm)} → "
+        f"{_both(piece.die_height_mm)} high), at least {_both(max(xs) - min(xs) + 2 * margin)} × "
+        f"{_both(max(ys) - min(ys) + 2 * margin)}.",
+        f"* Blank: {piece.alloy.name}, {_both(shared.sheet.thickness_mm)}, at least "
+        f"{_both(max(bx) - min(bx) + 2 * margin)} × {_both(max(by) - min(by) + 2 * margin)}; grain across the "
+        "long bend lines (the arrow on the template).",
+    ]
+    if piece.die_layers > 1:
+        lines.append(f"* Laminate the {piece.die_layers} layers with a rigid adhesive and align them on the dowel "
+                     "holes before profiling (the layer outlines are in the die files' notes below).")
+    lines += [
+        "",
+        "## 2. Router set-ups (3-axis)",
+        "",
+        f"1. **Bottom face up.** Profile the outline with a **tapered bit of {sb.overbend_deg:.1f}° per side** "
+        f"so the wall leans in by the over-bend (the die angle is {sb.die_angle_deg:.1f}° so the flange springs back "
+        f"to 90°). Without a tapered bit: cut the outline straight with a ≤ {_both(shared.die.cutter_diameter_mm)} "
+        "straight bit from the top and file the undercut by hand to the bottom outline. Engrave the part id and "
+        "arrow on this face (never on the top: it would print into the web).",
+        f"2. **Top face up.** Round the top edge with a **round-over bit of radius {_both(sb.die_radius_mm)}** "
+        f"(the springback-compensated die radius, not the part radius); the nearest standard bit is "
+        f"{_both(round_over)}.",
+    ]
+    if g.joggles:
+        lines.append(f"3. Joggle recesses ({len(g.joggles)}): stepped into the wall by the cap thickness with "
+                     "S-shaped run-outs; they are part of the outline and cut with it.")
+    if piece.flutes:
+        f0 = piece.flutes[0]
+        lines.append(f"4. **Flutes ({len(piece.flutes)})**: grooves {f0.width_mm:.1f} mm wide, tapering from nothing "
+                     f"at the top edge to {f0.depth_mm:.1f} mm deep at {_both(shared.flange.height_mm)} down, at the "
+                     "positions in the STEP file (ball-nose bit from the side, or a round file).")
+    bores = [h for h in g.holes if h.flanged]
+    if bores:
+        lines.append(f"5. Through bores for {len(bores)} flanged lightening hole(s), edges rounded to the die "
+                     f"radius: " + ", ".join(f"Ø{h.d:.0f} mm at ({h.x:.1f}, {h.y:.1f})" for h in bores) + ".")
+    lines += [
+        "",
+        "## 3. Drilling",
+        "",
+        f"* Tooling pins: Ø{g.pins[0].d:.2f} mm dowels, press fit — drill the die a few hundredths under size "
+        "(or ream), blank holes at size: " + ", ".join(f"({q.x:.1f}, {q.y:.1f})" for q in g.pins) + " mm.",
+    ]
+    lines += [f"* {note}" for note in die_notes]
+    lines += [
+        "",
+        "## 4. The blank",
+        "",
+        "* Print the PDF template at 100 % (check the 50 mm square), or cut from the DXF (CUT layer; DRILL layer for "
+        "pin holes).",
+        "* Drill the corner relief holes and pilot holes, deburr every edge. Mark the bend lines (SCRIBE layer) with a "
+        "fine marker; do not scratch 2000-series or clad sheet — scratches start cracks (common practice).",
+        f"* Pilot holes for flanged lightening holes: " +
+        (", ".join(f"Ø{c.pilot_d_mm:.1f} mm" for h, c in zip(g.holes, piece.holes) if h.flanged) or "none") + ".",
+        "",
+        "## 5. Forming",
+        "",
+        "1. Wipe the die and blank; a film of lubricant (spray furniture polish or light oil) on the die walls.",
+        "2. Pin the blank to the die on the dowels, web on the top face.",
+        "3. A sacrificial rubber sheet over the blank protects the pad from the sheet's edges.",
+        f"4. Centre the die in the box (≥ {_both(shared.press.wall_clearance_mm)} from every wall), close the press "
+        f"to its rating ({shared.press.force_n / 1000:.0f} kN), hold, release.",
+        f"5. Press check: **{press.verdict.upper()}** — {press.pressure_mpa:.2f} MPa "
+        f"({mpa_to_psi(press.pressure_mpa):.0f} psi) in the box; the flanges need up to {press.needed_mpa:.2f} MPa "
+        f"({mpa_to_psi(press.needed_mpa):.0f} psi) by the plastic-hinge estimate.",
+    ]
+    if press.verdict != "full":
+        names = sorted({piece.flange_names[i] for i in press.unformable_flanges})
+        lines.append(f"6. Finish by hand over the die with a soft mallet and a hardwood fid: {', '.join(names)}.")
+    lines += [
+        f"7. Check the flange angle (90°) and radius; shrink {piece.max_shrink:.3f} at worst "
+        f"(limit {piece.alloy.shrink_limit:.3f}); work out any wrinkles into the flutes.",
+        "",
+        "## 6. Warnings",
+        "",
+    ]
+    lines += [f"* {w}" for w in piece.warnings] or ["* none"]
+    lines += [
+        "",
+        "---",
+        "Numbers are typical handbook values and first-order models (named in the report JSON); trial-form a "
+        "part before committing material. Heat treatment, if any, follows the alloy's specification. Flight parts "
+        "follow the designer's drawings and the inspection the local authority requires.",
+        "",
+    ]
+    return "\n".join(lines)

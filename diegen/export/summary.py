@@ -1,0 +1,128 @@
+"""The wing summary: ``summary.csv`` (a row a piece) and ``summary.pdf`` (planform, table, a page a piece)."""
+
+from __future__ import annotations
+
+import csv
+import io
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+
+from diegen.fileio import write_text, write_with
+from diegen.spec.model import WingSpec
+
+COLUMNS = ("rib", "station_mm", "chord_mm", "piece", "part_id", "die_length_mm", "die_depth_mm", "die_height_mm",
+           "stock_layers", "blank_length_mm", "blank_width_mm", "overbend_deg", "die_radius_mm", "max_shrink",
+           "max_stretch", "flutes", "notches", "press_verdict", "warnings")
+
+
+def summary_rows(spec: WingSpec, analysis: Any) -> list[dict[str, Any]]:
+    from diegen.wing import stations
+
+    by_rib = {f"{spec.id}-R{s.number:02d}": s for s in stations(spec)}
+    rows = []
+    for rib in analysis.ribs:
+        station = by_rib[rib.spec.id]
+        for p in rib.pieces:
+            outline, blank = np.asarray(p.piece.outline), np.asarray(p.blank.outer)
+            rows.append({
+                "rib": station.number, "station_mm": round(station.y_mm, 1), "chord_mm": round(rib.spec.chord_mm, 1),
+                "piece": p.piece.name, "part_id": p.piece.part_id,
+                "die_length_mm": round(float(np.ptp(outline[:, 0])), 1), "die_depth_mm": round(float(np.ptp(outline[:, 1])), 1),
+                "die_height_mm": round(p.die_height_mm, 2), "stock_layers": p.die_layers,
+                "blank_length_mm": round(float(np.ptp(blank[:, 0])), 1), "blank_width_mm": round(float(np.ptp(blank[:, 1])), 1),
+                "overbend_deg": round(p.springback.overbend_deg, 2), "die_radius_mm": round(p.springback.die_radius_mm, 3),
+                "max_shrink": round(p.max_shrink, 4), "max_stretch": round(p.max_stretch, 4),
+                "flutes": len(p.flutes), "notches": len(p.notches), "press_verdict": p.press.verdict,
+                "warnings": " | ".join(p.warnings),
+            })
+    return rows
+
+
+def write_wing_summary(spec: WingSpec, folder: Path, manifest: Any = None) -> list[Path]:
+    """Write ``summary.csv`` and ``summary.pdf`` for the whole wing into ``folder``."""
+    from diegen.api import analyse
+
+    analysis = analyse(spec)
+    rows = summary_rows(spec, analysis)
+    buffer = io.StringIO()
+    writer = csv.DictWriter(buffer, fieldnames=COLUMNS)
+    writer.writeheader()
+    writer.writerows(rows)
+    write_text(folder / "summary.csv", buffer.getvalue())
+    write_with(folder / "summary.pdf", lambda tmp: _pdf(spec, analysis, rows, tmp))
+    return [folder / "summary.csv", folder / "summary.pdf"]
+
+
+def _planform(ax, spec: WingSpec) -> None:
+    from diegen.wing import chord_at, leading_edge_at, stations
+
+    ys = np.array([0.0, spec.span_mm])
+    le = np.array([leading_edge_at(spec, y) for y in ys])
+    te = le + np.array([chord_at(spec, y) for y in ys])
+    ax.plot(np.r_[le, te[::-1], le[:1]], np.r_[ys, ys[::-1], ys[:1]], color="k", lw=1.2)
+    for st in stations(spec):
+        ax.plot([st.x_le_mm, st.x_le_mm + st.chord_mm], [st.y_mm, st.y_mm], color="tab:blue", lw=0.8)
+        ax.text(st.x_le_mm - 20, st.y_mm, f"R{st.number}", ha="right", va="center", fontsize=6)
+        for fraction in st.spar_fractions:
+            ax.plot(st.x_le_mm + fraction * st.chord_mm, st.y_mm, "|", color="tab:red", ms=6)
+    for i, spar in enumerate(spec.spars):
+        xs = [spar.root_at * spec.root_chord_mm, leading_edge_at(spec, spec.span_mm) + spar.tip_at * spec.tip_chord_mm]
+        ax.plot(xs, ys, color="tab:red", lw=0.8, ls="--", label="spars" if i == 0 else None)
+    ax.set_aspect("equal")
+    ax.invert_yaxis()
+    ax.set_xlabel("x, chordwise (mm)")
+    ax.set_ylabel("y, from the root rib (mm)")
+    ax.set_title(f"{spec.id}: planform, rib stations (blue) and spars (red)")
+    ax.legend(fontsize=7)
+
+
+def _pdf(spec: WingSpec, analysis: Any, rows: list[dict[str, Any]], path: Path) -> None:
+    from matplotlib.backends.backend_pdf import PdfPages
+    from matplotlib.figure import Figure
+
+    with PdfPages(path) as pdf:
+        fig = Figure(figsize=(11, 8.5))
+        _planform(fig.add_subplot(1, 1, 1), spec)
+        pdf.savefig(fig)
+        shown = ("part_id", "station_mm", "chord_mm", "die_length_mm", "die_depth_mm", "die_height_mm", "overbend_deg",
+                 "max_shrink", "max_stretch", "flutes", "press_verdict")
+        for start in range(0, len(rows), 40):
+            fig = Figure(figsize=(11, 8.5))
+            ax = fig.add_axes((0.03, 0.03, 0.94, 0.92))
+            ax.axis("off")
+            ax.set_title(f"{spec.id}: pieces {start + 1}–{min(start + 40, len(rows))} of {len(rows)}")
+            table = ax.table(cellText=[[str(r[c]) for c in shown] for r in rows[start:start + 40]], colLabels=shown,
+                             loc="upper center", cellLoc="center")
+            table.auto_set_font_size(False)
+            table.set_fontsize(6)
+            pdf.savefig(fig)
+        for rib in analysis.ribs:
+            for p in rib.pieces:
+                pdf.savefig(_piece_page(p))
+
+
+def _piece_page(p: Any):
+    from matplotlib.figure import Figure
+
+    fig = Figure(figsize=(11, 8.5))
+    top = fig.add_axes((0.07, 0.42, 0.88, 0.5))
+    for points, style in ((p.blank.outer, dict(color="tab:green", lw=0.9, label="blank")),
+                          (p.piece.outline, dict(color="k", lw=1.2, label="die outline"))):
+        loop = np.vstack([np.asarray(points), np.asarray(points)[:1]])
+        top.plot(loop[:, 0], loop[:, 1], **style)
+    top.set_aspect("equal")
+    top.grid(True, lw=0.3)
+    top.legend(fontsize=7)
+    top.set_title(f"{p.piece.part_id}: over-bend {p.springback.overbend_deg:.2f}°, die R {p.springback.die_radius_mm:.2f} mm, "
+                  f"{len(p.flutes)} flute(s), press {p.press.verdict}", fontsize=9)
+    bottom = fig.add_axes((0.07, 0.07, 0.88, 0.25))
+    for run in p.runs:
+        bottom.plot(run.s_offset_mm + run.profile.s_mm, -run.profile.strain, lw=1)
+    bottom.axhline(p.alloy.shrink_limit, color="tab:blue", ls="--", lw=1, label="shrink limit")
+    bottom.set_xlabel("position along the die outline (mm)")
+    bottom.set_ylabel("shrink (+) / stretch (−)")
+    bottom.grid(True, lw=0.3)
+    bottom.legend(fontsize=7)
+    return fig

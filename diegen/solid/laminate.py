@@ -1,0 +1,60 @@
+"""Layers for a die laminated from sheet stock thinner than the die (no kernel).
+
+The die (height H, top face at z = 0) is made of ⌈H / t⌉ layers of stock t,
+layer 0 on top.  Each layer is cut square-edged along ``outline``: the wall at
+the layer's bottom face, which is the smallest section of the layer because
+the wall leans inward going down, so a square cut never stands proud of the
+die's wall; the rubber pushes the flange into the small steps.  ``top_outline``
+is the wall (extended up to the mold line for the top layer) at the layer's
+top face, for a shop that bevels each layer.  The top layer's edge still needs
+its radius (a round-over cutter).  The last layer is trimmed to reach z = −H.
+All lengths in mm.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+from diegen.errors import GeometryError
+from diegen.solid import profile
+from diegen.solid.die_input import DieInput, OutlineRun
+from diegen.solid.outline import OffsetPiece, OutlineModel
+
+
+@dataclass(frozen=True)
+class LaminateLayer:
+    """One sheet of a laminated die: its z range (mm) and outlines (mm, counter-clockwise)."""
+
+    index: int
+    z_top_mm: float
+    z_bottom_mm: float
+    outline: tuple[OutlineRun, ...]
+    top_outline: tuple[OutlineRun, ...]
+
+    @property
+    def thickness_mm(self) -> float:
+        """Finished thickness of this layer (mm)."""
+        return self.z_top_mm - self.z_bottom_mm
+
+
+def _runs(pieces: list[OffsetPiece]) -> tuple[OutlineRun, ...]:
+    return tuple(OutlineRun(p.kind, p.points) for p in pieces)
+
+
+def laminate_layers(die: DieInput, stock_thickness_mm: float, spacing_mm: float = 1.0) -> list[LaminateLayer]:
+    """The layers of ``die`` laminated from stock ``stock_thickness_mm`` thick; curves sampled every ``spacing_mm``."""
+    if not stock_thickness_mm > 0:
+        raise GeometryError(f"stock thickness {stock_thickness_mm} mm must be positive")
+    from diegen.solid.form_block import outline_model
+
+    model: OutlineModel = outline_model(die)
+    count = max(1, math.ceil(die.height_mm / stock_thickness_mm - 1e-9))
+    layers = []
+    for i in range(count):
+        z_top = -i * stock_thickness_mm
+        z_bottom = max(-(i + 1) * stock_thickness_mm, -die.height_mm)
+        bottom = model.offset(profile.wall_inset_mm(-z_bottom, die.undercut_deg), spacing_mm=spacing_mm)
+        top = model.offset(profile.wall_inset_mm(-z_top, die.undercut_deg), spacing_mm=spacing_mm)
+        layers.append(LaminateLayer(i, z_top, z_bottom, _runs(bottom), _runs(top)))
+    return layers

@@ -1,0 +1,461 @@
+"""Tests of the die (form block) solid: validity, exports, outline, top radius, holes, flutes, engraving.
+
+The test outline is a NACA 2412 section from the 4-digit equations of NACA
+Report 824 (Abbott, von Doenhoff & Stivers 1945), chord 1016 mm, offset inward
+1.3 mm (shapely's buffer as the reference offset), cut at x = 254 mm by a
+straight spar end face: the nose piece of a rib.
+"""
+
+from __future__ import annotations
+
+import math
+import subprocess
+import sys
+from dataclasses import replace
+from pathlib import Path
+
+import numpy as np
+import pytest
+from shapely.geometry import LineString, Point, Polygon, box
+from shapely.geometry.polygon import orient
+
+from diegen.errors import GeometryError, SolidError
+from diegen.solid import Bore, DieInput, Flute, OutlineRun, Pin
+from diegen.solid.profile import fillet_end_depth_mm, top_setback_mm
+
+pytestmark = [pytest.mark.solid, pytest.mark.slow]
+
+CHORD = 1016.0
+X_CUT = 254.0
+SKIN_INSET = 1.3
+H = 12.7
+R = 2.2
+UNDERCUT = 4.5
+CUTTER = 3.0
+OUTLINE_TOL = 0.02  # mm, the accuracy asked of the die's outlines
+RADIUS_TOL = 0.01  # mm, the accuracy asked of the top radius
+
+
+def naca4(code: str = "2412", chord: float = CHORD, n: int = 400) -> np.ndarray:
+    """Closed NACA 4-digit section, trailing edge → upper → leading edge → lower (NACA Report 824 equations)."""
+    m, p, t = int(code[0]) / 100, int(code[1]) / 10, int(code[2:]) / 100
+    x = 0.5 * (1 - np.cos(np.linspace(0, np.pi, n)))
+    yt = 5 * t * (0.2969 * np.sqrt(x) - 0.1260 * x - 0.3516 * x**2 + 0.2843 * x**3 - 0.1015 * x**4)
+    yc = np.where(x < p, m / p**2 * (2 * p * x - x**2), m / (1 - p) ** 2 * ((1 - 2 * p) + 2 * p * x - x**2))
+    dyc = np.where(x < p, 2 * m / p**2 * (p - x), 2 * m / (1 - p) ** 2 * (p - x))
+    th = np.arctan(dyc)
+    upper = np.column_stack([x - yt * np.sin(th), yc + yt * np.cos(th)])[::-1]
+    lower = np.column_stack([x + yt * np.sin(th), yc - yt * np.cos(th)])[1:]
+    return np.concatenate([upper, lower]) * chord
+
+
+def nose_outline() -> tuple[OutlineRun, ...]:
+    """The nose piece: one curve run round the leading edge, one line run up the spar face at x = 254 mm."""
+    piece = Polygon(naca4()).buffer(-SKIN_INSET, quad_segs=32).intersection(box(-10, -500, X_CUT, 500))
+    ring = np.asarray(orient(piece, 1.0).exterior.coords)[:-1]
+    idx = np.where(np.isclose(ring[:, 0], X_CUT, atol=1e-9))[0]
+    top, bottom = idx[np.argmax(ring[idx, 1])], idx[np.argmin(ring[idx, 1])]
+    ring = np.roll(ring, -top, axis=0)
+    bottom = (bottom - top) % len(ring)
+    curve = ring[: bottom + 1]
+    line = np.array([ring[bottom], ring[0]])
+    return (OutlineRun("curve", tuple(map(tuple, curve.tolist()))), OutlineRun("line", tuple(map(tuple, line.tolist()))))
+
+
+def outline_polygon(runs: tuple[OutlineRun, ...]) -> Polygon:
+    return Polygon(np.concatenate([np.asarray(r.points)[:-1] for r in runs]))
+
+
+PINS = (Pin(60.0, 10.0, 3.2, 8.0), Pin(220.0, 25.0, 4.0, H))
+BORES = (Bore(130.0, 15.0, 40.0),)
+FLUTES = (Flute(300.0, 8.0, 2.0), Flute(340.0, 8.0, 2.0))
+FLUTE_LENGTH = 9.0
+
+
+@pytest.fixture(scope="module")
+def outline() -> tuple[OutlineRun, ...]:
+    return nose_outline()
+
+
+@pytest.fixture(scope="module")
+def bare_input(outline) -> DieInput:
+    return DieInput("TEST-N1", outline, H, R, UNDERCUT, CUTTER)
+
+
+@pytest.fixture(scope="module")
+def full_input(bare_input) -> DieInput:
+    return replace(bare_input, pins=PINS, bores=BORES, flutes=FLUTES, flute_length_mm=FLUTE_LENGTH,
+                   engraving=("TEST-N1", "NOSE 2412"))
+
+
+@pytest.fixture(scope="module")
+def bare_die(bare_input):
+    from diegen.solid import build_die
+
+    return build_die(bare_input)
+
+
+@pytest.fixture(scope="module")
+def full_die(full_input):
+    from diegen.solid import build_die
+
+    return build_die(full_input)
+
+
+# ---------------------------------------------------------------- helpers
+def volume(shape) -> float:
+    from diegen.solid.validate import volume_mm3
+
+    return volume_mm3(shape)
+
+
+def planar_face_at(shape, z: float):
+    faces = [f for f in shape.Faces() if f.geomType() == "PLANE" and abs(f.Center().z - z) < 1e-6
+             and abs(abs(f.normalAt().z) - 1) < 1e-9]
+    return max(faces, key=lambda f: f.Area())
+
+
+def wire_points(wire, step: float = 0.05) -> np.ndarray:
+    pts = []
+    for e in wire.Edges():
+        n = max(8, int(e.Length() / step))
+        pts += [tuple(e.positionAt(i / n).toTuple()[:2]) for i in range(n + 1)]
+    return np.asarray(pts)
+
+
+def section_points(shape, origin, normal, step: float = 0.01) -> np.ndarray:
+    """Points of the shape's boundary cut by the plane through ``origin`` normal to ``normal``."""
+    from OCP.BRepAlgoAPI import BRepAlgoAPI_Section
+    from OCP.gp import gp_Dir, gp_Pln, gp_Pnt
+
+    import cadquery as cq
+
+    sec = BRepAlgoAPI_Section(shape.wrapped, gp_Pln(gp_Pnt(*origin), gp_Dir(*normal)))
+    sec.Build()
+    pts = []
+    for e in cq.Shape.cast(sec.Shape()).Edges():
+        n = max(8, int(e.Length() / step))
+        pts += [e.positionAt(i / n).toTuple() for i in range(n + 1)]
+    return np.asarray(pts)
+
+
+def fit_circle(u: np.ndarray, v: np.ndarray) -> tuple[float, float, float]:
+    """Least-squares circle (Kåsa's algebraic fit): centre u, v and radius."""
+    a = np.column_stack([u, v, np.ones_like(u)])
+    c = np.linalg.lstsq(a, u**2 + v**2, rcond=None)[0]
+    cu, cv = c[0] / 2, c[1] / 2
+    return cu, cv, math.sqrt(c[2] + cu**2 + cv**2)
+
+
+# ---------------------------------------------------------------- import boundary
+def test_package_imports_without_kernel():
+    code = "import sys, diegen.solid, diegen.solid.laminate; assert 'cadquery' not in sys.modules and 'OCP' not in sys.modules"
+    subprocess.run([sys.executable, "-c", code], check=True, cwd=Path(__file__).resolve().parents[1])
+
+
+# ---------------------------------------------------------------- STEP and STL
+@pytest.mark.parametrize("which", ["bare", "full"])
+def test_step_reimports_as_one_valid_closed_solid(which, bare_die, full_die, tmp_path):
+    from OCP.BRep import BRep_Tool
+    from OCP.BRepCheck import BRepCheck_Analyzer
+    from OCP.TopAbs import TopAbs_SHELL, TopAbs_SOLID
+    from OCP.TopExp import TopExp_Explorer
+
+    from diegen.solid.export import write_step
+    from diegen.solid.validate import read_step
+
+    die = bare_die if which == "bare" else full_die
+    path = tmp_path / f"{which}.step"
+    write_step(die, path)
+    shape = read_step(path)
+    assert BRepCheck_Analyzer(shape).IsValid()
+    solids, exp = 0, TopExp_Explorer(shape, TopAbs_SOLID)
+    while exp.More():
+        solids += 1
+        exp.Next()
+    assert solids == 1
+    exp = TopExp_Explorer(shape, TopAbs_SHELL)
+    assert exp.More()
+    while exp.More():
+        assert BRep_Tool.IsClosed_s(exp.Current())
+        exp.Next()
+    assert volume(shape) == pytest.approx(volume(die), rel=1e-6)
+    assert not list(tmp_path.glob(".*part*")), "no temporary file left behind"
+
+
+@pytest.mark.parametrize("which", ["bare", "full"])
+def test_stl_watertight_and_volume_matches_step(which, bare_die, full_die, tmp_path):
+    trimesh = pytest.importorskip("trimesh")  # general-purpose mesh library as the independent check
+    from diegen.solid.export import write_step, write_stl
+    from diegen.solid.validate import read_step
+
+    die = bare_die if which == "bare" else full_die
+    write_step(die, tmp_path / "d.step")
+    write_stl(die, tmp_path / "d.stl")
+    mesh = trimesh.load(tmp_path / "d.stl")
+    assert mesh.is_watertight
+    assert mesh.is_winding_consistent
+    assert mesh.volume > 0
+    assert mesh.volume == pytest.approx(volume(read_step(tmp_path / "d.step")), rel=0.005)
+
+
+def test_stl_not_written_when_check_fails(bare_die, tmp_path, monkeypatch):
+    import diegen.solid.export as export
+
+    target = tmp_path / "keep.stl"
+    target.write_bytes(b"earlier good file")
+    monkeypatch.setattr(export, "stl_problems", lambda path: ["pretend hole"])
+    with pytest.raises(SolidError, match="pretend hole"):
+        export.write_stl(bare_die, target)
+    assert target.read_bytes() == b"earlier good file"
+    assert [p.name for p in tmp_path.iterdir()] == ["keep.stl"]
+
+
+# ---------------------------------------------------------------- outlines
+def test_top_face_edge_is_the_outline_set_back(bare_die, outline):
+    """The flat top face ends where the top radius begins: the outline offset inward by R(1+sin α)/cos α."""
+    setback = top_setback_mm(R, UNDERCUT)
+    # circle inscribed in the corner between the top plane and the wall leaning by α (plane geometry)
+    assert setback == pytest.approx(R / math.tan(math.radians(90 - UNDERCUT) / 2), rel=1e-12)
+    face = planar_face_at(bare_die, 0.0)
+    edge_ring = LineString(wire_points(face.outerWire()))
+    reference = outline_polygon(outline).buffer(-setback, join_style="mitre", mitre_limit=10.0).exterior
+    samples = [p for r in outline for p in r.points] + [
+        tuple(np.asarray(outline[1].points[0]) + f * (np.asarray(outline[1].points[1]) - outline[1].points[0]))
+        for f in np.linspace(0, 1, 50)]
+    worst = max(abs(edge_ring.distance(Point(p)) - reference.distance(Point(p))) for p in samples)
+    assert worst < OUTLINE_TOL
+    # away from the two corners every input point is exactly one setback from the edge
+    far = [p for p in samples if min(math.dist(p, outline[1].points[0]), math.dist(p, outline[1].points[1])) > 10]
+    assert max(abs(edge_ring.distance(Point(p)) - setback) for p in far) < OUTLINE_TOL
+
+
+def test_bottom_face_edge_is_the_outline_inset_by_the_undercut(bare_die, outline):
+    """Bottom edge: inset H·tan α; the wall line passes through the outline at z = 0, the radius adds nothing."""
+    inset = H * math.tan(math.radians(UNDERCUT))
+    face = planar_face_at(bare_die, -H)
+    edge_ring = LineString(wire_points(face.outerWire()))
+    reference = outline_polygon(outline).buffer(-inset, join_style="mitre", mitre_limit=10.0).exterior
+    samples = [p for r in outline for p in r.points]
+    worst = max(abs(edge_ring.distance(Point(p)) - reference.distance(Point(p))) for p in samples)
+    assert worst < OUTLINE_TOL
+    assert Polygon(wire_points(face.outerWire())).area == pytest.approx(
+        outline_polygon(outline).buffer(-inset, join_style="mitre", mitre_limit=10.0).area, rel=1e-4)
+
+
+def test_top_radius_on_the_spar_face(bare_die, outline):
+    """Cut normal to the straight spar face: the top edge is an arc of radius R centred at (x_cut − setback, −R)."""
+    y_mid = 0.5 * (outline[1].points[0][1] + outline[1].points[1][1])
+    pts = section_points(bare_die, (X_CUT - 5, y_mid, 0), (0, 1, 0))
+    setback = top_setback_mm(R, UNDERCUT)
+    arc_depth = fillet_end_depth_mm(R, UNDERCUT)
+    sel = pts[(pts[:, 0] > X_CUT - setback - 0.01) & (pts[:, 2] < -0.02) & (pts[:, 2] > -arc_depth + 0.02)]
+    assert len(sel) > 50
+    cx, cz, r = fit_circle(sel[:, 0], sel[:, 2])
+    assert r == pytest.approx(R, abs=RADIUS_TOL)
+    assert cx == pytest.approx(X_CUT - setback, abs=RADIUS_TOL)
+    assert cz == pytest.approx(-R, abs=RADIUS_TOL)
+    # straight wall below the arc leans inward by the undercut
+    wall = pts[(pts[:, 0] > X_CUT - 3) & (pts[:, 2] < -arc_depth - 0.05) & (pts[:, 2] > -H + 0.05)]
+    slope = np.polyfit(-wall[:, 2], X_CUT - wall[:, 0], 1)
+    assert math.degrees(math.atan(slope[0])) == pytest.approx(UNDERCUT, abs=0.01)
+    assert slope[1] == pytest.approx(0.0, abs=OUTLINE_TOL)  # the wall line meets the top plane on the outline
+
+
+def test_top_radius_on_the_curved_contour(bare_die, outline):
+    """Cut normal to the curved contour on the upper surface at about 40 % of the piece."""
+    from diegen.solid.outline import OutlineModel
+
+    model = OutlineModel(outline, CUTTER, top_setback_mm(R, UNDERCUT))
+    p, n = model.locate(100.0)
+    pts = section_points(bare_die, (p[0], p[1], 0.0), (-n[1], n[0], 0.0))
+    u = (pts[:, 0] - p[0]) * n[0] + (pts[:, 1] - p[1]) * n[1]  # inset from the outline
+    near = np.abs(u) < 5
+    u, z = u[near], pts[near, 2]
+    arc_depth = fillet_end_depth_mm(R, UNDERCUT)
+    sel = (z < -0.02) & (z > -arc_depth + 0.02)
+    cu, cz, r = fit_circle(u[sel], z[sel])
+    assert r == pytest.approx(R, abs=RADIUS_TOL)
+    assert cu == pytest.approx(top_setback_mm(R, UNDERCUT), abs=RADIUS_TOL)
+    assert cz == pytest.approx(-R, abs=RADIUS_TOL)
+
+
+# ---------------------------------------------------------------- holes, flutes, engraving
+def test_pins_remove_their_cylinders(bare_input, bare_die):
+    from diegen.solid import build_die
+
+    die = build_die(replace(bare_input, pins=PINS))
+    removed = volume(bare_die) - volume(die)
+    expected = sum(math.pi * p.d**2 / 4 * p.depth for p in PINS)
+    assert removed == pytest.approx(expected, rel=1e-4)
+    found = set()
+    for f in die.Faces():
+        if f.geomType() == "CYLINDER":
+            from OCP.BRepAdaptor import BRepAdaptor_Surface
+
+            cyl = BRepAdaptor_Surface(f.wrapped).Cylinder()
+            loc = cyl.Location()
+            for i, p in enumerate(PINS):
+                if math.hypot(loc.X() - p.x, loc.Y() - p.y) < 1e-6 and abs(cyl.Radius() - p.d / 2) < 1e-9:
+                    bb = f.BoundingBox()
+                    assert bb.zmax == pytest.approx(0.0, abs=1e-6)
+                    assert bb.zmin == pytest.approx(-p.depth, abs=1e-6)
+                    found.add(i)
+    assert found == {0, 1}
+
+
+def test_bore_removes_cylinder_and_top_rounding(bare_input, bare_die):
+    """Removed volume: πd²/4·H plus the rounding, by Pappus's centroid theorem on the corner area ρ²(1 − π/4)."""
+    from diegen.solid import build_die
+
+    die = build_die(replace(bare_input, bores=BORES))
+    b, rho = BORES[0], R
+    a = b.d / 2
+    # first moment about the axis of (square a..a+ρ × ρ) minus (quarter disc centred at a+ρ, depth ρ)
+    moment = rho**2 * (a + rho / 2) - math.pi * rho**2 / 4 * (a + rho - 4 * rho / (3 * math.pi))
+    expected = math.pi * a**2 * H + 2 * math.pi * moment
+    assert volume(bare_die) - volume(die) == pytest.approx(expected, rel=1e-4)
+    top = planar_face_at(die, 0.0)
+    inner = [w for w in top.innerWires()]
+    assert len(inner) == 1
+    c = inner[0].Center()
+    assert (c.x, c.y) == pytest.approx((b.x, b.y), abs=1e-6)
+    assert inner[0].Edges()[0].radius() == pytest.approx(a + rho, abs=1e-6)
+
+
+def test_flute_depth_tapers_down_the_wall(bare_input):
+    from diegen.solid import build_die
+    from diegen.solid.outline import OutlineModel
+
+    flute = FLUTES[0]
+    die = build_die(replace(bare_input, flutes=(flute,), flute_length_mm=FLUTE_LENGTH))
+    model = OutlineModel(bare_input.outline, CUTTER, top_setback_mm(R, UNDERCUT))
+    p, n = model.locate(flute.s_mm)
+    tan_a = math.tan(math.radians(UNDERCUT))
+    for depth in (0.5 * FLUTE_LENGTH, FLUTE_LENGTH, 0.5 * (FLUTE_LENGTH + H)):
+        pts = section_points(die, (0, 0, -depth), (0, 0, 1), step=0.02)
+        near = pts[np.hypot(pts[:, 0] - p[0], pts[:, 1] - p[1]) < 6]
+        # material boundary along the inward normal through the flute centre
+        along = (near[:, 0] - p[0]) * n[0] + (near[:, 1] - p[1]) * n[1]
+        across = np.abs((near[:, 0] - p[0]) * -n[1] + (near[:, 1] - p[1]) * n[0])
+        inset = along[np.argmin(across)]
+        expected = depth * tan_a + flute.depth_mm * min(depth / FLUTE_LENGTH, 1.0)
+        assert inset == pytest.approx(expected, abs=OUTLINE_TOL), depth
+        width = across[(along < depth * tan_a + 0.2)].min() * 2
+        if depth >= FLUTE_LENGTH:
+            assert width == pytest.approx(flute.width_mm, abs=0.1)
+
+
+def test_engraving_on_bottom_face_only_and_reads_from_below(bare_input, bare_die):
+    from diegen.solid import build_die
+
+    die = build_die(replace(bare_input, engraving=("F",)))
+    assert planar_face_at(die, 0.0).Area() == pytest.approx(planar_face_at(bare_die, 0.0).Area(), rel=1e-9)
+    removed = volume(bare_die) - volume(die)
+    mouth = planar_face_at(bare_die, -H).Area() - planar_face_at(die, -H).Area()
+    assert mouth > 10
+    assert removed == pytest.approx(mouth * 0.5, rel=1e-4)  # pockets 0.5 mm deep with vertical sides
+    floors = [f for f in die.Faces() if f.geomType() == "PLANE" and abs(f.Center().z + H - 0.5) < 1e-6]
+    assert len(floors) == 2  # the letter and the arrow
+    letter = min(floors, key=lambda f: f.Center().y)  # the arrow sits below the text, i.e. at larger Y
+    poly = Polygon(wire_points(letter.outerWire(), 0.1))
+    x0, y0, x1, y1 = poly.bounds
+    # turned over (about the X axis) the letter reads normally: its stem at small X, its arms at small Y
+    assert poly.intersection(box(x0, y0, 0.5 * (x0 + x1), y1)).area > 0.5 * poly.area
+    assert poly.intersection(box(x0, y0, x1, 0.5 * (y0 + y1))).area > 0.5 * poly.area
+    arrow = max(floors, key=lambda f: f.Center().y)
+    apoly = Polygon(wire_points(arrow.outerWire(), 0.1))
+    ax0, _, ax1, _ = apoly.bounds
+    # the arrow head (the wide end) points towards −X, the leading edge
+    assert apoly.intersection(box(ax0, -1e3, 0.5 * (ax0 + ax1), 1e3)).area > 0.5 * apoly.area
+
+
+# ---------------------------------------------------------------- errors a builder can act on
+def test_radius_too_large_for_stock(bare_input):
+    from diegen.solid import build_die
+
+    with pytest.raises(GeometryError, match="thicker stock or a smaller radius"):
+        build_die(replace(bare_input, top_radius_mm=12.5))
+
+
+def test_pin_off_the_top_face(bare_input):
+    from diegen.solid import build_die
+
+    with pytest.raises(GeometryError, match="pin hole"):
+        build_die(replace(bare_input, pins=(Pin(252.0, 10.0, 3.2, 5.0),)))
+
+
+def test_flute_deeper_than_half_its_width(bare_input):
+    from diegen.solid import build_die
+
+    with pytest.raises(GeometryError, match="half its width"):
+        build_die(replace(bare_input, flutes=(Flute(300.0, 4.0, 3.0),), flute_length_mm=9.0))
+
+
+def test_clockwise_outline(bare_input):
+    from diegen.solid import build_die
+
+    rev = tuple(OutlineRun(r.kind, tuple(reversed(r.points))) for r in reversed(bare_input.outline))
+    with pytest.raises(GeometryError, match="clockwise"):
+        build_die(replace(bare_input, outline=rev))
+
+
+def test_inside_corner_tighter_than_cutter(bare_input):
+    from diegen.solid import build_die
+
+    # a rectangle with a notch: the notch's inside corners are sharp
+    pts = ((0, 0), (100, 0), (100, 40), (60, 40), (60, 30), (40, 30), (40, 40), (0, 40), (0, 0))
+    runs = tuple(OutlineRun("line", (a, b)) for a, b in zip(pts[:-1], pts[1:]))
+    with pytest.raises(GeometryError, match="inside corner"):
+        build_die(replace(bare_input, outline=runs))
+
+
+def test_kernel_failure_becomes_solid_error(bare_input, monkeypatch):
+    import diegen.solid.form_block as fb
+
+    def broken(wires, ruled):
+        raise RuntimeError("Standard_Failure")
+
+    monkeypatch.setattr(fb, "_loft_faces", broken)
+    with pytest.raises(SolidError, match="lower the top radius"):
+        fb.build_die(bare_input)
+
+
+# ---------------------------------------------------------------- tiles and laminates
+def test_tiles_fit_the_bed_and_keep_the_volume(bare_die):
+    from diegen.solid.export import tile_for_bed
+
+    bed = (150.0, 200.0)
+    tiles = tile_for_bed(bare_die, bed, dowel_d_mm=5.0, dowel_depth_mm=10.0)
+    assert len(tiles) == 2
+    for t in tiles:
+        bb = t.shape.BoundingBox()
+        length, width = (bb.xlen, bb.ylen)
+        bx, by = (bed[1], bed[0]) if t.along_bed_y else bed
+        assert length <= bx - 4 + 1e-6 and width <= by - 4 + 1e-6
+    dowel_holes = bare_die.BoundingBox().xlen  # placeholder to keep names short
+    del dowel_holes
+    total = sum(volume(t.shape) for t in tiles)
+    n_dowels = round((volume(bare_die) - total) / (math.pi * 2.5**2 * 20.0))
+    assert n_dowels in (1, 2)
+    assert volume(bare_die) - total == pytest.approx(n_dowels * math.pi * 2.5**2 * 20.0, rel=1e-4)
+
+
+def test_bed_too_small(bare_die):
+    from diegen.solid.export import tile_for_bed
+
+    with pytest.raises(SolidError, match="cannot take a tile"):
+        tile_for_bed(bare_die, (100.0, 100.0))
+
+
+def test_laminate_layers(bare_input, outline):
+    from diegen.solid.laminate import laminate_layers
+
+    layers = laminate_layers(bare_input, 6.0)
+    assert [round(l.thickness_mm, 9) for l in layers] == [6.0, 6.0, 0.7]
+    base = outline_polygon(outline)
+    tan_a = math.tan(math.radians(UNDERCUT))
+    for layer in layers:
+        cut = outline_polygon(layer.outline)
+        ref = base.buffer(tan_a * layer.z_bottom_mm, join_style="mitre", mitre_limit=10.0)
+        assert cut.symmetric_difference(ref).area / cut.length < OUTLINE_TOL
