@@ -27,7 +27,7 @@ import numpy as np
 from diegen import __version__
 from diegen.analysis import PieceAnalysis, RibAnalysis, analyse_rib
 from diegen.errors import DiegenError, OutputError
-from diegen.fileio import write_text
+from diegen.fileio import refuse_foreign, write_text
 from diegen.spec.model import RibSpec, WingSpec
 
 MANIFEST = "manifest.json"
@@ -110,6 +110,13 @@ class BuildLock:
         self.handle.close()
 
 
+def remove_stale_temporaries(folder: Path) -> None:
+    """Delete temporaries a killed build left behind (``.name.*.part.ext``, see :mod:`diegen.fileio`)."""
+    for path in folder.rglob(".*.part*"):
+        if path.is_file():
+            path.unlink(missing_ok=True)
+
+
 # -- results -----------------------------------------------------------------
 @dataclass
 class PieceOutcome:
@@ -147,9 +154,24 @@ class BuildResult:
         return "\n".join(lines)
 
 
+@dataclass(frozen=True)
+class Task:
+    rib: RibAnalysis
+    section: np.ndarray | None
+    index: int
+    digest: str
+
+    @property
+    def part_id(self) -> str:
+        return self.rib.pieces[self.index].piece.part_id
+
+
 # -- one piece ---------------------------------------------------------------
-def write_piece(rib: RibAnalysis, piece: PieceAnalysis, folder: Path, known_files: tuple[str, ...] = ()) -> tuple[str, ...]:
-    """Write every file of one piece into ``folder`` (atomically); return their names."""
+def write_piece(rib: RibAnalysis, piece: PieceAnalysis, folder: Path, claimed: bool = False) -> tuple[str, ...]:
+    """Write every file of one piece into ``folder`` (atomically); return their names.
+
+    ``claimed``: the manifest already records this piece, so existing files are diegen's own.
+    """
     from diegen.export.dxf import write_dxf
     from diegen.export.pdf import write_pdf
     from diegen.export.plot import preview_plot
@@ -163,11 +185,8 @@ def write_piece(rib: RibAnalysis, piece: PieceAnalysis, folder: Path, known_file
         "dxf": f"{part}-blank.dxf", "svg": f"{part}-blank.svg", "pdf": f"{part}-blank.pdf",
         "png": f"{part}-preview.png", "json": f"{part}-report.json", "md": f"{part}-sheet.md",
     }
-    for name in names.values():
-        target = folder / name
-        if target.exists() and name not in known_files:
-            raise OutputError(f"{target}: exists and was not written by diegen; move it away or choose another -o")
-    die_files, die_notes = write_die_files(rib, piece, folder, known_files)
+    refuse_foreign([folder / name for name in names.values()], claimed)
+    die_files, die_notes = write_die_files(rib, piece, folder, claimed)
     write_dxf(piece.blank, folder / names["dxf"])
     write_svg(piece.blank, folder / names["svg"])
     write_pdf(piece.blank, folder / names["pdf"], paper="letter" if rib.spec.units == "in" else "a4")
@@ -177,12 +196,27 @@ def write_piece(rib: RibAnalysis, piece: PieceAnalysis, folder: Path, known_file
     return tuple(die_files) + tuple(names.values())
 
 
-def _piece_task(rib: RibAnalysis, index: int, folder: str, known: tuple[str, ...]) -> tuple[str, tuple[str, ...], str, float]:
+_ANALYSIS_CACHE: dict[str, RibAnalysis] = {}
+
+
+def _analysed(rib_spec: RibSpec, section: np.ndarray | None) -> RibAnalysis:
+    """The rib's analysis, computed once per process (workers get plain specs, not analyses)."""
+    key = rib_input_hash(rib_spec, section)
+    if key not in _ANALYSIS_CACHE:
+        if len(_ANALYSIS_CACHE) >= 256:
+            _ANALYSIS_CACHE.clear()
+        _ANALYSIS_CACHE[key] = analyse_rib(rib_spec, section)
+    return _ANALYSIS_CACHE[key]
+
+
+def _piece_task(rib_spec: RibSpec, section: np.ndarray | None, index: int, folder: str,
+                claimed: bool) -> tuple[str, tuple[str, ...], str, float]:
     """Worker entry point: build one piece; failures come back as text (the rest of the wing goes on)."""
     start = time.perf_counter()
+    rib = _analysed(rib_spec, section)
     piece = rib.pieces[index]
     try:
-        files = write_piece(rib, piece, Path(folder) / piece.piece.part_id, known)
+        files = write_piece(rib, piece, Path(folder) / piece.piece.part_id, claimed)
         return piece.piece.part_id, files, "", time.perf_counter() - start
     except DiegenError as error:
         return piece.piece.part_id, (), str(error), time.perf_counter() - start
@@ -223,10 +257,11 @@ def build_spec(spec: RibSpec | WingSpec, out: Path, force: bool = False, jobs: i
 
     folder = out / spec.id
     with BuildLock(folder):
+        remove_stale_temporaries(folder)
         manifest = Manifest.load(folder / MANIFEST)
         manifest.data.update(spec=spec.id, kind="wing" if isinstance(spec, WingSpec) else "rib")
         outcomes: list[PieceOutcome] = []
-        tasks: list[tuple[RibAnalysis, int, str]] = []
+        tasks: list[Task] = []
         warnings: list[str] = []
         analyses: list[RibAnalysis] = []
         for rib_spec, section in rib_jobs(spec):
@@ -237,7 +272,7 @@ def build_spec(spec: RibSpec | WingSpec, out: Path, force: bool = False, jobs: i
                 outcomes.extend(PieceOutcome(p, "unchanged") for p in rib_entry["pieces"])
                 warnings.extend(w for p in rib_entry["pieces"] for w in manifest.piece(p).get("warnings", []))
                 continue
-            rib = analyse_rib(rib_spec, section)
+            rib = _analysed(rib_spec, section)
             analyses.append(rib)
             manifest.data["ribs"][rib_spec.id] = {"input_hash": key, "pieces": [p.piece.part_id for p in rib.pieces],
                                                   "complete": False}
@@ -249,7 +284,7 @@ def build_spec(spec: RibSpec | WingSpec, out: Path, force: bool = False, jobs: i
                 if not force and entry and entry.get("hash") == digest and manifest.files_ok(folder, part):
                     outcomes.append(PieceOutcome(part, "unchanged"))
                     continue
-                tasks.append((rib, index, digest))
+                tasks.append(Task(rib, section, index, digest))
         _run_tasks(tasks, folder, manifest, outcomes, jobs, progress)
         for rib in analyses:
             entry = manifest.data["ribs"][rib.spec.id]
@@ -290,32 +325,43 @@ def _record(manifest: Manifest, rib: RibAnalysis, index: int, digest: str, files
     return PieceOutcome(part, "failed" if error else "built", files, error, deviation, seconds)
 
 
-def _run_tasks(tasks: list[tuple[RibAnalysis, int, str]], folder: Path, manifest: Manifest,
-               outcomes: list[PieceOutcome], jobs: int | None, progress: bool) -> None:
+def _run_tasks(tasks: list[Task], folder: Path, manifest: Manifest, outcomes: list[PieceOutcome],
+               jobs: int | None, progress: bool) -> None:
     bar = _Progress(len(tasks), progress)
-    known = {part: tuple((manifest.piece(part) or {}).get("files", ())) for part in
-             (r.pieces[i].piece.part_id for r, i, _ in tasks)}
+
+    claimed = {t.part_id: manifest.piece(t.part_id) is not None for t in tasks}
+    for task in tasks:  # claim every piece before writing, so an interrupted piece's files stay ours
+        entry = manifest.data["pieces"].setdefault(task.part_id, {"files": []})
+        entry.update(status="building", hash="")
+    manifest.save()
+
+    def submit_args(task: Task) -> tuple:
+        return task.rib.spec, task.section, task.index, str(folder), claimed[task.part_id]
+
+    def finish(task: Task, result: tuple[str, tuple[str, ...], str, float]) -> None:
+        part, files, error, seconds = result
+        outcomes.append(_record(manifest, task.rib, task.index, task.digest, files, error, seconds))
+        bar.step(part)
+
     jobs = max(1, min(jobs or os.cpu_count() or 1, len(tasks) or 1))
     if jobs == 1:
-        for rib, index, digest in tasks:
-            part, files, error, seconds = _piece_task(rib, index, str(folder), known[rib.pieces[index].piece.part_id])
-            outcomes.append(_record(manifest, rib, index, digest, files, error, seconds))
-            bar.step(part)
+        for task in tasks:
+            finish(task, _piece_task(*submit_args(task)))
         return
     with ProcessPoolExecutor(max_workers=jobs, initializer=_warm_worker) as pool:
-        pending: dict[Future, tuple[RibAnalysis, int, str]] = {}
+        pending: dict[Future, Task] = {pool.submit(_piece_task, *submit_args(t)): t for t in tasks}
         try:
-            for rib, index, digest in tasks:
-                future = pool.submit(_piece_task, rib, index, str(folder), known[rib.pieces[index].piece.part_id])
-                pending[future] = (rib, index, digest)
             while pending:
                 done, _ = wait(pending, return_when=FIRST_COMPLETED)
                 for future in done:
-                    rib, index, digest = pending.pop(future)
-                    part, files, error, seconds = future.result()
-                    outcomes.append(_record(manifest, rib, index, digest, files, error, seconds))
-                    bar.step(part)
-        except BaseException:
+                    finish(pending.pop(future), future.result())
+        except BaseException:  # Ctrl-C: keep what finished, drop what did not start
+            for future in pending:
+                future.cancel()
+            done, _ = wait(pending, timeout=60)
+            for future in done:
+                if not future.cancelled() and future.exception() is None:
+                    finish(pending[future], future.result())
             pool.shutdown(wait=False, cancel_futures=True)
             raise
 

@@ -57,3 +57,19 @@ def write_with(target: str | os.PathLike[str], writer: Callable[[Path], None]) -
     """Atomically produce ``target`` by calling ``writer(temporary_path)``."""
     with atomic_path(target) as tmp:
         writer(tmp)
+
+
+def refuse_foreign(paths: "list[Path] | tuple[Path, ...]", claimed: bool) -> None:
+    """Refuse to overwrite existing files unless this folder is one diegen has claimed before.
+
+    ``claimed`` is True when the build's manifest already records the piece
+    (diegen wrote or started writing it); otherwise any existing file is
+    somebody else's and is never replaced.
+    """
+    from diegen.errors import OutputError
+
+    if claimed:
+        return
+    for path in paths:
+        if Path(path).exists():
+            raise OutputError(f"{path}: exists and was not written by diegen; move it away or choose another -o")

@@ -115,15 +115,25 @@ def planar_face_at(shape, z: float):
     return max(faces, key=lambda f: f.Area())
 
 
+def edge_points(edge, step: float) -> list[tuple[float, float, float]]:
+    """Points along an edge every ``step`` mm or closer (by parameter, cheap)."""
+    from OCP.BRepAdaptor import BRepAdaptor_Curve
+
+    curve = BRepAdaptor_Curve(edge.wrapped)
+    u0, u1 = curve.FirstParameter(), curve.LastParameter()
+    n = max(8, int(edge.Length() / step))
+    out = []
+    for u in np.linspace(u0, u1, n + 1):
+        p = curve.Value(float(u))
+        out.append((p.X(), p.Y(), p.Z()))
+    return out
+
+
 def wire_points(wire, step: float = 0.05) -> np.ndarray:
-    pts = []
-    for e in wire.Edges():
-        n = max(8, int(e.Length() / step))
-        pts += [tuple(e.positionAt(i / n).toTuple()[:2]) for i in range(n + 1)]
-    return np.asarray(pts)
+    return np.asarray([p[:2] for e in wire.Edges() for p in edge_points(e, step)])
 
 
-def section_points(shape, origin, normal, step: float = 0.01) -> np.ndarray:
+def section_points(shape, origin, normal, step: float = 0.01, curved_only: bool = False) -> np.ndarray:
     """Points of the shape's boundary cut by the plane through ``origin`` normal to ``normal``."""
     from OCP.BRepAlgoAPI import BRepAlgoAPI_Section
     from OCP.gp import gp_Dir, gp_Pln, gp_Pnt
@@ -134,8 +144,9 @@ def section_points(shape, origin, normal, step: float = 0.01) -> np.ndarray:
     sec.Build()
     pts = []
     for e in cq.Shape.cast(sec.Shape()).Edges():
-        n = max(8, int(e.Length() / step))
-        pts += [e.positionAt(i / n).toTuple() for i in range(n + 1)]
+        if curved_only and e.geomType() == "LINE":
+            continue
+        pts += edge_points(e, step)
     return np.asarray(pts)
 
 
@@ -246,7 +257,7 @@ def test_bottom_face_edge_is_the_outline_inset_by_the_undercut(bare_die, outline
 def test_top_radius_on_the_spar_face(bare_die, outline):
     """Cut normal to the straight spar face: the top edge is an arc of radius R centred at (x_cut − setback, −R)."""
     y_mid = 0.5 * (outline[1].points[0][1] + outline[1].points[1][1])
-    pts = section_points(bare_die, (X_CUT - 5, y_mid, 0), (0, 1, 0))
+    pts = section_points(bare_die, (X_CUT - 5, y_mid, 0), (0, 1, 0), curved_only=True)
     setback = top_setback_mm(R, UNDERCUT)
     arc_depth = fillet_end_depth_mm(R, UNDERCUT)
     sel = pts[(pts[:, 0] > X_CUT - setback - 0.01) & (pts[:, 2] < -0.02) & (pts[:, 2] > -arc_depth + 0.02)]
@@ -268,7 +279,7 @@ def test_top_radius_on_the_curved_contour(bare_die, outline):
 
     model = OutlineModel(outline, CUTTER, top_setback_mm(R, UNDERCUT))
     p, n = model.locate(100.0)
-    pts = section_points(bare_die, (p[0], p[1], 0.0), (-n[1], n[0], 0.0))
+    pts = section_points(bare_die, (p[0], p[1], 0.0), (-n[1], n[0], 0.0), curved_only=True)
     u = (pts[:, 0] - p[0]) * n[0] + (pts[:, 1] - p[1]) * n[1]  # inset from the outline
     near = np.abs(u) < 5
     u, z = u[near], pts[near, 2]
@@ -324,7 +335,9 @@ def test_bore_removes_cylinder_and_top_rounding(bare_input, bare_die):
 
 
 def test_flute_depth_tapers_down_the_wall(bare_input):
+    """Horizontal cuts through a flute: depth grows linearly to full at the flange depth; circular groove."""
     from diegen.solid import build_die
+    from diegen.solid.features import flute_radius_mm
     from diegen.solid.outline import OutlineModel
 
     flute = FLUTES[0]
@@ -332,18 +345,21 @@ def test_flute_depth_tapers_down_the_wall(bare_input):
     model = OutlineModel(bare_input.outline, CUTTER, top_setback_mm(R, UNDERCUT))
     p, n = model.locate(flute.s_mm)
     tan_a = math.tan(math.radians(UNDERCUT))
+    r = flute_radius_mm(flute)
+    assert r == pytest.approx((flute.width_mm**2 / 4 + flute.depth_mm**2) / (2 * flute.depth_mm))
     for depth in (0.5 * FLUTE_LENGTH, FLUTE_LENGTH, 0.5 * (FLUTE_LENGTH + H)):
         pts = section_points(die, (0, 0, -depth), (0, 0, 1), step=0.02)
-        near = pts[np.hypot(pts[:, 0] - p[0], pts[:, 1] - p[1]) < 6]
-        # material boundary along the inward normal through the flute centre
-        along = (near[:, 0] - p[0]) * n[0] + (near[:, 1] - p[1]) * n[1]
-        across = np.abs((near[:, 0] - p[0]) * -n[1] + (near[:, 1] - p[1]) * n[0])
-        inset = along[np.argmin(across)]
-        expected = depth * tan_a + flute.depth_mm * min(depth / FLUTE_LENGTH, 1.0)
-        assert inset == pytest.approx(expected, abs=OUTLINE_TOL), depth
-        width = across[(along < depth * tan_a + 0.2)].min() * 2
-        if depth >= FLUTE_LENGTH:
-            assert width == pytest.approx(flute.width_mm, abs=0.1)
+        near = pts[np.hypot(pts[:, 0] - p[0], pts[:, 1] - p[1]) < 8]
+        along = (near[:, 0] - p[0]) * n[0] + (near[:, 1] - p[1]) * n[1]  # inward from the outline
+        across = (near[:, 0] - p[0]) * -n[1] + (near[:, 1] - p[1]) * n[0]  # along the outline
+        wall = depth * tan_a
+        full = flute.depth_mm * min(depth / FLUTE_LENGTH, 1.0)
+        assert along[np.argmin(np.abs(across))] == pytest.approx(wall + full, abs=OUTLINE_TOL), depth
+        groove = along > wall + 0.05
+        cu, cv, radius = fit_circle(along[groove], across[groove])
+        assert radius == pytest.approx(r, abs=OUTLINE_TOL)
+        assert cu == pytest.approx(wall + full - r, abs=OUTLINE_TOL)
+        assert cv == pytest.approx(0.0, abs=OUTLINE_TOL)
 
 
 def test_engraving_on_bottom_face_only_and_reads_from_below(bare_input, bare_die):
@@ -433,8 +449,6 @@ def test_tiles_fit_the_bed_and_keep_the_volume(bare_die):
         length, width = (bb.xlen, bb.ylen)
         bx, by = (bed[1], bed[0]) if t.along_bed_y else bed
         assert length <= bx - 4 + 1e-6 and width <= by - 4 + 1e-6
-    dowel_holes = bare_die.BoundingBox().xlen  # placeholder to keep names short
-    del dowel_holes
     total = sum(volume(t.shape) for t in tiles)
     n_dowels = round((volume(bare_die) - total) / (math.pi * 2.5**2 * 20.0))
     assert n_dowels in (1, 2)

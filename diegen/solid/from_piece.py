@@ -7,11 +7,10 @@ dowel in plastics and solid-surface stock) and ``pin_depth_mm`` deep.
 
 from __future__ import annotations
 
-from collections.abc import Sequence
 from pathlib import Path
 from typing import Any
 
-from diegen.errors import OutputError
+from diegen.fileio import refuse_foreign
 from diegen.solid.die_input import Bore, DieInput, Flute, OutlineRun, Pin
 
 PIN_INTERFERENCE_MM = 0.03
@@ -42,13 +41,7 @@ def die_input(rib: Any, piece: Any) -> DieInput:
     )
 
 
-def _check_free(folder: Path, names: Sequence[str], known: Sequence[str]) -> None:
-    for name in names:
-        if (folder / name).exists() and name not in known:
-            raise OutputError(f"{folder / name}: exists and was not written by diegen; move it away or choose another -o")
-
-
-def write_die_files(rib: Any, piece: Any, folder: Path, known: Sequence[str] = ()) -> tuple[list[str], list[str]]:
+def write_die_files(rib: Any, piece: Any, folder: Path, claimed: bool = False) -> tuple[list[str], list[str]]:
     """Build the die and write its files into ``folder``; return (file names, notes for the shop sheet)."""
     from diegen.solid.export import write_step, write_stl
     from diegen.solid.form_block import build_die
@@ -58,7 +51,7 @@ def write_die_files(rib: Any, piece: Any, folder: Path, known: Sequence[str] = (
     shared = rib.spec.shared
     tolerance = shared.die.stl_tolerance_mm
     names = [f"{part}-die.step", f"{part}-die.stl"]
-    _check_free(folder, names, known)
+    refuse_foreign([folder / n for n in names], claimed)
     solid = build_die(die)
     write_step(solid, folder / names[0])
     write_stl(solid, folder / names[1], tolerance_mm=tolerance)
@@ -68,11 +61,11 @@ def write_die_files(rib: Any, piece: Any, folder: Path, known: Sequence[str] = (
         notes.insert(0, f"Dowel holes in the die: Ø{pin.d:.2f} mm ({PIN_INTERFERENCE_MM:.2f} mm under the dowel for a "
                         f"press fit), {pin.depth:.1f} mm deep from the top face.")
     if piece.die_layers > 1:
-        names.append(_write_layers(die, shared.die.stock_thickness_mm, folder, known))
+        names.append(_write_layers(die, shared.die.stock_thickness_mm, folder, claimed))
         notes.append(f"Laminated die: {piece.die_layers} layers; each layer's cut outline is in {names[-1]} "
                      "(layer LAYER1 on top).")
     if shared.die.print_bed_mm:
-        tile_names = _write_tiles(solid, shared.die.print_bed_mm, part, folder, known, tolerance)
+        tile_names = _write_tiles(solid, shared.die.print_bed_mm, part, folder, claimed, tolerance)
         names.extend(tile_names)
         if len(tile_names) > 2:
             notes.append(f"Printed die in {len(tile_names) // 2} tiles for a {shared.die.print_bed_mm[0]:.0f} × "
@@ -80,7 +73,7 @@ def write_die_files(rib: Any, piece: Any, folder: Path, known: Sequence[str] = (
     return names, notes
 
 
-def _write_tiles(solid: Any, bed: tuple[float, float], part: str, folder: Path, known: Sequence[str],
+def _write_tiles(solid: Any, bed: tuple[float, float], part: str, folder: Path, claimed: bool,
                  tolerance: float) -> list[str]:
     from diegen.solid.export import write_step, write_stl
     from diegen.solid.tiles import tile_for_bed
@@ -91,21 +84,21 @@ def _write_tiles(solid: Any, bed: tuple[float, float], part: str, folder: Path, 
     names = []
     for tile in tiles:
         stem = f"{part}-die-tile{tile.index + 1}"
-        _check_free(folder, [f"{stem}.step", f"{stem}.stl"], known)
+        refuse_foreign([folder / f"{stem}.step", folder / f"{stem}.stl"], claimed)
         write_step(tile.shape, folder / f"{stem}.step")
         write_stl(tile.shape, folder / f"{stem}.stl", tolerance_mm=tolerance)
         names += [f"{stem}.step", f"{stem}.stl"]
     return names
 
 
-def _write_layers(die: DieInput, stock: float, folder: Path, known: Sequence[str]) -> str:
+def _write_layers(die: DieInput, stock: float, folder: Path, claimed: bool) -> str:
     import ezdxf
 
     from diegen.fileio import write_with
     from diegen.solid.laminate import laminate_layers
 
     name = f"{die.part_id}-layers.dxf"
-    _check_free(folder, [name], known)
+    refuse_foreign([folder / name], claimed)
     doc = ezdxf.new("R2010", setup=False)
     doc.header["$INSUNITS"] = 4
     msp = doc.modelspace()

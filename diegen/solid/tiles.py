@@ -46,39 +46,44 @@ def _inside(shape: Any, pts: list[tuple[float, float, float]]) -> list[bool]:
     return out
 
 
-def _dowel_spots(shape: Any, x: float, z: float, d: float, depth: float, wall: float,
-                 y0: float, y1: float) -> list[float]:
+def _hits(shape: Any, origin: tuple[float, float, float], direction: tuple[float, float, float]) -> list[float]:
+    """Sorted parameters (mm from ``origin``) where the line meets the shape's faces."""
+    from OCP.gp import gp_Dir, gp_Lin, gp_Pnt
+    from OCP.IntCurvesFace import IntCurvesFace_ShapeIntersector
+
+    inter = IntCurvesFace_ShapeIntersector()
+    inter.Load(shape.wrapped, 1e-7)
+    inter.Perform(gp_Lin(gp_Pnt(*origin), gp_Dir(*direction)), -1e6, 1e6)
+    return sorted(inter.WParameter(i) for i in range(1, inter.NbPnt() + 1))
+
+
+def _dowel_spots(shape: Any, x: float, z: float, d: float, depth: float, wall: float) -> list[float]:
     """Y positions for dowels across the joint x, at height z, each with ``wall`` of material round it."""
-    ys = np.arange(y0, y1, 0.25)
-    inside = _inside(shape, [(x, float(y), z) for y in ys])
-    # longest run of inside samples
-    best: tuple[float, float] | None = None
-    start = None
-    for y, ok in zip(list(ys) + [ys[-1] + 1.0], inside + [False]):
-        if ok and start is None:
-            start = y
-        elif not ok and start is not None:
-            if best is None or y - start > best[1] - best[0]:
-                best = (float(start), float(y) - 0.25)
-            start = None
-    if best is None:
+    hits = _hits(shape, (x, 0.0, z), (0.0, 1.0, 0.0))
+    spans = [(hits[i], hits[i + 1]) for i in range(0, len(hits) - 1, 2)]
+    if not spans:
         return []
-    lo, hi = best[0] + d / 2 + wall, best[1] - d / 2 - wall
+    lo, hi = max(spans, key=lambda s: s[1] - s[0])
+    lo, hi = lo + d / 2 + wall, hi - d / 2 - wall
     if hi < lo:
         return []
     wanted = [0.5 * (lo + hi)] if hi - lo < 3 * d else [lo + 0.25 * (hi - lo), lo + 0.75 * (hi - lo)]
+    reach = d / 2 + wall
 
     def clear(y: float) -> bool:
-        ring = [(xx, y + (d / 2 + wall) * math.cos(a), z + (d / 2 + wall) * math.sin(a))
-                for xx in np.linspace(x - depth - wall, x + depth + wall, 7)
-                for a in np.linspace(0, 2 * math.pi, 16, endpoint=False)]
-        return all(_inside(shape, ring))
+        ring = [(y + reach * math.cos(a), z + reach * math.sin(a)) for a in np.linspace(0, 2 * math.pi, 16, endpoint=False)]
+        if not all(_inside(shape, [(x, yy, zz) for yy, zz in ring])):
+            return False
+        for yy, zz in ring:  # no face (bore, pin, wall) within the dowel's length
+            if any(abs(t) < depth + wall for t in _hits(shape, (x, yy, zz), (1.0, 0.0, 0.0))):
+                return False
+        return True
 
-    spots = []
+    spots: list[float] = []
     for y in wanted:
-        for shift in [0.0] + [s * k for k in range(1, 40) for s in (1.0, -1.0)]:
-            yy = y + shift * 0.5
-            if lo <= yy <= hi and clear(yy) and all(abs(yy - o) >= d + wall for o in spots):
+        for k in range(80):
+            yy = y + (0.5 * ((k + 1) // 2)) * (1 if k % 2 else -1)
+            if lo <= yy <= hi and all(abs(yy - o) >= d + wall for o in spots) and clear(yy):
                 spots.append(yy)
                 break
     return spots
@@ -126,7 +131,7 @@ def tile_for_bed(shape_or_die: Any, bed_xy_mm: tuple[float, float], dowel_d_mm: 
     z = bb.zmin + 0.5 * bb.zlen
     dowels = []
     for x in cuts:
-        spots = _dowel_spots(shape, x, z, dowel_d_mm, dowel_depth_mm, min_wall_mm, bb.ymin, bb.ymax)
+        spots = _dowel_spots(shape, x, z, dowel_d_mm, dowel_depth_mm, min_wall_mm)
         if not spots:
             raise SolidError(
                 f"no room for a {dowel_d_mm:g} mm alignment dowel across the tile joint at x = {x:.1f} mm: "

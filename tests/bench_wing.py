@@ -1,0 +1,73 @@
+"""Benchmark of whole-wing builds (prints numbers; not a test).
+
+    .venv/bin/python tests/bench_wing.py [SPEC]
+
+Prints: the cold full build time of the wing with --jobs 1 and --jobs 2 and their
+ratio, the no-change rebuild time, the check-only time, and the ratio of the
+per-piece build time to the solid-kernel floor (a bare extrude of the same
+outline + top fillet + STEP and STL export, measured in this run).
+"""
+
+from __future__ import annotations
+
+import statistics
+import subprocess
+import sys
+import tempfile
+import time
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parents[1]
+DIEGEN = [sys.executable, "-m", "diegen.cli"]
+
+
+def timed(command: list[str]) -> float:
+    start = time.perf_counter()
+    subprocess.run(command, check=True, capture_output=True)
+    return time.perf_counter() - start
+
+
+def floor_seconds(spec_path: Path, samples: int = 3) -> float:
+    """Median time of the kernel floor for the spec's first piece: extrude + top fillet + STEP + STL."""
+    import cadquery as cq
+
+    from diegen import api
+
+    analysis = api.analyse(api.load(spec_path))
+    rib = analysis.ribs[0] if hasattr(analysis, "ribs") else analysis
+    piece = rib.pieces[0]
+    outline = list(piece.piece.outline)
+    times = []
+    with tempfile.TemporaryDirectory() as tmp:
+        for _ in range(samples):
+            start = time.perf_counter()
+            body = cq.Workplane("XY").polyline(outline).close().extrude(-piece.die_height_mm)
+            body = body.faces(">Z").edges().fillet(piece.springback.die_radius_mm)
+            cq.exporters.export(body, f"{tmp}/floor.step")
+            cq.exporters.export(body, f"{tmp}/floor.stl", tolerance=0.05, angularTolerance=0.26)
+            times.append(time.perf_counter() - start)
+    return statistics.median(times)
+
+
+def main() -> None:
+    spec = Path(sys.argv[1]) if len(sys.argv) > 1 else ROOT / "specs" / "demo-wing.yaml"
+    from diegen import api
+
+    pieces = sum(len(r.pieces) for r in api.analyse(api.load(spec)).ribs)
+    with tempfile.TemporaryDirectory() as tmp:
+        one = timed(DIEGEN + ["build", str(spec), "-o", f"{tmp}/j1", "-j", "1", "-q"])
+        two = timed(DIEGEN + ["build", str(spec), "-o", f"{tmp}/j2", "-j", "2", "-q"])
+        again = statistics.median(timed(DIEGEN + ["build", str(spec), "-o", f"{tmp}/j2", "-q"]) for _ in range(3))
+    check = statistics.median(timed(DIEGEN + ["check", str(spec)]) for _ in range(3))
+    floor = floor_seconds(spec)
+    per_piece = one / pieces
+    print(f"spec: {spec.name}, {pieces} pieces")
+    print(f"cold full build --jobs 1: {one:8.1f} s  ({per_piece:.2f} s per piece)")
+    print(f"cold full build --jobs 2: {two:8.1f} s  (speed-up {one / two:.2f}x)")
+    print(f"no-change rebuild:        {again:8.2f} s  (target < 2 s)")
+    print(f"check only (whole wing):  {check:8.2f} s  (target < 1 s; includes interpreter start-up)")
+    print(f"kernel floor per piece:   {floor:8.2f} s  → per-piece build / floor = {per_piece / floor:.2f}x")
+
+
+if __name__ == "__main__":
+    main()
