@@ -55,6 +55,9 @@ _QUANTITY = re.compile(
 )
 
 
+MAX_QUANTITY_CHARS = 64  # a quantity is short; longer strings are refused before matching
+
+
 class UnitError(ValueError):
     """A quantity that cannot be read; the message says what was expected."""
 
@@ -83,7 +86,10 @@ def _number(text: str) -> float:
         return float(text)
     if int(fraction["den"]) == 0:
         raise UnitError(f"fraction {text.strip()!r} divides by zero")
-    return float(int(fraction["whole"] or 0) + Fraction(int(fraction["num"]), int(fraction["den"])))
+    try:
+        return float(int(fraction["whole"] or 0) + Fraction(int(fraction["num"]), int(fraction["den"])))
+    except OverflowError:
+        raise UnitError(f"fraction {text.strip()!r} is too large") from None
 
 
 def _parse(value: object, table: dict[str, float], default_unit: str | None, what: str, example: str) -> float:
@@ -92,8 +98,13 @@ def _parse(value: object, table: dict[str, float], default_unit: str | None, wha
     if isinstance(value, (int, float)):
         if default_unit is None:
             raise UnitError(f"expected a {what} with a unit such as {example}, found a bare number {value}")
-        number, unit = float(value), default_unit
+        try:
+            number, unit = float(value), default_unit
+        except OverflowError:
+            raise UnitError(f"expected a finite {what}, found a {len(str(value))}-digit number") from None
     elif isinstance(value, str):
+        if len(value) > MAX_QUANTITY_CHARS:
+            raise UnitError(f"expected a {what} such as {example}, found a {len(value)}-character string")
         match = _QUANTITY.match(value)
         if not match:
             raise UnitError(f"expected a {what} such as {example}, found {value!r}")
@@ -101,6 +112,9 @@ def _parse(value: object, table: dict[str, float], default_unit: str | None, wha
         unit = (match["unit"] or "").strip().lower() or default_unit
         if unit is None:
             raise UnitError(f"expected a {what} with a unit such as {example}, found {value!r}")
+    elif isinstance(value, (dict, list)):
+        kind = "a mapping" if isinstance(value, dict) else "a list"
+        raise UnitError(f"expected a {what} such as {example}, found {kind}")
     else:
         raise UnitError(f"expected a {what} such as {example}, found {type(value).__name__} {value!r}")
     if unit not in table:

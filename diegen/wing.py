@@ -6,9 +6,11 @@ line at ``sweep_line`` × chord; the root leading edge is at x = 0.  Spar lines
 are straight in plan between their root and tip positions, so their chord
 fraction varies between stations when they are not on a constant-fraction line.
 
-``normal-to-spar`` ribs stand square to the first spar: on a swept spar the rib
-cuts the section obliquely, which stretches it along the rib by 1/cos(φ)
-(φ = the spar's sweep) while the depth stays the same.
+``normal-to-spar`` ribs stand square to the first spar: on a spar swept by φ the
+rib crosses the wing between leading and trailing edge over c·cos(φ) (exact when
+both edges are parallel to the spar, an approximation on a tapered wing) while
+the depth stays the same, so the section is shortened along the rib by cos(φ);
+the rib crosses the webs square, so web and cap widths are not changed.
 """
 
 from __future__ import annotations
@@ -81,13 +83,13 @@ def rib_spec(spec: WingSpec, station: RibStation) -> RibSpec:
     for override in spec.overrides:
         if station.number in override.ribs:
             shared = replace(shared, **override.changes)
-    stretch = 1.0 / math.cos(math.radians(station.oblique_deg))
+    stretch = math.cos(math.radians(station.oblique_deg))  # rib length / streamwise chord
     spars = []
     for spar, fraction in zip(spec.spars, station.spar_fractions):
         if not 0.0 < fraction < 1.0:
             raise GeometryError(f"{spec.file}: spar line leaves the chord at rib {station.number} "
                                 f"(chord fraction {fraction:.3f})")
-        spars.append(Spar(fraction, spar.web_mm * stretch, spar.cap_thickness_mm, spar.cap_width_mm * stretch))
+        spars.append(Spar(fraction, spar.web_mm, spar.cap_thickness_mm, spar.cap_width_mm))
     return RibSpec(id=f"{spec.id}-R{station.number:02d}", units=spec.units, airfoil=spec.root_airfoil,
                    chord_mm=station.chord_mm * stretch, spars=tuple(spars), shared=shared, file=spec.file,
                    title=f"rib {station.number} at {station.y_mm:.0f} mm from the root")
@@ -102,5 +104,5 @@ def section_at(spec: WingSpec, station: RibStation) -> np.ndarray:
     fraction = station.y_mm / spec.span_mm
     section = blend(raw_section(spec.root_airfoil), raw_section(spec.tip_airfoil), fraction, n)
     if station.oblique_deg:
-        section[:, 1] *= math.cos(math.radians(station.oblique_deg))  # depth kept while the chord grows by 1/cos
+        section[:, 1] /= math.cos(math.radians(station.oblique_deg))  # depth kept while the chord shrinks by cos
     return section

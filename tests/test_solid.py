@@ -355,7 +355,9 @@ def test_flute_depth_tapers_down_the_wall(bare_input):
         wall = depth * tan_a
         full = flute.depth_mm * min(depth / FLUTE_LENGTH, 1.0)
         assert along[np.argmin(np.abs(across))] == pytest.approx(wall + full, abs=OUTLINE_TOL), depth
-        groove = along > wall + 0.05
+        wall_ring = Polygon(np.asarray([q for pc in model.offset(wall, spacing_mm=0.05) for q in pc.points]))
+        groove = np.array([wall_ring.contains(Point(q[:2])) and wall_ring.exterior.distance(Point(q[:2])) > 0.05
+                           for q in near])
         cu, cv, radius = fit_circle(along[groove], across[groove])
         assert radius == pytest.approx(r, abs=OUTLINE_TOL)
         assert cu == pytest.approx(wall + full - r, abs=OUTLINE_TOL)
@@ -473,3 +475,23 @@ def test_laminate_layers(bare_input, outline):
         cut = outline_polygon(layer.outline)
         ref = base.buffer(tan_a * layer.z_bottom_mm, join_style="mitre", mitre_limit=10.0)
         assert cut.symmetric_difference(ref).area / cut.length < OUTLINE_TOL
+
+
+def test_single_closed_curve_outline(bare_input):
+    """A whole closed contour (one periodic curve run): an ellipse 200 × 80 mm, area check by πab."""
+    from diegen.solid import build_die
+
+    t = np.linspace(0, 2 * np.pi, 241)
+    pts = np.column_stack([100 * np.cos(t), 40 * np.sin(t)])
+    pts[-1] = pts[0]
+    die = build_die(replace(bare_input, outline=(OutlineRun("curve", tuple(map(tuple, pts.tolist()))),)))
+    # area of the ellipse's inward offset by c: πab − c·P + πc² (Steiner's formula; valid as c is below the
+    # smallest radius of curvature b²/a = 16 mm); P by numerical integration of the arc length
+    tt = np.linspace(0, 2 * np.pi, 200001)
+    perimeter = float(np.trapezoid(np.hypot(100 * np.sin(tt), 40 * np.cos(tt)), tt))
+
+    def inner_area(c: float) -> float:
+        return math.pi * 100 * 40 - c * perimeter + math.pi * c**2
+
+    assert planar_face_at(die, 0.0).Area() == pytest.approx(inner_area(top_setback_mm(R, UNDERCUT)), rel=2e-5)
+    assert planar_face_at(die, -H).Area() == pytest.approx(inner_area(H * math.tan(math.radians(UNDERCUT))), rel=2e-5)

@@ -25,6 +25,7 @@ from diegen.errors import GeometryError
 from diegen.geometry.types import Joggle, Point, Points, Run
 
 JOGGLE_SAMPLE_MM = 0.5  # point spacing along a joggle ramp and zone
+MIN_POINT_GAP_MM = 0.2  # closer outline points are merged
 
 
 @dataclass(frozen=True)
@@ -120,7 +121,21 @@ def _surface_between(surface: np.ndarray, x0: float, x1: float, joggles: Sequenc
         points = _monotone(_displace(points, _inset(x, joggles), upper))
     inside = points[(points[:, 0] > x0) & (points[:, 0] < x1)]
     ends = [[x, np.interp(x, points[:, 0], points[:, 1])] for x in (x0, x1)]
-    return np.vstack([ends[0], inside, ends[1]])
+    return _thin(np.vstack([ends[0], inside, ends[1]]), MIN_POINT_GAP_MM)
+
+
+def _thin(points: np.ndarray, gap: float) -> np.ndarray:
+    """Drop interior points closer than ``gap`` to the last kept one (or to the end point).
+
+    Near-coincident points (left where surface samples and joggle samples meet)
+    would read as tight kinks to anything that measures curvature.
+    """
+    keep = [0]
+    for i in range(1, len(points) - 1):
+        if np.hypot(*(points[i] - points[keep[-1]])) >= gap and np.hypot(*(points[-1] - points[i])) >= gap:
+            keep.append(i)
+    keep.append(len(points) - 1)
+    return points[keep]
 
 
 def _displace(points: np.ndarray, inset: np.ndarray, upper: bool) -> np.ndarray:

@@ -1,9 +1,10 @@
 """STEP and STL output of die solids, atomic and validated before the rename.
 
 Both writers produce the file under a temporary name beside the target (see
-:func:`diegen.fileio.atomic_path`), check it — the STEP file is read back and
-must hold one valid closed solid of the same volume; the STL must be
+:func:`diegen.fileio.atomic_path`), check the file — the STEP file is read back
+and must hold one valid closed solid of the same volume; the STL must be
 watertight and consistently wound — and only then rename it over the target.
+The in-memory solid is not re-checked (``build_die`` has checked it already).
 An invalid file is never left at the target path.  Lengths in mm.
 
 STL resolution: ``tolerance_mm`` is the largest distance between the true
@@ -23,7 +24,7 @@ from typing import Any
 from diegen.errors import SolidError
 from diegen.fileio import atomic_path
 from diegen.solid.tiles import DieTile, tile_for_bed
-from diegen.solid.validate import check_solid, check_step_file, stl_problems, volume_mm3
+from diegen.solid.validate import check_step_file, quick_volume_mm3, stl_problems
 
 STL_TOLERANCE_MM = 0.05
 STL_ANGULAR_TOLERANCE_DEG = 15.0
@@ -35,13 +36,12 @@ def write_step(shape: Any, path: str | os.PathLike[str]) -> None:
     from OCP.IFSelect import IFSelect_RetDone
 
     shape = shape if isinstance(shape, cq.Shape) else cq.Shape.cast(shape)
-    check_solid(shape, f"solid for {os.fspath(path)!r}")
-    expected = volume_mm3(shape)
+    expected = quick_volume_mm3(shape)
     with atomic_path(path) as tmp:
         status = shape.exportStep(str(tmp), unit="MM")
         if status != IFSelect_RetDone:
             raise SolidError(f"the kernel could not write the STEP file {os.fspath(path)!r}")
-        check_step_file(tmp, expected_volume_mm3=expected, rel_tol=1e-5)
+        check_step_file(tmp, expected_volume_mm3=expected, rel_tol=1e-6)
 
 
 def write_stl(shape: Any, path: str | os.PathLike[str], tolerance_mm: float = STL_TOLERANCE_MM,
@@ -56,7 +56,8 @@ def write_stl(shape: Any, path: str | os.PathLike[str], tolerance_mm: float = ST
             "and an angle between 0 and 90°"
         )
     shape = shape if isinstance(shape, cq.Shape) else cq.Shape.cast(shape)
-    check_solid(shape, f"solid for {os.fspath(path)!r}")
+    if len(shape.Solids()) != 1:
+        raise SolidError(f"STL for {os.fspath(path)!r}: the shape holds {len(shape.Solids())} solids, not one")
     BRepTools.Clean_s(shape.wrapped)  # drop any earlier mesh so the tolerances asked for are the ones used
     with atomic_path(path) as tmp:
         ok = shape.exportStl(str(tmp), tolerance=tolerance_mm, angularTolerance=math.radians(angular_tolerance_deg),

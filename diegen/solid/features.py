@@ -282,8 +282,8 @@ def _arrow(cx: float, cy: float, length: float, width: float, z0: float, height:
     return cq.Solid.extrudeLinear(cq.Face.makeFromWires(wire), cq.Vector(0, 0, -height))
 
 
-def cut_features(body: "cq.Shape", die: DieInput, model: OutlineModel, settings: BuildSettings) -> "cq.Shape":
-    """Cut pins, bores (rounded at the top), flutes and the engraving into ``body``."""
+def cut_features(body: "cq.Solid", die: DieInput, model: OutlineModel, settings: BuildSettings) -> "cq.Solid":
+    """Cut pins, bores (rounded at the top), flutes and the engraving into the checked ``body``; check the result."""
     check_placement(die, model, settings)
     tools: list[tuple[str, Any]] = []
     tools += [(f"pin hole at ({p.x:g}, {p.y:g}) mm", _pin_tool(die, p)) for p in die.pins]
@@ -292,7 +292,17 @@ def cut_features(body: "cq.Shape", die: DieInput, model: OutlineModel, settings:
     shape = _cut(body, tools, die)
     shape = _round_bores(shape, die)
     shape = _single_solid(shape, die)
-    return _engrave(shape, _engraving_tools(die, model, settings), die)
+    engraving = _engraving_tools(die, model, settings)
+    if not engraving:
+        return shape  # every step above has checked its result
+    shape = _engrave(shape, engraving, die)
+    problems = solid_problems(shape)
+    if problems:
+        raise SolidError(
+            f"die {die.part_id}: engraving the bottom face gives an invalid solid ({'; '.join(problems)}); "
+            "shorten the engraving or leave it out"
+        )
+    return shape
 
 
 def _engrave(body: "cq.Solid", tools: list[tuple[str, Any]], die: DieInput) -> "cq.Solid":

@@ -132,8 +132,10 @@ class OffsetPiece:
 class OutlineModel:
     """The die outline as segments, with exact inward offsets.
 
-    ``max_inset_mm`` is the largest inset any section will use (mm); it sets the
-    convex-radius check and the sampling density.
+    ``max_inset_mm`` is the largest inset any section will use (mm); convex
+    curves must be rounder than it.  ``sample_tol_mm`` is the allowed deviation
+    of a section's interpolating spline from the exact offset (mm) and
+    ``max_spacing_mm`` the longest gap between samples.
     """
 
     def __init__(self, runs: tuple[OutlineRun, ...], cutter_radius_mm: float, max_inset_mm: float,
@@ -256,11 +258,10 @@ class OutlineModel:
         return float(sum(self._arc_length(seg) for seg in self.segments))
 
     @staticmethod
-    def _arc_length(seg: _Segment, upto: float | None = None) -> float:
-        end = seg.length if upto is None else upto
+    def _arc_length(seg: _Segment) -> float:
         if isinstance(seg, _LineSegment):
-            return end
-        s = np.linspace(0.0, end, max(8, int(end / 0.1) + 1))
+            return seg.length
+        s = np.linspace(0.0, seg.length, max(8, int(seg.length / 0.1) + 1))
         return float(np.sum(np.linalg.norm(np.diff(seg.point(s, 0.0), axis=0), axis=1)))
 
     def locate(self, s_mm: float) -> tuple[Array, Array]:

@@ -27,6 +27,19 @@ def volume_mm3(shape: Any) -> float:
     return float(props.Mass())
 
 
+def quick_volume_mm3(shape: Any) -> float:
+    """Volume by OCCT's default Gauss rule (mm³): fast, repeatable, but up to a few per cent off on lofts.
+
+    Good for signs and for comparing a shape with its own STEP round trip, not as a measurement.
+    """
+    from OCP.BRepGProp import BRepGProp
+    from OCP.GProp import GProp_GProps
+
+    props = GProp_GProps()
+    BRepGProp.VolumeProperties_s(_wrapped(shape), props)
+    return float(props.Mass())
+
+
 def _wrapped(shape: Any) -> Any:
     return getattr(shape, "wrapped", shape)
 
@@ -57,7 +70,7 @@ def solid_problems(shape: Any) -> list[str]:
             problems.append("a shell is open (not watertight)")
             break
         exp.Next()
-    if not problems and volume_mm3(raw) <= 0.0:
+    if not problems and quick_volume_mm3(raw) <= 0.0:
         problems.append("its volume is not positive")
     return problems
 
@@ -83,12 +96,16 @@ def read_step(path: str | os.PathLike[str]) -> Any:
 
 
 def check_step_file(path: str | os.PathLike[str], expected_volume_mm3: float | None = None,
-                    rel_tol: float = 1e-4) -> None:
-    """Re-read a STEP file and check it holds one valid closed solid (of the expected volume)."""
+                    rel_tol: float = 1e-6) -> None:
+    """Re-read a STEP file and check it holds one valid closed solid.
+
+    ``expected_volume_mm3``, if given, is compared with the file's
+    :func:`quick_volume_mm3` (so pass the original's quick volume).
+    """
     shape = read_step(path)
     check_solid(shape, f"STEP file {os.fspath(path)!r} read back")
     if expected_volume_mm3 is not None:
-        vol = volume_mm3(shape)
+        vol = quick_volume_mm3(shape)
         if abs(vol - expected_volume_mm3) > rel_tol * abs(expected_volume_mm3):
             raise SolidError(
                 f"STEP file {os.fspath(path)!r} read back with volume {vol:.1f} mm³, "

@@ -31,7 +31,10 @@ def describe(value: Any) -> str:
         return "nothing (null)"
     if isinstance(value, bool):
         return f"a boolean ({str(value).lower()})"
-    return f"{type(value).__name__} {value!r}"
+    shown = repr(value)
+    if len(shown) > 60:
+        shown = shown[:57] + "..."
+    return f"{type(value).__name__} {shown}"
 
 
 def suggest(word: str, choices: Iterable[str]) -> str:
@@ -87,7 +90,7 @@ class Reader:
         if isinstance(value, bool) or not isinstance(value, (int, float)):
             self.problem(node, path, f"expected a number, found {describe(node)}")
             return None
-        return self._bounded(node, path, self._finite(node, path, float(value)), low, high, low_open, high_open, "")
+        return self._bounded(node, path, self._finite(node, path, _as_float(value)), low, high, low_open, high_open, "")
 
     def _bounded(self, node: YNode, path: str, value: float | None, low: float | None, high: float | None,
                  low_open: bool, high_open: bool, unit: str) -> float | None:
@@ -133,7 +136,7 @@ class Reader:
         if isinstance(node.value, bool) or not isinstance(node.value, int):
             self.problem(node, path, f"expected a whole number, found {describe(node)}")
             return None
-        value = self._bounded(node, path, float(node.value), low, high, False, False, "")
+        value = self._bounded(node, path, self._finite(node, path, _as_float(node.value)), low, high, False, False, "")
         return None if value is None else int(value)
 
     def boolean(self, node: YNode | None, path: str) -> bool | None:
@@ -191,6 +194,14 @@ class Reader:
             return None
         a, b = (self.length(item, f"{path}[{i}]") for i, item in enumerate(items))
         return None if a is None or b is None else (a, b)
+
+
+def _as_float(value: int | float) -> float:
+    """``float(value)``, with an integer too large for a float read as infinite (then refused as not finite)."""
+    try:
+        return float(value)
+    except OverflowError:
+        return math.inf if value > 0 else -math.inf
 
 
 def join(path: str, key: str | int) -> str:

@@ -40,7 +40,8 @@ from diegen.spec.yamltree import YNode
 
 SPEC_VERSION = 1
 ID_PATTERN = re.compile(r"^[A-Za-z0-9][A-Za-z0-9_.-]{0,63}$")
-NACA_PATTERN = re.compile(r"^\s*(?:naca)?\s*-?\s*(\d{4,5})\s*$", re.IGNORECASE)
+# Matched against the stripped text; no two neighbouring parts can take the same characters (no slow backtracking).
+NACA_PATTERN = re.compile(r"^(?:naca\s*)?(?:-\s*)?(\d{4,5})$", re.IGNORECASE)
 
 HEADER_KEYS = ("diegen", "kind", "id", "units", "title")
 SHARED_KEYS = ("skin_thickness", "sheet", "flange", "pieces", "lightening_holes", "hole_rules", "pins",
@@ -95,21 +96,35 @@ def read_airfoil(r: Reader, node: YNode | None, path: str, spec_dir: Path) -> Ai
     base = AirfoilSource(closed_te=_or(r.boolean(fields.get("closed_te"), join(path, "closed_te")), True),
                          points=_or(r.integer(fields.get("points"), join(path, "points"), 41, 4001), 241))
     if has_naca:
-        return _naca(r, fields["naca"], join(path, "naca"), str(fields["naca"].value), base)
+        naca_node = fields["naca"]
+        if isinstance(naca_node.value, bool) or not isinstance(naca_node.value, (str, int)):
+            r.problem(naca_node, join(path, "naca"), f"expected 4 or 5 digits such as '2412', found {describe(naca_node)}")
+            return None
+        if isinstance(naca_node.value, int) and not 1000 <= naca_node.value <= 99999:
+            r.problem(naca_node, join(path, "naca"), f"expected 4 or 5 digits such as '2412', found {describe(naca_node)}: "
+                      "write the digits in quotes ('0012'; YAML reads a bare 0012 as the octal number 10)")
+            return None
+        return _naca(r, naca_node, join(path, "naca"), str(naca_node.value), base)
     file_text = r.text(fields["file"], join(path, "file"))
     if file_text is None:
         return None
-    file_path = (spec_dir / file_text).resolve()
-    if not file_path.is_file():
+    try:
+        file_path = (spec_dir / file_text).resolve()
+        found = file_path.is_file()
+    except (OSError, ValueError) as exc:  # a name too long for the file system, a NUL character
+        r.problem(fields["file"], join(path, "file"), f"not a usable file name ({getattr(exc, 'strerror', None) or exc})")
+        return None
+    if not found:
         r.problem(fields["file"], join(path, "file"), f"airfoil file not found: {file_path}")
         return None
     return replace(base, file=str(file_path))
 
 
 def _naca(r: Reader, node: YNode, path: str, text: str, base: AirfoilSource) -> AirfoilSource | None:
-    match = NACA_PATTERN.match(text)
+    match = NACA_PATTERN.match(text.strip())
     if not match:
-        r.problem(node, path, f"expected 'naca' and 4 or 5 digits (e.g. 'naca 2412') or {{file: path}}, found {text!r}")
+        shown = text if len(text) <= 40 else text[:37] + "..."
+        r.problem(node, path, f"expected 'naca' and 4 or 5 digits (e.g. 'naca 2412') or {{file: path}}, found {shown!r}")
         return None
     return replace(base, naca=match[1])
 
@@ -189,10 +204,7 @@ def read_pieces(r: Reader, node: YNode | None, path: str) -> tuple[str, ...] | N
         return None
     names = []
     for i, item in enumerate(items):
-        if item.value == "centre":
-            names.append("center")
-            continue
-        name = r.choice(item, join(path, i), PIECE_NAMES)
+        name = "center" if item.value == "centre" else r.choice(item, join(path, i), PIECE_NAMES)
         if name in names:
             r.problem(item, join(path, i), f"piece {name!r} listed twice")
         elif name:
@@ -416,8 +428,8 @@ def read_overrides(r: Reader, node: YNode | None, shared: Shared) -> tuple[RibOv
     for i, item in enumerate(r.sequence(node, "overrides", 0, 200) or ()):
         path = join("overrides", i)
         fields = r.mapping(item, path, ("ribs",) + SHARED_KEYS, ("ribs",))
-        if fields is None or shared.sheet is None:
-            continue
+        if fields is None or any(getattr(shared, name) is None for name in Shared.__dataclass_fields__):
+            continue  # the wing's own sections have problems (already reported): nothing to override
         ribs_node = fields.get("ribs")
         rib_items = [ribs_node] if ribs_node is not None and not ribs_node.is_list else (r.sequence(ribs_node, join(path, "ribs"), 1, 200) or [])
         ribs = [r.integer(n, join(path, "ribs"), 1, 200) for n in rib_items]

@@ -1,0 +1,401 @@
+"""The rib's 2D geometry: mold-line offsets, pieces at the spars, joggles, holes and pins.
+
+Every check measures diegen's output with shapely / numpy directly and compares
+it with an expectation written here: a published formula (source named beside
+it), plane geometry derived in the comment, or the spec's own numbers.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+import re
+import subprocess
+import sys
+from dataclasses import replace
+
+import numpy as np
+import pytest
+import shapely
+from shapely.geometry import LinearRing, LineString, Polygon
+
+from diegen import api
+from diegen.errors import GeometryError
+from diegen.geometry.pieces import ramp_length
+from diegen.geometry.rib import min_tail_depth, rib_geometry
+from diegen.geometry.types import PieceGeometry, RibGeometry
+from diegen.spec.model import AirfoilSource, Holes, HoleSpec, RibSpec
+
+from testing import (DEMO_RIB, DEMO_WING, OUTLINE_TOL_MM, ROOT, as_array, assert_valid_ccw_outline, distances_to, point,
+                     vertical_chord)
+
+
+@pytest.fixture(scope="module")
+def spec() -> RibSpec:
+    loaded = api.load(DEMO_RIB)
+    assert isinstance(loaded, RibSpec)
+    return loaded
+
+
+@pytest.fixture(scope="module")
+def rib(spec: RibSpec) -> RibGeometry:
+    return rib_geometry(spec)
+
+
+def with_cutter(spec: RibSpec, diameter_mm: float) -> RibSpec:
+    shared = spec.shared
+    return replace(spec, shared=replace(shared, die=replace(shared.die, cutter_diameter_mm=diameter_mm)))
+
+
+def surfaces(piece: PieceGeometry) -> tuple[np.ndarray, np.ndarray]:
+    """Upper and lower contour points of a piece (joggled), each ordered from forward to aft."""
+    curves = [np.asarray(r.points) for r in piece.runs if r.kind == "curve"]
+    if len(curves) == 1:  # nose: one contour from the aft upper end over the leading edge to the aft lower end
+        c = curves[0]
+        le = int(np.argmin(c[:, 0]))
+        return c[: le + 1][::-1], c[le:]
+    return curves[0][::-1], curves[1]
+
+
+# --------------------------------------------------------------------------- layering
+
+
+def test_check_path_does_not_import_the_solid_kernel() -> None:
+    # Project rule (DESIGN §2): only the die-solid layer may import CadQuery/OCP; `diegen check` runs without it.
+    code = f"""
+import json, sys
+import diegen.geometry, diegen.geometry.rib, diegen.geometry.pieces, diegen.geometry.holes, diegen.geometry.pins
+import diegen.geometry.polygon, diegen.geometry.types, diegen.analysis, diegen.blank, diegen.report, diegen.wing
+import diegen.api, diegen.cli
+from diegen import api
+for path in ({str(DEMO_RIB)!r}, {str(DEMO_WING)!r}):
+    analysis = api.analyse(api.load(path))
+    api.report_json(analysis)
+    api.report_text(analysis)
+print(json.dumps(sorted(m for m in sys.modules if m.split('.')[0] in ('cadquery', 'OCP'))))
+"""
+    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=ROOT, timeout=120)
+    assert done.returncode == 0, done.stderr
+    assert json.loads(done.stdout.strip().splitlines()[-1]) == []
+
+
+# --------------------------------------------------------------------------- mold lines
+
+
+def test_mold_lines_are_true_normal_offsets(spec: RibSpec, rib: RibGeometry) -> None:
+    # DESIGN §4: OML = section offset inward by the skin; die outline = OML offset inward by the rib sheet.
+    # A true normal offset keeps every point at exactly that distance from the section (checked with shapely).
+    section = LinearRing(rib.section)
+    skin, sheet_t = spec.shared.skin_thickness_mm, spec.shared.sheet.thickness_mm
+    oml = distances_to(rib.oml, section)
+    die = distances_to(rib.die_outline, section)
+    assert np.abs(oml - skin).max() < OUTLINE_TOL_MM
+    assert np.abs(die - (skin + sheet_t)).max() < OUTLINE_TOL_MM
+    assert np.abs(distances_to(rib.die_outline, LinearRing(rib.oml)) - sheet_t).max() < OUTLINE_TOL_MM
+    assert_valid_ccw_outline(rib.die_outline, "die outline")
+    # the offset loses area ~ perimeter × distance (Steiner, inward): a sanity bound on the whole loop
+    lost = Polygon(rib.section).area - Polygon(rib.die_outline).area
+    assert lost == pytest.approx(section.length * (skin + sheet_t), rel=0.01)
+
+
+def test_piece_outlines_keep_the_offset_away_from_cuts_and_joggles(spec: RibSpec, rib: RibGeometry) -> None:
+    section = LinearRing(rib.section)
+    offset = spec.shared.skin_thickness_mm + spec.shared.sheet.thickness_mm
+    for piece in rib.pieces:
+        pts = as_array(piece.outline)
+        x0, x1 = piece.x_range_mm
+        keep = (pts[:, 0] > x0 + 1.0) & (pts[:, 0] < x1 - 1.0)
+        for j in piece.joggles:
+            keep &= ~((pts[:, 0] > j.x_start_mm - j.ramp_mm - 0.5) & (pts[:, 0] < j.x_end_mm + j.ramp_mm + 0.5))
+        assert keep.sum() > 20, piece.name
+        gap = distances_to(pts[keep], section) - offset
+        assert np.abs(gap).max() < OUTLINE_TOL_MM, piece.name
+
+
+def _le_radius(section: np.ndarray, slope: float) -> float:
+    """Curvature radius at the nose (mm), from a least-squares fit x' = a + b·y' + y'²/(2r) + c·|y'|³ + d·y'⁴.
+
+    The frame is turned so x' runs along the mean line at the nose (slope ``slope``); only points within half a
+    radius of the nose vertex are used (estimated from the nose point spacing in a first pass).
+    """
+    c, s = math.cos(math.atan(slope)), math.sin(math.atan(slope))
+    q = section @ np.array([[c, -s], [s, c]])
+    q = q - q[np.argmin(q[:, 0])]
+    r = 1.0
+    for _ in range(3):
+        near = (np.abs(q[:, 1]) < 0.5 * r) & (q[:, 0] < 0.3 * r)
+        y, x = q[near, 1], q[near, 0]
+        coef = np.linalg.lstsq(np.column_stack([np.ones_like(y), y, y**2, np.abs(y) ** 3, y**4]), x, rcond=None)[0]
+        r = 1.0 / (2.0 * coef[2])
+    return float(r)
+
+
+@pytest.mark.parametrize(("naca", "rel"), [("0006", 0.005), ("0012", 0.005), ("0015", 0.005), ("2412", 0.01)],
+                         ids=lambda v: str(v))
+def test_leading_edge_radius_matches_report_824(spec: RibSpec, naca: str, rel: float) -> None:
+    # NACA Report 824 (Abbott, von Doenhoff, Stivers 1945): r_t = 1.1019·t²·c for the 4-digit thickness form
+    # (NACA 0012: 1.587 % c, as tabulated).  Measured on the scaled, re-sampled section the rib uses.
+    # Cambered sections: the nose circle's centre lies on the mean-line slope at the nose (Report 824), so the
+    # fit frame is turned by that slope (2m/p for the 4-digit mean line); the mean line's own curvature there
+    # shifts the surface curvature by about 1 %, hence the looser tolerance.
+    m, p, t = int(naca[0]) / 100, int(naca[1]) / 10, int(naca[2:]) / 100
+    rib = rib_geometry(replace(spec, airfoil=AirfoilSource(naca=naca)))
+    expected = 1.1019 * t**2 * spec.chord_mm
+    measured = _le_radius(as_array(rib.section), 2 * m / p if p else 0.0)
+    assert measured == pytest.approx(expected, rel=rel)
+
+
+# --------------------------------------------------------------------------- pieces
+
+
+def test_piece_ends_at_the_spar_webs(spec: RibSpec, rib: RibGeometry) -> None:
+    # DESIGN §4: each cut's end flange sits on the spar web, so the die's end face stands one rib-sheet
+    # thickness off the web face (forward face at at·chord, aft face one web thickness further).
+    t, c = spec.shared.sheet.thickness_mm, spec.chord_mm
+    front, rear = spec.spars[0], spec.spars[-1]
+    pieces = {p.name: p for p in rib.pieces}
+    assert set(pieces) == {"nose", "center", "tail"}
+    assert pieces["nose"].x_range_mm[1] == pytest.approx(front.at * c - t, abs=1e-9)
+    assert pieces["nose"].x_range_mm[0] == pytest.approx(min(x for x, _ in rib.die_outline), abs=1e-9)
+    assert pieces["center"].x_range_mm[0] == pytest.approx(front.at * c + front.web_mm + t, abs=1e-9)
+    assert pieces["center"].x_range_mm[1] == pytest.approx(rear.at * c - t, abs=1e-9)
+    assert pieces["tail"].x_range_mm[0] == pytest.approx(rear.at * c + rear.web_mm + t, abs=1e-9)
+
+
+@pytest.mark.parametrize("min_depth_mm", [None, 50.8], ids=["default", "2in"])
+def test_tail_ends_at_the_minimum_depth(spec: RibSpec, min_depth_mm: float | None) -> None:
+    # Default minimum tail depth: 2 × flange height + 10 mm (the project's rule, common practice, no source).
+    flange = replace(spec.shared.flange, min_tail_depth_mm=min_depth_mm)
+    variant = replace(spec, shared=replace(spec.shared, flange=flange))
+    rib = rib_geometry(variant)
+    expected = min_depth_mm if min_depth_mm is not None else 2 * spec.shared.flange.height_mm + 10.0
+    assert min_tail_depth(variant) == pytest.approx(expected)
+    tail = next(p for p in rib.pieces if p.name == "tail")
+    x_end = tail.x_range_mm[1]
+    die = Polygon(rib.die_outline)
+    assert vertical_chord(die, x_end) == pytest.approx(expected, abs=0.1)
+    assert vertical_chord(die, x_end - 1.0) > expected  # the depth is still above the minimum just forward of it
+    aft_face = tail.runs[-1]
+    assert math.dist(*aft_face.points) == pytest.approx(expected, abs=0.1)
+
+
+def test_end_faces_are_straight_vertical_lines(rib: RibGeometry) -> None:
+    for piece in rib.pieces:
+        lines = [r for r in piece.runs if r.kind == "line"]
+        assert len(lines) == (1 if piece.name == "nose" else 2)
+        ends = {round(x, 9) for x in piece.x_range_mm[1:]} if piece.name == "nose" else \
+            {round(x, 9) for x in piece.x_range_mm}
+        for line in lines:
+            assert len(line.points) == 2  # one straight segment, no intermediate points
+            (xa, ya), (xb, yb) = line.points
+            assert xa == xb  # exactly vertical
+            assert round(xa, 9) in ends
+            assert abs(ya - yb) > 10.0
+        # nothing of the outline lies beyond the end faces
+        xs = as_array(piece.outline)[:, 0]
+        assert xs.max() <= piece.x_range_mm[1] + 1e-9 and xs.min() >= piece.x_range_mm[0] - 1e-9
+
+
+def test_piece_outlines_are_valid_ccw_loops_of_joined_runs(rib: RibGeometry) -> None:
+    for piece in rib.pieces:
+        assert_valid_ccw_outline(piece.outline, piece.part_id)
+        assert_valid_ccw_outline([p for r in piece.plain_runs for p in r.points[:-1]], piece.part_id + " plain")
+        runs = piece.runs
+        for a, b in zip(runs, runs[1:] + runs[:1]):
+            assert a.points[-1] == b.points[0]  # consecutive runs share their end points
+        assert Polygon(piece.outline).within(Polygon(rib.die_outline).buffer(1e-6))
+
+
+def test_tail_aft_end_is_unflanged_and_other_ends_are_flanged(rib: RibGeometry) -> None:
+    for piece in rib.pieces:
+        flags = [(r.kind, r.flanged) for r in piece.runs]
+        if piece.name == "tail":
+            assert flags == [("curve", True), ("line", True), ("curve", True), ("line", False)]
+            assert piece.runs[-1].points[0][0] == pytest.approx(piece.x_range_mm[1])
+        else:
+            assert all(flanged for _, flanged in flags)
+
+
+def test_relief_points_are_the_flanged_end_face_corners(rib: RibGeometry) -> None:
+    # DESIGN §4: corners where a perimeter flange meets an end flange get bend relief; a cut end has none.
+    for piece in rib.pieces:
+        corners = {p for r in piece.runs if r.kind == "line" and r.flanged for p in r.points}
+        assert set(piece.relief_points) == corners
+        assert len(piece.relief_points) == {"nose": 2, "center": 4, "tail": 2}[piece.name]
+        for x, _ in piece.relief_points:
+            assert x in piece.x_range_mm  # exactly on an end face, not near it
+
+
+# --------------------------------------------------------------------------- joggles
+
+
+def _joggle_points(rib: RibGeometry, piece: PieceGeometry, surface: str) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Points of one joggled surface, their normal distance to the plain die outline and their foot x."""
+    upper, lower = surfaces(piece)
+    pts = upper if surface == "upper" else lower
+    plain = LinearRing(rib.die_outline)
+    geoms = shapely.points(pts)
+    dist = np.asarray(shapely.distance(geoms, plain))
+    foot = shapely.get_coordinates(shapely.line_interpolate_point(plain, shapely.line_locate_point(plain, geoms)))
+    return pts, dist, foot[:, 0]
+
+
+@pytest.mark.parametrize("cutter_mm", [6.35, 25.4], ids=["demo-cutter", "25mm-cutter"])
+def test_joggle_depth_and_ramp_profile(spec: RibSpec, cutter_mm: float) -> None:
+    # The joggle recess: the wall steps in by the spar-cap thickness (DESIGN §4; REFERENCE joggle geometry:
+    # a recess of depth d with a run-out ramp).  Measured as the shapely normal distance between the joggled
+    # piece outline and the plain die outline.  Ramp: d·(3u² − 2u³) over L = max(runout·d, √(6·d·r_cutter))
+    # (the project's rule: run-out 4·d is from memory, unverified; the √ term keeps the cubic's tightest
+    # radius L²/(6d) at least the cutter radius — derived: |y''|max = 6d/L² at the ramp ends).
+    variant = with_cutter(spec, cutter_mm)
+    rib = rib_geometry(variant)
+    r_cutter = cutter_mm / 2
+    seen = 0
+    for piece in rib.pieces:
+        assert len(piece.joggles) in (2, 4)
+        for j in piece.joggles:
+            cap = variant.spars[j.spar].cap_thickness_mm
+            assert j.depth_mm == pytest.approx(cap)
+            assert j.ramp_mm == pytest.approx(max(variant.shared.joggle_runout * cap, math.sqrt(6 * cap * r_cutter)))
+            pts, dist, foot_x = _joggle_points(rib, piece, j.surface)
+            full = (foot_x >= j.x_start_mm) & (foot_x <= j.x_end_mm)
+            assert full.sum() >= 20
+            assert np.abs(dist[full] - j.depth_mm).max() < OUTLINE_TOL_MM
+            for edge, sign in ((j.x_start_mm, -1.0), (j.x_end_mm, 1.0)):
+                u = 1.0 - (foot_x - edge) * sign / j.ramp_mm
+                ramp = (u > 0.0) & (u < 1.0)
+                if not ramp.any():  # this end of the zone lies beyond the piece's end face
+                    continue
+                seen += 1
+                assert ramp.sum() >= 8
+                expected = j.depth_mm * (3 * u[ramp] ** 2 - 2 * u[ramp] ** 3)
+                assert np.abs(dist[ramp] - expected).max() < OUTLINE_TOL_MM
+            outside = (foot_x < j.x_start_mm - j.ramp_mm - 0.01) | (foot_x > j.x_end_mm + j.ramp_mm + 0.01)
+            others = [o for o in piece.joggles if o is not j and o.surface == j.surface]
+            for o in others:
+                outside &= (foot_x < o.x_start_mm - o.ramp_mm) | (foot_x > o.x_end_mm + o.ramp_mm)
+            assert np.abs(dist[outside]).max() < 1e-6  # the plain wall elsewhere is untouched
+    assert seen >= 8  # nose fwd ramps (2), centre aft-of-front and fwd-of-rear ramps (4), tail aft ramps (2)
+
+
+def test_ramp_length_rule() -> None:
+    # max(4·d, √(6·d·r)): d = 1.6, r = 3.175 → 6.4 (run-out governs); r = 12.7 → √121.92 = 11.0418 (cutter governs)
+    assert ramp_length(1.6, 4.0, 3.175) == pytest.approx(6.4)
+    assert ramp_length(1.6, 4.0, 12.7) == pytest.approx(math.sqrt(6 * 1.6 * 12.7))
+    assert ramp_length(1.6, 4.0, 12.7) ** 2 / (6 * 1.6) == pytest.approx(12.7)  # tightest radius = cutter radius
+
+
+def _min_concave_radius(points: np.ndarray, window_mm: float) -> float:
+    """Smallest concave plan radius (mm) of a closed CCW loop: turning over ``window_mm`` of arc / that arc."""
+    ring = LinearRing(points)
+    step = window_mm / 8
+    n = int(math.ceil(ring.length / step))
+    s = np.linspace(0.0, ring.length, n, endpoint=False)
+    q = shapely.get_coordinates(shapely.line_interpolate_point(ring, s))
+    e = np.roll(q, -1, axis=0) - q
+    heading = np.arctan2(e[:, 1], e[:, 0])
+    turn = (heading - np.roll(heading, 1) + np.pi) % (2 * np.pi) - np.pi
+    k = 8
+    windowed = np.convolve(np.concatenate([turn[-k:], turn, turn[:k]]), np.ones(k + 1), "valid")[k // 2: k // 2 + n]
+    kappa = windowed / ((ring.length / n) * (k + 1))
+    return math.inf if kappa.min() >= 0 else float(-1.0 / kappa.min())
+
+
+@pytest.mark.parametrize("cutter_mm", [6.35, 25.4], ids=["demo-cutter", "25mm-cutter"])
+def test_concave_radii_are_no_tighter_than_the_cutter(spec: RibSpec, cutter_mm: float) -> None:
+    # DESIGN §4: internal concave corners of the die outline are no tighter than the router cutter radius.
+    # Measured over a 1 mm window (two 0.5 mm joggle samples); 3 % allowance for that sampling: with the
+    # 25.4 mm cutter the ramp's design radius equals the cutter radius exactly.
+    rib = rib_geometry(with_cutter(spec, cutter_mm))
+    for piece in rib.pieces:
+        assert _min_concave_radius(as_array(piece.outline), 1.0) >= 0.97 * cutter_mm / 2, piece.name
+
+
+# --------------------------------------------------------------------------- holes and pins
+
+
+def test_auto_holes_respect_edge_margin_ligament_and_depth(spec: RibSpec, rib: RibGeometry) -> None:
+    # Web usable for holes: die outline inset by the bend radius (the flange's bend line on the web) plus the
+    # edge margin; neighbouring holes a ligament apart (the spec's hole rules; FAA-H-8083-31 ch. 4 asks only that
+    # lightening holes not be too close to the edge, the numbers are common practice, no source).
+    rules = spec.shared.holes.rules
+    bend = spec.shared.flange.bend_radius_mm
+    total = 0
+    for piece in rib.pieces:
+        web = Polygon(piece.outline)
+        assert piece.holes, piece.name
+        for h in piece.holes:
+            total += 1
+            clear = web.exterior.distance(point((h.x, h.y))) - h.d / 2
+            assert web.contains(point((h.x, h.y)))
+            assert clear >= bend + rules.edge_margin_mm - 1e-6, (piece.name, h)
+            assert h.d >= rules.min_diameter_mm
+            # at most 0.65 of the local depth (the project's rule, common practice, no source)
+            assert h.d <= 0.65 * vertical_chord(web, h.x) + 1e-6
+        for a in piece.holes:
+            for b in piece.holes:
+                if a is not b:
+                    assert math.dist((a.x, a.y), (b.x, b.y)) - (a.d + b.d) / 2 >= rules.ligament_mm - 1e-6
+    assert total >= 6
+
+
+def _with_holes(spec: RibSpec, *holes: HoleSpec) -> RibSpec:
+    shared = spec.shared
+    return replace(spec, shared=replace(shared, holes=Holes("list", shared.holes.rules, tuple(holes))))
+
+
+def test_explicit_hole_breaking_the_margin_names_the_shortfall(spec: RibSpec, rib: RibGeometry) -> None:
+    rules = spec.shared.holes.rules
+    bend = spec.shared.flange.bend_radius_mm
+    nose = Polygon(next(p for p in rib.pieces if p.name == "nose").outline)
+    x = 110.0
+    _, lo, _, hi = nose.intersection(LineString([(x, -500), (x, 500)])).bounds
+    y = 0.5 * (lo + hi)  # an explicit hole without y is centred in the local depth
+    room = nose.exterior.distance(point((x, y))) - bend - rules.edge_margin_mm  # clear radius for the hole
+    fits = 2 * room - 1.0
+    placed = rib_geometry(_with_holes(spec, HoleSpec(x_mm=x, d_mm=fits))).pieces[0].holes
+    assert [(h.x, h.d) for h in placed] == [(x, fits)]
+    assert placed[0].y == pytest.approx(y, abs=1e-6)
+    too_big = 2 * room + 1.0  # breaks the margin by 0.50 mm
+    with pytest.raises(GeometryError) as caught:
+        rib_geometry(_with_holes(spec, HoleSpec(x_mm=x, d_mm=too_big)))
+    message = str(caught.value)
+    assert "lightening_holes[0]" in message and "edge margin" in message
+    shortfall = float(re.search(r"by (\d+\.\d+) mm", message).group(1))
+    assert shortfall == pytest.approx(0.5, abs=0.01)
+
+
+def test_explicit_holes_too_close_together_name_the_ligament(spec: RibSpec, rib: RibGeometry) -> None:
+    ligament = spec.shared.holes.rules.ligament_mm
+    a, b = HoleSpec(x_mm=300.0, d_mm=40.0), HoleSpec(x_mm=300.0 + 40.0 + ligament - 2.0, d_mm=40.0)
+    centre = Polygon(next(p for p in rib.pieces if p.name == "center").outline)
+
+    def mid_y(x: float) -> float:  # holes without y are centred in the local depth
+        _, lo, _, hi = centre.intersection(LineString([(x, -500), (x, 500)])).bounds
+        return 0.5 * (lo + hi)
+
+    gap = math.dist((a.x_mm, mid_y(a.x_mm)), (b.x_mm, mid_y(b.x_mm))) - (a.d_mm + b.d_mm) / 2
+    with pytest.raises(GeometryError) as caught:
+        rib_geometry(_with_holes(spec, a, b))
+    message = str(caught.value)
+    assert "lightening_holes[1]" in message and "ligament" in message
+    shortfall = float(re.search(r"short by (\d+\.\d+) mm", message).group(1))
+    assert shortfall == pytest.approx(ligament - gap, abs=0.01)
+    assert 1.9 < shortfall < 2.0  # the centres' small height difference adds a little web
+
+
+def test_pins_clear_of_holes_and_flanges(spec: RibSpec, rib: RibGeometry) -> None:
+    # The blank is pinned through the web: two or more pins per piece (two locate and stop rotation), each clear
+    # of the flange bend line and of every hole by the edge margin (the project's rule, common practice).
+    margin = spec.shared.holes.rules.edge_margin_mm
+    bend = spec.shared.flange.bend_radius_mm
+    for piece in rib.pieces:
+        web = Polygon(piece.outline)
+        assert len(piece.pins) >= 2, piece.name
+        for pin in piece.pins:
+            assert pin.d == pytest.approx(spec.shared.pins.diameter_mm)
+            assert web.exterior.distance(point((pin.x, pin.y))) - pin.d / 2 >= bend + margin - 1e-3
+            for h in piece.holes:
+                assert math.dist((pin.x, pin.y), (h.x, h.y)) - (h.d + pin.d) / 2 >= margin - 1e-3
+        spread = max(p.x for p in piece.pins) - min(p.x for p in piece.pins)
+        assert spread > 0.5 * (piece.x_range_mm[1] - piece.x_range_mm[0])  # far apart along the piece
