@@ -217,6 +217,7 @@ def _cli(*args: str, cwd: Path) -> subprocess.CompletedProcess[str]:
                           timeout=300)
 
 
+@pytest.mark.slow
 def test_new_rib_then_check_passes(tmp_path: Path) -> None:
     made = _cli("new", "rib", "x.yaml", cwd=tmp_path)
     assert made.returncode == 0, made.stderr

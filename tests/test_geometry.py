@@ -26,7 +26,7 @@ from diegen.geometry.rib import min_tail_depth, rib_geometry
 from diegen.geometry.types import PieceGeometry, RibGeometry
 from diegen.spec.model import AirfoilSource, Holes, HoleSpec, RibSpec
 
-from testing import (DEMO_RIB, DEMO_WING, OUTLINE_TOL_MM, ROOT, as_array, assert_valid_ccw_outline, distances_to, point,
+from testing import (DEMO_RIB, OUTLINE_TOL_MM, ROOT, as_array, assert_valid_ccw_outline, distances_to, point,
                      vertical_chord)
 
 
@@ -68,10 +68,9 @@ import diegen.geometry, diegen.geometry.rib, diegen.geometry.pieces, diegen.geom
 import diegen.geometry.polygon, diegen.geometry.types, diegen.analysis, diegen.blank, diegen.report, diegen.wing
 import diegen.api, diegen.cli
 from diegen import api
-for path in ({str(DEMO_RIB)!r}, {str(DEMO_WING)!r}):
-    analysis = api.analyse(api.load(path))
-    api.report_json(analysis)
-    api.report_text(analysis)
+analysis = api.analyse(api.load({str(DEMO_RIB)!r}))
+api.report_json(analysis)
+api.report_text(analysis)
 print(json.dumps(sorted(m for m in sys.modules if m.split('.')[0] in ('cadquery', 'OCP'))))
 """
     done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=ROOT, timeout=120)

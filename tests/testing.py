@@ -40,8 +40,9 @@ def distances_to(points: Sequence[Sequence[float]], target: shapely.Geometry) ->
     return np.asarray(shapely.distance(pts, target), dtype=float)
 
 
-def loop_distance(a: Sequence[Sequence[float]], b: Sequence[Sequence[float]], step_mm: float = 0.1) -> float:
-    """Symmetric Hausdorff distance (mm) between two closed loops, both densified to ``step_mm``."""
+def loop_distance(a: Sequence[Sequence[float]], b: Sequence[Sequence[float]], step_mm: float = 1.0) -> float:
+    """Symmetric Hausdorff distance (mm) between two closed loops: every vertex of each, plus points every
+    ``step_mm`` along its edges, measured to the other loop."""
     ra, rb = LinearRing(as_array(a)), LinearRing(as_array(b))
     da = shapely.segmentize(ra, step_mm)
     db = shapely.segmentize(rb, step_mm)

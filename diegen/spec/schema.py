@@ -378,7 +378,7 @@ def read_stations(r: Reader, node: YNode | None, path: str) -> Stations | None:
     fields = r.mapping(node, path, ("count", "pitch"))
     if fields is None:
         return None
-    if len(fields) != 1:
+    if len(fields) != 1 or not {"count", "pitch"} & fields.keys():
         r.problem(node, path, "expected a list of stations, or exactly one of 'count' or 'pitch'")
         return None
     if "count" in fields:
