@@ -589,7 +589,7 @@ HOSTILE = {
                     "after expanding"),
     "deep flow list": ("kind: rib\nunits: in\nx: " + "[" * 100_000 + "]" * 100_000, "nested deeper"),
     "deep flow map": ("kind: rib\nunits: in\nx: " + "{a: " * 30_000 + "1" + "}" * 30_000, "nested deeper"),
-    "deep block": ("kind: rib\nunits: in\n" + "".join(" " * i + "- \n" for i in range(0, 400, 2)), "nested deeper"),
+    "deep block": ("kind: rib\nunits: in\nx:\n" + "".join(" " * (i + 2) + "-\n" for i in range(0, 400, 2)), "nested deeper"),
     "too many values": (_many_values(MAX_NODES + 10), "spec too large"),
     "many block items": ("kind: rib\nunits: in\nx:\n" + "- 1\n" * 60_000, "spec too large"),
     "over the size limit": ("a: " + "x" * (MAX_FILE_BYTES + 10), "larger than"),

@@ -149,3 +149,14 @@ def test_durometer_advice() -> None:
 def test_bad_input_raises(over: dict[str, object]) -> None:
     with pytest.raises(FormingError):
         _check(**over)
+
+
+def test_die_that_does_not_fit_the_box_is_insufficient():
+    # common practice, no source: a die must sit in the box with clearance to every wall
+    from diegen.forming.press import press_check
+
+    check = press_check(177_929.0, 305.0, 254.0, 454.0, 120.0, 47_000.0, 25.4, [12.7], 0.635, 345.0, 63.5, 55.0,
+                        100.0, 100)
+    assert not check.fits_box
+    assert check.verdict == "insufficient"
+    assert any("does not fit" in w for w in check.warnings)

@@ -196,13 +196,13 @@ def press_check(
     needed = tuple(flange_fold_pressure(leg, thickness_mm, yield_mpa) for leg in legs)
     ok = tuple(i for i, p in enumerate(needed) if p <= pressure)
     bad = tuple(i for i, p in enumerate(needed) if p > pressure)
-    verdict: Verdict = "full" if not bad else ("partial" if ok else "insufficient")
-
     need = 2.0 * wall_clearance_mm
     fits = any(
         a + need <= box_w_mm and b + need <= box_l_mm
         for a, b in ((die_length_mm, die_width_mm), (die_width_mm, die_length_mm))
     )
+    # a die that does not fit the box cannot be pressed in it at all
+    verdict: Verdict = "insufficient" if not fits or not ok else ("full" if not bad else "partial")
     rubber_ok = rubber_thickness_mm >= RUBBER_TO_DIE_HEIGHT * die_height_mm
     crush_ok = contact <= die_compressive_mpa
     life_ok = die_life_parts >= parts_wanted
