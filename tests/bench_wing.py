@@ -18,6 +18,7 @@ import time
 from pathlib import Path
 
 ROOT = Path(__file__).resolve().parents[1]
+sys.path.insert(0, str(Path(__file__).resolve().parent))
 DIEGEN = [sys.executable, "-m", "diegen.cli"]
 
 
@@ -27,26 +28,16 @@ def timed(command: list[str]) -> float:
     return time.perf_counter() - start
 
 
-def floor_seconds(spec_path: Path, samples: int = 3) -> float:
-    """Median time of the kernel floor for the spec's first piece: extrude + top fillet + STEP + STL."""
-    import cadquery as cq
+def floor_seconds(spec_path: Path) -> float:
+    """The kernel floor for the spec's first piece (see bench_die.floor_seconds)."""
+    from bench_die import floor_seconds as floor_of
 
     from diegen import api
 
     analysis = api.analyse(api.load(spec_path))
-    rib = analysis.ribs[0] if hasattr(analysis, "ribs") else analysis
-    piece = rib.pieces[0]
-    outline = list(piece.piece.outline)
-    times = []
+    piece = (analysis.ribs[0] if hasattr(analysis, "ribs") else analysis).pieces[0]
     with tempfile.TemporaryDirectory() as tmp:
-        for _ in range(samples):
-            start = time.perf_counter()
-            body = cq.Workplane("XY").polyline(outline).close().extrude(-piece.die_height_mm)
-            body = body.faces(">Z").edges().fillet(piece.springback.die_radius_mm)
-            cq.exporters.export(body, f"{tmp}/floor.step")
-            cq.exporters.export(body, f"{tmp}/floor.stl", tolerance=0.05, angularTolerance=0.26)
-            times.append(time.perf_counter() - start)
-    return statistics.median(times)
+        return floor_of(list(piece.piece.outline), piece.die_height_mm, piece.springback.die_radius_mm, Path(tmp), 3)
 
 
 def main() -> None:

@@ -370,6 +370,8 @@ def random_rib(rng: random.Random) -> dict[str, Any]:
     n_spars = rng.choice([0, 1, 2, 2, 2, 3, 4])
     ats = sorted(rng.sample([round(0.08 + 0.02 * i, 2) for i in range(40)], n_spars))
     pieces = [p for p in ("nose", "center", "tail") if rng.random() < 0.8] or ["nose"]
+    if rng.random() < 0.9:  # mostly only the pieces the spars can bound
+        pieces = [p for p in pieces if n_spars >= {"nose": 1, "tail": 1, "center": 2}[p]] or ["nose"]
     spec: dict[str, Any] = {
         "diegen": 1, "kind": "rib", "id": f"F{rng.randrange(10**6)}", "units": units_name,
         "airfoil": rng.choice([f"naca {rng.choice(NACA)}", {"naca": rng.choice(NACA), "closed_te": rng.random() < 0.5,
@@ -429,6 +431,67 @@ def random_wing(rng: random.Random, max_stations: int = 4) -> dict[str, Any]:
     return wing
 
 
+# Values at or next to the bounds the schema accepts (mm unless a unit is given; see specs/README.md).
+EDGE_VALUES: dict[tuple, list[Any]] = {
+    ("chord",): ["0.01 mm", "1 mm", "20000 mm", "10 mm"],
+    ("skin_thickness",): ["0.001 mm", "12.7 mm", "5 mm"],
+    ("sheet", "thickness"): ["0.001 mm", "12.7 mm", "6 mm"],
+    ("flange", "height"): ["0.001 mm", "200 mm", "0.5 mm"],
+    ("flange", "bend_radius"): ["0.0001 mm", "100 mm", "30 mm"],
+    ("flange", "min_tail_depth"): ["0.001 mm", "99999 mm", "1 mm"],
+    ("spars", 0, "at"): [1e-9, 0.5, 0.999999, 0.01],
+    ("spars", 0, "web"): ["0.001 mm", "50 mm"],
+    ("spars", 0, "cap_thickness"): [0, "25 mm", "0.001 mm"],
+    ("spars", 0, "cap_width"): [0, "200 mm", "0.001 mm"],
+    ("lightening_holes",): [[{"x": "0.001 mm", "d": "0.001 mm"}], [{"x": "99999 mm", "d": "99999 mm"}],
+                            [{"x": "100 mm", "d": "50 mm", "y": "-99999 mm"}],
+                            [{"x": "100 mm", "d": "20 mm", "flange_height": "99999 mm"}],
+                            [{"x": "100 mm", "d": "20 mm"}, {"x": "100 mm", "d": "20 mm"}]],
+    ("pins",): [[{"x": "0.001 mm"}, {"x": "99999 mm"}], [{"x": "50 mm", "y": "-99999 mm"}, {"x": "60 mm"}],
+                [{"x": "100 mm"}, {"x": "100 mm"}]],
+    ("hole_rules",): [{"edge_margin": 0, "ligament": "0.001 mm", "min_diameter": "0.001 mm"},
+                      {"edge_margin": "99999 mm"}, {"min_diameter": "99999 mm"}, {"flange_height": "99999 mm"}],
+    ("dowel_diameter",): ["0.001 mm", "25.4 mm"],
+    ("joggle_runout",): [1, 20],
+    ("die", "stock_thickness"): ["0.001 mm", "300 mm"],
+    ("die", "cutter_diameter"): ["0.001 mm", "50 mm"],
+    ("die", "print_bed"): [[0.001, 0.001], [1, 99999], [10, 10]],
+    ("die", "stl_tolerance"): ["0.000001 mm", "1 mm"],
+    ("press", "force"): ["0.001 N", "1e8 N", "1 lbf"],
+    ("press", "box"): [["0.001 mm", "0.001 mm"], ["99999 mm", "99999 mm"], ["10 mm", "10 mm"]],
+    ("press", "wall_clearance"): [0, "99999 mm"],
+    ("press", "rubber", "thickness"): ["0.001 mm", "500 mm"],
+    ("press", "rubber", "durometer"): [20, 95],
+    ("airfoil",): ["naca 0001", "naca 9999", "naca 0099", "naca 00001", "naca 99999", "naca 23099", "naca 00100",
+                   {"naca": "2412", "points": 41}, {"naca": "0006", "points": 4001, "closed_te": False}],
+    ("planform", "span"): ["0.001 mm", "100000 mm"],
+    ("planform", "tip_chord"): ["0.001 mm", "20000 mm"],
+    ("planform", "root_chord"): ["0.001 mm"],
+    ("planform", "sweep"): [-60, 60],
+    ("planform", "sweep_line"): [0, 1],
+    ("planform", "stations"): [{"pitch": "0.001 mm"}, {"pitch": "99999 mm"}, {"count": 2}, [0, "0.001 mm"]],
+}
+
+
+def edge_spec(rng: random.Random) -> dict[str, Any]:
+    """A random in-range rib or small wing with one to three values moved to the edge of what validates."""
+    spec = random_rib(rng) if rng.random() < 0.75 else random_wing(rng, max_stations=3)
+    wing = spec["kind"] == "wing"
+    for _ in range(rng.randint(1, 3)):
+        path = rng.choice([p for p in EDGE_VALUES if (p[0] == "planform") == wing or p[0] not in ("planform", "chord")])
+        if wing and path == ("spars", 0, "at"):
+            path = ("spars", 0, rng.choice(["root_at", "tip_at"]))
+        node: Any = spec
+        try:
+            for key in path[:-1]:
+                node = node.setdefault(key, {}) if isinstance(key, str) else node[key]
+            node[path[-1]] = copy.deepcopy(rng.choice(EDGE_VALUES[tuple(k if k not in ("root_at", "tip_at") else "at"
+                                                                         for k in path)]))
+        except (IndexError, KeyError, TypeError):
+            pass
+    return spec
+
+
 # ----------------------------------------------------------------------------- the loops
 
 
@@ -478,13 +541,16 @@ def analyse_outcome(spec: Any) -> str:
     return "ok"
 
 
-def run_random_analyses(ribs: int, wings: int, seed: int) -> tuple[Counter, list[tuple[str, str]]]:
-    """Validate and analyse in-range random specs; return (counts, escapes as (spec text, traceback))."""
+def run_random_analyses(ribs: int, wings: int, seed: int, edges: int = 0) -> tuple[Counter, list[tuple[str, str]]]:
+    """Validate and analyse in-range random specs (and ``edges`` specs at the schema's bounds).
+
+    Returns (counts, escapes as (spec text, traceback)).
+    """
     rng = random.Random(seed)
     counts: Counter = Counter()
     escapes: list[tuple[str, str]] = []
-    for i in range(ribs + wings):
-        text = dump(random_rib(rng) if i < ribs else random_wing(rng))
+    for i in range(ribs + wings + edges):
+        text = dump(random_rib(rng) if i < ribs else random_wing(rng) if i < ribs + wings else edge_spec(rng))
         kind, result = outcome(text)
         if kind != "valid":
             counts[f"spec rejected: {first_problem_kind(result)}"] += 1
@@ -612,7 +678,13 @@ HOSTILE = {
 }
 
 
-@pytest.mark.parametrize("name", list(HOSTILE))
+# Near the size and value limits: each takes about a second (twice, once under tracemalloc).
+SLOW_HOSTILE = {"deep flow list", "too many values", "many block items", "huge plain string", "huge quoted string",
+                "huge title", "huge quantity", "huge naca", "many unknown keys", "many long unknown keys",
+                "long comment lines"}
+
+
+@pytest.mark.parametrize("name", [pytest.param(n, marks=pytest.mark.slow) if n in SLOW_HOSTILE else n for n in HOSTILE])
 def test_hostile_input_refused_quickly(name):
     """Alias bombs, deep nesting and huge inputs: refused (or read) within the safety bounds."""
     text, fragment = HOSTILE[name]

@@ -84,7 +84,7 @@ def _largest_circle(region: shapely.Geometry) -> tuple[ShapelyPoint | None, floa
     for part in getattr(region, "geoms", [region]):
         if not isinstance(part, Polygon) or part.area < 1.0:
             continue
-        line = shapely.maximum_inscribed_circle(part, tolerance=0.1)
+        line = shapely.maximum_inscribed_circle(part, tolerance=0.25)  # diameters are rounded to 1 mm
         centre = ShapelyPoint(line.coords[0])
         radius = line.length
         if radius > best[1]:

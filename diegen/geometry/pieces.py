@@ -125,16 +125,14 @@ def _surface_between(surface: np.ndarray, x0: float, x1: float, joggles: Sequenc
 
 
 def _thin(points: np.ndarray, gap: float) -> np.ndarray:
-    """Drop interior points closer than ``gap`` to the last kept one (or to the end point).
+    """Drop interior points closer than ``gap`` to their predecessor or to the end point.
 
     Near-coincident points (left where surface samples and joggle samples meet)
     would read as tight kinks to anything that measures curvature.
     """
-    keep = [0]
-    for i in range(1, len(points) - 1):
-        if np.hypot(*(points[i] - points[keep[-1]])) >= gap and np.hypot(*(points[-1] - points[i])) >= gap:
-            keep.append(i)
-    keep.append(len(points) - 1)
+    step = np.hypot(*np.diff(points, axis=0).T)
+    to_end = np.hypot(*(points - points[-1]).T)
+    keep = np.concatenate([[True], (step[:-1] >= gap) & (to_end[1:-1] >= gap), [True]])
     return points[keep]
 
 

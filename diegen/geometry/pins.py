@@ -19,6 +19,7 @@ from diegen.geometry.polygon import QUAD_SEGS
 from diegen.geometry.types import Hole, Pin
 from diegen.spec.model import PinSpot
 
+SCAN_LINES = 200  # candidate x positions across the piece
 LONG_PIECE_MM = 400.0  # pieces longer than this get a third pin (common practice, no source)
 
 
@@ -43,6 +44,15 @@ def _spots(room: shapely.Geometry, xs: np.ndarray) -> list[tuple[float, float]]:
     return spots
 
 
+def _first_spots(room: shapely.Geometry, xs: np.ndarray, chunk: int = 8) -> list[tuple[float, float]]:
+    """The first spot along ``xs`` (tried a few lines at a time), as a one-item list, or []."""
+    for start in range(0, len(xs), chunk):
+        found = _spots(room, xs[start:start + chunk])
+        if found:
+            return found[:1]
+    return []
+
+
 def auto_pins(piece: Polygon, bend_radius: float, margin: float, diameter: float, holes: Sequence[Hole],
               piece_name: str) -> tuple[Pin, ...]:
     room = pin_room(piece, bend_radius, margin, diameter, holes)
@@ -51,12 +61,17 @@ def auto_pins(piece: Polygon, bend_radius: float, margin: float, diameter: float
                             f"(bend radius {bend_radius:.2f} mm + margin {margin:.2f} mm from the bend line and holes)")
     minx, _, maxx, _ = room.bounds
     inset = min(2.0, 0.1 * (maxx - minx))
-    spots = _spots(room, np.linspace(minx + inset, maxx - inset, 200))
+    xs = np.linspace(minx + inset, maxx - inset, SCAN_LINES)
+    spots = _first_spots(room, xs) + _first_spots(room, xs[::-1])[::-1]
     if len(spots) < 2 or spots[-1][0] - spots[0][0] < 2 * diameter:
         raise GeometryError(f"the {piece_name} piece has no room for two tooling pins {2 * diameter:.1f} mm apart")
     chosen = [spots[0], spots[-1]]
     if spots[-1][0] - spots[0][0] > LONG_PIECE_MM:
-        chosen.insert(1, min(spots, key=lambda s: abs(s[0] - 0.5 * (spots[0][0] + spots[-1][0]))))
+        middle = 0.5 * (spots[0][0] + spots[-1][0])
+        near_middle = xs[np.argsort(np.abs(xs - middle))]
+        found = _first_spots(room, near_middle)
+        if found:
+            chosen.insert(1, found[0])
     return tuple(Pin(round(x, 3), round(y, 3), diameter) for x, y in chosen)
 
 

@@ -75,3 +75,11 @@ def vertical_extent(polygon: Polygon, x: float) -> tuple[float, float] | None:
         return None
     _, y0, _, y1 = cut.bounds
     return y0, y1
+
+
+def vertical_extents(polygon: Polygon, xs: np.ndarray) -> np.ndarray:
+    """Lowest and highest y of ``polygon`` on vertical lines at each of ``xs`` (NaN where a line misses), (N, 2)."""
+    _, miny, _, maxy = polygon.bounds
+    lines = shapely.linestrings([[(x, miny - 1), (x, maxy + 1)] for x in xs])
+    bounds = shapely.bounds(shapely.intersection(polygon, lines))
+    return bounds[:, [1, 3]]

@@ -14,7 +14,7 @@ from diegen.errors import GeometryError
 from diegen.geometry import holes as hole_rules
 from diegen.geometry import pins as pin_rules
 from diegen.geometry.pieces import SparCut, depth_at, joggles_for, piece_runs, relief_points, split_surfaces, tail_end
-from diegen.geometry.polygon import as_points, offset_inward, vertical_extent
+from diegen.geometry.polygon import as_points, offset_inward, vertical_extents
 from diegen.geometry.types import Hole, PieceGeometry, RibGeometry
 from diegen.spec.model import AirfoilSource, RibSpec
 
@@ -140,12 +140,10 @@ def _pins(spec: RibSpec, name: str, polygon: Polygon, x_range: tuple[float, floa
 def _depth_range(polygon: Polygon, x0: float, x1: float, name: str) -> tuple[float, float]:
     """Smallest and largest web depth (mm); the nose is sampled from a tenth of its length (its tip has none)."""
     start = x0 + (0.1 * (x1 - x0) if name == "nose" else 1e-6)
-    depths = []
-    for x in np.linspace(start, x1 - 1e-6, DEPTH_SAMPLES):
-        extent = vertical_extent(polygon, float(x))
-        if extent:
-            depths.append(extent[1] - extent[0])
-    return (round(min(depths), 3), round(max(depths), 3)) if depths else (0.0, 0.0)
+    extents = vertical_extents(polygon, np.linspace(start, x1 - 1e-6, DEPTH_SAMPLES))
+    depths = extents[:, 1] - extents[:, 0]
+    depths = depths[np.isfinite(depths)]
+    return (round(float(depths.min()), 3), round(float(depths.max()), 3)) if depths.size else (0.0, 0.0)
 
 
 def _tuple(points: np.ndarray):

@@ -7,6 +7,7 @@ key of a section and keep the rest.
 
 from __future__ import annotations
 
+import math
 import re
 from dataclasses import replace
 from pathlib import Path
@@ -39,6 +40,7 @@ from diegen.spec.reader import Reader, describe, join
 from diegen.spec.yamltree import YNode
 
 SPEC_VERSION = 1
+MAX_RIBS = 200  # ribs of one wing spec, however the stations are given
 ID_PATTERN = re.compile(r"^[A-Za-z0-9][A-Za-z0-9_.-]{0,63}$")
 # Matched against the stripped text; no two neighbouring parts can take the same characters (no slow backtracking).
 NACA_PATTERN = re.compile(r"^(?:naca\s*)?(?:-\s*)?(\d{4,5})$", re.IGNORECASE)
@@ -368,7 +370,7 @@ def read_stations(r: Reader, node: YNode | None, path: str) -> Stations | None:
         return None
     if node.is_list:
         positions = [r.length(item, join(path, i), low=0.0, low_open=False)
-                     for i, item in enumerate(r.sequence(node, path, 2, 200) or ())]
+                     for i, item in enumerate(r.sequence(node, path, 2, MAX_RIBS) or ())]
         if None in positions:
             return None
         if any(b <= a for a, b in zip(positions, positions[1:])):
@@ -382,7 +384,7 @@ def read_stations(r: Reader, node: YNode | None, path: str) -> Stations | None:
         r.problem(node, path, "expected a list of stations, or exactly one of 'count' or 'pitch'")
         return None
     if "count" in fields:
-        count = r.integer(fields["count"], join(path, "count"), 2, 200)
+        count = r.integer(fields["count"], join(path, "count"), 2, MAX_RIBS)
         return None if count is None else Stations(count=count)
     pitch = r.length(fields["pitch"], join(path, "pitch"))
     return None if pitch is None else Stations(pitch_mm=pitch)
@@ -402,6 +404,10 @@ def read_wing(r: Reader, root: dict[str, YNode], spec_dir: Path) -> WingSpec:
     sweep_line = _or(r.number(_get(plan, "sweep_line"), "planform.sweep_line", 0.0, 1.0), 0.25)
     stations = read_stations(r, _get(plan, "stations"), "planform.stations")
     orientation = _or(r.choice(_get(plan, "rib_orientation"), "planform.rib_orientation", RIB_ORIENTATIONS), "streamwise")
+    if stations and span and stations.pitch_mm and span / stations.pitch_mm > MAX_RIBS - 1:
+        r.problem(_get(plan, "stations"), "planform.stations",
+                  f"expected a pitch giving at most {MAX_RIBS} ribs over the span ({span:g} mm), "
+                  f"found {stations.pitch_mm:g} mm ({math.ceil(span / stations.pitch_mm) + 1} ribs)")
     if stations and span and stations.positions_mm and stations.positions_mm[-1] > span + 1e-6:
         r.problem(_get(plan, "stations"), "planform.stations",
                   f"expected stations within the span ({span:g} mm), found one at {stations.positions_mm[-1]:g} mm")
