@@ -2,17 +2,17 @@
 
 Strain checks compare with the contoured-flange formulas e = −w/(ρ + w) (shrink)
 and e = w/(ρ − w) (stretch): plan geometry of a flange standing on a curve —
-the free edge lies at ρ ± w in the flat blank and at ρ when formed (REFERENCE
-check values for R = 2.0 / 5.0 / 1.0 in, h = 0.5 in reproduced below).
+the free edge lies at ρ ± w in the flat blank and at ρ when formed (derived; check values
+for R = 2.0 / 5.0 / 1.0 in, h = 0.5 in worked out below).
 """
 
 from __future__ import annotations
 
 import json
 import math
+import shutil
 import subprocess
 import sys
-from dataclasses import replace
 from pathlib import Path
 
 import numpy as np
@@ -124,7 +124,7 @@ def _circle_piece(radius: float, n: int = 720) -> PieceGeometry:
 @pytest.mark.parametrize(("rho_in", "w_in", "expected"), [(2.0, 0.5, 0.200), (5.0, 0.5, 0.0909), (1.0, 0.5, 0.333)],
                          ids=["R2", "R5", "R1"])
 def test_strain_on_a_circle_matches_the_contoured_flange_formula(rho_in: float, w_in: float, expected: float) -> None:
-    # REFERENCE check values (derived from the flange geometry): shrink −h/(R + h), stretch +h/(R − h).
+    # Check values derived from the flange geometry: shrink −h/(R + h), stretch +h/(R − h).
     rho, w = rho_in * IN, w_in * IN
     circle = _circle_piece(rho)
     # A 720-gon's windowed curvature reads the circumradius × sin(π/n)/(π/n): 3e-6 relative, well inside 1e-4.
@@ -195,11 +195,12 @@ def test_json_report_has_the_documented_keys_and_consistent_numbers(spec: RibSpe
         outline = Polygon(p.piece.outline)
         assert part["die"]["outline_length_mm"] == pytest.approx(outline.length, abs=0.01)
         assert part["die"]["area_mm2"] == pytest.approx(outline.area, abs=0.1)
-        cuts = [shapely.Point(c.x, c.y).buffer(c.d / 2, quad_segs=128) for c in p.blank.cut_circles + p.blank.drill_circles]
+        circles = p.blank.cut_circles + p.blank.drill_circles
+        cuts = [shapely.Point(c.x, c.y).buffer(c.d / 2, quad_segs=128) for c in circles]
         net = Polygon(p.blank.outer).difference(shapely.union_all(cuts)).area
         assert part["blank"]["area_mm2"] == pytest.approx(net, rel=1e-4)
         assert part["blank"]["perimeter_mm"] == pytest.approx(LinearRing(p.blank.outer).length, abs=0.01)
-        # press: pressure once the rubber has flowed = force / box area (DESIGN §5, common practice)
+        # press: pressure once the rubber has flowed = force / box area (common practice, no source)
         assert part["press"]["force_n"] == pytest.approx(force, abs=0.1)
         assert part["press"]["box_area_mm2"] == pytest.approx(box, abs=0.1)
         assert part["press"]["pressure_mpa"] == pytest.approx(force / box, abs=1e-4)
@@ -213,8 +214,10 @@ def test_json_report_has_the_documented_keys_and_consistent_numbers(spec: RibSpe
 
 
 def _cli(*args: str, cwd: Path) -> subprocess.CompletedProcess[str]:
-    return subprocess.run([sys.executable, "-m", "diegen.cli", *args], capture_output=True, text=True, cwd=cwd,
-                          timeout=300)
+    """Run the ``diegen`` console script of this environment (``python -m diegen.cli`` if it is not installed)."""
+    script = shutil.which("diegen", path=str(Path(sys.executable).parent))
+    command = [script] if script else [sys.executable, "-m", "diegen.cli"]
+    return subprocess.run([*command, *args], capture_output=True, text=True, cwd=cwd, timeout=300)
 
 
 @pytest.mark.slow

@@ -2,7 +2,8 @@
 
 Band area (blank minus die outline).  Steiner's formula for the parallel body of
 a convex region K at distance w (J. Steiner 1840; e.g. L. A. Santaló, *Integral
-Geometry and Geometric Probability*, 1976, ch. 1):
+Geometry and Geometric Probability*, 1976, ch. 1 — citation from memory,
+unverified; the formula itself is re-derived below for polygons):
 
     A(K ⊕ wB) = A(K) + L·w + π·w²                                  (round corners)
 

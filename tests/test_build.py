@@ -20,23 +20,6 @@ ROOT = Path(__file__).resolve().parents[1]
 DEMO_RIB = ROOT / "specs" / "demo-rib.yaml"
 
 
-@pytest.fixture
-def fake_solids(monkeypatch):
-    """Replace the kernel step by a writer of a tiny text file; count the calls."""
-    calls = []
-
-    def write_die_files(rib, piece, folder, known=()):
-        from diegen.fileio import write_text
-
-        name = f"{piece.piece.part_id}-die.step"
-        write_text(folder / name, f"stand-in die for {piece.piece.part_id}\n")
-        calls.append(piece.piece.part_id)
-        return [name], ["stand-in"]
-
-    monkeypatch.setattr("diegen.solid.from_piece.write_die_files", write_die_files)
-    return calls
-
-
 def test_layout_and_manifest(tmp_path, fake_solids):
     result = api.build(api.load(DEMO_RIB), tmp_path, jobs=1)
     assert not result.failed

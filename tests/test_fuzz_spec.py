@@ -221,8 +221,12 @@ def mutate_tree(tree: Any, rng: random.Random) -> tuple[Any, str]:
     elif op == "number" and _numbers(tree):
         p = rng.choice(_numbers(tree))
         parent = _parent(tree, p)
-        parent[p[-1]] = rng.choice([-parent[p[-1]], parent[p[-1]] * rng.choice([0, 1e-9, 1e-3, 0.5, 2, 10, 1e3, 1e9,
-                                                                                1e300]), rng.choice(SPECIAL_FLOATS)])
+        factor = rng.choice([0, 1e-9, 1e-3, 0.5, 2, 10, 1e3, 1e9, 1e300])
+        try:
+            scaled = parent[p[-1]] * factor
+        except OverflowError:  # an integer already too large for a float
+            scaled = parent[p[-1]] * 10
+        parent[p[-1]] = rng.choice([-parent[p[-1]], scaled, rng.choice(SPECIAL_FLOATS)])
     elif op == "quantity" and _numbers(tree):
         p = rng.choice(_numbers(tree))
         parent = _parent(tree, p)
@@ -433,43 +437,43 @@ def random_wing(rng: random.Random, max_stations: int = 4) -> dict[str, Any]:
 
 # Values at or next to the bounds the schema accepts (mm unless a unit is given; see specs/README.md).
 EDGE_VALUES: dict[tuple, list[Any]] = {
-    ("chord",): ["0.01 mm", "1 mm", "20000 mm", "10 mm"],
-    ("skin_thickness",): ["0.001 mm", "12.7 mm", "5 mm"],
-    ("sheet", "thickness"): ["0.001 mm", "12.7 mm", "6 mm"],
-    ("flange", "height"): ["0.001 mm", "200 mm", "0.5 mm"],
-    ("flange", "bend_radius"): ["0.0001 mm", "100 mm", "30 mm"],
-    ("flange", "min_tail_depth"): ["0.001 mm", "99999 mm", "1 mm"],
+    ("chord",): ["0.01 mm", "1e-300 mm", 5e-324, "1 mm", "20000 mm", "10 mm"],
+    ("skin_thickness",): ["0.001 mm", "1e-300 mm", 5e-324, "12.7 mm", "5 mm"],
+    ("sheet", "thickness"): ["0.001 mm", "1e-300 mm", 5e-324, "12.7 mm", "6 mm"],
+    ("flange", "height"): ["0.001 mm", "1e-300 mm", 5e-324, "200 mm", "0.5 mm"],
+    ("flange", "bend_radius"): ["0.0001 mm", "1e-300 mm", 5e-324, "100 mm", "30 mm"],
+    ("flange", "min_tail_depth"): ["0.001 mm", "1e-300 mm", 5e-324, "99999 mm", "1 mm"],
     ("spars", 0, "at"): [1e-9, 0.5, 0.999999, 0.01],
-    ("spars", 0, "web"): ["0.001 mm", "50 mm"],
-    ("spars", 0, "cap_thickness"): [0, "25 mm", "0.001 mm"],
-    ("spars", 0, "cap_width"): [0, "200 mm", "0.001 mm"],
-    ("lightening_holes",): [[{"x": "0.001 mm", "d": "0.001 mm"}], [{"x": "99999 mm", "d": "99999 mm"}],
+    ("spars", 0, "web"): ["0.001 mm", "1e-300 mm", 5e-324, "50 mm"],
+    ("spars", 0, "cap_thickness"): [0, "25 mm", "0.001 mm", "1e-300 mm", 5e-324],
+    ("spars", 0, "cap_width"): [0, "200 mm", "0.001 mm", "1e-300 mm", 5e-324],
+    ("lightening_holes",): [[{"x": "0.001 mm", "d": "0.001 mm"}], [{"x": "1e-300 mm", "d": 5e-324}], [{"x": "99999 mm", "d": "99999 mm"}],
                             [{"x": "100 mm", "d": "50 mm", "y": "-99999 mm"}],
                             [{"x": "100 mm", "d": "20 mm", "flange_height": "99999 mm"}],
                             [{"x": "100 mm", "d": "20 mm"}, {"x": "100 mm", "d": "20 mm"}]],
-    ("pins",): [[{"x": "0.001 mm"}, {"x": "99999 mm"}], [{"x": "50 mm", "y": "-99999 mm"}, {"x": "60 mm"}],
+    ("pins",): [[{"x": "0.001 mm"}, {"x": "99999 mm"}], [{"x": 5e-324}, {"x": "1e-300 mm"}], [{"x": "50 mm", "y": "-99999 mm"}, {"x": "60 mm"}],
                 [{"x": "100 mm"}, {"x": "100 mm"}]],
-    ("hole_rules",): [{"edge_margin": 0, "ligament": "0.001 mm", "min_diameter": "0.001 mm"},
+    ("hole_rules",): [{"edge_margin": 0, "ligament": "0.001 mm", "min_diameter": "0.001 mm"}, {"ligament": 5e-324, "min_diameter": "1e-300 mm"},
                       {"edge_margin": "99999 mm"}, {"min_diameter": "99999 mm"}, {"flange_height": "99999 mm"}],
-    ("dowel_diameter",): ["0.001 mm", "25.4 mm"],
+    ("dowel_diameter",): ["0.001 mm", "1e-300 mm", 5e-324, "25.4 mm"],
     ("joggle_runout",): [1, 20],
-    ("die", "stock_thickness"): ["0.001 mm", "300 mm"],
-    ("die", "cutter_diameter"): ["0.001 mm", "50 mm"],
+    ("die", "stock_thickness"): ["0.001 mm", "1e-300 mm", 5e-324, "300 mm"],
+    ("die", "cutter_diameter"): ["0.001 mm", "1e-300 mm", 5e-324, "50 mm"],
     ("die", "print_bed"): [[0.001, 0.001], [1, 99999], [10, 10]],
     ("die", "stl_tolerance"): ["0.000001 mm", "1 mm"],
     ("press", "force"): ["0.001 N", "1e8 N", "1 lbf"],
-    ("press", "box"): [["0.001 mm", "0.001 mm"], ["99999 mm", "99999 mm"], ["10 mm", "10 mm"]],
+    ("press", "box"): [["0.001 mm", "0.001 mm"], ["1e-300 mm", 5e-324], ["99999 mm", "99999 mm"], ["10 mm", "10 mm"]],
     ("press", "wall_clearance"): [0, "99999 mm"],
-    ("press", "rubber", "thickness"): ["0.001 mm", "500 mm"],
+    ("press", "rubber", "thickness"): ["0.001 mm", "1e-300 mm", 5e-324, "500 mm"],
     ("press", "rubber", "durometer"): [20, 95],
     ("airfoil",): ["naca 0001", "naca 9999", "naca 0099", "naca 00001", "naca 99999", "naca 23099", "naca 00100",
                    {"naca": "2412", "points": 41}, {"naca": "0006", "points": 4001, "closed_te": False}],
-    ("planform", "span"): ["0.001 mm", "100000 mm"],
-    ("planform", "tip_chord"): ["0.001 mm", "20000 mm"],
-    ("planform", "root_chord"): ["0.001 mm"],
+    ("planform", "span"): ["0.001 mm", "1e-300 mm", 5e-324, "100000 mm"],
+    ("planform", "tip_chord"): ["0.001 mm", "1e-300 mm", 5e-324, "20000 mm"],
+    ("planform", "root_chord"): ["0.001 mm", "1e-300 mm", 5e-324],
     ("planform", "sweep"): [-60, 60],
     ("planform", "sweep_line"): [0, 1],
-    ("planform", "stations"): [{"pitch": "0.001 mm"}, {"pitch": "99999 mm"}, {"count": 2}, [0, "0.001 mm"]],
+    ("planform", "stations"): [{"pitch": "0.001 mm"}, {"pitch": "1e-300 mm"}, {"pitch": "99999 mm"}, {"count": 2}, [0, "0.001 mm"], [0, 5e-324]],
 }
 
 

@@ -26,8 +26,8 @@ from diegen.geometry.rib import min_tail_depth, rib_geometry
 from diegen.geometry.types import PieceGeometry, RibGeometry
 from diegen.spec.model import AirfoilSource, Holes, HoleSpec, RibSpec
 
-from testing import (DEMO_RIB, OUTLINE_TOL_MM, ROOT, as_array, assert_valid_ccw_outline, distances_to, point,
-                     vertical_chord)
+from testing import (DEMO_RIB, DEMO_WING, OUTLINE_TOL_MM, ROOT, as_array, assert_valid_ccw_outline, distances_to,
+                     point, vertical_chord)
 
 
 @pytest.fixture(scope="module")
@@ -61,7 +61,7 @@ def surfaces(piece: PieceGeometry) -> tuple[np.ndarray, np.ndarray]:
 
 
 def test_check_path_does_not_import_the_solid_kernel() -> None:
-    # Project rule (DESIGN §2): only the die-solid layer may import CadQuery/OCP; `diegen check` runs without it.
+    # Project rule (layering): only the die-solid layer may import CadQuery/OCP; `diegen check` runs without it.
     code = f"""
 import json, sys
 import diegen.geometry, diegen.geometry.rib, diegen.geometry.pieces, diegen.geometry.holes, diegen.geometry.pins
@@ -82,7 +82,7 @@ print(json.dumps(sorted(m for m in sys.modules if m.split('.')[0] in ('cadquery'
 
 
 def test_mold_lines_are_true_normal_offsets(spec: RibSpec, rib: RibGeometry) -> None:
-    # DESIGN §4: OML = section offset inward by the skin; die outline = OML offset inward by the rib sheet.
+    # Project convention: OML = section offset inward by the skin; die outline = OML offset inward by the rib sheet.
     # A true normal offset keeps every point at exactly that distance from the section (checked with shapely).
     section = LinearRing(rib.section)
     skin, sheet_t = spec.shared.skin_thickness_mm, spec.shared.sheet.thickness_mm
@@ -148,7 +148,7 @@ def test_leading_edge_radius_matches_report_824(spec: RibSpec, naca: str, rel: f
 
 
 def test_piece_ends_at_the_spar_webs(spec: RibSpec, rib: RibGeometry) -> None:
-    # DESIGN §4: each cut's end flange sits on the spar web, so the die's end face stands one rib-sheet
+    # Project convention: each cut's end flange sits on the spar web, so the die's end face stands one rib-sheet
     # thickness off the web face (forward face at at·chord, aft face one web thickness further).
     t, c = spec.shared.sheet.thickness_mm, spec.chord_mm
     front, rear = spec.spars[0], spec.spars[-1]
@@ -216,7 +216,7 @@ def test_tail_aft_end_is_unflanged_and_other_ends_are_flanged(rib: RibGeometry) 
 
 
 def test_relief_points_are_the_flanged_end_face_corners(rib: RibGeometry) -> None:
-    # DESIGN §4: corners where a perimeter flange meets an end flange get bend relief; a cut end has none.
+    # Project convention: corners where a perimeter flange meets an end flange get bend relief; a cut end has none.
     for piece in rib.pieces:
         corners = {p for r in piece.runs if r.kind == "line" and r.flanged for p in r.points}
         assert set(piece.relief_points) == corners
@@ -241,8 +241,8 @@ def _joggle_points(rib: RibGeometry, piece: PieceGeometry, surface: str) -> tupl
 
 @pytest.mark.parametrize("cutter_mm", [6.35, 25.4], ids=["demo-cutter", "25mm-cutter"])
 def test_joggle_depth_and_ramp_profile(spec: RibSpec, cutter_mm: float) -> None:
-    # The joggle recess: the wall steps in by the spar-cap thickness (DESIGN §4; REFERENCE joggle geometry:
-    # a recess of depth d with a run-out ramp).  Measured as the shapely normal distance between the joggled
+    # The joggle recess: the wall steps in by the spar-cap thickness (a joggle in the
+    # form block is a recess of depth d with a run-out ramp: plane geometry of two reverse bends).  Measured as the shapely normal distance between the joggled
     # piece outline and the plain die outline.  Ramp: d·(3u² − 2u³) over L = max(runout·d, √(6·d·r_cutter))
     # (the project's rule: run-out 4·d is from memory, unverified; the √ term keeps the cubic's tightest
     # radius L²/(6d) at least the cutter radius — derived: |y''|max = 6d/L² at the ramp ends).
@@ -302,7 +302,7 @@ def _min_concave_radius(points: np.ndarray, window_mm: float) -> float:
 
 @pytest.mark.parametrize("cutter_mm", [6.35, 25.4], ids=["demo-cutter", "25mm-cutter"])
 def test_concave_radii_are_no_tighter_than_the_cutter(spec: RibSpec, cutter_mm: float) -> None:
-    # DESIGN §4: internal concave corners of the die outline are no tighter than the router cutter radius.
+    # Project convention: internal concave corners of the die outline are no tighter than the router cutter radius.
     # Measured over a 1 mm window (two 0.5 mm joggle samples); 3 % allowance for that sampling: with the
     # 25.4 mm cutter the ramp's design radius equals the cutter radius exactly.
     rib = rib_geometry(with_cutter(spec, cutter_mm))
@@ -398,3 +398,21 @@ def test_pins_clear_of_holes_and_flanges(spec: RibSpec, rib: RibGeometry) -> Non
                 assert math.dist((pin.x, pin.y), (h.x, h.y)) - (h.d + pin.d) / 2 >= margin - 1e-3
         spread = max(p.x for p in piece.pins) - min(p.x for p in piece.pins)
         assert spread > 0.5 * (piece.x_range_mm[1] - piece.x_range_mm[0])  # far apart along the piece
+
+
+def test_auto_holes_respect_the_margin_on_every_demo_wing_rib() -> None:
+    # Wedge-shaped webs (the nose of thinner sections) once let a hole slide off its inscribed-circle centre to
+    # mid-depth and cross the margin by up to 1.8 mm; every hole of every rib of the demo wing must stay clear.
+    from diegen.wing import rib_spec, section_at, stations
+
+    wing = api.load(DEMO_WING)
+    count = 0
+    for station in stations(wing):
+        rib_spec_ = rib_spec(wing, station)
+        need = rib_spec_.shared.flange.bend_radius_mm + rib_spec_.shared.holes.rules.edge_margin_mm
+        for piece in rib_geometry(rib_spec_, section_at(wing, station)).pieces:
+            web = Polygon(piece.outline)
+            for h in piece.holes:
+                count += 1
+                assert web.exterior.distance(point((h.x, h.y))) - h.d / 2 >= need - 1e-6, (piece.part_id, h)
+    assert count > 60

@@ -187,7 +187,8 @@ def test_normal_to_spar_rib_spans_the_wing_square_to_the_spar() -> None:
     # Plan geometry: untapered wing, leading edge, spar and trailing edge all swept by Λ.  A rib square to the
     # spar through the spar point at station y meets the leading- and trailing-edge lines a distance c·cos Λ
     # apart (intersected here with shapely); the depth at each chord fraction is the streamwise one, so the
-    # rib's section is the streamwise one shortened by cos Λ (as in simple sweep theory, t/c grows by 1/cos Λ).
+    # rib's section is the streamwise one shortened by cos Λ (the same t/c growth by 1/cos Λ as simple sweep
+    # theory's normal section: from memory, unverified; the geometry here stands on its own).
     sweep = 20.0
     spec = wing(root_chord=40, tip_chord=40, sweep=sweep, orientation="normal-to-spar")
     streamwise = wing(root_chord=40, tip_chord=40, sweep=sweep)

@@ -67,7 +67,8 @@ def auto_holes(piece: Polygon, bend_radius: float, rules: HoleRules, stretch_lim
         if d < rules.min_diameter_mm:
             break
         y = centre.y if extent is None else 0.5 * (extent[0] + extent[1])
-        if not room.contains(ShapelyPoint(centre.x, y)):
+        moved = ShapelyPoint(centre.x, y)
+        if not (room.contains(moved) and room.boundary.distance(moved) >= d / 2):  # the whole hole must stay in
             y = centre.y
         height = hole_flange_height(d, rules.flange_height_mm, stretch_limit) if rules.flanged else 0.0
         flanged = rules.flanged and height >= min_flange_mm
@@ -108,11 +109,16 @@ def explicit_holes(piece: Polygon, x_range: tuple[float, float], bend_radius: fl
             y = 0.5 * (extent[0] + extent[1])
         circle = ShapelyPoint(spec.x_mm, y).buffer(spec.d_mm / 2, quad_segs=QUAD_SEGS)
         if not room.contains(circle):
-            short = spec.d_mm / 2 - room.exterior.distance(ShapelyPoint(spec.x_mm, y)) if room.contains(
-                ShapelyPoint(spec.x_mm, y)) else spec.d_mm / 2 + room.exterior.distance(ShapelyPoint(spec.x_mm, y))
+            centre = ShapelyPoint(spec.x_mm, y)
+            edge = room.boundary.distance(centre) if not room.is_empty else 0.0
+            short = spec.d_mm / 2 - edge if room.contains(centre) else spec.d_mm / 2 + edge
+            usable = vertical_extent(room, spec.x_mm) if not room.is_empty else None
+            depth = 0.0 if usable is None else usable[1] - usable[0]
             raise GeometryError(
                 f"lightening_holes[{index}] (x = {spec.x_mm:.1f} mm, d = {spec.d_mm:.1f} mm) in the {piece_name} piece "
-                f"breaks the edge margin of {rules.edge_margin_mm:.1f} mm from the bend line by {short:.2f} mm")
+                f"breaks the edge margin of {rules.edge_margin_mm:.1f} mm from the bend line by {short:.2f} mm: "
+                f"the web there leaves {depth:.1f} mm for a hole (die depth less bend radius {bend_radius:.2f} mm and "
+                f"margin on each side), so a hole there may be at most about {depth:.1f} mm across")
         for other_index, other in enumerate(holes):
             gap = math.dist((other.x, other.y), (spec.x_mm, y)) - (other.d + spec.d_mm) / 2
             if gap < rules.ligament_mm:

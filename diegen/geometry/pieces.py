@@ -26,6 +26,7 @@ from diegen.geometry.types import Joggle, Point, Points, Run
 
 JOGGLE_SAMPLE_MM = 0.5  # point spacing along a joggle ramp and zone
 MIN_POINT_GAP_MM = 0.2  # closer outline points are merged
+MIN_END_FACE_MM = 1.0  # shortest end face (die depth at a spar cut) that is still a face
 
 
 @dataclass(frozen=True)
@@ -186,8 +187,11 @@ def piece_runs(upper: np.ndarray, lower: np.ndarray, x0: float | None, x1: float
                 Run("curve", _tuple(bottom)),
                 Run("line", _tuple(np.array([bottom[-1], top[-1]])), aft_flanged)]
     for run in runs:
-        if run.kind == "line" and math.dist(*run.points) < 1.0:
-            raise GeometryError(f"the piece's end face at x = {run.points[0][0]:.1f} mm has no depth left")
+        if run.kind == "line" and math.dist(*run.points) < MIN_END_FACE_MM:
+            raise GeometryError(
+                f"the piece's end face at x = {run.points[0][0]:.1f} mm has no depth left: the die outline is only "
+                f"{math.dist(*run.points):.2f} mm deep there (an end face needs at least {MIN_END_FACE_MM:.1f} mm); "
+                "the skin and sheet offsets (and any joggles) leave too little of the section at the spar")
     return tuple(runs)
 
 

@@ -7,6 +7,7 @@ lightening holes by the hole rules' edge margin.
 
 from __future__ import annotations
 
+import math
 from collections.abc import Sequence
 
 import numpy as np
@@ -15,7 +16,7 @@ from shapely.geometry import LineString, Polygon
 from shapely.geometry import Point as ShapelyPoint
 
 from diegen.errors import GeometryError
-from diegen.geometry.polygon import QUAD_SEGS
+from diegen.geometry.polygon import QUAD_SEGS, inscribed_diameter, vertical_extent
 from diegen.geometry.types import Hole, Pin
 from diegen.spec.model import PinSpot
 
@@ -33,6 +34,8 @@ def pin_room(piece: Polygon, bend_radius: float, margin: float, diameter: float,
 
 def _spots(room: shapely.Geometry, xs: np.ndarray) -> list[tuple[float, float]]:
     """For each x, the middle of the longest vertical chord of ``room`` there (x with none are left out)."""
+    if room.is_empty:
+        return []
     _, miny, _, maxy = room.bounds
     lines = shapely.linestrings([[(x, miny - 1), (x, maxy + 1)] for x in xs])
     spots = []
@@ -57,8 +60,13 @@ def auto_pins(piece: Polygon, bend_radius: float, margin: float, diameter: float
               piece_name: str) -> tuple[Pin, ...]:
     room = pin_room(piece, bend_radius, margin, diameter, holes)
     if room.is_empty:
+        deepest = inscribed_diameter(piece)
+        need = pin_web_depth(bend_radius, margin, diameter)
+        why = (f"its web is only {deepest:.2f} mm deep at its deepest and a pin needs {need:.2f} mm"
+               if deepest < need else "the lightening holes leave no such spot")
         raise GeometryError(f"the {piece_name} piece has no web left for tooling pins of {diameter:.2f} mm "
-                            f"(bend radius {bend_radius:.2f} mm + margin {margin:.2f} mm from the bend line and holes)")
+                            f"(bend radius {bend_radius:.2f} mm + margin {margin:.2f} mm from the bend line and holes): "
+                            f"{why}")
     minx, _, maxx, _ = room.bounds
     inset = min(2.0, 0.1 * (maxx - minx))
     xs = np.linspace(minx + inset, maxx - inset, SCAN_LINES)
@@ -86,10 +94,43 @@ def explicit_pins(piece: Polygon, x_range: tuple[float, float], bend_radius: flo
         if y is None:
             found = _spots(room, np.array([spot.x_mm]))
             if not found:
-                raise GeometryError(f"pins[{index}]: no web for a pin at x = {spot.x_mm:.1f} mm in the {piece_name} piece")
+                extent = vertical_extent(piece, spot.x_mm)
+                y_mid = 0.0 if extent is None else 0.5 * (extent[0] + extent[1])
+                raise GeometryError(f"pins[{index}]: no web for a pin at x = {spot.x_mm:.1f} mm in the {piece_name} "
+                                    f"piece: {_why_not(piece, spot.x_mm, y_mid, bend_radius, margin, diameter, holes)}")
             y = found[0][1]
         if not room.contains(ShapelyPoint(spot.x_mm, y)):
-            raise GeometryError(f"pins[{index}] at ({spot.x_mm:.1f}, {y:.1f}) mm falls in a hole, a flange or "
-                                f"within {margin:.1f} mm of one in the {piece_name} piece")
+            raise GeometryError(f"pins[{index}] at ({spot.x_mm:.1f}, {y:.1f}) mm in the {piece_name} piece: "
+                                f"{_why_not(piece, spot.x_mm, y, bend_radius, margin, diameter, holes)}")
         pins.append(Pin(spot.x_mm, y, diameter))
     return tuple(pins)
+
+
+def pin_web_depth(bend_radius: float, margin: float, diameter: float) -> float:
+    """Shallowest web (mm) that takes a pin: bend radius and edge margin on each side, plus the pin."""
+    return 2 * (bend_radius + margin) + diameter
+
+
+def _why_not(piece: Polygon, x: float, y: float, bend_radius: float, margin: float, diameter: float,
+             holes: Sequence[Hole]) -> str:
+    """Why a pin of ``diameter`` centred at (x, y) breaks the margins, with the numbers (mm)."""
+    for hole in holes:
+        gap = math.dist((x, y), (hole.x, hole.y)) - (hole.d + diameter) / 2
+        if gap < margin:
+            where = "falls in" if gap < 0 else f"is only {gap:.2f} mm from the edge of"
+            return (f"the pin {where} the lightening hole at x = {hole.x:.1f} mm (d = {hole.d:.1f} mm); "
+                    f"the rule needs {margin:.1f} mm of web between them")
+    extent = vertical_extent(piece, x)
+    need = pin_web_depth(bend_radius, margin, diameter)
+    if extent is None or extent[1] - extent[0] < need:
+        depth = 0.0 if extent is None else extent[1] - extent[0]
+        return (f"the die is only {depth:.2f} mm deep there and a {diameter:.2f} mm pin needs {need:.2f} mm "
+                f"(bend radius {bend_radius:.2f} mm + edge margin {margin:.1f} mm on each side, plus the pin)")
+    centre = ShapelyPoint(x, y)
+    inset = bend_radius + margin + diameter / 2
+    if not piece.contains(centre):
+        return (f"the pin lies {piece.exterior.distance(centre):.2f} mm outside the die outline; a pin centre must "
+                f"stand at least {inset:.2f} mm inside it (bend radius {bend_radius:.2f} mm + edge margin "
+                f"{margin:.1f} mm + half the pin)")
+    clear = piece.exterior.distance(centre) - bend_radius - diameter / 2
+    return f"the pin edge is only {clear:.2f} mm from the flange bend line; the rule needs {margin:.1f} mm"

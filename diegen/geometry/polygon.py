@@ -51,9 +51,22 @@ def single_polygon(geometry: shapely.Geometry, what: str) -> Polygon:
     return parts[0]
 
 
+def inscribed_diameter(polygon: Polygon) -> float:
+    """Diameter (mm) of the largest circle inside ``polygon``: its depth at the thickest spot, twice the largest
+    inward offset that leaves anything."""
+    if polygon.is_empty:
+        return 0.0
+    return 2.0 * float(shapely.maximum_inscribed_circle(polygon, tolerance=0.01).length)
+
+
 def offset_inward(polygon: Polygon, distance: float, what: str) -> Polygon:
     """True normal offset of ``polygon`` inward by ``distance`` mm (round joins)."""
-    return single_polygon(polygon.buffer(-distance, quad_segs=QUAD_SEGS, join_style="round"), what)
+    result = polygon.buffer(-distance, quad_segs=QUAD_SEGS, join_style="round")
+    if not any(isinstance(g, Polygon) and g.area > 1.0 for g in getattr(result, "geoms", [result])):
+        deepest = inscribed_diameter(polygon)
+        raise GeometryError(f"{what}: nothing is left; the outline is only {deepest:.2f} mm deep at its thickest, "
+                            f"so an inward offset must stay under about {deepest / 2:.2f} mm")
+    return single_polygon(result, what)
 
 
 def round_concave_corners(polygon: Polygon, radius: float) -> Polygon:

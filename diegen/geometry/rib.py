@@ -14,7 +14,7 @@ from diegen.errors import GeometryError
 from diegen.geometry import holes as hole_rules
 from diegen.geometry import pins as pin_rules
 from diegen.geometry.pieces import SparCut, depth_at, joggles_for, piece_runs, relief_points, split_surfaces, tail_end
-from diegen.geometry.polygon import as_points, offset_inward, vertical_extents
+from diegen.geometry.polygon import QUAD_SEGS, as_points, inscribed_diameter, offset_inward, vertical_extents
 from diegen.geometry.types import Hole, PieceGeometry, RibGeometry
 from diegen.spec.model import AirfoilSource, RibSpec
 
@@ -65,6 +65,8 @@ def rib_geometry(spec: RibSpec, section: np.ndarray | None = None) -> RibGeometr
     pieces = []
     for name, x0, x1, aft_flanged in _piece_ranges(spec, spars, upper, lower, warnings):
         pieces.append(_piece(spec, name, x0, x1, aft_flanged, upper, lower, spars))
+    if not pieces:
+        raise GeometryError(f"rib {spec.id} has no piece left to make: {'; '.join(warnings)}")
     return RibGeometry(spec.id, spec.chord_mm, _tuple(scaled), as_points(oml), as_points(die), tuple(pieces),
                        tuple(warnings))
 
@@ -82,11 +84,14 @@ def _piece_ranges(spec: RibSpec, spars: list[SparCut], upper: np.ndarray, lower:
             start = spars[-1].x_aft_mm + t
             limit = min_tail_depth(spec)
             end = tail_end(upper, lower, start, limit)
-            if end is None or end - start < 2 * spec.shared.flange.height_mm:
+            shortest = 2 * spec.shared.flange.height_mm
+            if end is None or end - start < shortest:
                 depth = depth_at(upper, lower, start)
-                warnings.append(f"no tail piece: the die depth aft of the rear spar is {depth:.1f} mm and it falls "
-                                f"below the minimum tail depth of {limit:.1f} mm within "
-                                f"{0 if end is None else end - start:.1f} mm (set flange.min_tail_depth to change this)")
+                where = (f"already below the minimum tail depth of {limit:.1f} mm" if end is None else
+                         f"and it falls below the minimum tail depth of {limit:.1f} mm within {end - start:.1f} mm; "
+                         f"a tail piece needs at least {shortest:.1f} mm (2 × flange height) of length")
+                warnings.append(f"no tail piece: the die depth aft of the rear spar is {depth:.1f} mm, {where} "
+                                "(set flange.min_tail_depth to change this)")
                 continue
             ranges.append((name, start, end, False))
     return ranges
@@ -99,7 +104,10 @@ def _piece(spec: RibSpec, name: str, x0: float | None, x1: float, aft_flanged: b
     lo = float(upper[0, 0]) if x0 is None else float(x0)
     x1 = float(x1)
     if x1 - lo < 1.0:
-        raise GeometryError(f"the {name} piece of rib {spec.id} has no length (from x = {lo:.1f} to {x1:.1f} mm)")
+        why = (f"; the skin and sheet offsets put the die's leading edge at x = {lo:.1f} mm, behind the spar"
+               if x0 is None else "")
+        raise GeometryError(f"the {name} piece of rib {spec.id} has no length (from x = {lo:.1f} to {x1:.1f} mm; "
+                            f"at least 1.0 mm needed){why}")
     joggles = joggles_for(lo, x1, spars, shared.joggle_runout, shared.die.cutter_diameter_mm / 2)
     runs = piece_runs(upper, lower, x0, x1, joggles, aft_flanged)
     points = [p for run in runs for p in run.points[:-1]]
@@ -107,6 +115,12 @@ def _piece(spec: RibSpec, name: str, x0: float | None, x1: float, aft_flanged: b
     if not polygon.is_valid or polygon.area <= 0:
         raise GeometryError(f"the {name} piece of rib {spec.id} is not a simple outline (joggles deeper than the section?)")
     radius = shared.flange.bend_radius_mm
+    if polygon.buffer(-radius, quad_segs=QUAD_SEGS).is_empty:
+        deepest = inscribed_diameter(polygon)
+        raise GeometryError(
+            f"the {name} piece of rib {spec.id} has no flat web between its flange bends: its die outline is only "
+            f"{deepest:.2f} mm deep at its deepest, and the bend radius of {radius:.2f} mm on each side needs more "
+            f"than {2 * radius:.2f} mm (the flange bends would overlap)")
     holes = _holes(spec, name, polygon, (lo, x1), radius)
     pins = _pins(spec, name, polygon, (lo, x1), radius, holes)
     plain = piece_runs(upper, lower, x0, x1, (), aft_flanged) if joggles else runs

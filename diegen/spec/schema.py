@@ -7,7 +7,6 @@ key of a section and keep the rest.
 
 from __future__ import annotations
 
-import math
 import re
 from dataclasses import replace
 from pathlib import Path
@@ -407,7 +406,7 @@ def read_wing(r: Reader, root: dict[str, YNode], spec_dir: Path) -> WingSpec:
     if stations and span and stations.pitch_mm and span / stations.pitch_mm > MAX_RIBS - 1:
         r.problem(_get(plan, "stations"), "planform.stations",
                   f"expected a pitch giving at most {MAX_RIBS} ribs over the span ({span:g} mm), "
-                  f"found {stations.pitch_mm:g} mm ({math.ceil(span / stations.pitch_mm) + 1} ribs)")
+                  f"found {stations.pitch_mm:g} mm ({span / stations.pitch_mm + 1:.4g} ribs)")
     if stations and span and stations.positions_mm and stations.positions_mm[-1] > span + 1e-6:
         r.problem(_get(plan, "stations"), "planform.stations",
                   f"expected stations within the span ({span:g} mm), found one at {stations.positions_mm[-1]:g} mm")

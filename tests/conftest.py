@@ -1,0 +1,36 @@
+"""Shared fixtures; the test header names the kernel and geometry library versions in use."""
+
+from __future__ import annotations
+
+import pytest
+
+
+def pytest_report_header(config):
+    import shapely
+
+    from diegen import __version__
+
+    try:
+        from importlib.metadata import version
+
+        kernel = f"cadquery {version('cadquery')}, OCP {version('cadquery-ocp')}"
+    except Exception:  # reported, not fatal: the quick tests do not need the kernel
+        kernel = "cadquery not installed"
+    return f"diegen {__version__}; {kernel}; shapely {shapely.__version__}"
+
+
+@pytest.fixture
+def fake_solids(monkeypatch):
+    """Replace the kernel step by a writer of a tiny text file; count the calls."""
+    calls = []
+
+    def write_die_files(rib, piece, folder, known=()):
+        from diegen.fileio import write_text
+
+        name = f"{piece.piece.part_id}-die.step"
+        write_text(folder / name, f"stand-in die for {piece.piece.part_id}\n")
+        calls.append(piece.piece.part_id)
+        return [name], ["stand-in"]
+
+    monkeypatch.setattr("diegen.solid.from_piece.write_die_files", write_die_files)
+    return calls

@@ -1,0 +1,66 @@
+"""Whole-wing builds: every piece of every rib, incremental rebuilds and the change report.
+
+The solid step is replaced by the stand-in of ``conftest.fake_solids``; the die
+layer is tested on its own in test_solid.py.
+"""
+
+from __future__ import annotations
+
+import csv
+import json
+from pathlib import Path
+
+import pytest
+
+from diegen import api
+
+ROOT = Path(__file__).resolve().parents[1]
+
+
+def _small_wing(tmp_path: Path, tip: str = "naca 23012") -> Path:
+    text = (ROOT / "specs" / "demo-wing.yaml").read_text()
+    text = text.replace("stations: {count: 13}", "stations: {count: 3}").replace("tip: naca 23012", f"tip: {tip}")
+    text = text.replace("pieces: [nose, center, tail]", "pieces: [nose, tail]")
+    path = tmp_path / "wing.yaml"
+    path.write_text(text)
+    return path
+
+
+@pytest.mark.slow  # three ribs of blanks, PDFs and previews, twice
+def test_airfoil_change_rebuilds_exactly_the_pieces_whose_outline_changed(tmp_path, fake_solids):
+    out = tmp_path / "out"
+    first = api.build(api.load(_small_wing(tmp_path)), out, jobs=1)
+    assert {o.status for o in first.outcomes} == {"built"} and len(first.outcomes) == 6
+    folder = out / "Q2-wing"
+    rows = list(csv.DictReader((folder / "summary.csv").open()))
+    assert [r["part_id"] for r in rows] == [o.part_id for o in first.outcomes]
+    assert (folder / "summary.pdf").read_bytes().startswith(b"%PDF")
+
+    fake_solids.clear()
+    second = api.build(api.load(_small_wing(tmp_path, tip="naca 4412")), out, jobs=1)
+    outcome = {o.part_id: o for o in second.outcomes}
+    # span fraction 0 is the root section exactly, so rib 1 keeps its outlines; ribs 2 and 3 change
+    assert outcome["Q2-wing-R01-nose"].status == "unchanged"
+    assert outcome["Q2-wing-R01-tail"].status == "unchanged"
+    changed = {p for p, o in outcome.items() if o.status == "built"}
+    assert changed == {"Q2-wing-R02-nose", "Q2-wing-R02-tail", "Q2-wing-R03-nose", "Q2-wing-R03-tail"}
+    assert all(outcome[p].deviation_mm > 0.1 for p in changed)
+    assert sorted(fake_solids) == sorted(changed)
+    summary = second.summary()
+    for part in changed:
+        assert f"built      {part} (die outline moved up to" in summary
+    manifest = json.loads((folder / "manifest.json").read_text())
+    assert set(manifest["pieces"]) == set(outcome)
+
+
+def test_check_of_the_whole_demo_wing():
+    analysis = api.analyse(api.load(ROOT / "specs" / "demo-wing.yaml"))
+    assert len(analysis.ribs) == 13
+    report = api.report_json(analysis)
+    ids = [p["id"] for p in report["parts"]]
+    assert len(ids) == len(set(ids)) and all(i.startswith("Q2-wing-R") for i in ids)
+    # the root rib override: heavier sheet and a larger radius
+    root = next(p for p in report["parts"] if p["id"] == "Q2-wing-R01-nose")
+    assert root["bend"]["part_radius_mm"] == pytest.approx(3.175)
+    # the fuel-bay ribs 4 and 5 have no lightening holes
+    assert not any(p["holes"] for p in report["parts"] if p["rib"] in ("Q2-wing-R04", "Q2-wing-R05"))
