@@ -21,6 +21,16 @@ def _loop(ax, points, **style) -> None:
     ax.plot(p[:, 0], p[:, 1], **style)
 
 
+def _blank_cuts(ax, blank) -> None:
+    """The blank's inner cut contours and cut circles (relief and pilot holes)."""
+    from matplotlib.patches import Circle
+
+    for loop in blank.inner:
+        _loop(ax, loop, color="tab:green", lw=0.7)
+    for c in blank.cut_circles:
+        ax.add_patch(Circle((c.x, c.y), c.d / 2, fill=False, color="tab:green", lw=0.6, ls="--"))
+
+
 def _mark_relief(ax, piece_analysis) -> None:
     """Flutes (▼) and notches (▲) at their positions along the die outline."""
     g = piece_analysis.piece
@@ -57,6 +67,7 @@ def piece_plot(rib_analysis, piece_analysis, path: str | Path) -> Path:
         r = np.asarray(g.relief_points)
         ax.plot(r[:, 0], r[:, 1], "s", mfc="none", color="tab:brown", ms=7, label="bend relief")
     _mark_relief(ax, piece_analysis)
+    _blank_cuts(ax, piece_analysis.blank)
     ax.plot([], [], "v", color="tab:cyan", label="flutes")
     ax.plot([], [], color="tab:orange", alpha=0.4, lw=6, label="joggle zones")
     ax.plot([], [], "o", color="tab:purple", mfc="none", label="lightening holes")
@@ -112,6 +123,7 @@ def preview_plot(rib_analysis, piece_analysis, path: str | Path) -> Path:
         colorbar.set_label("flange edge strain (|e|)")
         colorbar.ax.axhline(limit, color="tab:blue", lw=1.5)
     _mark_relief(top, piece_analysis)
+    _blank_cuts(top, piece_analysis.blank)
     for h in g.holes:
         top.add_patch(Circle((h.x, h.y), h.d / 2, fill=False, color="tab:purple", lw=0.8))
     for pin in g.pins:

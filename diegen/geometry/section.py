@@ -93,6 +93,9 @@ def normalise_with_index(points: ArrayLike, name: str = "<points>") -> tuple[Flo
     if len(chain) < 3:
         raise AirfoilError(f"{name}: only {len(chain)} distinct points, at least {MIN_POINTS} needed")
     closed = _te_is_closed(chain)
+    if not closed and _te_is_closed(chain[::-1]):  # the single TE point listed last: move it to the front
+        chain, index = np.roll(chain, 1, axis=0), np.roll(index, 1)
+        closed = True
     te = chain[0].copy() if closed else 0.5 * (chain[0] + chain[-1])
     distance = np.linalg.norm(chain - te, axis=1)
     i_le = int(np.argmax(distance))
