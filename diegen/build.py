@@ -108,6 +108,10 @@ class BuildLock:
 
     def __exit__(self, *exc: object) -> None:
         self.handle.close()
+        folder = self.path.parent
+        if [p.name for p in folder.iterdir()] == [LOCK]:  # nothing was built: leave no empty folder behind
+            self.path.unlink(missing_ok=True)
+            folder.rmdir()
 
 
 def remove_stale_temporaries(folder: Path) -> None:
@@ -215,11 +219,33 @@ def _piece_task(rib_spec: RibSpec, section: np.ndarray | None, index: int, folde
     start = time.perf_counter()
     rib = _analysed(rib_spec, section)
     piece = rib.pieces[index]
+    target = Path(folder) / piece.piece.part_id
+    existed = _files_in(target)
     try:
-        files = write_piece(rib, piece, Path(folder) / piece.piece.part_id, claimed)
+        files = write_piece(rib, piece, target, claimed)
         return piece.piece.part_id, files, "", time.perf_counter() - start
     except DiegenError as error:
+        _remove_new_files(target, existed)
         return piece.piece.part_id, (), str(error), time.perf_counter() - start
+
+
+def _files_in(folder: Path) -> set[str] | None:
+    """Names of the files in ``folder`` (None: the folder does not exist)."""
+    return {p.name for p in folder.iterdir() if p.is_file()} if folder.is_dir() else None
+
+
+def _remove_new_files(folder: Path, existed: set[str] | None) -> None:
+    """After a failed piece: delete the files this attempt created (a die STEP without its STL, say).
+
+    Files that were there before are left alone: they are earlier good output or somebody else's.
+    """
+    if not folder.is_dir():
+        return
+    for path in folder.iterdir():
+        if path.is_file() and (existed is None or path.name not in existed):
+            path.unlink(missing_ok=True)
+    if existed is None and not any(folder.iterdir()):
+        folder.rmdir()
 
 
 def _warm_worker() -> None:

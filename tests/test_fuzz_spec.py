@@ -30,7 +30,6 @@ import time
 import tracemalloc
 import traceback
 from collections import Counter
-from collections.abc import Callable
 from pathlib import Path
 from typing import Any
 
@@ -124,7 +123,7 @@ MALFORMED_QUANTITIES = [
     "1" + "0" * 80 + " mm", "1/" + "0" * 70 + "1 in", "9" * 30 + "/1 in", "1 " + " " * 200 + "in",
     "3 inchesinches", "3.2.1 mm", "+4 mm", ".5 in", "5. in", "1e3", "1E-3 m", "0 mm", "0.000001 mm",
 ]
-UNICODE_TEXT = ["Ünïcödé", "翼肋", "ребро", "\u202eevil", "\u0000"[:0] + "tab\there", "emoji \U0001F6E9", "a\u0301",
+UNICODE_TEXT = ["Ünïcödé", "翼肋", "ребро", "\u202eevil", "tab\there", "emoji \U0001F6E9", "a\u0301",
                 "\ufeffbom", "line\nbreak", "\\x00", "\u2028sep", "'quoted'", '"dq"', "#hash", "key: value", "- dash",
                 "&anchor", "*alias", "!tag", "%percent", "@at", "`tick`", "{brace}", "[bracket]", "|pipe", ">fold"]
 SPECIAL_FLOATS = [math.nan, math.inf, -math.inf, 0.0, -0.0, 1e308, -1e308, 5e-324, 1e-12, -1e-12, 1e15, 2.0**53]
@@ -303,7 +302,8 @@ def mutate_text(text: str, rng: random.Random) -> tuple[str, str]:
         lines[i], lines[j] = lines[j], lines[i]
     elif op == "junk_chars":
         i = rng.randrange(len(text) + 1)
-        junk = "".join(rng.choice(":-[]{},&*!|>'\"%@`#?\\ \n\t\x85\u2028\ufeff\x7f\x1b") for _ in range(rng.randint(1, 8)))
+        alphabet = ":-[]{},&*!|>'\"%@`#?\\ \n\t\x85\u2028\ufeff\x7f\x1b"
+        junk = "".join(rng.choice(alphabet) for _ in range(rng.randint(1, 8)))
         return text[:i] + junk + text[i:], op
     elif op == "indent" and lines:
         i = rng.randrange(len(lines))
@@ -397,7 +397,8 @@ def random_rib(rng: random.Random) -> dict[str, Any]:
         "pins": rng.choice(["auto", [{"x": round(rng.uniform(0, 40) * k, 2)} for _ in range(rng.randint(2, 3))]]),
         "relief": rng.choice(["flutes", "notches", "none"]),
         "die": {"material": rng.choice(["fibreboard", "solid-surface", "aluminium", "hdpe", "pla", "petg"]),
-                "stock_thickness": round(rng.uniform(0.25, 3) * k, 3), "cutter_diameter": round(rng.uniform(0.06, 1) * k, 3)},
+                "stock_thickness": round(rng.uniform(0.25, 3) * k, 3),
+                "cutter_diameter": round(rng.uniform(0.06, 1) * k, 3)},
         "press": {"force": f"{rng.choice([5, 10, 25, 50, 100, 500])} ton",
                   "box": [round(rng.uniform(4, 48) * k, 1), round(rng.uniform(4, 96) * k, 1)],
                   "rubber": {"durometer": rng.randint(20, 95), "thickness": round(rng.uniform(0.5, 4) * k, 2)}},
@@ -428,7 +429,8 @@ def random_wing(rng: random.Random, max_stations: int = 4) -> dict[str, Any]:
                         "stations": rng.choice([{"count": rng.randint(2, max_stations)},
                                                 sorted({round(rng.uniform(0, span), 1) for _ in range(max_stations)})]),
                         "rib_orientation": rng.choice(["streamwise", "normal-to-spar"])}
-    wing["airfoil"] = rng.choice([rib["airfoil"], {"root": f"naca {rng.choice(NACA)}", "tip": f"naca {rng.choice(NACA)}"}])
+    wing["airfoil"] = rng.choice([rib["airfoil"],
+                                  {"root": f"naca {rng.choice(NACA)}", "tip": f"naca {rng.choice(NACA)}"}])
     if rng.random() < 0.5:
         wing["overrides"] = [{"ribs": [1], "sheet": {"thickness": round(rng.uniform(0.02, 0.08) * k, 4)}},
                              {"ribs": [2], "lightening_holes": "none", "relief": "notches"}]
@@ -447,13 +449,16 @@ EDGE_VALUES: dict[tuple, list[Any]] = {
     ("spars", 0, "web"): ["0.001 mm", "1e-300 mm", 5e-324, "50 mm"],
     ("spars", 0, "cap_thickness"): [0, "25 mm", "0.001 mm", "1e-300 mm", 5e-324],
     ("spars", 0, "cap_width"): [0, "200 mm", "0.001 mm", "1e-300 mm", 5e-324],
-    ("lightening_holes",): [[{"x": "0.001 mm", "d": "0.001 mm"}], [{"x": "1e-300 mm", "d": 5e-324}], [{"x": "99999 mm", "d": "99999 mm"}],
+    ("lightening_holes",): [[{"x": "0.001 mm", "d": "0.001 mm"}], [{"x": "1e-300 mm", "d": 5e-324}],
+                            [{"x": "99999 mm", "d": "99999 mm"}],
                             [{"x": "100 mm", "d": "50 mm", "y": "-99999 mm"}],
                             [{"x": "100 mm", "d": "20 mm", "flange_height": "99999 mm"}],
                             [{"x": "100 mm", "d": "20 mm"}, {"x": "100 mm", "d": "20 mm"}]],
-    ("pins",): [[{"x": "0.001 mm"}, {"x": "99999 mm"}], [{"x": 5e-324}, {"x": "1e-300 mm"}], [{"x": "50 mm", "y": "-99999 mm"}, {"x": "60 mm"}],
+    ("pins",): [[{"x": "0.001 mm"}, {"x": "99999 mm"}], [{"x": 5e-324}, {"x": "1e-300 mm"}],
+                [{"x": "50 mm", "y": "-99999 mm"}, {"x": "60 mm"}],
                 [{"x": "100 mm"}, {"x": "100 mm"}]],
-    ("hole_rules",): [{"edge_margin": 0, "ligament": "0.001 mm", "min_diameter": "0.001 mm"}, {"ligament": 5e-324, "min_diameter": "1e-300 mm"},
+    ("hole_rules",): [{"edge_margin": 0, "ligament": "0.001 mm", "min_diameter": "0.001 mm"},
+                      {"ligament": 5e-324, "min_diameter": "1e-300 mm"},
                       {"edge_margin": "99999 mm"}, {"min_diameter": "99999 mm"}, {"flange_height": "99999 mm"}],
     ("dowel_diameter",): ["0.001 mm", "1e-300 mm", 5e-324, "25.4 mm"],
     ("joggle_runout",): [1, 20],
@@ -473,7 +478,8 @@ EDGE_VALUES: dict[tuple, list[Any]] = {
     ("planform", "root_chord"): ["0.001 mm", "1e-300 mm", 5e-324],
     ("planform", "sweep"): [-60, 60],
     ("planform", "sweep_line"): [0, 1],
-    ("planform", "stations"): [{"pitch": "0.001 mm"}, {"pitch": "1e-300 mm"}, {"pitch": "99999 mm"}, {"count": 2}, [0, "0.001 mm"], [0, 5e-324]],
+    ("planform", "stations"): [{"pitch": "0.001 mm"}, {"pitch": "1e-300 mm"}, {"pitch": "99999 mm"}, {"count": 2},
+                               [0, "0.001 mm"], [0, 5e-324]],
 }
 
 
@@ -559,12 +565,103 @@ def run_random_analyses(ribs: int, wings: int, seed: int, edges: int = 0) -> tup
         if kind != "valid":
             counts[f"spec rejected: {first_problem_kind(result)}"] += 1
             continue
-        try:
-            counts[f"analyse: {analyse_outcome(result)}"] += 1
-        except Exception as error:  # noqa: BLE001 - the property under test
-            counts[f"analyse ESCAPE: {type(error).__name__}"] += 1
-            escapes.append((text, "".join(traceback.format_exception(error))))
+        analyse_and_count(result, text, counts, escapes)
     return counts, escapes
+
+
+def analyse_and_count(spec: Any, text: str, counts: Counter, escapes: list[tuple[str, str]]) -> None:
+    """Analyse one valid spec; count the outcome; a known escape is counted, a new one also listed."""
+    try:
+        counts[f"analyse: {analyse_outcome(spec)}"] += 1
+    except Exception as error:  # noqa: BLE001 - the property under test
+        known = _is_known(error)
+        counts[f"analyse {'known ' if known else ''}ESCAPE: {type(error).__name__} in "
+               f"{_innermost_diegen_function(error)}"] += 1
+        if not known:
+            escapes.append((text, "".join(traceback.format_exception(error))))
+
+
+# Specs that validate but make the analysis raise a non-DiegenError (found by the loops below; the
+# fix belongs in the geometry / forming layers).  name: (spec text, exception, innermost diegen function).
+KNOWN_ANALYSIS_ESCAPES: dict[str, tuple[str, type[Exception], str]] = {
+    "denormal die stock": (DEMO_RIB_TEXT.replace("stock_thickness: 0.5", "stock_thickness: 5e-324"),
+                           OverflowError, "die_layers"),
+    "rubber box area underflows to 0": (DEMO_RIB_TEXT.replace("box: [12, 10]", "box: [1e-200, 1e-200]"),
+                                        ZeroDivisionError, "box_pressure"),
+    "tip chord rounds the tip rib to 0": (DEMO_WING_TEXT.replace("tip_chord: 36", "tip_chord: 1e-300"),
+                                          ZeroDivisionError, "stations"),
+}
+
+
+def _innermost_diegen_function(error: BaseException) -> str:
+    frames = [f for f in traceback.extract_tb(error.__traceback__) if f"{os.sep}diegen{os.sep}" in f.filename]
+    return frames[-1].name if frames else "?"
+
+
+def _is_known(error: BaseException) -> bool:
+    return any(isinstance(error, exc) and _innermost_diegen_function(error) == where
+               for _, exc, where in KNOWN_ANALYSIS_ESCAPES.values())
+
+
+@pytest.mark.parametrize("name", [
+    pytest.param(name, marks=pytest.mark.xfail(raises=exc, strict=True, reason=f"raw {exc.__name__} in {where}()"))
+    for name, (_, exc, where) in KNOWN_ANALYSIS_ESCAPES.items()])
+def test_known_analysis_escapes(name):
+    """Each validates; the analysis must end in success or a DiegenError (strict xfail until that is fixed)."""
+    text, _, _ = KNOWN_ANALYSIS_ESCAPES[name]
+    kind, spec = outcome(text)
+    assert kind == "valid"
+    analyse_outcome(spec)
+
+
+def _rib(old: str, new: str) -> str:
+    assert old in DEMO_RIB_TEXT, old
+    return DEMO_RIB_TEXT.replace(old, new, 1)
+
+
+def _wing(old: str, new: str) -> str:
+    assert old in DEMO_WING_TEXT, old
+    return DEMO_WING_TEXT.replace(old, new, 1)
+
+
+# Inputs that once escaped as a raw exception or were accepted wrongly: (text, key path, message fragment).
+LOADER_REGRESSIONS = {
+    "integer beyond float range": (_rib("chord: 40", "chord: 1" + "0" * 400), "chord", "finite"),
+    "integer beyond float range (number)": (_rib("durometer: 55", "durometer: 1" + "0" * 400),
+                                            "press.rubber.durometer", "finite"),
+    "integer beyond float range (whole)": (_rib("airfoil: naca 2412", "airfoil: {naca: '2412', points: 1"
+                                                + "0" * 400 + "}"), "airfoil.points", "finite"),
+    "integer over the digit limit": (_rib("chord: 40", "chord: 1" + "0" * 5_000), "", "cannot read value"),
+    "month 13": (_rib("chord: 40", "chord: 2001-13-45"), "", "cannot read value"),
+    "stations with an unknown key only": (_wing("{count: 13}", "{bend: 13}"), "planform.stations",
+                                          "exactly one of 'count' or 'pitch'"),
+    "pitch giving a million ribs": (_wing("{count: 13}", '{pitch: "0.001 mm"}'), "planform.stations", "at most 200"),
+    "bad holes with overrides": (_wing("lightening_holes: auto", "lightening_holes: bogus"), "lightening_holes",
+                                 "expected one of"),
+    "bad pins with overrides": (_wing("pins: auto", "pins: bogus"), "pins", "expected one of"),
+    "centre listed twice": (_rib("[nose, center, tail]", "[centre, center, tail]"), "pieces[1]", "twice"),
+    "octal naca": (_rib("airfoil: naca 2412", "airfoil: {naca: 0012}"), "airfoil.naca", "in quotes"),
+    "naca as a list": (_rib("airfoil: naca 2412", "airfoil: {naca: [2412]}"), "airfoil.naca", "4 or 5 digits"),
+    "file name too long": (_rib("airfoil: naca 2412", "airfoil: {file: " + "a" * 5_000 + "}"), "airfoil.file",
+                           "file name"),
+    "file name with NUL": (_rib("airfoil: naca 2412", 'airfoil: {file: "a\\0b"}'), "airfoil.file", "file name"),
+    "length as a list of aliases": (_rib("chord: 40", "chord: &c [40, 41]\nx: *c"), "chord", "found a list"),
+    "quantity of 100 000 spaces": (_rib('"3/32 in"', '"3/32' + " " * 100_000 + '!"'), "flange.bend_radius",
+                                   "character string"),
+    "naca of 100 000 spaces": (_rib("airfoil: naca 2412", 'airfoil: "naca' + " " * 100_000 + 'x"'), "airfoil",
+                               "expected 'naca'"),
+    "control character": (_rib("id: T1", "id: T\x071"), "", "not a text file"),
+}
+
+
+@pytest.mark.parametrize("name", list(LOADER_REGRESSIONS))
+def test_loader_regressions(name):
+    text, key, fragment = LOADER_REGRESSIONS[name]
+    start = time.perf_counter()
+    kind, error = outcome(text)
+    assert time.perf_counter() - start < REFUSE_SECONDS
+    assert kind == "SpecError"
+    assert any(fragment in p.message and p.key.startswith(key) for p in error.problems), error
 
 
 # ----------------------------------------------------------------------------- quick tier
@@ -586,9 +683,10 @@ def test_arbitrary_text(text):
 
 YAML_SCALARS = st.one_of(st.none(), st.booleans(), st.integers(), st.floats(allow_nan=True, allow_infinity=True),
                          st.text(max_size=30), st.sampled_from(MALFORMED_QUANTITIES))
-YAML_TREES = st.recursive(YAML_SCALARS, lambda inner: st.one_of(st.lists(inner, max_size=5),
-                                                                 st.dictionaries(st.text(max_size=12), inner, max_size=5)),
-                          max_leaves=20)
+YAML_TREES = st.recursive(
+    YAML_SCALARS,
+    lambda inner: st.one_of(st.lists(inner, max_size=5), st.dictionaries(st.text(max_size=12), inner, max_size=5)),
+    max_leaves=20)
 DEMO_KEYS = sorted({p[-1] for base in (DEMO_RIB, DEMO_WING) for p in _paths(base) if isinstance(p[-1], str)})
 
 
@@ -659,7 +757,8 @@ HOSTILE = {
                     "after expanding"),
     "deep flow list": ("kind: rib\nunits: in\nx: " + "[" * 100_000 + "]" * 100_000, "nested deeper"),
     "deep flow map": ("kind: rib\nunits: in\nx: " + "{a: " * 30_000 + "1" + "}" * 30_000, "nested deeper"),
-    "deep block": ("kind: rib\nunits: in\nx:\n" + "".join(" " * (i + 2) + "-\n" for i in range(0, 400, 2)), "nested deeper"),
+    "deep block": ("kind: rib\nunits: in\nx:\n" + "".join(" " * (i + 2) + "-\n" for i in range(0, 400, 2)),
+                   "nested deeper"),
     "too many values": (_many_values(MAX_NODES + 10), "spec too large"),
     "many block items": ("kind: rib\nunits: in\nx:\n" + "- 1\n" * 60_000, "spec too large"),
     "over the size limit": ("a: " + "x" * (MAX_FILE_BYTES + 10), "larger than"),
@@ -820,8 +919,12 @@ def test_any_value_for_any_key_many(base, key, value):
 
 @pytest.mark.slow
 def test_random_specs_analyse_many():
-    counts, escapes = run_random_analyses(ribs=40, wings=8, seed=20)
-    print_counts("in-range random specs, analysed: 48 cases", counts)
+    """In-range random specs, specs at the schema's bounds and valid mutated demo specs: analysed."""
+    counts, escapes = run_random_analyses(ribs=60, wings=10, seed=20, edges=250)
+    _, valid, _ = run_mutations(1_200, seed=21)
+    for text in valid[:60]:
+        analyse_and_count(outcome(text)[1], text, counts, escapes)
+    print_counts(f"specs analysed: 320 random and edge, {min(60, len(valid))} valid mutated", counts)
     if escapes:
         summary = Counter(trace.strip().splitlines()[-1] for _, trace in escapes)
         text, trace = escapes[0]
@@ -832,16 +935,13 @@ def test_random_specs_analyse_many():
 def test_cli_check_many(tmp_path):
     """``diegen check`` on 30 mutated files: exit 0 or 2, no traceback, bounded time."""
     rng = random.Random(12)
+    texts = [mutated_spec(rng)[0] for _ in range(20)]  # mostly rejected
+    while len(texts) < 30:  # and ten that validate, so the analysis runs too
+        text = dump(random_rib(rng) if len(texts) % 4 else random_wing(rng, max_stations=3))
+        if outcome(text)[0] == "valid":
+            texts.append(text)
     paths = []
-    while len(paths) < 30:
-        text, label = mutated_spec(rng)
-        try:
-            kind, result = outcome(text)
-        except Escape:
-            kind = "escape"
-        if kind == "valid" and isinstance(result, WingSpec) and len(paths) % 3:
-            continue  # keep the run short: only some valid wings (each rib is analysed)
-        path = tmp_path / f"m{len(paths):02d}.yaml"
-        path.write_text(text, encoding="utf-8", errors="surrogatepass")
+    for i, text in enumerate(texts):
+        (path := tmp_path / f"m{i:02d}.yaml").write_text(text, encoding="utf-8", errors="surrogatepass")
         paths.append(path)
     print_counts("diegen check on 30 mutated specs", _assert_cli_results(_cli(paths)))

@@ -46,6 +46,7 @@ MAX_FILE_BYTES = 5 * 1024 * 1024  # size guard: refuse larger files unread
 MAX_POINTS = 100_000  # size guard: refuse files with more coordinate rows
 PERCENT_THRESHOLD = 1.5  # any |value| above this means the data is in percent of chord
 X_REVERSAL_TOL = 1e-3  # a surface may step back in x by at most this (fraction of chord)
+MAX_ABS_COORDINATE = 1e9  # size guard: no coordinate file (fractions, percent or mm) holds a larger number
 
 _SEPARATORS = re.compile(r"[\s,;]+")
 
@@ -85,7 +86,7 @@ def _read_rows(text: str, name: str) -> _Rows:
         if not content:
             continue
         tokens = [t for t in _SEPARATORS.split(content) if t]
-        numbers = [_number(t) for t in tokens]
+        numbers = [_number(t) for t in tokens] if len(tokens) == 2 else []
         if len(numbers) != 2 or any(v is None for v in numbers):
             if values and stray is None:
                 stray = (line_no, content)
@@ -95,7 +96,10 @@ def _read_rows(text: str, name: str) -> _Rows:
             raise AirfoilError(f"{name}:{stray[0]}: expected two numbers 'x y', found {shown!r}")
         x, y = float(numbers[0]), float(numbers[1])  # type: ignore[arg-type]
         if not (np.isfinite(x) and np.isfinite(y)):
-            raise AirfoilError(f"{name}:{line_no}: coordinates must be finite numbers, found {content!r}")
+            raise AirfoilError(f"{name}:{line_no}: coordinates must be finite numbers, found {content[:60]!r}")
+        if max(abs(x), abs(y)) > MAX_ABS_COORDINATE:
+            raise AirfoilError(f"{name}:{line_no}: coordinate larger than {MAX_ABS_COORDINATE:g}, "
+                               f"found {content[:60]!r}")
         values.append((x, y))
         lines.append(line_no)
         last_line = line_no

@@ -98,6 +98,7 @@ def _inset(x: np.ndarray, joggles: Sequence[Joggle]) -> np.ndarray:
         for edge, sign in ((j.x_start_mm, -1.0), (j.x_end_mm, 1.0)):
             u = 1.0 - (x - edge) * sign / j.ramp_mm  # 1 at the zone edge, 0 at the ramp's far end
             in_ramp = (u > 0) & (u < 1) & ~full
+            u = np.clip(u, 0.0, 1.0)
             value = np.where(in_ramp, j.depth_mm * (3 * u**2 - 2 * u**3), value)
         inset = np.maximum(inset, value)
     return inset

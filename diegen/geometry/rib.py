@@ -109,7 +109,10 @@ def _piece(spec: RibSpec, name: str, x0: float | None, x1: float, aft_flanged: b
         raise GeometryError(f"the {name} piece of rib {spec.id} has no length (from x = {lo:.1f} to {x1:.1f} mm; "
                             f"at least 1.0 mm needed){why}")
     joggles = joggles_for(lo, x1, spars, shared.joggle_runout, shared.die.cutter_diameter_mm / 2)
-    runs = piece_runs(upper, lower, x0, x1, joggles, aft_flanged)
+    try:
+        runs = piece_runs(upper, lower, x0, x1, joggles, aft_flanged)
+    except GeometryError as error:
+        raise GeometryError(f"the {name} piece of rib {spec.id}: {error}") from None
     points = [p for run in runs for p in run.points[:-1]]
     polygon = Polygon(points)
     if not polygon.is_valid or polygon.area <= 0:

@@ -32,6 +32,13 @@ DUPLICATE_TOL = 1e-9
 # surface into a single (closed) trailing-edge point; an open trailing edge has
 # a base roughly square to the surface (degrees).
 _CLOSED_TE_ANGLE = 45.0
+# A closed TE's closing segment (last point -> the TE point) is at most this many times as long as
+# the segments beside it; a longer one means the file stops part-way along a surface (truncated).
+_CLOSED_TE_SEGMENT_RATIO = 5.0
+_CLOSED_TE_MIN_SHORTFALL = 0.02  # ... and longer than this fraction of the chord (a shorter one changes nothing)
+# An open TE's base (the gap between the two trailing-edge ends) is at most this fraction of the chord
+# (common practice, no source: real trailing edges are a few per cent thick at most).
+MAX_TE_GAP = 0.1
 # Two re-sampled TE points closer than this (fraction of chord) are one point.
 _TE_MERGE_TOL = 1e-9
 # Samples of the spline per input segment used to measure its arc length.
@@ -86,6 +93,21 @@ def _drop_duplicates(chain: FloatArray, index: IntArray) -> tuple[FloatArray, In
     return chain, index
 
 
+def _check_ends(chain: FloatArray, closed: bool, chord: float, name: str) -> None:
+    """Refuse a chain whose two ends do not meet at a trailing edge (a truncated file, most often)."""
+    closing = float(np.linalg.norm(chain[0] - chain[-1]))
+    if closed:
+        beside = max(float(np.linalg.norm(chain[1] - chain[0])), float(np.linalg.norm(chain[-1] - chain[-2])))
+        if closing > max(_CLOSED_TE_SEGMENT_RATIO * beside, _CLOSED_TE_MIN_SHORTFALL * chord):
+            raise AirfoilError(f"{name}: the outline stops {closing / chord:.3f} chord short of the trailing edge "
+                               "(is the file truncated?); list the points from the trailing edge round the leading "
+                               "edge and back to the trailing edge")
+    elif closing > MAX_TE_GAP * chord:
+        raise AirfoilError(f"{name}: the two ends of the outline are {closing / chord:.3f} chord apart, more than "
+                           f"the {MAX_TE_GAP:g} chord a trailing edge may be thick (is the file truncated?); list the "
+                           "points from the trailing edge round the leading edge and back to the trailing edge")
+
+
 def normalise_with_index(points: ArrayLike, name: str = "<points>") -> tuple[FloatArray, IntArray]:
     """Like :func:`normalise`, also returning, for each loop point, its row in ``points``."""
     chain = _as_points(points, name)
@@ -102,6 +124,7 @@ def normalise_with_index(points: ArrayLike, name: str = "<points>") -> tuple[Flo
     chord = float(distance[i_le])
     if chord <= 0.0:
         raise AirfoilError(f"{name}: all points coincide, the section has no chord")
+    _check_ends(chain, closed, chord, name)
     le = chain[i_le].copy()
     cos_a, sin_a = (te - le) / chord
     rotate = np.array([[cos_a, -sin_a], [sin_a, cos_a]])  # row-vector form: p @ rotate
@@ -271,7 +294,9 @@ def resample(loop: ArrayLike, n_points: int = 241) -> FloatArray:
     same ``n_points`` has the same per-surface arc-length fractions: point k of
     one corresponds to point k of another (see :func:`blend`).
     """
-    return _assemble(*_resample_surfaces(loop, n_points))
+    result = _assemble(*_resample_surfaces(loop, n_points))
+    validate(result, "re-sampled section")  # a spline through a very odd outline can overshoot into itself
+    return result
 
 
 def blend(root_loop: ArrayLike, tip_loop: ArrayLike, fraction: float, n_points: int = 241) -> FloatArray:

@@ -99,10 +99,12 @@ def read_airfoil(r: Reader, node: YNode | None, path: str, spec_dir: Path) -> Ai
     if has_naca:
         naca_node = fields["naca"]
         if isinstance(naca_node.value, bool) or not isinstance(naca_node.value, (str, int)):
-            r.problem(naca_node, join(path, "naca"), f"expected 4 or 5 digits such as '2412', found {describe(naca_node)}")
+            r.problem(naca_node, join(path, "naca"),
+                      f"expected 4 or 5 digits such as '2412', found {describe(naca_node)}")
             return None
         if isinstance(naca_node.value, int) and not 1000 <= naca_node.value <= 99999:
-            r.problem(naca_node, join(path, "naca"), f"expected 4 or 5 digits such as '2412', found {describe(naca_node)}: "
+            r.problem(naca_node, join(path, "naca"),
+                      f"expected 4 or 5 digits such as '2412', found {describe(naca_node)}: "
                       "write the digits in quotes ('0012'; YAML reads a bare 0012 as the octal number 10)")
             return None
         return _naca(r, naca_node, join(path, "naca"), str(naca_node.value), base)
@@ -113,7 +115,8 @@ def read_airfoil(r: Reader, node: YNode | None, path: str, spec_dir: Path) -> Ai
         file_path = (spec_dir / file_text).resolve()
         found = file_path.is_file()
     except (OSError, ValueError) as exc:  # a name too long for the file system, a NUL character
-        r.problem(fields["file"], join(path, "file"), f"not a usable file name ({getattr(exc, 'strerror', None) or exc})")
+        reason = getattr(exc, "strerror", None) or exc
+        r.problem(fields["file"], join(path, "file"), f"not a usable file name ({reason})")
         return None
     if not found:
         r.problem(fields["file"], join(path, "file"), f"airfoil file not found: {file_path}")
@@ -125,7 +128,8 @@ def _naca(r: Reader, node: YNode, path: str, text: str, base: AirfoilSource) -> 
     match = NACA_PATTERN.match(text.strip())
     if not match:
         shown = text if len(text) <= 40 else text[:37] + "..."
-        r.problem(node, path, f"expected 'naca' and 4 or 5 digits (e.g. 'naca 2412') or {{file: path}}, found {shown!r}")
+        r.problem(node, path,
+                  f"expected 'naca' and 4 or 5 digits (e.g. 'naca 2412') or {{file: path}}, found {shown!r}")
         return None
     return replace(base, naca=match[1])
 
