@@ -17,6 +17,7 @@ from diegen.errors import Problem
 from diegen.spec.yamltree import YNode
 
 T = TypeVar("T")
+MIN_LENGTH_MM = 0.001
 
 
 def describe(value: Any) -> str:
@@ -109,13 +110,21 @@ class Reader:
 
     def length(self, node: YNode | None, path: str, low: float = 0.0, low_open: bool = True,
                high: float | None = 100_000.0) -> float | None:
-        """A length: bare number in the spec's units or a string with a unit; returns mm."""
+        """A length: bare number in the spec's units or a string with a unit; returns mm.
+
+        A length that must be positive must also be at least :data:`MIN_LENGTH_MM`:
+        nothing in a rib, a die or a press is thinner than a micrometre, and smaller
+        values only underflow later arithmetic.
+        """
         if node is None:
             return None
         try:
             value = units.length_mm(node.value, self.units)
         except units.UnitError as exc:
             self.problem(node, path, str(exc))
+            return None
+        if low == 0.0 and low_open and 0.0 < value < MIN_LENGTH_MM:
+            self.problem(node, path, f"expected a length of at least {MIN_LENGTH_MM:g} mm, found {value:g} mm")
             return None
         return self._bounded(node, path, value, low, high, low_open, False, " mm")
 
