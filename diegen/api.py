@@ -67,9 +67,9 @@ def report_json(analysis: Analysis) -> dict[str, Any]:
 
 def report_text(analysis: Analysis) -> str:
     """The readable forming report."""
-    from diegen.report import rib_text
+    from diegen.report import footer_text, rib_text
 
-    return "\n\n".join(rib_text(r) for r in _ribs(analysis))
+    return "\n\n".join([rib_text(r, footer=False) for r in _ribs(analysis)] + [footer_text()])
 
 
 def write_plots(analysis: Analysis, out_dir: str | Path) -> list[Path]:

@@ -146,9 +146,15 @@ def piece_text(rib: RibAnalysis, p: PieceAnalysis) -> str:
     return "\n".join(lines)
 
 
-def rib_text(rib: RibAnalysis) -> str:
+def footer_text() -> str:
+    """Which model each number comes from, and the safety cautions."""
+    models = ["Models behind the numbers:"] + [f"  {name.replace('_', ' ')}: {text}" for name, text in MODELS.items()]
+    return "\n".join(models + ["", "Safety: " + SAFETY])
+
+
+def rib_text(rib: RibAnalysis, footer: bool = True) -> str:
     head = [f"diegen {__version__} — rib {rib.spec.id}" + (f": {rib.spec.title}" if rib.spec.title else ""),
             f"  {rib.spec.airfoil.label}, chord {_len(rib.spec.chord_mm, rib.spec.units)}, "
             f"{rib.spec.shared.sheet.alloy} {_len(rib.spec.shared.sheet.thickness_mm, rib.spec.units)}"]
     head += [f"  warning: {w}" for w in rib.geometry.warnings]
-    return "\n".join(head + [piece_text(rib, p) for p in rib.pieces] + ["", "Safety: " + SAFETY])
+    return "\n".join(head + [piece_text(rib, p) for p in rib.pieces] + (["", footer_text()] if footer else []))
