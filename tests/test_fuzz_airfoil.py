@@ -25,8 +25,7 @@ from __future__ import annotations
 import math
 import random
 import re
-import time
-import tracemalloc
+from testing import timed_with_peak
 from collections import Counter
 from pathlib import Path
 
@@ -451,15 +450,7 @@ def hostile_files(scale: float) -> dict[str, str]:
 
 def check_hostile(cases: dict[str, str]) -> None:
     for name, text in cases.items():
-        start = time.perf_counter()
-        kind, _ = outcome(text)
-        seconds = time.perf_counter() - start
-        tracemalloc.start()  # a second run for the memory peak: tracing slows Python several times over
-        try:
-            outcome(text)
-            peak = tracemalloc.get_traced_memory()[1]
-        finally:
-            tracemalloc.stop()
+        (kind, _), seconds, peak = timed_with_peak(outcome, text)
         print(f"{name}: {len(text)} characters, {seconds:.3f} s, peak {peak / 2**20:.1f} MB, {kind}")
         assert seconds < REFUSE_SECONDS, name
         assert peak < REFUSE_PEAK_BYTES, name

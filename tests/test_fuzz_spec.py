@@ -27,11 +27,12 @@ import random
 import subprocess
 import sys
 import time
-import tracemalloc
 import traceback
 from collections import Counter
 from pathlib import Path
 from typing import Any
+
+from testing import timed_with_peak
 
 import pytest
 import yaml
@@ -569,6 +570,11 @@ def run_random_analyses(ribs: int, wings: int, seed: int, edges: int = 0) -> tup
     return counts, escapes
 
 
+def _innermost_diegen_function(error: BaseException) -> str:
+    frames = [f for f in traceback.extract_tb(error.__traceback__) if f"{os.sep}diegen{os.sep}" in f.filename]
+    return frames[-1].name if frames else "?"
+
+
 def analyse_and_count(spec: Any, text: str, counts: Counter, escapes: list[tuple[str, str]]) -> None:
     """Analyse one valid spec; count the outcome; an escape is counted and listed."""
     try:
@@ -775,15 +781,7 @@ SLOW_HOSTILE = {"deep flow list", "too many values", "many block items", "huge p
 def test_hostile_input_refused_quickly(name):
     """Alias bombs, deep nesting and huge inputs: refused (or read) within the safety bounds."""
     text, fragment = HOSTILE[name]
-    start = time.perf_counter()
-    kind, result = outcome(text)
-    seconds = time.perf_counter() - start
-    tracemalloc.start()  # a second run for the memory peak: tracing slows Python several times over
-    try:
-        outcome(text)
-        peak = tracemalloc.get_traced_memory()[1]
-    finally:
-        tracemalloc.stop()
+    (kind, result), seconds, peak = timed_with_peak(outcome, text)
     print(f"{name}: {len(text)} characters, {seconds:.3f} s, peak {peak / 2**20:.1f} MB, {kind}")
     assert kind == "SpecError" or not fragment
     if fragment:

@@ -110,3 +110,23 @@ def circle_points(radius: float, n: int, centre: tuple[float, float] = (0.0, 0.0
 
 def point(p: Sequence[float]) -> Point:
     return Point(float(p[0]), float(p[1]))
+
+
+def timed_with_peak(function, *args):
+    """Call ``function(*args)``: (result, seconds, peak traced memory in bytes).
+
+    The peak comes from a second call, since tracing slows Python several times over.
+    """
+    import time
+    import tracemalloc
+
+    start = time.perf_counter()
+    result = function(*args)
+    seconds = time.perf_counter() - start
+    tracemalloc.start()
+    try:
+        function(*args)
+        peak = tracemalloc.get_traced_memory()[1]
+    finally:
+        tracemalloc.stop()
+    return result, seconds, peak

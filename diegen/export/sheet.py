@@ -99,7 +99,7 @@ def shop_sheet(rib: RibAnalysis, piece: PieceAnalysis, die_notes: Sequence[str] 
         "pin holes).",
         "* Drill the corner relief holes and pilot holes, deburr every edge. Mark the bend lines (SCRIBE layer) with a "
         "fine marker; do not scratch 2000-series or clad sheet — scratches start cracks (common practice).",
-        f"* Pilot holes for flanged lightening holes: " +
+        "* Pilot holes for flanged lightening holes: " +
         (", ".join(f"Ø{c.pilot_d_mm:.1f} mm" for h, c in zip(g.holes, piece.holes) if h.flanged) or "none") + ".",
         "",
         "## 5. Forming",
