@@ -199,9 +199,11 @@ def _analyse_piece(spec: RibSpec, piece: PieceGeometry, alloy: materials.SheetAl
         warnings.append(f"{piece.part_id}: die stock {shared.die.stock_thickness_mm:.1f} mm is thinner than the flange "
                         f"height {shared.flange.height_mm:.1f} mm + {STOCK_CLEARANCE_MM:.0f} mm clearance: laminate "
                         f"{layers} layers ({layers * shared.die.stock_thickness_mm:.1f} mm)")
-    offset = layout.developed_width_mm - springback.die_radius_mm
+    tangent_inset = springback.die_radius_mm * math.tan(math.radians(springback.die_angle_deg) / 2)
+    offset = layout.developed_width_mm - tangent_inset
     cuts = [notch_polygon(piece, n.s_mm, n.opening_mm, n.depth_mm, offset) for n in notches]
-    blank = develop_blank(piece, offset_mm=offset, die_radius_mm=springback.die_radius_mm, thickness_mm=t,
+    blank = develop_blank(piece, offset_mm=offset, die_radius_mm=springback.die_radius_mm,
+                          tangent_inset_mm=tangent_inset, thickness_mm=t,
                           material=f"{alloy.name}, {t:.3f} mm", pilot_diameters=[h.pilot_d_mm for h in holes],
                           notch_cuts=cuts)
     blank = replace(blank, grain_angle_deg=GRAIN_ANGLE_DEG)

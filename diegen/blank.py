@@ -2,9 +2,11 @@
 
 The blank is the web (the die's top face) plus, along every flanged edge, the
 developed flange: bend allowance + straight leg (FAA-H-8083-31, ch. 4), laid
-out along the true normal of the die outline.  The web's bend tangent line lies
-one die radius inside the die wall, so the blank edge stands
-``developed width − die radius`` outside the die outline.
+out along the true normal of the die outline (the die's mold line).  On the die
+the web ends at the tangent line of the top-edge radius, Ri·tan(θi/2) inside the
+mold line for a bend through the die angle θi; the bend's neutral-line length is
+the same before and after springback, so the blank edge stands
+``developed width − Ri·tan(θi/2)`` outside the die outline.
 
 Corners where a perimeter flange meets an end flange get a relief: the
 overlapping corner square is cut away and a relief hole is drilled at the
@@ -65,11 +67,13 @@ def _tangent_point(piece: PieceGeometry, corner: Point, inset: float) -> Point:
     return float(p[0]), float(p[1])
 
 
-def develop_blank(piece: PieceGeometry, *, offset_mm: float, die_radius_mm: float, thickness_mm: float,
+def develop_blank(piece: PieceGeometry, *, offset_mm: float, die_radius_mm: float, tangent_inset_mm: float,
+                  thickness_mm: float,
                   material: str, pilot_diameters: Sequence[float], notch_cuts: Sequence[Polygon] = ()) -> BlankDrawing:
     """The flat blank of ``piece`` (mm).
 
     ``offset_mm`` is the distance from the die outline to the blank edge;
+    ``tangent_inset_mm`` how far inside the die outline the web's bend tangent line lies (the bend lines);
     ``pilot_diameters`` gives, per hole of the piece, the pilot hole for a
     flanged hole (ignored for plain holes, which are cut to size).
     """
@@ -84,7 +88,7 @@ def develop_blank(piece: PieceGeometry, *, offset_mm: float, die_radius_mm: floa
     reliefs = []
     for corner in piece.relief_points:
         blank = blank.difference(_corner_cut(piece, corner, offset_mm + relief_d))
-        x, y = _tangent_point(piece, corner, die_radius_mm)
+        x, y = _tangent_point(piece, corner, tangent_inset_mm)
         reliefs.append(Circle(x, y, relief_d))
     for cut in notch_cuts:
         blank = blank.difference(cut)
@@ -96,7 +100,7 @@ def develop_blank(piece: PieceGeometry, *, offset_mm: float, die_radius_mm: floa
     scribe = []
     for run in piece.runs:
         if run.flanged and len(run.points) >= 2:
-            line = LineString(run.points).offset_curve(die_radius_mm, quad_segs=QUAD_SEGS, join_style="round")
+            line = LineString(run.points).offset_curve(tangent_inset_mm, quad_segs=QUAD_SEGS, join_style="round")
             for part in getattr(line, "geoms", [line]):
                 scribe.append(tuple((float(x), float(y)) for x, y in part.coords))
     outer = tuple((float(x), float(y)) for x, y in np.asarray(blank.exterior.coords)[:-1])

@@ -51,9 +51,15 @@ def analysis() -> RibAnalysis:
     return result
 
 
+def tangent_inset(p: PieceAnalysis) -> float:
+    """Die outline (mold line) → the web's bend tangent line on the die (mm): Ri·tan(θi/2) for a bend
+    through the die angle θi (the inside setback of a bend, FAA-H-8083-31 ch. 4 with K = tan(θ/2))."""
+    return p.springback.die_radius_mm * math.tan(math.radians(p.springback.die_angle_deg) / 2)
+
+
 def offset_of(p: PieceAnalysis) -> float:
-    """Die outline → blank edge (mm): developed flange width less the die's top-edge radius."""
-    return p.layout.developed_width_mm - p.springback.die_radius_mm
+    """Die outline → blank edge (mm): developed flange width less the tangent-line inset on the die."""
+    return p.layout.developed_width_mm - tangent_inset(p)
 
 
 def _right_normal(v: np.ndarray) -> np.ndarray:
@@ -144,7 +150,7 @@ def test_blank_of_a_disc_follows_steiner(n: int) -> None:
     # as n grows that tends to Steiner's L·w + π·w² (n = 720: relative difference 6e-6).
     rho, w = 60.0, 11.5
     disc = _circle_piece(rho, n)
-    blank = develop_blank(disc, offset_mm=w, die_radius_mm=2.0, thickness_mm=0.635, material="test", pilot_diameters=[])
+    blank = develop_blank(disc, offset_mm=w, die_radius_mm=2.0, tangent_inset_mm=2.0, thickness_mm=0.635, material="test", pilot_diameters=[])
     length = n * 2 * rho * math.sin(math.pi / n)
     band = flange_band_area(blank, disc)
     assert band == pytest.approx(length * w + w**2 * n * math.tan(math.pi / n), rel=1e-9)
@@ -181,11 +187,11 @@ def test_relief_corners_are_cut_and_drilled(analysis: RibAnalysis, name: str) ->
         d_in, d_out = (c - before) / np.linalg.norm(c - before), (after - c) / np.linalg.norm(after - c)
         assert shape.contains(point(c + 0.5 * w * n_in - 1.0 * d_in))
         assert shape.contains(point(c + 0.5 * w * n_out + 1.0 * d_out))
-        # the relief hole: diameter as above, centre r_die inside both edges (the bend tangent lines on the web)
+        # the relief hole: diameter as above, centre on both bend tangent lines of the web
         assert hole.d == pytest.approx(relief_d)
         for a, b in ((before, c), (c, after)):
             assert LineString([a - 100 * (c - a), b + 100 * (b - a)]).distance(point((hole.x, hole.y))) == \
-                pytest.approx(r_die, abs=1e-6)
+                pytest.approx(tangent_inset(p), abs=1e-6)
 
 
 def test_tail_blank_stops_at_the_cut_end(analysis: RibAnalysis) -> None:
