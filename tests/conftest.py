@@ -5,6 +5,15 @@ from __future__ import annotations
 import pytest
 
 
+def pytest_terminal_summary(terminalreporter):
+    from testing import REPORTED
+
+    if REPORTED:
+        terminalreporter.section("counts")
+        for line in REPORTED:
+            terminalreporter.write_line(line.strip("\n"))
+
+
 def pytest_report_header(config):
     import shapely
 

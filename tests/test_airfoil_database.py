@@ -15,6 +15,7 @@ from pathlib import Path
 
 import numpy as np
 import pytest
+from testing import report
 
 from diegen.errors import AirfoilError
 from diegen.geometry.coordfile import read_coordinates
@@ -49,10 +50,10 @@ def test_parse_every_bundled_airfoil_file() -> None:
         parsed += 1
     elapsed = time.perf_counter() - start
     share = parsed / len(files)
-    print(
+    report(
         f"\nairfoil database: {len(files)} files, {parsed} parsed ({100 * share:.2f} %), "
         f"{len(refused)} refused with AirfoilError; {elapsed:.2f} s ({1000 * elapsed / len(files):.2f} ms/file)"
     )
     for message in refused:
-        print("  refused:", message)
+        report("  refused:", message)
     assert share >= 0.98

@@ -25,7 +25,7 @@ from __future__ import annotations
 import math
 import random
 import re
-from testing import timed_with_peak
+from testing import report, timed_with_peak
 from collections import Counter
 from pathlib import Path
 
@@ -350,9 +350,9 @@ def run_mutations(count: int, seed: int) -> Counter:
 
 
 def print_counts(title: str, counts: Counter) -> None:
-    print(f"\n{title}")
+    report(title)
     for key, n in sorted(counts.items(), key=lambda kv: (kv[0].startswith(" "), -kv[1])):
-        print(f"  {key:<50} {n:6d}")
+        report(f"  {key:<50} {n:6d}")
 
 
 def run_transforms(count: int, seed: int) -> Counter:
@@ -451,7 +451,7 @@ def hostile_files(scale: float) -> dict[str, str]:
 def check_hostile(cases: dict[str, str]) -> None:
     for name, text in cases.items():
         (kind, _), seconds, peak = timed_with_peak(outcome, text)
-        print(f"{name}: {len(text)} characters, {seconds:.3f} s, peak {peak / 2**20:.1f} MB, {kind}")
+        report(f"{name}: {len(text)} characters, {seconds:.3f} s, peak {peak / 2**20:.1f} MB, {kind}")
         assert seconds < REFUSE_SECONDS, name
         assert peak < REFUSE_PEAK_BYTES, name
 

@@ -32,7 +32,7 @@ from collections import Counter
 from pathlib import Path
 from typing import Any
 
-from testing import timed_with_peak
+from testing import report, timed_with_peak
 
 import pytest
 import yaml
@@ -529,9 +529,9 @@ def run_mutations(count: int, seed: int) -> tuple[Counter, list[str], list[tuple
 
 
 def print_counts(title: str, counts: Counter) -> None:
-    print(f"\n{title}")
+    report(title)
     for key, n in sorted(counts.items(), key=lambda kv: (kv[0].startswith(" "), -kv[1])):
-        print(f"  {key:<55} {n:6d}")
+        report(f"  {key:<55} {n:6d}")
 
 
 def assert_no_escapes(escapes: list[tuple[str, str, str]]) -> None:
@@ -782,7 +782,7 @@ def test_hostile_input_refused_quickly(name):
     """Alias bombs, deep nesting and huge inputs: refused (or read) within the safety bounds."""
     text, fragment = HOSTILE[name]
     (kind, result), seconds, peak = timed_with_peak(outcome, text)
-    print(f"{name}: {len(text)} characters, {seconds:.3f} s, peak {peak / 2**20:.1f} MB, {kind}")
+    report(f"{name}: {len(text)} characters, {seconds:.3f} s, peak {peak / 2**20:.1f} MB, {kind}")
     assert kind == "SpecError" or not fragment
     if fragment:
         assert fragment in result.problems[0].message, result

@@ -130,3 +130,11 @@ def timed_with_peak(function, *args):
     finally:
         tracemalloc.stop()
     return result, seconds, peak
+
+
+REPORTED: list[str] = []
+
+
+def report(*parts: object) -> None:
+    """A line for the end of the test run (counts of fuzz cases, database sweeps): shown even under -q."""
+    REPORTED.append(" ".join(str(p) for p in parts))
