@@ -5,6 +5,18 @@ from __future__ import annotations
 import pytest
 
 
+@pytest.fixture(scope="module")
+def spec():
+    """The demo rib spec (specs/demo-rib.yaml), loaded once per test module."""
+    from diegen import api
+    from diegen.spec.model import RibSpec
+    from testing import DEMO_RIB
+
+    loaded = api.load(DEMO_RIB)
+    assert isinstance(loaded, RibSpec)
+    return loaded
+
+
 def pytest_terminal_summary(terminalreporter):
     from testing import REPORTED
 

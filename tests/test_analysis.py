@@ -35,13 +35,6 @@ N_PER_LBF = 4.4482216152605  # N per pound-force, exact by definition (NIST SP 8
 
 
 @pytest.fixture(scope="module")
-def spec() -> RibSpec:
-    loaded = api.load(DEMO_RIB)
-    assert isinstance(loaded, RibSpec)
-    return loaded
-
-
-@pytest.fixture(scope="module")
 def analysis(spec: RibSpec) -> RibAnalysis:
     result = api.analyse(spec)
     assert isinstance(result, RibAnalysis)

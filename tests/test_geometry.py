@@ -31,13 +31,6 @@ from testing import (DEMO_RIB, DEMO_WING, OUTLINE_TOL_MM, ROOT, as_array, assert
 
 
 @pytest.fixture(scope="module")
-def spec() -> RibSpec:
-    loaded = api.load(DEMO_RIB)
-    assert isinstance(loaded, RibSpec)
-    return loaded
-
-
-@pytest.fixture(scope="module")
 def rib(spec: RibSpec) -> RibGeometry:
     return rib_geometry(spec)
 
