@@ -18,7 +18,6 @@ import numpy as np
 import shapely
 import shapely.validation
 from numpy.typing import ArrayLike, NDArray
-from scipy.interpolate import CubicSpline
 
 from diegen.errors import AirfoilError
 
@@ -244,10 +243,58 @@ def surface_fractions(n: int) -> FloatArray:
     return s
 
 
+def cubic_spline(x: ArrayLike, y: ArrayLike):
+    """Not-a-knot interpolating cubic spline through ``y`` (N, d) at increasing ``x``; returns f(x).
+
+    The classical slope formulation (C. de Boor, *A Practical Guide to Splines*,
+    ch. IV: one tridiagonal system for the knot slopes, the first and last rows
+    imposing a continuous third derivative at the second and last-but-one knots),
+    solved by the Thomas algorithm; each interval is then a cubic Hermite
+    polynomial.  Plain numpy, so reading a section needs no interpolation library.
+    """
+    x = np.asarray(x, dtype=float)
+    y = np.asarray(y, dtype=float)
+    n = len(x)
+    if n < 4:
+        raise AirfoilError(f"a not-a-knot spline needs at least 4 points, got {n}")
+    h = np.diff(x)
+    delta = np.diff(y, axis=0) / h[:, None]
+    sub, diag, sup = np.zeros(n), np.zeros(n), np.zeros(n)
+    rhs = np.zeros_like(y)
+    diag[1:-1] = 2.0 * (h[:-1] + h[1:])
+    sub[1:-1], sup[1:-1] = h[1:], h[:-1]
+    rhs[1:-1] = 3.0 * (h[1:, None] * delta[:-1] + h[:-1, None] * delta[1:])
+    d0, d1 = x[2] - x[0], x[-1] - x[-3]
+    diag[0], sup[0] = h[1], d0
+    rhs[0] = ((h[0] + 2.0 * d0) * h[1] * delta[0] + h[0] ** 2 * delta[1]) / d0
+    diag[-1], sub[-1] = h[-2], d1
+    rhs[-1] = (h[-1] ** 2 * delta[-2] + (2.0 * d1 + h[-1]) * h[-2] * delta[-1]) / d1
+    c, d = np.zeros(n), np.zeros_like(y)
+    c[0], d[0] = sup[0] / diag[0], rhs[0] / diag[0]
+    for i in range(1, n):
+        pivot = diag[i] - sub[i] * c[i - 1]
+        c[i] = sup[i] / pivot
+        d[i] = (rhs[i] - sub[i] * d[i - 1]) / pivot
+    slopes = np.empty_like(y)
+    slopes[-1] = d[-1]
+    for i in range(n - 2, -1, -1):
+        slopes[i] = d[i] - c[i] * slopes[i + 1]
+    c2 = (3.0 * delta - 2.0 * slopes[:-1] - slopes[1:]) / h[:, None]
+    c3 = (slopes[:-1] + slopes[1:] - 2.0 * delta) / h[:, None] ** 2
+
+    def evaluate(at: ArrayLike) -> FloatArray:
+        at = np.asarray(at, dtype=float)
+        i = np.clip(np.searchsorted(x, at, side="right") - 1, 0, n - 2)
+        u = (at - x[i])[..., None]
+        return y[i] + u * (slopes[i] + u * (c2[i] + u * c3[i]))
+
+    return evaluate
+
+
 def _resample_surfaces(loop: ArrayLike, n_points: int) -> tuple[FloatArray, FloatArray]:
     """Re-sampled upper and lower surfaces (LE -> TE), with fixed counts for ``n_points``.
 
-    One cubic spline (not-a-knot ends) through the whole chain TE -> LE -> TE,
+    One cubic spline (:func:`cubic_spline`, not-a-knot ends) through the whole chain TE -> LE -> TE,
     on a cumulative chord-length parameter, keeps the curve smooth over the nose;
     the LE and both TE points are knots and are reproduced exactly.  Each
     surface is then sampled at cosine-spaced fractions of its own arc length.
@@ -262,7 +309,7 @@ def _resample_surfaces(loop: ArrayLike, n_points: int) -> tuple[FloatArray, Floa
     if np.any(seg <= 0.0):
         raise AirfoilError("section has repeated points; normalise it before re-sampling")
     t = np.concatenate(([0.0], np.cumsum(seg)))
-    spline = CubicSpline(t, chain, axis=0, bc_type="not-a-knot")
+    spline = cubic_spline(t, chain)
 
     out = []
     for t_end, end_point, count in ((t[0], chain[0], n_upper), (t[-1], chain[-1], n_lower)):
