@@ -119,7 +119,7 @@ def explicit_holes(piece: Polygon, x_range: tuple[float, float], bend_radius: fl
                 f"breaks the edge margin of {rules.edge_margin_mm:.1f} mm from the bend line by {short:.2f} mm: "
                 f"the web there leaves {depth:.1f} mm for a hole (die depth less bend radius {bend_radius:.2f} mm and "
                 f"margin on each side), so a hole there may be at most about {depth:.1f} mm across")
-        for other_index, other in enumerate(holes):
+        for other in holes:
             gap = math.dist((other.x, other.y), (spec.x_mm, y)) - (other.d + spec.d_mm) / 2
             if gap < rules.ligament_mm:
                 raise GeometryError(

@@ -21,9 +21,9 @@ def _validate(tree: YNode, file: str, spec_dir: Path) -> Spec:
     pre = Reader(file)
     units_name = pre.choice(root.get("units"), "units", SPEC_UNITS) if "units" in root else None
     kind = pre.choice(root.get("kind"), "kind", ("rib", "wing")) if "kind" in root else None
-    for key, value in (("units", units_name), ("kind", kind)):
+    for key, choices in (("units", "in or mm"), ("kind", "rib or wing")):
         if key not in root:
-            pre.problem(tree, key, f"missing required key {key!r}" + (" (in or mm)" if key == "units" else " (rib or wing)"))
+            pre.problem(tree, key, f"missing required key {key!r} ({choices})")
     if pre.problems and kind is None:
         raise SpecError(pre.problems)
     reader = Reader(file, units_name or "mm")
