@@ -21,6 +21,13 @@ SAFETY = (
 )
 
 
+def die_life(material: str) -> int | None:
+    """Expected parts from one die of ``material`` (None: indefinitely), from the catalogue."""
+    from diegen import materials
+
+    return materials.die_material(material).life_parts
+
+
 def _r(value: float, digits: int = 3) -> float:
     return round(float(value), digits)
 
@@ -93,6 +100,7 @@ def piece_json(rib: RibAnalysis, p: PieceAnalysis) -> dict[str, Any]:
             "rubber_ok": p.press.rubber_ok,
             "die_crush_ok": p.press.die_crush_ok,
             "durometer_advice": p.press.durometer_advice,
+            "die_life_parts": die_life(rib.spec.shared.die.material),
         },
         "warnings": list(p.warnings),
     }
@@ -106,6 +114,12 @@ def rib_json(rib: RibAnalysis) -> dict[str, Any]:
 def _len(mm: float, units: str) -> str:
     shown = f"{mm:.3f} mm" if mm < 10 else f"{mm:.1f} mm"
     return f"{shown} ({mm / MM_PER_IN:.3f} in)" if units == "in" else shown
+
+
+def die_life_text(material: str) -> str:
+    """'about N parts' (or 'indefinitely many parts') for a die of ``material``."""
+    parts = die_life(material)
+    return "indefinitely many parts" if parts is None else f"about {parts} parts"
 
 
 def piece_text(rib: RibAnalysis, p: PieceAnalysis) -> str:
@@ -140,6 +154,8 @@ def piece_text(rib: RibAnalysis, p: PieceAnalysis) -> str:
         f"  press         {pr.pressure_mpa:.2f} MPa ({mpa_to_psi(pr.pressure_mpa):.0f} psi) over the box; "
         f"{pr.die_contact_pressure_mpa:.2f} MPa on the die early in the stroke; flanges need up to "
         f"{pr.needed_mpa:.2f} MPa ({mpa_to_psi(pr.needed_mpa):.0f} psi) → {pr.verdict.upper()}",
+        f"  die life      {die_life_text(rib.spec.shared.die.material)} from {rib.spec.shared.die.material} "
+        f"(catalogue value); {pr.durometer_advice}",
         f"  blank         {d['blank']['area_mm2']:.0f} mm², perimeter {d['blank']['perimeter_mm']:.0f} mm",
     ]
     lines += [f"  warning       {w}" for w in p.warnings]

@@ -5,7 +5,7 @@ from __future__ import annotations
 from collections.abc import Sequence
 
 from diegen.analysis import PieceAnalysis, RibAnalysis
-from diegen.report import SAFETY
+from diegen.report import SAFETY, die_life_text
 from diegen.units import MM_PER_IN, mpa_to_psi
 
 # Standard round-over bit radii (common practice, no source): 1/16 to 1/2 in by 1/32 in, and 1 to 12 mm.
@@ -111,7 +111,8 @@ def shop_sheet(rib: RibAnalysis, piece: PieceAnalysis, die_notes: Sequence[str] 
         f"to its rating ({shared.press.force_n / 1000:.0f} kN), hold, release.",
         f"5. Press check: **{press.verdict.upper()}** — {press.pressure_mpa:.2f} MPa "
         f"({mpa_to_psi(press.pressure_mpa):.0f} psi) in the box; the flanges need up to {press.needed_mpa:.2f} MPa "
-        f"({mpa_to_psi(press.needed_mpa):.0f} psi) by the plastic-hinge estimate.",
+        f"({mpa_to_psi(press.needed_mpa):.0f} psi) by the plastic-hinge estimate. Expect "
+        f"{die_life_text(shared.die.material)} from a {shared.die.material} die; {press.durometer_advice}.",
     ]
     if press.verdict != "full":
         names = sorted({piece.flange_names[i] for i in press.unformable_flanges})
