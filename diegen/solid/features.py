@@ -21,6 +21,7 @@ raises :class:`SolidError` naming the feature at fault.
 from __future__ import annotations
 
 import math
+import os
 from typing import TYPE_CHECKING, Any
 
 import numpy as np
@@ -196,6 +197,14 @@ def _round_bores(body: "cq.Shape", die: DieInput) -> "cq.Shape":
     return result
 
 
+def engraving_font_path() -> str | None:
+    """The engraving font file shipped inside matplotlib (a dependency), so no system font is needed."""
+    import matplotlib
+
+    path = os.path.join(matplotlib.get_data_path(), "fonts", "ttf", "DejaVuSans.ttf")
+    return path if os.path.isfile(path) else None
+
+
 def _engraving_tools(die: DieInput, model: OutlineModel, settings: BuildSettings) -> list[tuple[str, Any]]:
     """Text and arrow solids for the bottom face, fitted into the free area."""
     import cadquery as cq
@@ -212,9 +221,11 @@ def _engraving_tools(die: DieInput, model: OutlineModel, settings: BuildSettings
         if pin.depth >= die.height_mm - depth - settings.min_wall_mm:
             free = free.difference(Point(pin.x, pin.y).buffer(pin.d / 2.0 + margin))
 
+    font_path = engraving_font_path()
+
     def text(line: str, size: float, plane: cq.Plane) -> cq.Shape:
-        return cq.Compound.makeText(line, size, depth, font=settings.engrave_font, halign="center",
-                                    valign="center", position=plane)
+        return cq.Compound.makeText(line, size, depth, font=settings.engrave_font, fontPath=font_path,
+                                    halign="center", valign="center", position=plane)
 
     unit = [text(line, 1.0, cq.Plane(origin=(0, 0, 0), xDir=(1, 0, 0), normal=(0, 0, -1))).BoundingBox()
             for line in lines]
