@@ -94,8 +94,13 @@ def test_flutes_gather_at_least_the_excess(profile: str) -> None:
     assert fs.gathered_mm >= run.excess_mm > 0.0
     assert fs.gathered_mm - fs.flutes[0].gather_mm < run.excess_mm  # one fewer would not do
     s = np.array([f.s_mm for f in fs.flutes])
-    assert np.all((s > run.s_start_mm) & (s < run.s_start_mm + run.length_mm))
-    assert np.diff(s) == pytest.approx(np.full(len(s) - 1, run.length_mm / len(s)), rel=1e-12)  # evenly spaced
+    width = fs.flutes[0].width_mm
+    clear = min(width, (run.length_mm - len(s) * width) / 2)  # a flute width kept clear at each end
+    assert clear > 0
+    pitch = (run.length_mm - 2 * clear) / len(s)
+    assert np.diff(s) == pytest.approx(np.full(len(s) - 1, pitch), rel=1e-12)  # evenly spaced
+    assert s[0] - run.s_start_mm == pytest.approx(clear + pitch / 2, rel=1e-12)
+    assert run.s_start_mm + run.length_mm - s[-1] == pytest.approx(clear + pitch / 2, rel=1e-12)
 
 
 def test_notches_remove_exactly_the_excess() -> None:

@@ -308,7 +308,9 @@ def flutes(
     """Flutes, evenly spaced over ``run``, that gather its excess (mm).
 
     count = ceil(excess / gather per flute); sizes from :func:`flute_size`
-    unless given.  Model of our own (common practice, no source).
+    unless given; the flutes share the run evenly, less a flute width kept
+    clear at each end where there is room.  Model of our own (common
+    practice, no source).
     """
     dw, dd = flute_size(flange_height, thickness, bend_radius)
     b = dw if width is None else float(width)
@@ -320,7 +322,12 @@ def flutes(
     if gather <= 0.0:
         raise FormingError("flutes of zero depth gather nothing: give a depth > 0 mm")
     count = math.ceil(excess / gather - 1e-12)
-    items = tuple(Flute(run.position((i + 0.5) / count), b, d, gather) for i in range(count))
+    # keep a flute width clear of the run's ends when there is room: a run often ends at a corner of the
+    # outline, where the die's wall turns and the blank has its relief hole (common practice, no source)
+    clear = min(b, max(0.0, (run.length_mm - count * b) / 2.0))
+    span = run.length_mm - 2.0 * clear
+    items = tuple(Flute(run.position((clear + (i + 0.5) / count * span) / run.length_mm), b, d, gather)
+                  for i in range(count))
     fits = count * b <= run.length_mm
     note = (
         f"{count} flute(s) {b:.1f} mm wide x {d:.1f} mm deep gather {count * gather:.1f} mm "
