@@ -66,7 +66,8 @@ def shop_sheet(rib: RibAnalysis, piece: PieceAnalysis, die_notes: Sequence[str] 
         f"so the wall leans in by the over-bend (the die angle is {sb.die_angle_deg:.1f}° so the flange springs back "
         f"to 90°). Without a tapered bit: cut the outline straight with a ≤ {_both(shared.die.cutter_diameter_mm)} "
         "straight bit from the top and file the undercut by hand to the bottom outline. Engrave the part id and "
-        "arrow on this face (never on the top: it would print into the web).",
+        "arrow on this face (never on the top: it would print into the web): single-stroke capitals, cut along their "
+        "centre lines with a bit as wide as the strokes.",
         f"2. **Top face up.** Round the top edge with a **round-over bit of radius {_both(sb.die_radius_mm)}** "
         f"(the springback-compensated die radius, not the part radius); the nearest standard bit is "
         f"{_both(round_over)}.",
@@ -76,9 +77,11 @@ def shop_sheet(rib: RibAnalysis, piece: PieceAnalysis, die_notes: Sequence[str] 
                      "S-shaped run-outs; they are part of the outline and cut with it.")
     if piece.flutes:
         f0 = piece.flutes[0]
+        radius = (f0.width_mm**2 / 4 + f0.depth_mm**2) / (2 * f0.depth_mm)  # circular segment of that chord and depth
         lines.append(f"4. **Flutes ({len(piece.flutes)})**: grooves {f0.width_mm:.1f} mm wide, tapering from nothing "
-                     f"at the top edge to {f0.depth_mm:.1f} mm deep at {_both(shared.flange.height_mm)} down, at the "
-                     "positions in the STEP file (ball-nose bit from the side, or a round file).")
+                     f"at the top edge to {f0.depth_mm:.1f} mm deep at {_both(shared.flange.height_mm)} down, there "
+                     f"an arc of radius {radius:.1f} mm; at the positions in the STEP file (ball-nose bit from the "
+                     "side, or a round file no larger than that radius).")
     bores = [h for h in g.holes if h.flanged]
     if bores:
         lines.append(f"5. Through bores for {len(bores)} flanged lightening hole(s), edges rounded to the die "

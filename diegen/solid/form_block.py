@@ -6,23 +6,30 @@ die's mold line (see :mod:`diegen.solid.die_input` and
 :mod:`diegen.solid.profile`).
 
 Method: the outline is offset inward exactly (normal offset) to a stack of
-sections — ``fillet_sections`` across the top-edge arc and one at the bottom
-face.  Every section is made of the same sequence of edges (one B-spline per
-curve segment, interpolated at the same parameters, and straight lines), so
-the sections match edge to edge.  The arc sections are joined by a smooth
-loft, the straight wall by a ruled loft between the arc's last section and
-the bottom section, the top and bottom by plane faces; the faces are sewn
-into one closed shell.  (A single smooth loft through all sections rings
-where the arc meets the straight wall and is far off; a tapered extrude
-cannot take the top fillet — see the design notes.)  Pins, bores, flutes and
-the engraving are then cut.  Any kernel failure or invalid result raises
-:class:`diegen.errors.SolidError` with a hint.
+sections — ``fillet_sections`` across the top-edge arc, one where the flutes
+reach full depth and one at the bottom face.  Every section is made of the
+same sequence of edges (B-splines along the curves, one per flute and one per
+stretch between flutes, interpolated at the same parameters, and straight
+lines), so the sections match edge to edge; a flute is part of every section,
+with its depth scaled from nothing at the top face to full at the flange
+edge.  The arc sections are joined by a smooth loft, the straight wall by a
+ruled loft (exact, as both the wall and the flutes' taper are linear in
+depth), the top and bottom by plane faces with holes, the pins and bores by
+their cylinders, floors and rounding tori, the engraving by its pocket faces
+sunk into the bottom face; all are sewn into one closed shell, with no
+boolean operation.  (A single smooth loft through all sections rings where
+the arc meets the straight wall and is far off; a tapered extrude cannot take
+the top fillet; booleans against the lofted walls take seconds per die — see
+"How the die solid is made" in DEVELOPERS.md.)  Any kernel failure or invalid
+result raises :class:`diegen.errors.SolidError` with a hint.
 
 ``cadquery`` is imported inside the functions: importing it costs seconds.
 """
 
 from __future__ import annotations
 
+import math
+from dataclasses import replace
 from typing import TYPE_CHECKING, Any
 
 from diegen.errors import GeometryError, SolidError
@@ -30,10 +37,11 @@ from diegen.solid import profile
 from diegen.solid.die_input import DieInput
 from diegen.solid.outline import OffsetPiece, OutlineModel
 from diegen.solid.settings import DEFAULT_SETTINGS, BuildSettings
-from diegen.solid.validate import check_solid
+from diegen.solid.validate import quick_volume_mm3, solid_problems
 
 if TYPE_CHECKING:  # pragma: no cover
     import cadquery as cq
+    from shapely.geometry import Polygon
 
 MAX_UNDERCUT_DEG = 30.0  # beyond this the wall is no longer a small over-bend (design choice)
 
@@ -71,25 +79,43 @@ def largest_inset_mm(die: DieInput) -> float:
 def outline_model(die: DieInput, settings: BuildSettings = DEFAULT_SETTINGS) -> OutlineModel:
     """The checked outline model of ``die`` (raises :class:`GeometryError` for unusable outlines)."""
     check_die_numbers(die)
-    return OutlineModel(die.outline, die.cutter_radius_mm, largest_inset_mm(die),
-                        sample_tol_mm=settings.outline_tol_mm, max_spacing_mm=settings.max_spacing_mm)
+    if die.flutes and not 0 < die.flute_length_mm <= die.height_mm:
+        raise GeometryError(
+            f"die {die.part_id}: flute length {die.flute_length_mm:g} mm must be positive and no more than the "
+            f"block height {die.height_mm:g} mm (set it to the flange height)"
+        )
+    try:
+        return OutlineModel(die.outline, die.cutter_radius_mm, largest_inset_mm(die),
+                            sample_tol_mm=settings.outline_tol_mm, max_spacing_mm=settings.max_spacing_mm,
+                            flutes=die.flutes)
+    except GeometryError as exc:
+        raise GeometryError(f"die {die.part_id}: {exc}") from exc
 
 
-def _wire(model: OutlineModel, pieces: list[OffsetPiece], z: float) -> "cq.Wire":
+def flute_scale(die: DieInput, depth_mm: float) -> float:
+    """Fraction of the flutes' full depth at ``depth_mm`` below the top face: 0 at the top, 1 from the flange edge down."""
+    if not die.flutes:
+        return 0.0
+    return min(max(depth_mm, 0.0) / die.flute_length_mm, 1.0)
+
+
+def section(die: DieInput, model: OutlineModel, inset_mm: float, depth_mm: float) -> list[OffsetPiece]:
+    """The die's horizontal section at ``depth_mm`` below the top face, for a wall inset ``inset_mm`` (mm)."""
+    return model.offset(inset_mm, flute_scale=flute_scale(die, depth_mm))
+
+
+def _wire(pieces: list[OffsetPiece], z: float) -> "cq.Wire":
     import cadquery as cq
 
     edges = []
-    for i, piece in enumerate(pieces):
+    for piece in pieces:
         pts = [cq.Vector(x, y, z) for x, y in piece.points]
         if piece.kind == "line":
             edges.append(cq.Edge.makeLine(pts[0], pts[-1]))
-            continue
-        fr = model.fractions[i]
-        assert fr is not None
-        if model.periodic:
-            edges.append(cq.Edge.makeSpline(pts[:-1], periodic=True, parameters=list(map(float, fr)), scale=False))
+        elif piece.closed:
+            edges.append(cq.Edge.makeSpline(pts[:-1], periodic=True, parameters=list(piece.params), scale=False))
         else:
-            edges.append(cq.Edge.makeSpline(pts, parameters=list(map(float, fr)), scale=False))
+            edges.append(cq.Edge.makeSpline(pts, parameters=list(piece.params), scale=False))
     return cq.Wire.assembleEdges(edges)
 
 
@@ -106,57 +132,197 @@ def _loft_faces(wires: list["cq.Wire"], ruled: bool) -> Any:
     return builder.Shape()
 
 
-def build_body(die: DieInput, model: OutlineModel, settings: BuildSettings = DEFAULT_SETTINGS) -> "cq.Solid":
-    """The plain die body (outline, top-edge arc, undercut wall), without holes, flutes or engraving."""
+def _polygon_wire(ring: Any, z: float, clockwise: bool = False) -> Any:
+    """A closed polygon wire at height ``z`` through a shapely ring's points, turning the way asked."""
+    from OCP.BRepBuilderAPI import BRepBuilderAPI_MakePolygon
+    from OCP.gp import gp_Pnt
+    from shapely.geometry import LinearRing
+
+    pts = list(ring.coords)[:-1]
+    if LinearRing(pts).is_ccw == clockwise:
+        pts.reverse()
+    poly = BRepBuilderAPI_MakePolygon()
+    for x, y in pts:
+        poly.Add(gp_Pnt(float(x), float(y), z))
+    poly.Close()
+    return poly.Wire()
+
+
+def _circle_wire(x: float, y: float, z: float, radius: float, clockwise: bool = False) -> Any:
+    """A circle wire about the vertical axis through (x, y), its seam vertex on the +X side."""
+    from OCP.BRepBuilderAPI import BRepBuilderAPI_MakeEdge, BRepBuilderAPI_MakeWire
+    from OCP.gp import gp_Ax2, gp_Circ, gp_Dir, gp_Pnt
+    from OCP.TopoDS import TopoDS
+
+    edge = BRepBuilderAPI_MakeEdge(gp_Circ(gp_Ax2(gp_Pnt(x, y, z), gp_Dir(0, 0, 1), gp_Dir(1, 0, 0)), radius)).Edge()
+    return BRepBuilderAPI_MakeWire(TopoDS.Edge_s(edge.Reversed()) if clockwise else edge).Wire()
+
+
+def _plane_face(z: float, outer: Any, inner: list[Any]) -> Any:
+    """The horizontal face at ``z`` inside ``outer`` (counter-clockwise seen from above) with holes ``inner``
+    (clockwise seen from above), normal +Z.  The shell is oriented later, by the sewing."""
+    from OCP.BRepBuilderAPI import BRepBuilderAPI_MakeFace
+    from OCP.gp import gp_Dir, gp_Pln, gp_Pnt
+
+    maker = BRepBuilderAPI_MakeFace(gp_Pln(gp_Pnt(0.0, 0.0, z), gp_Dir(0, 0, 1)), outer, True)
+    for wire in inner:
+        maker.Add(wire)
+    if not maker.IsDone():
+        raise SolidError("the kernel could not make a plane face")
+    return maker.Face()
+
+
+def _surface_face(surface: Any, u0: float, u1: float, v0: float, v1: float) -> Any:
+    from OCP.BRepBuilderAPI import BRepBuilderAPI_MakeFace
+
+    maker = BRepBuilderAPI_MakeFace(surface, u0, u1, v0, v1, 1e-7)
+    if not maker.IsDone():
+        raise SolidError("the kernel could not make a hole's face")
+    return maker.Face()
+
+
+def _hole_faces(die: DieInput) -> tuple[list[Any], list[Any], list[Any]]:
+    """The dowel holes and bores as faces: (hole wires of the top face, of the bottom face, the holes' own faces).
+
+    A pin is a cylinder ``depth`` deep with a flat floor (or through); a bore
+    is a through cylinder whose top edge is rounded by the bore top radius: a
+    quarter torus of tube radius ρ about the circle of radius d/2 + ρ at z = −ρ.
+    """
+    from OCP.Geom import Geom_CylindricalSurface, Geom_ToroidalSurface
+    from OCP.gp import gp_Ax3, gp_Dir, gp_Pnt
+
+    def axes(x: float, y: float, z: float) -> Any:
+        return gp_Ax3(gp_Pnt(x, y, z), gp_Dir(0, 0, 1), gp_Dir(1, 0, 0))
+
+    top, bottom, faces = [], [], []
+    h = die.height_mm
+    for pin in die.pins:
+        r = pin.d / 2.0
+        depth = min(pin.depth, h)
+        top.append(_circle_wire(pin.x, pin.y, 0.0, r, clockwise=True))
+        faces.append(_surface_face(Geom_CylindricalSurface(axes(pin.x, pin.y, -depth), r), 0.0, 2 * math.pi, 0.0, depth))
+        if depth >= h - 1e-9:
+            bottom.append(_circle_wire(pin.x, pin.y, -h, r, clockwise=True))
+        else:
+            faces.append(_plane_face(-depth, _circle_wire(pin.x, pin.y, -depth, r), []))
+    rho = die.bore_radius_mm
+    for bore in die.bores:
+        a = bore.d / 2.0
+        top.append(_circle_wire(bore.x, bore.y, 0.0, a + rho, clockwise=True))
+        torus = Geom_ToroidalSurface(axes(bore.x, bore.y, -rho), a + rho, rho)
+        faces.append(_surface_face(torus, 0.0, 2 * math.pi, math.pi / 2.0, math.pi))
+        faces.append(_surface_face(Geom_CylindricalSurface(axes(bore.x, bore.y, -h), a), 0.0, 2 * math.pi, 0.0, h - rho))
+        bottom.append(_circle_wire(bore.x, bore.y, -h, a, clockwise=True))
+    return top, bottom, faces
+
+
+def _pocket_faces(marks: list[Polygon], z_bottom: float, depth: float) -> tuple[list[Any], list[Any]]:
+    """Engraving pockets sunk ``depth`` mm up into the bottom face at ``z_bottom``.
+
+    Returns the hole wires the bottom face needs (the outer rings of the marks
+    that lie on it) and the faces that close the pockets: floors, sides and the
+    islands inside letters (with holes of their own for marks inside them).
+    """
+    from OCP.BRepPrimAPI import BRepPrimAPI_MakePrism
+    from OCP.TopAbs import TopAbs_FACE
+    from OCP.TopExp import TopExp_Explorer
+    from OCP.gp import gp_Vec
+    from shapely.geometry import Polygon as ShapelyPolygon
+
+    outers = [_polygon_wire(mark.exterior, z_bottom, clockwise=True) for mark in marks]  # holes in their face
+    islands = [ShapelyPolygon(ring) for mark in marks for ring in mark.interiors]
+    inside = [[j for j, other in enumerate(marks) if island.contains(other)] for island in islands]
+    nested = {j for js in inside for j in js}
+    faces = []
+    for mark, outer in zip(marks, outers):
+        mouth = _plane_face(z_bottom, _polygon_wire(mark.exterior, z_bottom),
+                            [_polygon_wire(ring, z_bottom, clockwise=True) for ring in mark.interiors])
+        prism = BRepPrimAPI_MakePrism(mouth, gp_Vec(0.0, 0.0, depth))
+        exp = TopExp_Explorer(prism.Shape(), TopAbs_FACE)
+        while exp.More():
+            if not exp.Current().IsSame(prism.FirstShape()):
+                faces.append(exp.Current())
+            exp.Next()
+    for island, js in zip(islands, inside):
+        faces.append(_plane_face(z_bottom, _polygon_wire(island.exterior, z_bottom), [outers[j] for j in js]))
+    return [w for j, w in enumerate(outers) if j not in nested], faces
+
+
+def build_body(die: DieInput, model: OutlineModel, settings: BuildSettings = DEFAULT_SETTINGS,
+               marks: list[Polygon] | None = None) -> "cq.Solid":
+    """The die body: outline, top-edge arc, undercut wall with its flutes, and the engraving ``marks``.
+
+    ``marks`` are the engraving's polygons on the bottom face (see
+    :func:`diegen.solid.placement.engraving_marks`), sunk ``settings.engrave_depth_mm``.
+    The result is not checked here (see :func:`build_die`).
+    """
     import cadquery as cq
-    from OCP.BRepBuilderAPI import BRepBuilderAPI_MakeFace, BRepBuilderAPI_MakeSolid, BRepBuilderAPI_Sewing
-    from OCP.BRepLib import BRepLib
+    from OCP.BRepBuilderAPI import BRepBuilderAPI_MakeSolid, BRepBuilderAPI_Sewing
     from OCP.TopAbs import TopAbs_SHELL
     from OCP.TopExp import TopExp_Explorer
     from OCP.TopoDS import TopoDS
 
     arc = profile.fillet_sections(die.top_radius_mm, die.undercut_deg, settings.fillet_sections)
-    bottom = profile.bottom_section(die.height_mm, die.undercut_deg)
-    arc_wires = [_wire(model, model.offset(s.inset_mm), -s.depth_mm) for s in arc]
-    bottom_wire = _wire(model, model.offset(bottom.inset_mm), -bottom.depth_mm)
+    wall = [s.depth_mm for s in arc[-1:]]
+    if die.flutes and arc[-1].depth_mm + 0.05 < die.flute_length_mm < die.height_mm - 0.05:
+        wall.append(die.flute_length_mm)  # the flutes' taper ends here: the ruled wall needs a section
+    wall.append(die.height_mm)
+    arc_wires = [_wire(section(die, model, s.inset_mm, s.depth_mm), -s.depth_mm) for s in arc]
+    wall_wires = arc_wires[-1:] + [_wire(section(die, model, profile.wall_inset_mm(d, die.undercut_deg), d), -d)
+                                   for d in wall[1:]]
     hint = ("check the outline for a spot where the piece is thinner than twice the wall inset "
             f"({2 * largest_inset_mm(die):.2f} mm) or lower the top radius")
     try:
-        arc_faces = _loft_faces(arc_wires, ruled=False)
-        wall_faces = _loft_faces([arc_wires[-1], bottom_wire], ruled=True)
-        top = BRepBuilderAPI_MakeFace(arc_wires[0].wrapped, True).Face()
-        base = BRepBuilderAPI_MakeFace(bottom_wire.wrapped, True).Face()
+        marked, pockets = _pocket_faces(marks or [], -die.height_mm, settings.engrave_depth_mm)
+        top_holes, bottom_holes, holes = _hole_faces(die)
         sew = BRepBuilderAPI_Sewing(settings.sew_tol_mm)
-        for part in (top, arc_faces, wall_faces, base):
+        for part in [_loft_faces(arc_wires, ruled=False), _loft_faces(wall_wires, ruled=True),
+                     _plane_face(0.0, arc_wires[0].wrapped, top_holes),
+                     _plane_face(-die.height_mm, wall_wires[-1].wrapped, marked + bottom_holes), *pockets, *holes]:
             sew.Add(part)
         sew.Perform()
         exp = TopExp_Explorer(sew.SewedShape(), TopAbs_SHELL)
         if not exp.More():
             raise SolidError(f"die {die.part_id}: the lofted faces did not sew into a shell; {hint}")
-        shell = TopoDS.Shell_s(exp.Current())
-        maker = BRepBuilderAPI_MakeSolid(shell)
-        solid = maker.Solid()
-        BRepLib.OrientClosedSolid_s(solid)
+        solid = cq.Solid(BRepBuilderAPI_MakeSolid(TopoDS.Shell_s(exp.Current())).Solid())
+        if quick_volume_mm3(solid) < 0.0:  # the shell came out inside out
+            solid = cq.Solid(solid.wrapped.Reversed())
     except SolidError:
         raise
     except Exception as exc:  # OCP raises its own Standard_Failure family
         raise SolidError(f"die {die.part_id}: the kernel failed building the die body ({exc}); {hint}") from exc
-    body = cq.Solid(solid)
-    check_solid(body, f"die {die.part_id} body", hint)
-    return body
+    return solid
 
 
 def build_die(die: DieInput, settings: BuildSettings = DEFAULT_SETTINGS) -> "cq.Solid":
     """The finished die solid (cadquery ``Solid``), checked valid.
 
     Raises :class:`GeometryError` for input the die cannot follow and
-    :class:`SolidError` when the kernel fails or returns an invalid solid.
+    :class:`SolidError` when the kernel fails or returns an invalid solid;
+    then the die is rebuilt without the engraving, and without the holes, to
+    name the part at fault.
     """
-    from diegen.solid.features import cut_features
+    from diegen.solid.placement import check_placement, engraving_marks
 
     model = outline_model(die, settings)
-    body = build_body(die, model, settings)
-    return cut_features(body, die, model, settings)  # checks every result it makes
+    check_placement(die, model, settings)
+    marks = engraving_marks(die, model, settings)
+    solid = build_body(die, model, settings, marks)
+    problems = solid_problems(solid)
+    if not problems:
+        return solid
+    suspects = [
+        ("the engraving makes", lambda: build_body(die, model, settings), "shorten the engraving or leave it out"),
+        ("the pin holes or bores make", lambda: build_body(replace(die, pins=(), bores=()), model, settings),
+         "move the holes inward or make them smaller"),
+    ]
+    for what, without, change in suspects:
+        if not solid_problems(without()):
+            raise SolidError(f"die {die.part_id}: {what} the die an invalid solid ({'; '.join(problems)}); {change}")
+    raise SolidError(
+        f"die {die.part_id}: the die is not a valid solid ({'; '.join(problems)}): check the outline for a spot "
+        f"thinner than twice the wall inset ({2 * largest_inset_mm(die):.2f} mm), move the flutes apart, or lower "
+        "the top radius")
 
 
 def top_face_inset_mm(die: DieInput) -> float:

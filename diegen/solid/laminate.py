@@ -8,7 +8,7 @@ die's wall; the rubber pushes the flange into the small steps.  ``top_outline``
 is the wall (extended up to the mold line for the top layer) at the layer's
 top face, for a shop that bevels each layer.  The top layer's edge still needs
 its radius (a round-over cutter).  The last layer is trimmed to reach z = −H.
-All lengths in mm.
+Both outlines carry the flutes as deep as they are at that face.  All lengths in mm.
 """
 
 from __future__ import annotations
@@ -46,7 +46,7 @@ def laminate_layers(die: DieInput, stock_thickness_mm: float, spacing_mm: float 
     """The layers of ``die`` laminated from stock ``stock_thickness_mm`` thick; curves sampled every ``spacing_mm``."""
     if not stock_thickness_mm > 0:
         raise GeometryError(f"stock thickness {stock_thickness_mm} mm must be positive")
-    from diegen.solid.form_block import outline_model
+    from diegen.solid.form_block import flute_scale, outline_model
 
     model: OutlineModel = outline_model(die)
     count = max(1, math.ceil(die.height_mm / stock_thickness_mm - 1e-9))
@@ -54,7 +54,9 @@ def laminate_layers(die: DieInput, stock_thickness_mm: float, spacing_mm: float 
     for i in range(count):
         z_top = -i * stock_thickness_mm
         z_bottom = max(-(i + 1) * stock_thickness_mm, -die.height_mm)
-        bottom = model.offset(profile.wall_inset_mm(-z_bottom, die.undercut_deg), spacing_mm=spacing_mm)
-        top = model.offset(profile.wall_inset_mm(-z_top, die.undercut_deg), spacing_mm=spacing_mm)
+        bottom = model.offset(profile.wall_inset_mm(-z_bottom, die.undercut_deg), spacing_mm=spacing_mm,
+                              flute_scale=flute_scale(die, -z_bottom))
+        top = model.offset(profile.wall_inset_mm(-z_top, die.undercut_deg), spacing_mm=spacing_mm,
+                           flute_scale=flute_scale(die, -z_top))
         layers.append(LaminateLayer(i, z_top, z_bottom, _runs(bottom), _runs(top)))
     return layers

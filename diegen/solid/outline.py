@@ -19,6 +19,7 @@ inset, and an offset that crosses itself (a piece too thin for its wall).
 from __future__ import annotations
 
 import math
+from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
@@ -28,13 +29,16 @@ from shapely.geometry import Polygon
 from shapely.validation import explain_validity
 
 from diegen.errors import GeometryError
-from diegen.solid.die_input import OutlineRun, RunKind
+from diegen.solid.die_input import Flute, OutlineRun, RunKind
 
 Array = NDArray[np.float64]
 
 JOIN_TOL_MM = 1e-6  # consecutive runs must share end points to this distance
 CONCAVE_JUNCTION_DEG = 0.5  # a sharper concave turn at a run junction is a corner no cutter can make
 MAX_EXTENSION_MM = 0.05  # how far a segment may be extended past its end to meet its neighbour
+GROOVE_SAMPLES = 25  # samples across a flute: the spline then follows its arc within 1e-5 mm (h⁴/384r³)
+MIN_GROOVE_GAP_MM = 0.2  # least land left between two flutes' lips (design choice: a thinner fin will not sew)
+LIP_CLEARANCE_MM = 0.5  # least wall between a flute's lip and a corner trim (design choice)
 
 
 def _rot90(v: Array) -> Array:
@@ -119,38 +123,84 @@ class _CurveSegment(_Segment):
 
 @dataclass(frozen=True)
 class OffsetPiece:
-    """One edge of an offset section: its kind and its points (mm).
+    """One edge of an offset section: its kind, its points (mm) and their spline parameters.
 
-    A "line" piece has its two end points; a "curve" piece its samples at the
-    fixed parameter fractions of its segment.
+    A "line" piece has its two end points; a "curve" piece its samples, to be
+    interpolated at ``params`` (fractions from 0 to 1, the same for every
+    section, so lofted sections match point to point).  ``closed``: the piece
+    is the whole loop (first point repeated at the end), to be interpolated
+    as a periodic curve.
     """
 
     kind: RunKind
     points: tuple[tuple[float, float], ...]
+    params: tuple[float, ...] | None = None
+    closed: bool = False
+
+
+@dataclass(frozen=True)
+class _Groove:
+    """A flute placed on a curve segment: centre parameter (mm), full-depth circle radius r and depth D (mm).
+
+    The lips lie at parameters ``s_mid ± r·sin φ0`` (= ± half the width);
+    ``half_angle`` is φ0, half the angle the full-depth arc subtends at its centre.
+    """
+
+    segment: int
+    s_mid: float
+    radius: float
+    depth: float
+    half_angle: float
+
+    @property
+    def half_width(self) -> float:
+        return self.radius * math.sin(self.half_angle)
+
+
+@dataclass(frozen=True)
+class _Span:
+    """One edge of every section: a line segment, a stretch of a curve segment, or a groove.
+
+    ``s0``, ``s1``: nominal parameter range on the segment (mm; beyond the
+    length for the stretch of a closed curve that passes its start);
+    ``trim_start``/``trim_stop``: the end meets the next segment and is moved
+    to the offsets' intersection; ``fractions``: where to sample it.
+    """
+
+    segment: int
+    kind: str  # "line", "curve" or "groove"
+    s0: float
+    s1: float
+    fractions: Array
+    trim_start: bool = False
+    trim_stop: bool = False
+    groove: _Groove | None = None
 
 
 class OutlineModel:
-    """The die outline as segments, with exact inward offsets.
+    """The die outline as segments, with exact inward offsets and optional flutes.
 
     ``max_inset_mm`` is the largest inset any section will use (mm); convex
     curves must be rounder than it.  ``sample_tol_mm`` is the allowed deviation
     of a section's interpolating spline from the exact offset (mm) and
-    ``max_spacing_mm`` the longest gap between samples.
+    ``max_spacing_mm`` the longest gap between samples.  ``flutes`` are grooves
+    in the wall (see :meth:`offset`); each must lie on a curve, clear of
+    corners and of the other flutes.
     """
 
     def __init__(self, runs: tuple[OutlineRun, ...], cutter_radius_mm: float, max_inset_mm: float,
-                 sample_tol_mm: float = 0.001, max_spacing_mm: float = 6.0) -> None:
+                 sample_tol_mm: float = 0.001, max_spacing_mm: float = 6.0, flutes: Sequence[Flute] = ()) -> None:
         self.cutter_radius_mm = cutter_radius_mm
         self.max_inset_mm = max_inset_mm
+        self.sample_tol_mm = sample_tol_mm
+        self.max_spacing_mm = max_spacing_mm
         self.segments: list[_Segment] = []
         self.periodic = False
         self._build(runs)
         self._check_loop()
         self._check_curvature()
-        self.fractions: list[Array | None] = [
-            self._fractions(seg, sample_tol_mm, max_spacing_mm) if isinstance(seg, _CurveSegment) else None
-            for seg in self.segments
-        ]
+        self.grooves = self._place_grooves(flutes)
+        self.spans = self._plan_spans()
 
     # -- construction and checks ------------------------------------------------
     def _build(self, runs: tuple[OutlineRun, ...]) -> None:
@@ -234,22 +284,118 @@ class OutlineModel:
                     "radius, lower the top radius, or start a new run at a true corner"
                 )
 
-    @staticmethod
-    def _fractions(seg: _CurveSegment, tol: float, max_spacing: float) -> Array:
-        """Sample fractions for a curve segment, denser where it is curved.
+    def _fractions(self, seg: _CurveSegment, s0: float, s1: float) -> Array:
+        """Sample fractions of the stretch ``s0``–``s1`` of a curve segment, denser where it is curved.
 
         Spacing h from the cubic-interpolation error bound of a circle,
         h⁴/(384·ρ³) ≤ tol/8: the bound ignores the change of curvature, and on
         an airfoil nose the measured deviation was about 6–8× the bound, hence
         the factor 8.
         """
-        s = np.linspace(0.0, seg.length, max(32, int(seg.length / 0.25) + 1))
+        length = s1 - s0
+        s = np.linspace(s0, s1, max(32, int(length / 0.25) + 1))
         rho = 1.0 / np.maximum(np.abs(seg.curvature(s)), 1e-9)
-        h = np.clip((384.0 * tol / 8.0 * rho**3) ** 0.25, 0.25, max_spacing)
+        h = np.clip((384.0 * self.sample_tol_mm / 8.0 * rho**3) ** 0.25, 0.25, self.max_spacing_mm)
         density = np.concatenate([[0.0], np.cumsum(0.5 * (1 / h[1:] + 1 / h[:-1]) * np.diff(s))])
         count = max(4, int(math.ceil(density[-1])) + 1)
         targets = np.linspace(0.0, density[-1], count)
-        return np.interp(targets, density, s) / seg.length
+        return (np.interp(targets, density, s) - s0) / length
+
+    def _lip_range(self, index: int) -> tuple[float, float]:
+        """Parameters (mm) between which a flute's lips may lie on segment ``index``: clear of the corner trims.
+
+        Every section's curve is trimmed at its corners where it meets the
+        next segment's offset; the trim grows with the inset, so the sections
+        at ``max_inset_mm`` fix the range (less ``LIP_CLEARANCE_MM``).
+        """
+        seg = self.segments[index]
+        if self.periodic:
+            return -math.inf, math.inf
+        n = len(self.segments)
+        lo = max(0.0, self._junction(self.segments[index - 1], seg, self.max_inset_mm)[1])
+        hi = min(seg.length, self._junction(seg, self.segments[(index + 1) % n], self.max_inset_mm)[0])
+        return lo + LIP_CLEARANCE_MM, hi - LIP_CLEARANCE_MM
+
+    def _place_grooves(self, flutes: Sequence[Flute]) -> list[_Groove]:
+        """Flutes as grooves on their curve segments; raise :class:`GeometryError` for one that cannot be cut.
+
+        A flute whose lip would reach into a corner trim is moved along the
+        flange just clear of it (a few millimetres at most).
+        """
+        grooves = []
+        for flute in flutes:
+            name = f"flute at s = {flute.s_mm:g} mm"
+            if not (flute.width_mm > 0 and flute.depth_mm > 0):
+                raise GeometryError(f"{name}: width and depth must be positive")
+            if flute.depth_mm > flute.width_mm / 2.0 + 1e-9:
+                raise GeometryError(
+                    f"{name} is {flute.depth_mm:g} mm deep but only {flute.width_mm:g} mm wide: a groove deeper "
+                    "than half its width cannot be cut from the side; widen it or make it shallower")
+            if not 0.0 <= flute.s_mm < self.perimeter_mm:
+                raise GeometryError(f"{name} lies outside the outline (length {self.perimeter_mm:.1f} mm)")
+            index, s_mid = self._param_at(flute.s_mm)
+            seg = self.segments[index]
+            where = seg.point(s_mid, 0.0)
+            if not isinstance(seg, _CurveSegment):
+                raise GeometryError(
+                    f"{name} at ({where[0]:.1f}, {where[1]:.1f}) mm lies on a straight end face: flutes go on the "
+                    "curved flange")
+            depth = min(flute.depth_mm, flute.width_mm / 2.0)
+            radius = (flute.width_mm**2 / 4.0 + depth**2) / (2.0 * depth)
+            half_angle = math.asin(min(1.0, flute.width_mm / (2.0 * radius)))
+            half_width = radius * math.sin(half_angle)
+            lo, hi = self._lip_range(index)
+            if hi - lo < 2.0 * half_width:
+                raise GeometryError(
+                    f"{name} at ({where[0]:.1f}, {where[1]:.1f}) mm is {flute.width_mm:g} mm wide, wider than the "
+                    f"{max(hi - lo, 0.0):.1f} mm of curved wall between the corners: make it narrower")
+            s_mid = min(max(s_mid, lo + half_width), hi - half_width)
+            grooves.append(_Groove(index, s_mid, radius, depth, half_angle))
+        grooves.sort(key=lambda g: (g.segment, g.s_mid))
+        for a, b in zip(grooves, grooves[1:] + grooves[:1] if self.periodic else grooves[1:]):
+            if a.segment != b.segment or (a is b):
+                continue
+            gap = (b.s_mid - a.s_mid) % self.segments[a.segment].length - a.half_width - b.half_width
+            if gap < MIN_GROOVE_GAP_MM:
+                where = self.segments[a.segment].point(a.s_mid, 0.0)
+                raise GeometryError(
+                    f"two flutes near ({where[0]:.1f}, {where[1]:.1f}) mm leave {gap:.2f} mm of wall between them "
+                    f"(at least {MIN_GROOVE_GAP_MM:g} mm): space them further apart or make them narrower")
+        return grooves
+
+    def _plan_spans(self) -> list[_Span]:
+        """The edges every section is made of, in loop order."""
+        spans: list[_Span] = []
+        for index, seg in enumerate(self.segments):
+            if isinstance(seg, _LineSegment):
+                spans.append(_Span(index, "line", 0.0, seg.length, np.array([0.0, 1.0]), True, True))
+                continue
+            assert isinstance(seg, _CurveSegment)
+            own = [g for g in self.grooves if g.segment == index]
+            if self.periodic and own:
+                # the loop starts at the first groove; the stretch after the last groove runs past the curve's start
+                cuts = [(g.s_mid - g.half_width, g.s_mid + g.half_width) for g in own]
+                for i, g in enumerate(own):
+                    spans.append(self._groove_span(g))
+                    a = cuts[i][1]
+                    b = cuts[i + 1][0] if i + 1 < len(own) else cuts[0][0] + seg.length
+                    spans.append(_Span(index, "curve", a, b, self._fractions(seg, a, b)))
+                continue
+            start = 0.0
+            for g in own:
+                lip_a, lip_b = g.s_mid - g.half_width, g.s_mid + g.half_width
+                spans.append(_Span(index, "curve", start, lip_a, self._fractions(seg, start, lip_a),
+                                   trim_start=start == 0.0 and not self.periodic))
+                spans.append(self._groove_span(g))
+                start = lip_b
+            spans.append(_Span(index, "curve", start, seg.length, self._fractions(seg, start, seg.length),
+                               trim_start=start == 0.0 and not self.periodic, trim_stop=not self.periodic))
+        return spans
+
+    @staticmethod
+    def _groove_span(g: _Groove) -> _Span:
+        return _Span(g.segment, "groove", g.s_mid - g.half_width, g.s_mid + g.half_width,
+                     np.linspace(0.0, 1.0, GROOVE_SAMPLES), groove=g)
 
     # -- queries -------------------------------------------------------------------
     @property
@@ -264,21 +410,25 @@ class OutlineModel:
         s = np.linspace(0.0, seg.length, max(8, int(seg.length / 0.1) + 1))
         return float(np.sum(np.linalg.norm(np.diff(seg.point(s, 0.0), axis=0), axis=1)))
 
-    def locate(self, s_mm: float) -> tuple[Array, Array]:
-        """Point and inward unit normal of the outline at arc length ``s_mm`` from its first point."""
+    def _param_at(self, s_mm: float) -> tuple[int, float]:
+        """Segment index and parameter (mm) at arc length ``s_mm`` from the outline's first point."""
         remaining = s_mm % self.perimeter_mm
-        for seg in self.segments:
+        for index, seg in enumerate(self.segments):
             length = self._arc_length(seg)
-            if remaining <= length or seg is self.segments[-1]:
+            if remaining <= length or index == len(self.segments) - 1:
                 if isinstance(seg, _LineSegment):
-                    s = min(remaining, seg.length)
-                else:
-                    grid = np.linspace(0.0, seg.length, max(8, int(seg.length / 0.1) + 1))
-                    arc = np.concatenate([[0.0], np.cumsum(np.linalg.norm(np.diff(seg.point(grid, 0.0), axis=0), axis=1))])
-                    s = float(np.interp(remaining, arc, grid))
-                return seg.point(s, 0.0), _rot90(seg.tangent(s))
+                    return index, min(remaining, seg.length)
+                grid = np.linspace(0.0, seg.length, max(8, int(seg.length / 0.1) + 1))
+                arc = np.concatenate([[0.0], np.cumsum(np.linalg.norm(np.diff(seg.point(grid, 0.0), axis=0), axis=1))])
+                return index, float(np.interp(remaining, arc, grid))
             remaining -= length
         raise AssertionError("unreachable")
+
+    def locate(self, s_mm: float) -> tuple[Array, Array]:
+        """Point and inward unit normal of the outline at arc length ``s_mm`` from its first point."""
+        index, s = self._param_at(s_mm)
+        seg = self.segments[index]
+        return seg.point(s, 0.0), _rot90(seg.tangent(s))
 
     def dense_base(self, spacing_mm: float = 0.5) -> Array:
         """The outline as a dense closed polyline (first point not repeated), mm."""
@@ -309,47 +459,71 @@ class OutlineModel:
             )
         return sa, sb
 
-    def _sample_fractions(self, index: int, spacing_mm: float | None) -> Array:
-        seg = self.segments[index]
-        if spacing_mm is None:
-            fr = self.fractions[index]
-            assert fr is not None
-            return fr
-        return np.linspace(0.0, 1.0, max(4, int(math.ceil(seg.length / spacing_mm)) + 1))
-
-    def offset(self, inset: float, spacing_mm: float | None = None) -> list[OffsetPiece]:
-        """The outline offset inward by ``inset`` mm, one piece per segment, same structure for every inset.
+    def offset(self, inset: float, spacing_mm: float | None = None, flute_scale: float = 0.0) -> list[OffsetPiece]:
+        """The outline offset inward by ``inset`` mm, one piece per span, the same structure for every inset.
 
         Curve pieces are sampled at the model's fixed fractions, or every
         ``spacing_mm`` along the base curve if given (for plain outlines).
+        Flutes: each groove's cross-section is the circular segment of its
+        width and ``flute_scale`` × its depth, measured along the outline's
+        normals (a circle of radius r = (w²/4 + D²)/(2D) on a straight wall
+        when ``flute_scale`` is 1); ``flute_scale`` 0 leaves the wall whole.
         """
-        n = len(self.segments)
-        if self.periodic:
+        if self.periodic and not self.grooves:
             seg = self.segments[0]
-            fr = self._sample_fractions(0, spacing_mm)
+            span = self.spans[0]
+            fr = span.fractions if spacing_mm is None else self._even(seg.length, spacing_mm)
             pts = seg.point(fr * seg.length, inset)
             pts[-1] = pts[0]
-            pieces = [OffsetPiece("curve", tuple(map(tuple, pts.tolist())))]
-        else:
-            starts = [0.0] * n
-            stops = [0.0] * n
+            pieces = [OffsetPiece("curve", _points(pts), tuple(map(float, fr)), closed=True)]
+            self._check_simple(pieces, inset)
+            return pieces
+        n = len(self.segments)
+        starts = [0.0] * n
+        stops = [seg.length for seg in self.segments]
+        corner: dict[int, Array] = {}
+        if not self.periodic:
             for i in range(n):
                 sa, sb = self._junction(self.segments[i], self.segments[(i + 1) % n], inset)
                 stops[i] = sa
                 starts[(i + 1) % n] = sb
-            corner = [self.segments[i].point(stops[i], inset) for i in range(n)]
-            pieces = []
-            for i, seg in enumerate(self.segments):
-                p0, p1 = corner[i - 1], corner[i]
-                if seg.kind == "line":
-                    pts = np.array([p0, p1])
-                else:
-                    s = starts[i] + self._sample_fractions(i, spacing_mm) * (stops[i] - starts[i])
-                    pts = seg.point(s, inset)
-                    pts[0], pts[-1] = p0, p1  # exactly the shared corners
-                pieces.append(OffsetPiece(seg.kind, tuple(map(tuple, pts.tolist()))))
+                corner[i] = self.segments[i].point(sa, inset)
+        pieces = []
+        for span in self.spans:
+            seg = self.segments[span.segment]
+            if span.kind == "line":
+                pts = np.array([corner[span.segment - 1 if span.segment else n - 1], corner[span.segment]])
+                pieces.append(OffsetPiece("line", _points(pts)))
+                continue
+            if span.kind == "groove":
+                pieces.append(self._groove_piece(span, inset, flute_scale))
+                continue
+            a = starts[span.segment] if span.trim_start else span.s0
+            b = stops[span.segment] if span.trim_stop else span.s1
+            fr = span.fractions if spacing_mm is None else self._even(b - a, spacing_mm)
+            pts = seg.point(a + fr * (b - a), inset)
+            if span.trim_start:
+                pts[0] = corner[(span.segment - 1) % n]
+            if span.trim_stop:
+                pts[-1] = corner[span.segment]
+            pieces.append(OffsetPiece("curve", _points(pts), tuple(map(float, fr))))
         self._check_simple(pieces, inset)
         return pieces
+
+    def _groove_piece(self, span: _Span, inset: float, flute_scale: float) -> OffsetPiece:
+        g = span.groove
+        assert g is not None
+        phi = (2.0 * span.fractions - 1.0) * g.half_angle
+        s = g.s_mid + g.radius * np.sin(phi)
+        sink = flute_scale * (g.radius * np.cos(phi) - (g.radius - g.depth))
+        sink[[0, -1]] = 0.0  # the lips lie on the wall exactly
+        seg = self.segments[span.segment]
+        pts = seg.point(s, 0.0) + (inset + sink)[:, None] * _rot90(seg.tangent(s))
+        return OffsetPiece("curve", _points(pts), tuple(map(float, span.fractions)))
+
+    @staticmethod
+    def _even(length: float, spacing_mm: float) -> Array:
+        return np.linspace(0.0, 1.0, max(4, int(math.ceil(length / spacing_mm)) + 1))
 
     @staticmethod
     def _check_simple(pieces: list[OffsetPiece], inset: float) -> None:
@@ -359,6 +533,10 @@ class OutlineModel:
                 f"the die outline offset inward by {inset:.3f} mm crosses itself ({explain_validity(poly)}): "
                 "the piece is too thin there for its wall; lower the top radius or the undercut, or end the piece sooner"
             )
+
+
+def _points(pts: Array) -> tuple[tuple[float, float], ...]:
+    return tuple(map(tuple, pts.tolist()))
 
 
 def pieces_to_polygon(pieces: list[OffsetPiece]) -> Polygon:

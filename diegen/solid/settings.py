@@ -19,7 +19,7 @@ class BuildSettings:
     ``max_spacing_mm``: longest gap between spline samples along a flat stretch.
     ``sew_tol_mm``: tolerance for sewing the lofted faces into one shell.
     ``engrave_depth_mm``: depth of the bottom-face engraving.
-    ``engrave_font``: font family for the engraving (any installed TrueType font).
+    ``engrave_max_height_mm``, ``engrave_min_height_mm``: the range of letter heights tried.
     ``min_wall_mm``: least material left between a hole and the die's edge or another hole
     (common practice, no source).
     """
@@ -29,7 +29,6 @@ class BuildSettings:
     max_spacing_mm: float = 6.0
     sew_tol_mm: float = 1e-6
     engrave_depth_mm: float = 0.5
-    engrave_font: str = "DejaVu Sans"
     engrave_max_height_mm: float = 8.0
     engrave_min_height_mm: float = 2.5
     min_wall_mm: float = 1.0

@@ -126,22 +126,48 @@ def read_stl_triangles(path: str | os.PathLike[str]) -> np.ndarray:
     return np.asarray(coords, dtype=np.float32).reshape(-1, 3, 3)
 
 
+def step_file_problems(path: str | os.PathLike[str]) -> list[str]:
+    """What is structurally wrong with a STEP file written for one die; an empty list when it looks whole.
+
+    Checks the ISO 10303-21 frame (header to end marker) and that the data
+    holds exactly one solid bounded by one closed shell.  It does not re-read
+    the geometry (see :func:`check_step_file` for that).
+    """
+    text = open(path, "rb").read()
+    problems = []
+    if not text.lstrip().startswith(b"ISO-10303-21;"):
+        problems.append("it does not start with the ISO-10303-21 header")
+    if not text.rstrip().endswith(b"END-ISO-10303-21;"):
+        problems.append("it does not end with END-ISO-10303-21 (cut short)")
+    for entity in (b"MANIFOLD_SOLID_BREP(", b"CLOSED_SHELL("):
+        count = text.count(entity)
+        if count != 1:
+            problems.append(f"it holds {count} {entity[:-1].decode().lower()} entities, not one")
+    return problems
+
+
 def stl_problems(path: str | os.PathLike[str]) -> list[str]:
-    """Everything wrong with an STL as a printable closed mesh; an empty list when it is good."""
+    """Everything wrong with an STL as a printable closed mesh; an empty list when it is good.
+
+    Vertices are the same point when their coordinates are equal (compared bit
+    for bit after turning −0 into +0: the writer prints a shared vertex identically).
+    """
     tri = read_stl_triangles(path)
     if len(tri) == 0:
         return ["it holds no triangles"]
-    _, index = np.unique(tri.reshape(-1, 3), axis=0, return_inverse=True)
-    faces = index.reshape(-1, 3)
+    keys = np.ascontiguousarray(tri.reshape(-1, 3) + np.float32(0.0)).view(np.dtype((np.void, 12))).ravel()
+    _, index = np.unique(keys, return_inverse=True)
+    faces = index.reshape(-1, 3).astype(np.int64)
     keep = (faces[:, 0] != faces[:, 1]) & (faces[:, 1] != faces[:, 2]) & (faces[:, 0] != faces[:, 2])
     faces = faces[keep]
-    directed = np.concatenate([faces[:, [0, 1]], faces[:, [1, 2]], faces[:, [2, 0]]])
+    start = faces.ravel()
+    end = faces[:, [1, 2, 0]].ravel()
+    n = int(index.max()) + 1
     problems = []
-    uniq, counts = np.unique(directed, axis=0, return_counts=True)
+    _, counts = np.unique(start * n + end, return_counts=True)
     if np.any(counts > 1):
         problems.append(f"{int(np.sum(counts > 1))} edges run the same way in two triangles (inconsistent winding)")
-    undirected = np.sort(directed, axis=1)
-    _, ucounts = np.unique(undirected, axis=0, return_counts=True)
+    _, ucounts = np.unique(np.minimum(start, end) * n + np.maximum(start, end), return_counts=True)
     if np.any(ucounts != 2):
         problems.append(f"{int(np.sum(ucounts != 2))} edges are not shared by exactly two triangles (not watertight)")
     return problems
