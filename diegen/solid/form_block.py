@@ -37,7 +37,7 @@ from diegen.solid import profile
 from diegen.solid.die_input import DieInput
 from diegen.solid.outline import OffsetPiece, OutlineModel
 from diegen.solid.settings import DEFAULT_SETTINGS, BuildSettings
-from diegen.solid.validate import quick_volume_mm3, solid_problems
+from diegen.solid.validate import solid_problems
 
 if TYPE_CHECKING:  # pragma: no cover
     import cadquery as cq
@@ -248,6 +248,31 @@ def _pocket_faces(marks: list[Polygon], z_bottom: float, depth: float) -> tuple[
     return [w for j, w in enumerate(outers) if j not in nested], faces
 
 
+def _faces_out(shell: Any) -> bool:
+    """Whether the sewn (consistently oriented) ``shell`` has its normals pointing out of the die.
+
+    The top face at z = 0 is the highest face of the die, so its outward
+    normal is +Z: one face decides for all (far cheaper than a volume).
+    """
+    from OCP.BRepAdaptor import BRepAdaptor_Surface
+    from OCP.GeomAbs import GeomAbs_Plane
+    from OCP.TopAbs import TopAbs_FACE, TopAbs_REVERSED
+    from OCP.TopExp import TopExp_Explorer
+    from OCP.TopoDS import TopoDS
+
+    exp = TopExp_Explorer(shell, TopAbs_FACE)
+    while exp.More():
+        face = TopoDS.Face_s(exp.Current())
+        surface = BRepAdaptor_Surface(face)
+        if surface.GetType() == GeomAbs_Plane:
+            axis = surface.Plane().Axis()
+            if abs(axis.Location().Z()) < 1e-9 and abs(abs(axis.Direction().Z()) - 1.0) < 1e-12:
+                up = axis.Direction().Z() > 0
+                return up != (face.Orientation() == TopAbs_REVERSED)
+        exp.Next()
+    raise SolidError("the die's shell has no top face")
+
+
 def build_body(die: DieInput, model: OutlineModel, settings: BuildSettings = DEFAULT_SETTINGS,
                marks: list[Polygon] | None = None) -> "cq.Solid":
     """The die body: outline, top-edge arc, undercut wall with its flutes, and the engraving ``marks``.
@@ -284,9 +309,10 @@ def build_body(die: DieInput, model: OutlineModel, settings: BuildSettings = DEF
         exp = TopExp_Explorer(sew.SewedShape(), TopAbs_SHELL)
         if not exp.More():
             raise SolidError(f"die {die.part_id}: the lofted faces did not sew into a shell; {hint}")
-        solid = cq.Solid(BRepBuilderAPI_MakeSolid(TopoDS.Shell_s(exp.Current())).Solid())
-        if quick_volume_mm3(solid) < 0.0:  # the shell came out inside out
-            solid = cq.Solid(solid.wrapped.Reversed())
+        shell = TopoDS.Shell_s(exp.Current())
+        if not _faces_out(shell):
+            shell = TopoDS.Shell_s(shell.Reversed())
+        solid = cq.Solid(BRepBuilderAPI_MakeSolid(shell).Solid())
     except SolidError:
         raise
     except Exception as exc:  # OCP raises its own Standard_Failure family

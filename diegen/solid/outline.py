@@ -199,6 +199,7 @@ class OutlineModel:
         self._build(runs)
         self._check_loop()
         self._check_curvature()
+        self._lip_ranges: dict[int, tuple[float, float]] = {}
         self.grooves = self._place_grooves(flutes)
         self.spans = self._plan_spans()
 
@@ -311,10 +312,12 @@ class OutlineModel:
         seg = self.segments[index]
         if self.periodic:
             return -math.inf, math.inf
-        n = len(self.segments)
-        lo = max(0.0, self._junction(self.segments[index - 1], seg, self.max_inset_mm)[1])
-        hi = min(seg.length, self._junction(seg, self.segments[(index + 1) % n], self.max_inset_mm)[0])
-        return lo + LIP_CLEARANCE_MM, hi - LIP_CLEARANCE_MM
+        if index not in self._lip_ranges:
+            n = len(self.segments)
+            lo = max(0.0, self._junction(self.segments[index - 1], seg, self.max_inset_mm)[1])
+            hi = min(seg.length, self._junction(seg, self.segments[(index + 1) % n], self.max_inset_mm)[0])
+            self._lip_ranges[index] = (lo + LIP_CLEARANCE_MM, hi - LIP_CLEARANCE_MM)
+        return self._lip_ranges[index]
 
     def _place_grooves(self, flutes: Sequence[Flute]) -> list[_Groove]:
         """Flutes as grooves on their curve segments; raise :class:`GeometryError` for one that cannot be cut.

@@ -19,7 +19,8 @@ from __future__ import annotations
 from typing import Any
 
 import numpy as np
-from shapely.geometry import Point, Polygon, box
+import shapely
+from shapely.geometry import Point, Polygon
 from shapely.ops import polylabel
 
 from diegen.errors import GeometryError
@@ -140,26 +141,31 @@ ARROW_LENGTH = 4.0  # the orientation arrow's length as a multiple of the letter
 
 
 def _find_spot(free: Any, w: float, h: float) -> tuple[float, float] | None:
-    """Centre of a w × h rectangle lying inside ``free`` (the pole of inaccessibility first, then a grid)."""
+    """Centre of a w × h rectangle lying inside ``free``, as far from its edge as the candidates allow.
+
+    Candidates: the pole of inaccessibility of each part of ``free``, then a
+    25 × 9 grid over its bounds; the parts are tried largest first.
+    """
     if free.is_empty:
         return None
     parts = list(free.geoms) if hasattr(free, "geoms") else [free]
     parts.sort(key=lambda g: -g.area)
     for part in parts:
-        candidates = [polylabel(part, tolerance=0.5).coords[0]]
         x0, y0, x1, y1 = part.bounds
-        for x in np.linspace(x0 + w / 2, x1 - w / 2, 25) if x1 - x0 > w else []:
-            for y in np.linspace(y0 + h / 2, y1 - h / 2, 9) if y1 - y0 > h else []:
-                candidates.append((float(x), float(y)))
-        best = None
-        for cx, cy in candidates:
-            rect = box(cx - w / 2, cy - h / 2, cx + w / 2, cy + h / 2)
-            if part.contains(rect):
-                clearance = part.exterior.distance(rect)
-                if best is None or clearance > best[0]:
-                    best = (clearance, (cx, cy))
-        if best is not None:
-            return best[1]
+        xs = np.linspace(x0 + w / 2, x1 - w / 2, 25) if x1 - x0 > w else np.empty(0)
+        ys = np.linspace(y0 + h / 2, y1 - h / 2, 9) if y1 - y0 > h else np.empty(0)
+        gx, gy = np.meshgrid(xs, ys)
+        pole = polylabel(part, tolerance=0.5).coords[0]
+        cx = np.concatenate([[pole[0]], gx.ravel()])
+        cy = np.concatenate([[pole[1]], gy.ravel()])
+        rects = shapely.box(cx - w / 2, cy - h / 2, cx + w / 2, cy + h / 2)
+        shapely.prepare(part)
+        inside = shapely.contains(part, rects)
+        if not inside.any():
+            continue
+        clearance = np.where(inside, shapely.distance(part.boundary, rects), -1.0)
+        best = int(np.argmax(clearance))
+        return float(cx[best]), float(cy[best])
     return None
 
 

@@ -55,7 +55,7 @@ def solid_problems(shape: Any) -> list[str]:
     problems = []
     if raw is None or raw.IsNull():
         return ["the kernel returned no shape"]
-    if not BRepCheck_Analyzer(raw).IsValid():
+    if not BRepCheck_Analyzer(raw, True, True).IsValid():  # geometric controls on, parallel
         problems.append("the kernel's shape check (BRepCheck_Analyzer) finds it invalid")
     solids = 0
     exp = TopExp_Explorer(raw, TopAbs_SOLID)
