@@ -460,6 +460,25 @@ def test_inside_corner_tighter_than_cutter(bare_input):
         build_die(replace(bare_input, outline=runs))
 
 
+def test_blind_pin_leaving_a_thin_floor(bare_input):
+    from diegen.solid import build_die
+
+    with pytest.raises(GeometryError, match="drill it through or less deep"):
+        build_die(replace(bare_input, pins=(Pin(60.0, 10.0, 3.2, H - 0.4),)))
+
+
+def test_invalid_die_names_the_part_at_fault(full_input, monkeypatch):
+    """When the finished solid fails the check, the die is rebuilt without the engraving to find the culprit."""
+    import diegen.solid.form_block as fb
+
+    real = fb.solid_problems
+    plain = fb.build_die(replace(full_input, engraving=()))
+    limit = len(plain.Faces())
+    monkeypatch.setattr(fb, "solid_problems", lambda shape: ["pretend"] if len(shape.Faces()) > limit else real(shape))
+    with pytest.raises(SolidError, match="the engraving makes the die an invalid solid"):
+        fb.build_die(full_input)
+
+
 def test_kernel_failure_becomes_solid_error(bare_input, monkeypatch):
     import diegen.solid.form_block as fb
 
