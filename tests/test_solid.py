@@ -568,3 +568,30 @@ def test_single_closed_curve_outline(bare_input):
 
     assert planar_face_at(die, 0.0).Area() == pytest.approx(inner_area(top_setback_mm(R, UNDERCUT)), rel=2e-5)
     assert planar_face_at(die, -H).Area() == pytest.approx(inner_area(H * math.tan(math.radians(UNDERCUT))), rel=2e-5)
+
+
+def test_flute_on_a_single_closed_curve(bare_input):
+    """A closed contour (an ellipse 200 × 80 mm) with a flute across its start point and one opposite.
+
+    Removed volume: the flute's circular segment A = r²(2φ − sin 2φ)/2 (plane geometry) times its taper,
+    ∫ min(z/L, 1) dz over the block = H − L/2.  At the ellipse's vertices the wall's radius is a²/b = 250 mm,
+    which changes that by a few tenths of a per cent.
+    """
+    from diegen.solid import build_die
+    from diegen.solid.outline import OutlineModel
+
+    t = np.linspace(0, 2 * np.pi, 241)
+    pts = np.column_stack([100 * np.sin(t), 40 * np.cos(t) * -1])  # starts at (0, −40), runs counter-clockwise
+    pts[-1] = pts[0]
+    ellipse = (OutlineRun("curve", tuple(map(tuple, pts.tolist()))),)
+    model = OutlineModel(ellipse, CUTTER, 2.0)
+    flutes = (Flute(1.0, 8.0, 2.0), Flute(model.perimeter_mm / 2, 8.0, 2.0))  # the first straddles the start
+    plain = build_die(replace(bare_input, outline=ellipse))
+    fluted = build_die(replace(bare_input, outline=ellipse, flutes=flutes, flute_length_mm=FLUTE_LENGTH))
+    assert not solid_problems(fluted)
+    r = (8.0**2 / 4 + 2.0**2) / (2 * 2.0)
+    phi = math.asin(8.0 / (2 * r))
+    area = r**2 * (2 * phi - math.sin(2 * phi)) / 2
+    expected = 2 * area * (H - FLUTE_LENGTH / 2)
+    removed = volume(plain) - volume(fluted)
+    assert removed == pytest.approx(expected, rel=0.01), removed / expected
