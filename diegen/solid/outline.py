@@ -10,10 +10,17 @@ method.  Every section therefore has the same sequence of segments, and each
 curve segment is sampled at the same parameter fractions, so the lofted
 sections match edge to edge and point to point.
 
+Flutes split their curve segment at their lips into separate edges ("spans")
+in every section; within a flute the offset goes deeper by the flute's
+circular segment, scaled by the section's ``flute_scale`` (0 at the top face,
+1 from the flange edge down).  A flute whose lip would reach into a corner
+trim is moved along the curve just clear of it.
+
 Checks made here raise :class:`diegen.errors.GeometryError` with the place
 (x, y in mm) and what to change: an open or clockwise loop, a concave spot
 tighter than the router cutter radius, a convex spot tighter than the largest
-inset, and an offset that crosses itself (a piece too thin for its wall).
+inset, an offset that crosses itself (a piece too thin for its wall), and a
+flute that is too deep for its width, on a straight edge, or crowding another.
 """
 
 from __future__ import annotations
