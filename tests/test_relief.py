@@ -17,6 +17,7 @@ import pytest
 
 from diegen.errors import FormingError
 from diegen.forming.relief import (
+    flute_arc_radius,
     flute_gather,
     flute_size,
     flutes,
@@ -126,6 +127,14 @@ def test_flute_gather_geometry() -> None:
         flute_gather(8.0, 5.0)
     with pytest.raises(FormingError):
         flute_gather(8.0, 1.0, "square")  # type: ignore[arg-type]
+
+
+def test_flute_arc_radius() -> None:
+    # circular segment, chord 8: sagitta 4 is the semicircle of radius 4, sagitta 1 the arc of radius 8.5
+    assert flute_arc_radius(8.0, 4.0) == pytest.approx(4.0, rel=1e-12)
+    assert flute_arc_radius(8.0, 1.0) == pytest.approx(8.5, rel=1e-12)
+    with pytest.raises(FormingError):
+        flute_arc_radius(8.0, 4.5)
 
 
 def test_flute_size_rule() -> None:

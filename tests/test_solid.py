@@ -223,6 +223,23 @@ def test_stl_not_written_when_check_fails(bare_die, tmp_path, monkeypatch):
     assert [p.name for p in tmp_path.iterdir()] == ["keep.stl"]
 
 
+def test_step_structure_check_finds_a_cut_short_file_and_keeps_the_earlier_one(bare_die, tmp_path, monkeypatch):
+    """ISO 10303-21 frames the data between the "ISO-10303-21;" header and "END-ISO-10303-21;"."""
+    import diegen.solid.export as export
+    from diegen.solid.validate import step_file_problems
+
+    good = tmp_path / "good.step"
+    export.write_step(bare_die, good)
+    assert step_file_problems(good) == []
+    cut = tmp_path / "cut.step"
+    cut.write_bytes(good.read_bytes()[: good.stat().st_size // 2])
+    assert any("cut short" in p for p in step_file_problems(cut))
+    monkeypatch.setattr(export, "step_file_problems", lambda path: ["pretend cut short"])
+    with pytest.raises(SolidError, match="pretend cut short"):
+        export.write_step(bare_die, good)
+    assert step_file_problems(good) == [] and sorted(p.name for p in tmp_path.iterdir()) == ["cut.step", "good.step"]
+
+
 # ---------------------------------------------------------------- outlines
 def test_top_face_edge_is_the_outline_set_back(bare_die, outline):
     """The flat top face ends where the top radius begins: the outline offset inward by R(1+sin α)/cos α."""
@@ -343,7 +360,7 @@ def test_flute_depth_tapers_down_the_wall(bare_input):
     segment scaled in depth by depth/flute length.  The flute sits where the wall's radius is about 1 m.
     """
     from diegen.solid import build_die
-    from diegen.solid.placement import flute_radius_mm
+    from diegen.forming.relief import flute_arc_radius
     from diegen.solid.outline import OutlineModel
 
     flute = Flute(420.0, 8.0, 2.0)
@@ -351,7 +368,7 @@ def test_flute_depth_tapers_down_the_wall(bare_input):
     model = OutlineModel(bare_input.outline, CUTTER, top_setback_mm(R, UNDERCUT))
     p, _ = model.locate(flute.s_mm)
     tan_a = math.tan(math.radians(UNDERCUT))
-    r = flute_radius_mm(flute)
+    r = flute_arc_radius(flute.width_mm, flute.depth_mm)
     assert r == pytest.approx((flute.width_mm**2 / 4 + flute.depth_mm**2) / (2 * flute.depth_mm))
     for depth in (0.5 * FLUTE_LENGTH, FLUTE_LENGTH, 0.5 * (FLUTE_LENGTH + H)):
         pts = section_points(die, (0, 0, -depth), (0, 0, 1), step=0.02)

@@ -5,6 +5,7 @@ from __future__ import annotations
 from collections.abc import Sequence
 
 from diegen.analysis import PieceAnalysis, RibAnalysis
+from diegen.forming.relief import flute_arc_radius
 from diegen.report import SAFETY, die_life_text
 from diegen.units import MM_PER_IN, mpa_to_psi
 
@@ -77,7 +78,7 @@ def shop_sheet(rib: RibAnalysis, piece: PieceAnalysis, die_notes: Sequence[str] 
                      "S-shaped run-outs; they are part of the outline and cut with it.")
     if piece.flutes:
         f0 = piece.flutes[0]
-        radius = (f0.width_mm**2 / 4 + f0.depth_mm**2) / (2 * f0.depth_mm)  # circular segment of that chord and depth
+        radius = flute_arc_radius(f0.width_mm, f0.depth_mm)
         lines.append(f"4. **Flutes ({len(piece.flutes)})**: grooves {f0.width_mm:.1f} mm wide, tapering from nothing "
                      f"at the top edge to {f0.depth_mm:.1f} mm deep at {_both(shared.flange.height_mm)} down, there "
                      f"an arc of radius {radius:.1f} mm; at the positions in the STEP file (ball-nose bit from the "

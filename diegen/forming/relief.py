@@ -253,6 +253,16 @@ def flute_gather(width: float, depth: float, profile: FluteProfile = "arc") -> f
     return 2.0 * alpha * half / math.sin(alpha) - width
 
 
+def flute_arc_radius(width: float, depth: float) -> float:
+    """Radius (mm) of the ``"arc"`` flute's circular segment of chord ``width`` and depth ``depth`` (mm).
+
+    Plane geometry of a circular segment: r = (b²/4 + d²)/(2d).
+    """
+    if not (width > 0.0 and 0.0 < depth <= width / 2.0):
+        raise FormingError(f"flute depth must lie in (0, width/2] = (0, {width / 2:.3f}] mm, got {depth!r}")
+    return (width**2 / 4.0 + depth**2) / (2.0 * depth)
+
+
 def flute_size(flange_height: float, thickness: float, bend_radius: float) -> tuple[float, float]:
     """Default flute (width, depth) in mm at the flange edge.
 

@@ -160,7 +160,7 @@ def _circle_wire(x: float, y: float, z: float, radius: float, clockwise: bool = 
 
 def _plane_face(z: float, outer: Any, inner: list[Any]) -> Any:
     """The horizontal face at ``z`` inside ``outer`` (counter-clockwise seen from above) with holes ``inner``
-    (clockwise seen from above), normal +Z.  The shell is oriented later, by the sewing."""
+    (clockwise seen from above), normal +Z.  The sewing and :func:`_faces_out` orient the shell later."""
     from OCP.BRepBuilderAPI import BRepBuilderAPI_MakeFace
     from OCP.gp import gp_Dir, gp_Pln, gp_Pnt
 
@@ -226,6 +226,7 @@ def _pocket_faces(marks: list[Polygon], z_bottom: float, depth: float) -> tuple[
     from OCP.BRepPrimAPI import BRepPrimAPI_MakePrism
     from OCP.TopAbs import TopAbs_FACE
     from OCP.TopExp import TopExp_Explorer
+    from OCP.TopoDS import TopoDS
     from OCP.gp import gp_Vec
     from shapely.geometry import Polygon as ShapelyPolygon
 
@@ -235,7 +236,7 @@ def _pocket_faces(marks: list[Polygon], z_bottom: float, depth: float) -> tuple[
     nested = {j for js in inside for j in js}
     faces = []
     for mark, outer in zip(marks, outers):
-        mouth = _plane_face(z_bottom, _polygon_wire(mark.exterior, z_bottom),
+        mouth = _plane_face(z_bottom, TopoDS.Wire_s(outer.Reversed()),
                             [_polygon_wire(ring, z_bottom, clockwise=True) for ring in mark.interiors])
         prism = BRepPrimAPI_MakePrism(mouth, gp_Vec(0.0, 0.0, depth))
         exp = TopExp_Explorer(prism.Shape(), TopAbs_FACE)
@@ -288,7 +289,7 @@ def build_body(die: DieInput, model: OutlineModel, settings: BuildSettings = DEF
     from OCP.TopoDS import TopoDS
 
     arc = profile.fillet_sections(die.top_radius_mm, die.undercut_deg, settings.fillet_sections)
-    wall = [s.depth_mm for s in arc[-1:]]
+    wall = [arc[-1].depth_mm]
     if die.flutes and arc[-1].depth_mm + 0.05 < die.flute_length_mm < die.height_mm - 0.05:
         wall.append(die.flute_length_mm)  # the flutes' taper ends here: the ruled wall needs a section
     wall.append(die.height_mm)

@@ -36,6 +36,7 @@ from shapely.geometry import Polygon
 from shapely.validation import explain_validity
 
 from diegen.errors import GeometryError
+from diegen.forming.relief import flute_arc_radius
 from diegen.solid.die_input import Flute, OutlineRun, RunKind
 
 Array = NDArray[np.float64]
@@ -351,7 +352,7 @@ class OutlineModel:
                     f"{name} at ({where[0]:.1f}, {where[1]:.1f}) mm lies on a straight end face: flutes go on the "
                     "curved flange")
             depth = min(flute.depth_mm, flute.width_mm / 2.0)
-            radius = (flute.width_mm**2 / 4.0 + depth**2) / (2.0 * depth)
+            radius = flute_arc_radius(flute.width_mm, depth)
             half_angle = math.asin(min(1.0, flute.width_mm / (2.0 * radius)))
             half_width = radius * math.sin(half_angle)
             lo, hi = self._lip_range(index)

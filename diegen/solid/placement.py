@@ -25,14 +25,9 @@ from shapely.ops import polylabel
 
 from diegen.errors import GeometryError
 from diegen.solid import lettering, profile
-from diegen.solid.die_input import DieInput, Flute
+from diegen.solid.die_input import DieInput
 from diegen.solid.outline import OutlineModel, pieces_to_polygon
 from diegen.solid.settings import BuildSettings
-
-
-def flute_radius_mm(flute: Flute) -> float:
-    """Radius of the flute's circular cross-section, r = (w²/4 + D²)/(2D) (mm)."""
-    return (flute.width_mm**2 / 4.0 + flute.depth_mm**2) / (2.0 * flute.depth_mm)
 
 
 def _smallest_section(die: DieInput, model: OutlineModel) -> Polygon:

@@ -62,8 +62,3 @@ def fillet_sections(radius_mm: float, undercut_deg: float, count: int) -> tuple[
         raise ValueError("at least two fillet sections are needed")
     span = 90.0 + undercut_deg
     return tuple(fillet_point(radius_mm, undercut_deg, span * i / (count - 1)) for i in range(count))
-
-
-def bottom_section(height_mm: float, undercut_deg: float) -> Section:
-    """The bottom face's section: inset ``H·tan α`` at depth H."""
-    return Section(wall_inset_mm(height_mm, undercut_deg), height_mm)

@@ -133,7 +133,8 @@ def step_file_problems(path: str | os.PathLike[str]) -> list[str]:
     holds exactly one solid bounded by one closed shell.  It does not re-read
     the geometry (see :func:`check_step_file` for that).
     """
-    text = open(path, "rb").read()
+    with open(path, "rb") as f:
+        text = f.read()
     problems = []
     if not text.lstrip().startswith(b"ISO-10303-21;"):
         problems.append("it does not start with the ISO-10303-21 header")
