@@ -20,6 +20,7 @@ from diegen.forming import relief as relief_model
 from diegen.forming.bend import FlangeLayout, flange_layout
 from diegen.forming.springback import Springback, die_for_part
 from diegen.forming.strain import StrainProfile, hole_flange_strain, pilot_diameter, strain_along
+from diegen.geometry import die_wall
 from diegen.geometry.rib import rib_geometry
 from diegen.geometry.types import PieceGeometry, RibGeometry
 from diegen.spec.model import RibSpec
@@ -104,6 +105,14 @@ def die_layers(stock_mm: float, flange_height_mm: float) -> int:
     return max(1, math.ceil((flange_height_mm + STOCK_CLEARANCE_MM) / stock_mm - 1e-9))
 
 
+def die_inset_mm(spec: RibSpec, springback: Springback) -> float:
+    """The largest inset of the die's wall from its outline (mm): the top-edge setback or the bottom inset."""
+    die = spec.shared.die
+    height = die_layers(die.stock_thickness_mm, spec.shared.flange.height_mm) * die.stock_thickness_mm
+    return max(die_wall.top_setback_mm(springback.die_radius_mm, springback.overbend_deg),
+               die_wall.wall_inset_mm(height, springback.overbend_deg))
+
+
 def check_radius(spec: RibSpec) -> materials.MinRadius:
     """The table minimum for the sheet; :class:`FormingError` when the part radius is below it."""
     sheet, flange = spec.shared.sheet, spec.shared.flange
@@ -119,11 +128,11 @@ def check_radius(spec: RibSpec) -> materials.MinRadius:
 def analyse_rib(spec: RibSpec, section: np.ndarray | None = None) -> RibAnalysis:
     """Geometry and forming analysis of every piece of one rib."""
     minimum = check_radius(spec)
-    geometry = rib_geometry(spec, section)
     alloy = materials.sheet_alloy(spec.shared.sheet.alloy)
     t = spec.shared.sheet.thickness_mm
     flange = spec.shared.flange
     springback = die_for_part(flange.bend_radius_mm, t, alloy.yield_mpa, alloy.youngs_modulus_mpa)
+    geometry = rib_geometry(spec, section, die_inset_mm=die_inset_mm(spec, springback))
     layout = flange_layout(flange.height_mm, flange.bend_radius_mm, t, alloy.k_factor)
     pieces = tuple(_analyse_piece(spec, piece, alloy, minimum, springback, layout) for piece in geometry.pieces)
     return RibAnalysis(spec, geometry, pieces)
@@ -151,7 +160,8 @@ def _analyse_piece(spec: RibSpec, piece: PieceGeometry, alloy: materials.SheetAl
         profile = strain_along(np.asarray(run.points), width, closed=False)
         runs.append(FlangeRun(index, offset, profile, relief_model.shrink_runs(profile, alloy.shrink_limit),
                               relief_model.stretch_runs(profile, alloy.stretch_limit)))
-    flutes, notches, notes = _relief(spec, piece, runs, layout, springback)
+    flutes, notches, notes, relief_warnings = _relief(spec, piece, runs, layout, springback)
+    warnings += relief_warnings
     for run in runs:
         for stretch in run.stretch_runs:
             where = run.s_offset_mm + stretch.s_start_mm
@@ -217,23 +227,27 @@ def _bounds(piece: PieceGeometry) -> tuple[float, float, float, float]:
 
 
 def _relief(spec: RibSpec, piece: PieceGeometry, runs: list[FlangeRun], layout: FlangeLayout,
-            springback: Springback) -> tuple[tuple, tuple, tuple[str, ...]]:
+            springback: Springback) -> tuple[tuple, tuple, tuple[str, ...], list[str]]:
+    """Flutes, notches, their notes, and warnings for relief that falls short."""
     shared = spec.shared
     t = shared.sheet.thickness_mm
     flutes: list[relief_model.Flute] = []
     notches: list[relief_model.Notch] = []
     notes: list[str] = []
+    warnings: list[str] = []
     for run in runs:
         for shrink in run.shrink_runs:
             if shared.relief == "flutes":
                 found = relief_model.flutes(shrink, shared.flange.height_mm, t, springback.die_radius_mm)
                 flutes.extend(_shift(f, run.s_offset_mm) for f in found.flutes)
                 notes.append(found.note)
+                if not found.fits:
+                    warnings.append(f"{piece.part_id}: {found.note}")
             elif shared.relief == "notches":
                 found_n = relief_model.notches(shrink, layout.developed_width_mm, t, shared.flange.bend_radius_mm)
                 notches.extend(_shift(n, run.s_offset_mm) for n in found_n.notches)
                 notes.append(found_n.note)
-    return tuple(flutes), tuple(notches), tuple(notes)
+    return tuple(flutes), tuple(notches), tuple(notes), warnings
 
 
 def _shift(item, offset: float):

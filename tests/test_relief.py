@@ -17,6 +17,7 @@ import pytest
 
 from diegen.errors import FormingError
 from diegen.forming.relief import (
+    FLUTE_LAND_MM,
     flute_arc_radius,
     flute_gather,
     flute_size,
@@ -102,6 +103,22 @@ def test_flutes_gather_at_least_the_excess(profile: str) -> None:
     assert np.diff(s) == pytest.approx(np.full(len(s) - 1, pitch), rel=1e-12)  # evenly spaced
     assert s[0] - run.s_start_mm == pytest.approx(clear + pitch / 2, rel=1e-12)
     assert run.s_start_mm + run.length_mm - s[-1] == pytest.approx(clear + pitch / 2, rel=1e-12)
+
+
+def test_crowded_flutes_are_narrowed_to_fit_with_a_land_between() -> None:
+    # a tight shrink run: the flutes asked for (width 2(R + 2T)) would not fit side by side, so they share the
+    # run, each narrowed to leave FLUTE_LAND_MM of wall between neighbours; the note and `fits` say so
+    prof = strain_along(_arc(20.0, 40.0), 12.0, closed=False)
+    (run,) = shrink_runs(prof, 0.02)
+    asked = flutes(run, 12.0, 0.8, 2.5, width=8.0)
+    assert not asked.fits
+    count = len(asked.flutes)
+    width = run.length_mm / count - FLUTE_LAND_MM
+    assert all(f.width_mm == pytest.approx(width, rel=1e-12) and f.depth_mm <= width / 2 for f in asked.flutes)
+    s = np.array([f.s_mm for f in asked.flutes])
+    assert np.diff(s) - width == pytest.approx(np.full(count - 1, FLUTE_LAND_MM), rel=1e-9)
+    assert asked.gathered_mm < run.excess_mm and "narrowed" in asked.note
+    assert count * (8.0 + FLUTE_LAND_MM) > run.length_mm
 
 
 def test_notches_remove_exactly_the_excess() -> None:

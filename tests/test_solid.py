@@ -21,7 +21,7 @@ from shapely.geometry.polygon import orient
 
 from diegen.errors import GeometryError, SolidError
 from diegen.solid import Bore, DieInput, Flute, OutlineRun, Pin
-from diegen.solid.profile import fillet_end_depth_mm, top_setback_mm
+from diegen.geometry.die_wall import fillet_end_depth_mm, top_setback_mm
 from diegen.solid.validate import solid_problems
 
 pytestmark = [pytest.mark.solid, pytest.mark.slow]

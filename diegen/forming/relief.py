@@ -35,6 +35,8 @@ FLUTE_PROFILES: tuple[str, ...] = ("arc", "vee")
 
 #: Flute depth at most this fraction of the flange height (common practice, no source).
 FLUTE_DEPTH_FRACTION = 0.25
+#: Least wall (mm) left between neighbouring flutes at the flange edge (design choice).
+FLUTE_LAND_MM = 0.5
 #: Included angle of the widest V-notch (model of our own, no source).
 NOTCH_MAX_ANGLE_DEG = 30.0
 
@@ -301,7 +303,7 @@ class FluteSet:
     flutes: tuple[Flute, ...]
     excess_mm: float
     gathered_mm: float  # sum of the flutes' gather, >= excess
-    fits: bool  # False when the flutes side by side would not fit in the run
+    fits: bool  # False when the flutes of the asked width would not fit side by side in the run (then narrowed)
     note: str
 
 
@@ -332,19 +334,29 @@ def flutes(
     if gather <= 0.0:
         raise FormingError("flutes of zero depth gather nothing: give a depth > 0 mm")
     count = math.ceil(excess / gather - 1e-12)
+    fits = count * (b + FLUTE_LAND_MM) <= run.length_mm
+    wanted = b
+    if not fits:  # narrow them to fit side by side, with a land of wall between each pair
+        b = run.length_mm / count - FLUTE_LAND_MM
+        if b <= 0.0:
+            return FluteSet(run, profile, (), excess, 0.0, False,
+                            f"{count} flute(s) would be needed but the {run.length_mm:.0f} mm run has no room for them: "
+                            "lower the flange or add notches")
+        d = min(d, b / 2.0)
+        gather = flute_gather(b, d, profile)
     # keep a flute width clear of the run's ends when there is room: a run often ends at a corner of the
     # outline, where the die's wall turns and the blank has its relief hole (common practice, no source)
-    clear = min(b, max(0.0, (run.length_mm - count * b) / 2.0))
+    clear = min(b, max(0.0, (run.length_mm - count * (b + FLUTE_LAND_MM)) / 2.0))
     span = run.length_mm - 2.0 * clear
     items = tuple(Flute(run.position((clear + (i + 0.5) / count * span) / run.length_mm), b, d, gather)
                   for i in range(count))
-    fits = count * b <= run.length_mm
     note = (
         f"{count} flute(s) {b:.1f} mm wide x {d:.1f} mm deep gather {count * gather:.1f} mm "
         f"of {excess:.1f} mm excess over {run.length_mm:.0f} mm of outline"
     )
     if not fits:
-        note += "; they do not fit side by side: lower the flange or add notches"
+        note += (f"; {wanted:.1f} mm flutes do not fit side by side, so they are narrowed to {b:.1f} mm and gather "
+                 "less than the excess: lower the flange or add notches")
     return FluteSet(run, profile, items, excess, count * gather, fits, note)
 
 

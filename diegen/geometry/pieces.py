@@ -84,9 +84,14 @@ def tail_end(upper: np.ndarray, lower: np.ndarray, x_start: float, min_depth: fl
     return lo
 
 
-def ramp_length(depth: float, runout: float, cutter_radius: float) -> float:
-    """Joggle ramp length (mm): ``runout``·depth, lengthened so the S-curve stays fairer than the cutter."""
-    return max(runout * depth, math.sqrt(6.0 * depth * max(cutter_radius, 0.0)))
+def ramp_length(depth: float, runout: float, fair_radius: float) -> float:
+    """Joggle ramp length (mm): ``runout``·depth, lengthened so the S-curve bends no tighter than ``fair_radius``.
+
+    The ramp d·(3u² − 2u³) over L bends tightest at its two ends, radius L²/(6d);
+    ``fair_radius`` is the larger of the cutter radius (the concave end) and
+    what the die's wall inset needs (the convex end).
+    """
+    return max(runout * depth, math.sqrt(6.0 * depth * max(fair_radius, 0.0)))
 
 
 def _inset(x: np.ndarray, joggles: Sequence[Joggle]) -> np.ndarray:
@@ -147,13 +152,13 @@ def _displace(points: np.ndarray, inset: np.ndarray, upper: bool) -> np.ndarray:
     return points + into_rib * inset[:, None]
 
 
-def joggles_for(x0: float, x1: float, spars: Sequence[SparCut], runout: float, cutter_radius: float) -> list[Joggle]:
-    """The joggles (both surfaces) whose full-depth zones overlap the piece from x0 to x1."""
+def joggles_for(x0: float, x1: float, spars: Sequence[SparCut], runout: float, fair_radius: float) -> list[Joggle]:
+    """The joggles (both surfaces) whose full-depth zones overlap the piece from x0 to x1 (see :func:`ramp_length`)."""
     result = []
     for i, spar in enumerate(spars):
         if spar.cap_thickness_mm <= 0 or spar.cap_width_mm <= 0:
             continue
-        ramp = ramp_length(spar.cap_thickness_mm, runout, cutter_radius)
+        ramp = ramp_length(spar.cap_thickness_mm, runout, fair_radius)
         for start, end in ((spar.x_front_mm - spar.cap_width_mm, spar.x_front_mm),
                            (spar.x_aft_mm, spar.x_aft_mm + spar.cap_width_mm)):
             lo, hi = max(start, x0), min(end, x1)

@@ -19,6 +19,7 @@ from diegen.geometry.types import Hole, PieceGeometry, RibGeometry
 from diegen.spec.model import AirfoilSource, RibSpec
 
 DEPTH_SAMPLES = 64
+FAIR_MARGIN_MM = 0.5  # joggle ramps bend this much rounder than the die wall's inset (design choice: room for sampling)
 
 
 @lru_cache(maxsize=64)
@@ -48,8 +49,14 @@ def min_tail_depth(spec: RibSpec) -> float:
     return flange.min_tail_depth_mm if flange.min_tail_depth_mm is not None else 2 * flange.height_mm + 10.0
 
 
-def rib_geometry(spec: RibSpec, section: np.ndarray | None = None) -> RibGeometry:
-    """Compute the rib's 2D geometry; ``section`` (unit chord) defaults to the spec's airfoil."""
+def rib_geometry(spec: RibSpec, section: np.ndarray | None = None, die_inset_mm: float = 0.0) -> RibGeometry:
+    """Compute the rib's 2D geometry; ``section`` (unit chord) defaults to the spec's airfoil.
+
+    ``die_inset_mm`` is the largest inset of the die's wall from its outline
+    (top-edge setback or bottom inset, mm): the joggle ramps bend no tighter
+    than it (plus ``FAIR_MARGIN_MM``) where they turn convex, so the die's
+    offset sections stay smooth, and no tighter than the cutter radius.
+    """
     shared = spec.shared
     unit = load_section(spec.airfoil) if section is None else np.asarray(section, float)
     scaled = unit * spec.chord_mm
@@ -63,8 +70,9 @@ def rib_geometry(spec: RibSpec, section: np.ndarray | None = None) -> RibGeometr
     spars = [SparCut(s.at * spec.chord_mm, s.web_mm, s.cap_thickness_mm, s.cap_width_mm) for s in spec.spars]
     warnings: list[str] = []
     pieces = []
+    fair_radius = max(shared.die.cutter_diameter_mm / 2, die_inset_mm + FAIR_MARGIN_MM if die_inset_mm > 0 else 0.0)
     for name, x0, x1, aft_flanged in _piece_ranges(spec, spars, upper, lower, warnings):
-        pieces.append(_piece(spec, name, x0, x1, aft_flanged, upper, lower, spars))
+        pieces.append(_piece(spec, name, x0, x1, aft_flanged, upper, lower, spars, fair_radius))
     if not pieces:
         raise GeometryError(f"rib {spec.id} has no piece left to make: {'; '.join(warnings)}")
     return RibGeometry(spec.id, spec.chord_mm, _tuple(scaled), as_points(oml), as_points(die), tuple(pieces),
@@ -98,7 +106,7 @@ def _piece_ranges(spec: RibSpec, spars: list[SparCut], upper: np.ndarray, lower:
 
 
 def _piece(spec: RibSpec, name: str, x0: float | None, x1: float, aft_flanged: bool, upper: np.ndarray,
-           lower: np.ndarray, spars: list[SparCut]) -> PieceGeometry:
+           lower: np.ndarray, spars: list[SparCut], fair_radius: float) -> PieceGeometry:
     shared = spec.shared
     part_id = f"{spec.id}-{name}"
     lo = float(upper[0, 0]) if x0 is None else float(x0)
@@ -108,7 +116,7 @@ def _piece(spec: RibSpec, name: str, x0: float | None, x1: float, aft_flanged: b
                if x0 is None else "")
         raise GeometryError(f"the {name} piece of rib {spec.id} has no length (from x = {lo:.1f} to {x1:.1f} mm; "
                             f"at least 1.0 mm needed){why}")
-    joggles = joggles_for(lo, x1, spars, shared.joggle_runout, shared.die.cutter_diameter_mm / 2)
+    joggles = joggles_for(lo, x1, spars, shared.joggle_runout, fair_radius)
     try:
         runs = piece_runs(upper, lower, x0, x1, joggles, aft_flanged)
     except GeometryError as error:

@@ -11,7 +11,7 @@ Conventions (all lengths in mm, all angles in degrees):
   inward by ``height_mm·tan(undercut)``.  The top edge is rounded by
   ``top_radius_mm``, tangent to the top face and to the leaning wall, so the
   flat part of the top face ends at the outline offset inward by the setback
-  ``top_radius·(1 + sin α)/cos α`` (see :mod:`diegen.solid.profile`).
+  ``top_radius·(1 + sin α)/cos α`` (see :mod:`diegen.geometry.die_wall`).
 
 Nothing here imports the solid-modelling kernel.
 """

@@ -3,7 +3,7 @@
 Conventions: rib plane X–Y, the die's top face at z = 0, the block extends to
 z = −height_mm; all lengths in mm, angles in degrees.  The outline is the
 die's mold line (see :mod:`diegen.solid.die_input` and
-:mod:`diegen.solid.profile`).
+:mod:`diegen.geometry.die_wall`).
 
 Method: the outline is offset inward exactly (normal offset) to a stack of
 sections — ``fillet_sections`` across the top-edge arc, one where the flutes
@@ -33,7 +33,7 @@ from dataclasses import replace
 from typing import TYPE_CHECKING, Any
 
 from diegen.errors import GeometryError, SolidError
-from diegen.solid import profile
+from diegen.geometry import die_wall
 from diegen.solid.die_input import DieInput
 from diegen.solid.outline import OffsetPiece, OutlineModel
 from diegen.solid.settings import DEFAULT_SETTINGS, BuildSettings
@@ -60,7 +60,7 @@ def check_die_numbers(die: DieInput) -> None:
         )
     if not die.cutter_radius_mm > 0:
         raise GeometryError(f"die {die.part_id}: cutter radius {die.cutter_radius_mm} mm must be positive")
-    arc_depth = profile.fillet_end_depth_mm(die.top_radius_mm, die.undercut_deg)
+    arc_depth = die_wall.fillet_end_depth_mm(die.top_radius_mm, die.undercut_deg)
     if arc_depth >= die.height_mm - 0.05:
         raise GeometryError(
             f"die {die.part_id}: the top-edge radius {die.top_radius_mm} mm reaches {arc_depth:.2f} mm down, "
@@ -72,8 +72,8 @@ def check_die_numbers(die: DieInput) -> None:
 
 def largest_inset_mm(die: DieInput) -> float:
     """The largest inset of any section: the top setback or the bottom inset (mm)."""
-    return max(profile.top_setback_mm(die.top_radius_mm, die.undercut_deg),
-               profile.wall_inset_mm(die.height_mm, die.undercut_deg))
+    return max(die_wall.top_setback_mm(die.top_radius_mm, die.undercut_deg),
+               die_wall.wall_inset_mm(die.height_mm, die.undercut_deg))
 
 
 def outline_model(die: DieInput, settings: BuildSettings = DEFAULT_SETTINGS) -> OutlineModel:
@@ -288,13 +288,13 @@ def build_body(die: DieInput, model: OutlineModel, settings: BuildSettings = DEF
     from OCP.TopExp import TopExp_Explorer
     from OCP.TopoDS import TopoDS
 
-    arc = profile.fillet_sections(die.top_radius_mm, die.undercut_deg, settings.fillet_sections)
+    arc = die_wall.fillet_sections(die.top_radius_mm, die.undercut_deg, settings.fillet_sections)
     wall = [arc[-1].depth_mm]
     if die.flutes and arc[-1].depth_mm + 0.05 < die.flute_length_mm < die.height_mm - 0.05:
         wall.append(die.flute_length_mm)  # the flutes' taper ends here: the ruled wall needs a section
     wall.append(die.height_mm)
     arc_wires = [_wire(section(die, model, s.inset_mm, s.depth_mm), -s.depth_mm) for s in arc]
-    wall_wires = arc_wires[-1:] + [_wire(section(die, model, profile.wall_inset_mm(d, die.undercut_deg), d), -d)
+    wall_wires = arc_wires[-1:] + [_wire(section(die, model, die_wall.wall_inset_mm(d, die.undercut_deg), d), -d)
                                    for d in wall[1:]]
     hint = ("check the outline for a spot where the piece is thinner than twice the wall inset "
             f"({2 * largest_inset_mm(die):.2f} mm) or lower the top radius")
@@ -354,12 +354,12 @@ def build_die(die: DieInput, settings: BuildSettings = DEFAULT_SETTINGS) -> "cq.
 
 def top_face_inset_mm(die: DieInput) -> float:
     """Inset of the flat top face's edge from the outline: the top setback (mm)."""
-    return profile.top_setback_mm(die.top_radius_mm, die.undercut_deg)
+    return die_wall.top_setback_mm(die.top_radius_mm, die.undercut_deg)
 
 
 def bottom_inset_mm(die: DieInput) -> float:
     """Inset of the bottom face's edge from the outline, ``H·tan α`` (mm)."""
-    return profile.wall_inset_mm(die.height_mm, die.undercut_deg)
+    return die_wall.wall_inset_mm(die.height_mm, die.undercut_deg)
 
 
 __all__ = ["build_die", "build_body", "outline_model", "check_die_numbers", "top_face_inset_mm",

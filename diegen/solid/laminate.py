@@ -17,7 +17,7 @@ import math
 from dataclasses import dataclass
 
 from diegen.errors import GeometryError
-from diegen.solid import profile
+from diegen.geometry import die_wall
 from diegen.solid.die_input import DieInput, OutlineRun
 from diegen.solid.outline import OffsetPiece, OutlineModel
 
@@ -54,9 +54,9 @@ def laminate_layers(die: DieInput, stock_thickness_mm: float, spacing_mm: float 
     for i in range(count):
         z_top = -i * stock_thickness_mm
         z_bottom = max(-(i + 1) * stock_thickness_mm, -die.height_mm)
-        bottom = model.offset(profile.wall_inset_mm(-z_bottom, die.undercut_deg), spacing_mm=spacing_mm,
+        bottom = model.offset(die_wall.wall_inset_mm(-z_bottom, die.undercut_deg), spacing_mm=spacing_mm,
                               flute_scale=flute_scale(die, -z_bottom))
-        top = model.offset(profile.wall_inset_mm(-z_top, die.undercut_deg), spacing_mm=spacing_mm,
+        top = model.offset(die_wall.wall_inset_mm(-z_top, die.undercut_deg), spacing_mm=spacing_mm,
                            flute_scale=flute_scale(die, -z_top))
         layers.append(LaminateLayer(i, z_top, z_bottom, _runs(bottom), _runs(top)))
     return layers

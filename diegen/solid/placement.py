@@ -24,7 +24,8 @@ from shapely.geometry import Point, Polygon
 from shapely.ops import polylabel
 
 from diegen.errors import GeometryError
-from diegen.solid import lettering, profile
+from diegen.geometry import die_wall
+from diegen.solid import lettering
 from diegen.solid.die_input import DieInput
 from diegen.solid.outline import OutlineModel, pieces_to_polygon
 from diegen.solid.settings import BuildSettings
@@ -32,14 +33,14 @@ from diegen.solid.settings import BuildSettings
 
 def _smallest_section(die: DieInput, model: OutlineModel) -> Polygon:
     """What every horizontal section of the die contains: the flat top face and the bottom face, flutes and all."""
-    top = pieces_to_polygon(model.offset(profile.top_setback_mm(die.top_radius_mm, die.undercut_deg)))
+    top = pieces_to_polygon(model.offset(die_wall.top_setback_mm(die.top_radius_mm, die.undercut_deg)))
     return top.intersection(_bottom_section(die, model))
 
 
 def _bottom_section(die: DieInput, model: OutlineModel) -> Polygon:
     from diegen.solid.form_block import section
 
-    return pieces_to_polygon(section(die, model, profile.wall_inset_mm(die.height_mm, die.undercut_deg),
+    return pieces_to_polygon(section(die, model, die_wall.wall_inset_mm(die.height_mm, die.undercut_deg),
                                      die.height_mm))
 
 
