@@ -50,6 +50,10 @@ class GeometryError(DiegenError, ValueError):
     """Rib geometry that cannot be made (collapsed offset, no room for a hole, ...)."""
 
 
+class NoRoomForMarks(GeometryError):
+    """The die's bottom face has no room for the engraving asked for (the die itself can be made)."""
+
+
 class FormingError(DiegenError, ValueError):
     """A part that cannot be formed as specified (radius below the minimum, ...)."""
 

@@ -464,3 +464,17 @@ def test_output_stays_under_the_output_folder(tmp_path: Path, kernel_fails_for, 
     written = {p for p in tmp_path.rglob("*")} - before
     assert written and all(p.resolve().is_relative_to(out.resolve()) for p in written), sorted(written)
     assert not list(work.iterdir())
+
+
+@pytest.mark.slow
+@pytest.mark.solid
+def test_small_die_drops_the_marks_it_has_no_room_for(tmp_path: Path) -> None:
+    """A short tail piece has no room for both lines of marks: the die is still made, with the part id and the
+    arrow, and the shop sheet says what to write by hand (the marks are a convenience, the die is not)."""
+    path = tmp_path / "rib.yaml"
+    path.write_text(rib_yaml(chord=610, pieces="[tail]", cap=1.6, height=12.7, radius=2.38,
+                             die="{material: solid-surface, stock_thickness: 12.7, cutter_diameter: 6}"))
+    result = api.build(api.load(path), tmp_path / "out", jobs=1)
+    assert not result.failed
+    sheet = (tmp_path / "out" / "R1" / "R1-tail" / "R1-tail-sheet.md").read_text(encoding="utf-8")
+    assert "only R1-tail and the arrow are engraved; write 2024-T3 0.60 mm on it by hand" in sheet

@@ -9,8 +9,10 @@ by the cap thickness over the cap width and runs out over a ramp.
 
 Joggle run-out: ramp length = ``runout`` × depth (default 4×: from memory,
 unverified — run-outs of 3–4 × depth are usual), and never shorter than needed
-to keep the ramp's concave curvature radius at least the router cutter radius.
-The ramp is a cubic S-curve d·(3u² − 2u³), whose tightest radius is L²/(6·d).
+to keep the ramp's concave curvature radius at least the router cutter radius
+(and its convex one rounder than the die wall's inset, see :func:`ramp_length`).
+The ramp is the quintic S-curve d·(10u³ − 15u⁴ + 6u⁵), whose curvature is zero
+at both ends and whose tightest radius is L²/((10/√3)·d).
 """
 
 from __future__ import annotations
@@ -25,6 +27,7 @@ from diegen.errors import GeometryError
 from diegen.geometry.types import Joggle, Point, Points, Run
 
 JOGGLE_SAMPLE_MM = 0.5  # point spacing along a joggle ramp and zone
+RAMP_BEND = 10.0 / math.sqrt(3.0)  # the ramp's tightest radius is L²/(RAMP_BEND·d) (see ramp_shape)
 MIN_POINT_GAP_MM = 0.2  # closer outline points are merged
 MIN_END_FACE_MM = 1.0  # shortest end face (die depth at a spar cut) that is still a face
 
@@ -87,11 +90,22 @@ def tail_end(upper: np.ndarray, lower: np.ndarray, x_start: float, min_depth: fl
 def ramp_length(depth: float, runout: float, fair_radius: float) -> float:
     """Joggle ramp length (mm): ``runout``·depth, lengthened so the S-curve bends no tighter than ``fair_radius``.
 
-    The ramp d·(3u² − 2u³) over L bends tightest at its two ends, radius L²/(6d);
-    ``fair_radius`` is the larger of the cutter radius (the concave end) and
-    what the die's wall inset needs (the convex end).
+    The ramp d·ramp_shape(u) over L bends tightest at two points inside it,
+    radius L²/(RAMP_BEND·d); ``fair_radius`` is the larger of the cutter radius
+    (the concave bend) and what the die's wall inset needs (the convex bend).
     """
-    return max(runout * depth, math.sqrt(6.0 * depth * max(fair_radius, 0.0)))
+    return max(runout * depth, math.sqrt(RAMP_BEND * depth * max(fair_radius, 0.0)))
+
+
+def ramp_shape(u: np.ndarray) -> np.ndarray:
+    """The joggle ramp's depth fraction at ``u`` (0 at the ramp's far end, 1 at the recess): 10u³ − 15u⁴ + 6u⁵.
+
+    Its slope and its curvature are zero at both ends, so the outline's
+    curvature is continuous where the ramp meets the wall and the recess (a
+    spline through the points then follows it, and the die's offsets do too).
+    Its second derivative 60u − 180u² + 120u³ peaks at ±10/√3 (u = ½ ∓ √3/6).
+    """
+    return u**3 * (10.0 + u * (-15.0 + 6.0 * u))
 
 
 def _inset(x: np.ndarray, joggles: Sequence[Joggle]) -> np.ndarray:
@@ -104,7 +118,7 @@ def _inset(x: np.ndarray, joggles: Sequence[Joggle]) -> np.ndarray:
             u = 1.0 - (x - edge) * sign / j.ramp_mm  # 1 at the zone edge, 0 at the ramp's far end
             in_ramp = (u > 0) & (u < 1) & ~full
             u = np.clip(u, 0.0, 1.0)
-            value = np.where(in_ramp, j.depth_mm * (3 * u**2 - 2 * u**3), value)
+            value = np.where(in_ramp, j.depth_mm * ramp_shape(u), value)
         inset = np.maximum(inset, value)
     return inset
 

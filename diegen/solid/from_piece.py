@@ -7,6 +7,7 @@ dowel in plastics and solid-surface stock) and ``pin_depth_mm`` deep.
 
 from __future__ import annotations
 
+from dataclasses import replace
 from pathlib import Path
 from typing import Any
 
@@ -14,7 +15,7 @@ from diegen.fileio import refuse_foreign
 from diegen.solid.die_input import Bore, DieInput, Flute, OutlineRun, Pin
 
 PIN_INTERFERENCE_MM = 0.03
-ENGRAVING_NOTE = "marks on the bottom face: part id, sheet, and an arrow pointing to the leading edge"
+ENGRAVING_NOTE = "Marks on the bottom face: part id, sheet, and an arrow pointing to the leading edge."
 
 
 def pin_depth_mm(dowel_d_mm: float, die_height_mm: float) -> float:
@@ -44,7 +45,6 @@ def die_input(rib: Any, piece: Any) -> DieInput:
 def write_die_files(rib: Any, piece: Any, folder: Path, claimed: bool = False) -> tuple[list[str], list[str]]:
     """Build the die and write its files into ``folder``; return (file names, notes for the shop sheet)."""
     from diegen.solid.export import write_step, write_stl
-    from diegen.solid.form_block import build_die
 
     die = die_input(rib, piece)
     part = die.part_id
@@ -52,11 +52,11 @@ def write_die_files(rib: Any, piece: Any, folder: Path, claimed: bool = False) -
     tolerance = shared.die.stl_tolerance_mm
     names = [f"{part}-die.step", f"{part}-die.stl"]
     refuse_foreign([folder / n for n in names], claimed)
-    solid = build_die(die)
+    solid, marked = _build_with_marks(die)
     write_step(solid, folder / names[0])
     write_stl(solid, folder / names[1], tolerance_mm=tolerance)
     pin = die.pins[0] if die.pins else None
-    notes = [ENGRAVING_NOTE]
+    notes = [_marks_note(die.engraving, marked)]
     if pin:
         notes.insert(0, f"Dowel holes in the die: Ø{pin.d:.2f} mm ({PIN_INTERFERENCE_MM:.2f} mm under the dowel for a "
                         f"press fit), {pin.depth:.1f} mm deep from the top face.")
@@ -71,6 +71,29 @@ def write_die_files(rib: Any, piece: Any, folder: Path, claimed: bool = False) -
             notes.append(f"Printed die in {len(tile_names) // 2} tiles for a {shared.die.print_bed_mm[0]:.0f} × "
                          f"{shared.die.print_bed_mm[1]:.0f} mm bed, with alignment dowel holes across each joint.")
     return names, notes
+
+
+def _marks_note(asked: tuple[str, ...], marked: tuple[str, ...]) -> str:
+    if marked == asked:
+        return ENGRAVING_NOTE
+    if marked:
+        return (f"No room on the bottom face for all the marks: only {', '.join(marked)} and the arrow are engraved; "
+                f"write {', '.join(line for line in asked if line not in marked)} on it by hand.")
+    return (f"No room on the bottom face for the marks: write {', '.join(asked)} and an arrow pointing to the leading "
+            "edge on it by hand.")
+
+
+def _build_with_marks(die: DieInput) -> tuple[Any, tuple[str, ...]]:
+    """The die solid and the engraving lines it carries: all, else the part id alone, else none."""
+    from diegen.errors import NoRoomForMarks
+    from diegen.solid.form_block import build_die
+
+    for lines in (die.engraving, die.engraving[:1], ()):
+        try:
+            return build_die(replace(die, engraving=lines)), lines
+        except NoRoomForMarks:
+            continue
+    raise AssertionError("a die without marks needs no room for them")
 
 
 def _write_tiles(solid: Any, bed: tuple[float, float], part: str, folder: Path, claimed: bool,

@@ -23,7 +23,7 @@ import shapely
 from shapely.geometry import Point, Polygon
 from shapely.ops import polylabel
 
-from diegen.errors import GeometryError
+from diegen.errors import GeometryError, NoRoomForMarks
 from diegen.geometry import die_wall
 from diegen.solid import lettering
 from diegen.solid.die_input import DieInput
@@ -91,7 +91,7 @@ def engraving_marks(die: DieInput, model: OutlineModel, settings: BuildSettings)
     reach it.  Seen from below with the die turned over about the X axis the
     text reads normally, the first line on top, with an arrow under it
     pointing forward (towards −X, the leading edge).  Raises
-    :class:`GeometryError` when there is no room.
+    :class:`NoRoomForMarks` when there is no room.
     """
     lines = [line for line in die.engraving if line.strip()]
     if not lines:
@@ -115,7 +115,7 @@ def engraving_marks(die: DieInput, model: OutlineModel, settings: BuildSettings)
             break
         size *= 0.85
     else:
-        raise GeometryError(
+        raise NoRoomForMarks(
             f"die {die.part_id}: no room on the bottom face for the engraving {lines!r} at "
             f"{settings.engrave_min_height_mm:g} mm letter height: shorten it or leave it out"
         )
