@@ -109,8 +109,7 @@ def die_inset_mm(spec: RibSpec, springback: Springback) -> float:
     """The largest inset of the die's wall from its outline (mm): the top-edge setback or the bottom inset."""
     die = spec.shared.die
     height = die_layers(die.stock_thickness_mm, spec.shared.flange.height_mm) * die.stock_thickness_mm
-    return max(die_wall.top_setback_mm(springback.die_radius_mm, springback.overbend_deg),
-               die_wall.wall_inset_mm(height, springback.overbend_deg))
+    return die_wall.largest_inset_mm(springback.die_radius_mm, springback.overbend_deg, height)
 
 
 def check_radius(spec: RibSpec) -> materials.MinRadius:

@@ -62,3 +62,8 @@ def fillet_sections(radius_mm: float, undercut_deg: float, count: int) -> tuple[
         raise ValueError("at least two fillet sections are needed")
     span = 90.0 + undercut_deg
     return tuple(fillet_point(radius_mm, undercut_deg, span * i / (count - 1)) for i in range(count))
+
+
+def largest_inset_mm(radius_mm: float, undercut_deg: float, height_mm: float) -> float:
+    """The largest inset of any section of a die ``height_mm`` tall: the top setback or the bottom inset (mm)."""
+    return max(top_setback_mm(radius_mm, undercut_deg), wall_inset_mm(height_mm, undercut_deg))

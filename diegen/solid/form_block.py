@@ -72,8 +72,7 @@ def check_die_numbers(die: DieInput) -> None:
 
 def largest_inset_mm(die: DieInput) -> float:
     """The largest inset of any section: the top setback or the bottom inset (mm)."""
-    return max(die_wall.top_setback_mm(die.top_radius_mm, die.undercut_deg),
-               die_wall.wall_inset_mm(die.height_mm, die.undercut_deg))
+    return die_wall.largest_inset_mm(die.top_radius_mm, die.undercut_deg, die.height_mm)
 
 
 def outline_model(die: DieInput, settings: BuildSettings = DEFAULT_SETTINGS) -> OutlineModel:
