@@ -12,9 +12,9 @@ from dataclasses import dataclass, field, replace
 import numpy as np
 
 from diegen import materials
-from diegen.blank import develop_blank, notch_polygon
+from diegen.blank.develop import develop_blank, notch_polygon
 from diegen.errors import FormingError
-from diegen.export.drawing import BlankDrawing
+from diegen.blank.drawing import BlankDrawing
 from diegen.forming import press as press_model
 from diegen.forming import relief as relief_model
 from diegen.forming.bend import FlangeLayout, flange_layout

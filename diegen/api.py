@@ -9,24 +9,17 @@
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from importlib import resources
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
-from diegen.analysis import RibAnalysis, analyse_rib
 from diegen.errors import OutputError
-from diegen.spec import RibSpec, Spec, WingSpec, load_spec
-from diegen.wing import rib_spec, section_at, stations
+from diegen.pipeline.jobs import Analysis, RibJob, WingAnalysis, analyse_spec, rib_analyses, rib_jobs
+from diegen.spec import Spec, load_spec
 
-
-@dataclass(frozen=True)
-class WingAnalysis:
-    spec: WingSpec
-    ribs: tuple[RibAnalysis, ...]
-
-
-Analysis = RibAnalysis | WingAnalysis
+if TYPE_CHECKING:  # pragma: no cover
+    from diegen.pipeline.build import BuildResult
+    from diegen.pipeline.outputs import DieWriter
 
 
 def load(path: str | Path) -> Spec:
@@ -34,29 +27,17 @@ def load(path: str | Path) -> Spec:
     return load_spec(path)
 
 
-def rib_jobs(spec: Spec) -> list[tuple[RibSpec, Any]]:
-    """Every rib of ``spec`` as (rib spec, unit section or None for the rib's own airfoil)."""
-    if isinstance(spec, RibSpec):
-        return [(spec, None)]
-    return [(rib_spec(spec, station), section_at(spec, station)) for station in stations(spec)]
-
-
 def analyse(spec: Spec) -> Analysis:
     """Geometry and forming analysis of every piece (no solid kernel)."""
-    if isinstance(spec, RibSpec):
-        return analyse_rib(spec)
-    return WingAnalysis(spec, tuple(analyse_rib(rib, section) for rib, section in rib_jobs(spec)))
-
-
-def _ribs(analysis: Analysis) -> tuple[RibAnalysis, ...]:
-    return analysis.ribs if isinstance(analysis, WingAnalysis) else (analysis,)
+    return analyse_spec(spec)
 
 
 def report_json(analysis: Analysis) -> dict[str, Any]:
     """One JSON-ready document: ``{"parts": [...]}`` with every piece of every rib."""
-    from diegen.report import MODELS, SAFETY, piece_json, rib_json
+    from diegen.analysis import MODELS
+    from diegen.reports.document import SAFETY, piece_json, rib_json
 
-    if isinstance(analysis, RibAnalysis):
+    if not isinstance(analysis, WingAnalysis):
         return rib_json(analysis)
     from diegen import __version__
 
@@ -67,9 +48,9 @@ def report_json(analysis: Analysis) -> dict[str, Any]:
 
 def report_text(analysis: Analysis) -> str:
     """The readable forming report."""
-    from diegen.report import footer_text, rib_text
+    from diegen.reports.text import footer_text, rib_text
 
-    return "\n\n".join([rib_text(r, footer=False) for r in _ribs(analysis)] + [footer_text()])
+    return "\n\n".join([rib_text(r, footer=False) for r in rib_analyses(analysis)] + [footer_text()])
 
 
 def write_plots(analysis: Analysis, out_dir: str | Path) -> list[Path]:
@@ -78,7 +59,7 @@ def write_plots(analysis: Analysis, out_dir: str | Path) -> list[Path]:
 
     spec_id = analysis.spec.id
     paths = []
-    for rib in _ribs(analysis):
+    for rib in rib_analyses(analysis):
         for piece in rib.pieces:
             folder = Path(out_dir) / spec_id / piece.piece.part_id
             paths.append(piece_plot(rib, piece, folder / f"{piece.piece.part_id}-geometry.png"))
@@ -97,15 +78,30 @@ def write_starter(kind: str, path: str | Path, overwrite: bool = False) -> Path:
     return path
 
 
-def build(spec: Spec, out_dir: str | Path, force: bool = False, jobs: int | None = None, progress: bool = False):
-    """Build every piece into ``out_dir/<spec id>/<piece id>/``; returns a :class:`diegen.build.BuildResult`."""
-    from diegen.build import build_spec
+def build(spec: Spec, out_dir: str | Path, force: bool = False, jobs: int | None = None, progress: bool = False,
+          die_writer: DieWriter | None = None) -> BuildResult:
+    """Build every piece into ``out_dir/<spec id>/<piece id>/``.
 
-    return build_spec(spec, Path(out_dir), force=force, jobs=jobs, progress=progress)
+    ``die_writer`` writes a piece's die files; by default the solid kernel's
+    (:func:`diegen.die.occ.files.write_die_files`).
+    """
+    from diegen.pipeline.build import build_spec
+
+    warm_up = None
+    if die_writer is None:
+        from diegen.die.occ.files import write_die_files
+        from diegen.die.occ.form_block import warm_up
+
+        die_writer = write_die_files
+    return build_spec(spec, Path(out_dir), die_writer, warm_up, force=force, jobs=jobs, progress=progress)
 
 
 def diff_text(old: Spec, new: Spec) -> str:
     """Which pieces two specs would change, and by how much (no solids built)."""
-    from diegen.build import diff_specs
+    from diegen.pipeline.diff import diff_specs
 
     return diff_specs(old, new)
+
+
+__all__ = ["Analysis", "RibJob", "WingAnalysis", "analyse", "build", "diff_text", "load", "report_json",
+           "report_text", "rib_jobs", "write_plots", "write_starter"]

@@ -46,7 +46,7 @@ def floor_seconds(points, height_mm: float, radius_mm: float, out: Path, toleran
     """Median time of the floor: bare extrude of ``points`` + top fillet + STEP + STL (the die's STL settings)."""
     import cadquery as cq
 
-    from diegen.solid.export import STL_ANGULAR_TOLERANCE_DEG, STL_TOLERANCE_MM
+    from diegen.die.occ.export import STL_ANGULAR_TOLERANCE_DEG, STL_TOLERANCE_MM
 
     tol = STL_TOLERANCE_MM if tolerance_mm is None else tolerance_mm
 
@@ -61,8 +61,8 @@ def floor_seconds(points, height_mm: float, radius_mm: float, out: Path, toleran
 
 def die_seconds(die, out: Path, tolerance_mm: float | None = None, repeat: int = REPEAT) -> float:
     """Median time of the full die: build (checked) + STEP + STL."""
-    from diegen.solid import build_die
-    from diegen.solid.export import STL_TOLERANCE_MM, write_step, write_stl
+    from diegen.die.occ.form_block import build_die
+    from diegen.die.occ.export import STL_TOLERANCE_MM, write_step, write_stl
 
     def run() -> None:
         solid = build_die(die)
@@ -75,11 +75,12 @@ def die_seconds(die, out: Path, tolerance_mm: float | None = None, repeat: int =
 
 def stages(die, out: Path, tolerance_mm: float) -> str:
     """Median time of each stage of one die, as text."""
-    from diegen.solid.export import write_step, write_stl
-    from diegen.solid.form_block import build_body, outline_model
-    from diegen.solid.placement import check_placement, engraving_marks
-    from diegen.solid.settings import DEFAULT_SETTINGS
-    from diegen.solid.validate import solid_problems
+    from diegen.die.occ.export import write_step, write_stl
+    from diegen.die.occ.form_block import build_body
+    from diegen.die.model import outline_model
+    from diegen.die.placement import check_placement, engraving_marks
+    from diegen.die.settings import DEFAULT_SETTINGS
+    from diegen.die.occ.validate import solid_problems
 
     def layout():
         model = outline_model(die)
@@ -101,7 +102,7 @@ def stages(die, out: Path, tolerance_mm: float) -> str:
 def demo_rib(out: Path) -> None:
     """Per piece of specs/demo-rib.yaml: full die + STEP + STL against the floor of the same outline."""
     from diegen import api
-    from diegen.solid.from_piece import die_input
+    from diegen.die.from_analysis import die_input
 
     rib = api.analyse(api.load(Path(__file__).resolve().parents[1] / "specs" / "demo-rib.yaml"))
     tolerance = rib.spec.shared.die.stl_tolerance_mm
@@ -121,7 +122,7 @@ def test_outline(out: Path) -> None:
     """The NACA 2412 nose piece of tests/test_solid.py, plain and with every feature."""
     from test_solid import FLUTE_LENGTH, FLUTES, PINS, BORES, CUTTER, H, R, UNDERCUT, nose_outline
 
-    from diegen.solid import DieInput
+    from diegen.die.die_input import DieInput
 
     outline = nose_outline()
     plain = DieInput("BENCH-N1", outline, H, R, UNDERCUT, CUTTER)
@@ -140,9 +141,10 @@ def stl_sweep(out: Path) -> None:
     import numpy as np
     from test_solid import CUTTER, H, R, UNDERCUT, nose_outline
 
-    from diegen.solid import DieInput, build_die
-    from diegen.solid.export import write_stl
-    from diegen.solid.validate import read_stl_triangles, volume_mm3
+    from diegen.die.die_input import DieInput
+    from diegen.die.occ.form_block import build_die
+    from diegen.die.occ.export import write_stl
+    from diegen.die.occ.validate import read_stl_triangles, volume_mm3
 
     body = build_die(DieInput("BENCH-N1", nose_outline(), H, R, UNDERCUT, CUTTER))
     exact = volume_mm3(body)

@@ -40,18 +40,19 @@ def pytest_report_header(config):
     return f"diegen {__version__}; {kernel}; shapely {shapely.__version__}"
 
 
-@pytest.fixture
-def fake_solids(monkeypatch):
-    """Replace the kernel step by a writer of a tiny text file; count the calls."""
-    calls = []
+class StandInDies(list):
+    """A die writer for build tests: writes a tiny text file in place of the die, records each part built."""
 
-    def write_die_files(rib, piece, folder, known=()):
+    def __call__(self, rib, piece, folder, claimed=False):
         from diegen.fileio import write_text
 
         name = f"{piece.piece.part_id}-die.step"
         write_text(folder / name, f"stand-in die for {piece.piece.part_id}\n")
-        calls.append(piece.piece.part_id)
+        self.append(piece.piece.part_id)
         return [name], ["stand-in"]
 
-    monkeypatch.setattr("diegen.solid.from_piece.write_die_files", write_die_files)
-    return calls
+
+@pytest.fixture
+def fake_solids():
+    """A stand-in die writer to pass as ``api.build(..., die_writer=fake_solids)``; it lists the parts it wrote."""
+    return StandInDies()

@@ -35,7 +35,7 @@ from shapely.geometry import LinearRing, LineString, Polygon
 
 from diegen import api
 from diegen.analysis import PieceAnalysis, RibAnalysis
-from diegen.blank import develop_blank, flange_band_area, relief_hole_diameter
+from diegen.blank.develop import develop_blank, flange_band_area, relief_hole_diameter
 from diegen.export.dxf import read_dxf_outline, write_dxf
 from diegen.geometry.types import PieceGeometry, Run
 

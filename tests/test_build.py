@@ -13,7 +13,9 @@ from pathlib import Path
 import pytest
 
 from diegen import api
-from diegen.build import BuildLock, Manifest, rib_input_hash
+from diegen.pipeline.hashing import rib_input_hash
+from diegen.pipeline.lock import BuildLock
+from diegen.pipeline.manifest import Manifest
 from diegen.errors import OutputError
 
 ROOT = Path(__file__).resolve().parents[1]
@@ -21,7 +23,7 @@ DEMO_RIB = ROOT / "specs" / "demo-rib.yaml"
 
 
 def test_layout_and_manifest(tmp_path, fake_solids):
-    result = api.build(api.load(DEMO_RIB), tmp_path, jobs=1)
+    result = api.build(api.load(DEMO_RIB), tmp_path, jobs=1, die_writer=fake_solids)
     assert not result.failed
     folder = tmp_path / "T1"
     manifest = json.loads((folder / "manifest.json").read_text())
@@ -41,13 +43,13 @@ def test_layout_and_manifest(tmp_path, fake_solids):
 @pytest.mark.slow  # several builds of three pieces: blanks, PDFs and previews each time
 def test_second_build_rewrites_nothing_and_force_rebuilds(tmp_path, fake_solids):
     spec = api.load(DEMO_RIB)
-    api.build(spec, tmp_path, jobs=1)
+    api.build(spec, tmp_path, jobs=1, die_writer=fake_solids)
     stamps = {p: p.stat().st_mtime_ns for p in (tmp_path / "T1").rglob("*-*.*")}
     fake_solids.clear()
-    result = api.build(spec, tmp_path, jobs=1)
+    result = api.build(spec, tmp_path, jobs=1, die_writer=fake_solids)
     assert fake_solids == [] and {o.status for o in result.outcomes} == {"unchanged"}
     assert stamps == {p: p.stat().st_mtime_ns for p in (tmp_path / "T1").rglob("*-*.*")}
-    result = api.build(spec, tmp_path, jobs=1, force=True)
+    result = api.build(spec, tmp_path, jobs=1, die_writer=fake_solids, force=True)
     assert sorted(fake_solids) == ["T1-center", "T1-nose", "T1-tail"]
     assert {o.status for o in result.outcomes} == {"built"}
 
@@ -56,11 +58,11 @@ def test_change_rebuilds_only_what_changed(tmp_path, fake_solids):
     text = DEMO_RIB.read_text()
     spec_path = tmp_path / "rib.yaml"
     spec_path.write_text(text)
-    api.build(api.load(spec_path), tmp_path / "out", jobs=1)
+    api.build(api.load(spec_path), tmp_path / "out", jobs=1, die_writer=fake_solids)
     fake_solids.clear()
     # moving the rear spar changes the centre and tail pieces, not the nose
     spec_path.write_text(text.replace("at: 0.70", "at: 0.68"))
-    result = api.build(api.load(spec_path), tmp_path / "out", jobs=1)
+    result = api.build(api.load(spec_path), tmp_path / "out", jobs=1, die_writer=fake_solids)
     status = {o.part_id: o for o in result.outcomes}
     assert status["T1-nose"].status == "unchanged"
     assert status["T1-center"].status == "built" and status["T1-tail"].status == "built"
@@ -72,10 +74,10 @@ def test_change_rebuilds_only_what_changed(tmp_path, fake_solids):
 @pytest.mark.slow  # several builds of three pieces: blanks, PDFs and previews each time
 def test_missing_file_is_rebuilt(tmp_path, fake_solids):
     spec = api.load(DEMO_RIB)
-    api.build(spec, tmp_path, jobs=1)
+    api.build(spec, tmp_path, jobs=1, die_writer=fake_solids)
     (tmp_path / "T1" / "T1-tail" / "T1-tail-blank.svg").unlink()
     fake_solids.clear()
-    result = api.build(spec, tmp_path, jobs=1)
+    result = api.build(spec, tmp_path, jobs=1, die_writer=fake_solids)
     assert [o.part_id for o in result.outcomes if o.status == "built"] == ["T1-tail"]
 
 
@@ -85,7 +87,7 @@ def test_foreign_file_is_never_overwritten(tmp_path, fake_solids):
     folder.mkdir(parents=True)
     mine = folder / "T1-nose-blank.dxf"
     mine.write_text("my own drawing")
-    result = api.build(api.load(DEMO_RIB), tmp_path, jobs=1)
+    result = api.build(api.load(DEMO_RIB), tmp_path, jobs=1, die_writer=fake_solids)
     failed = {o.part_id: o.error for o in result.outcomes if o.status == "failed"}
     assert "not written by diegen" in failed["T1-nose"]
     assert mine.read_text() == "my own drawing"
@@ -110,11 +112,11 @@ def test_rib_input_hash_ignores_file_location_but_not_values():
 @pytest.mark.slow  # several builds of three pieces: blanks, PDFs and previews each time
 def test_corrupt_manifest_means_full_rebuild(tmp_path, fake_solids):
     spec = api.load(DEMO_RIB)
-    api.build(spec, tmp_path, jobs=1)
+    api.build(spec, tmp_path, jobs=1, die_writer=fake_solids)
     (tmp_path / "T1" / "manifest.json").write_text("{not json")
-    assert Manifest.load(tmp_path / "T1" / "manifest.json").data["pieces"] == {}
+    assert Manifest.load(tmp_path / "T1" / "manifest.json").pieces == {}
     fake_solids.clear()
-    result = api.build(spec, tmp_path, jobs=1)
+    result = api.build(spec, tmp_path, jobs=1, die_writer=fake_solids)
     # the files exist but were never recorded: diegen refuses to overwrite what it cannot prove it wrote
     assert all(o.status == "failed" and "not written by diegen" in o.error for o in result.outcomes)
 
@@ -134,7 +136,7 @@ def test_real_build_of_the_demo_rib_nose(tmp_path):
     """End to end with the solid kernel: STEP re-imports as one valid closed solid (OCP BRepCheck_Analyzer)."""
     from dataclasses import replace
 
-    from diegen.solid.validate import check_step_file
+    from diegen.die.occ.validate import check_step_file
 
     spec = api.load(DEMO_RIB)
     spec = replace(spec, shared=replace(spec.shared, pieces=("nose",)))

@@ -59,7 +59,7 @@ def test_check_path_does_not_import_the_solid_kernel() -> None:
     code = f"""
 import json, sys
 import diegen.geometry, diegen.geometry.rib, diegen.geometry.pieces, diegen.geometry.holes, diegen.geometry.pins
-import diegen.geometry.polygon, diegen.geometry.types, diegen.analysis, diegen.blank, diegen.report, diegen.wing
+import diegen.geometry.polygon, diegen.geometry.types, diegen.analysis, diegen.blank.develop, diegen.reports.document, diegen.reports.text, diegen.wing
 import diegen.api, diegen.cli
 from diegen import api
 analysis = api.analyse(api.load({str(DEMO_RIB)!r}))

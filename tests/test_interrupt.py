@@ -52,7 +52,7 @@ def _built(manifest: Path) -> list[str]:
 def _check_file(path: Path) -> None:
     suffix = path.suffix
     if suffix == ".step":
-        from diegen.solid.validate import check_step_file
+        from diegen.die.occ.validate import check_step_file
 
         check_step_file(path)  # OCP BRepCheck_Analyzer: valid, one closed solid
     elif suffix == ".stl":

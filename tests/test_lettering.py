@@ -5,7 +5,7 @@ from __future__ import annotations
 import pytest
 from shapely.geometry import box
 
-from diegen.solid.lettering import (
+from diegen.die.lettering import (
     ADVANCE_UNITS,
     CAP_UNITS,
     GLYPHS,

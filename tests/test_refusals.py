@@ -361,9 +361,9 @@ def kernel_fails_for(monkeypatch):
     def write_stl(shape, path, tolerance_mm=0.05, **_):
         write_text(path, f"stand-in STL for {shape[1]}\n")
 
-    monkeypatch.setattr("diegen.solid.form_block.build_die", build_die)
-    monkeypatch.setattr("diegen.solid.export.write_step", write_step)
-    monkeypatch.setattr("diegen.solid.export.write_stl", write_stl)
+    monkeypatch.setattr("diegen.die.occ.files.build_die", build_die)
+    monkeypatch.setattr("diegen.die.occ.files.write_step", write_step)
+    monkeypatch.setattr("diegen.die.occ.files.write_stl", write_stl)
     return failing
 
 
@@ -395,7 +395,7 @@ def test_failure_after_the_step_file_leaves_no_die_files(tmp_path: Path, kernel_
             raise SolidError("pretend STL failure: the mesh is not watertight")
         write_text(path, f"stand-in STL for {shape[1]}\n")
 
-    monkeypatch.setattr("diegen.solid.export.write_stl", write_stl)
+    monkeypatch.setattr("diegen.die.occ.files.write_stl", write_stl)
     path = tmp_path / "rib.yaml"
     path.write_text(rib_yaml(pieces="[nose, center]"))
     result = api.build(api.load(path), tmp_path / "out", jobs=1)

@@ -24,7 +24,7 @@ def _pin_axes(step_path: Path, radius_mm: float) -> list[tuple[float, float]]:
     from OCP.TopExp import TopExp_Explorer
     from OCP.TopoDS import TopoDS
 
-    from diegen.solid.validate import read_step
+    from diegen.die.occ.validate import read_step
 
     shape = read_step(step_path)
     axes = []
@@ -44,7 +44,7 @@ def _pin_axes(step_path: Path, radius_mm: float) -> list[tuple[float, float]]:
 @pytest.mark.solid
 def test_pins_in_die_and_blank_coincide(tmp_path):
     from diegen.export.dxf import read_dxf_outline
-    from diegen.solid.from_piece import PIN_INTERFERENCE_MM
+    from diegen.die.from_analysis import PIN_INTERFERENCE_MM
 
     spec = api.load(ROOT / "specs" / "demo-rib.yaml")
     spec = replace(spec, shared=replace(spec.shared, pieces=("nose",)))

@@ -20,9 +20,9 @@ from shapely.geometry import LineString, Point, Polygon, box
 from shapely.geometry.polygon import orient
 
 from diegen.errors import GeometryError, SolidError
-from diegen.solid import Bore, DieInput, Flute, OutlineRun, Pin
+from diegen.die.die_input import Bore, DieInput, Flute, OutlineRun, Pin
 from diegen.geometry.die_wall import fillet_end_depth_mm, top_setback_mm
-from diegen.solid.validate import solid_problems
+from diegen.die.occ.validate import solid_problems
 
 pytestmark = [pytest.mark.solid, pytest.mark.slow]
 
@@ -91,21 +91,21 @@ def full_input(bare_input) -> DieInput:
 
 @pytest.fixture(scope="module")
 def bare_die(bare_input):
-    from diegen.solid import build_die
+    from diegen.die.occ.form_block import build_die
 
     return build_die(bare_input)
 
 
 @pytest.fixture(scope="module")
 def full_die(full_input):
-    from diegen.solid import build_die
+    from diegen.die.occ.form_block import build_die
 
     return build_die(full_input)
 
 
 # ---------------------------------------------------------------- helpers
 def volume(shape) -> float:
-    from diegen.solid.validate import volume_mm3
+    from diegen.die.occ.validate import volume_mm3
 
     return volume_mm3(shape)
 
@@ -161,7 +161,7 @@ def fit_circle(u: np.ndarray, v: np.ndarray) -> tuple[float, float, float]:
 
 # ---------------------------------------------------------------- import boundary
 def test_package_imports_without_kernel():
-    code = "import sys, diegen.solid, diegen.solid.laminate; assert 'cadquery' not in sys.modules and 'OCP' not in sys.modules"
+    code = "import sys, diegen.die.occ.files, diegen.die.laminate, diegen.pipeline.build, diegen.api; assert 'cadquery' not in sys.modules and 'OCP' not in sys.modules"
     subprocess.run([sys.executable, "-c", code], check=True, cwd=Path(__file__).resolve().parents[1])
 
 
@@ -173,8 +173,8 @@ def test_step_reimports_as_one_valid_closed_solid(which, bare_die, full_die, tmp
     from OCP.TopAbs import TopAbs_SHELL, TopAbs_SOLID
     from OCP.TopExp import TopExp_Explorer
 
-    from diegen.solid.export import write_step
-    from diegen.solid.validate import read_step
+    from diegen.die.occ.export import write_step
+    from diegen.die.occ.validate import read_step
 
     die = bare_die if which == "bare" else full_die
     path = tmp_path / f"{which}.step"
@@ -198,8 +198,8 @@ def test_step_reimports_as_one_valid_closed_solid(which, bare_die, full_die, tmp
 @pytest.mark.parametrize("which", ["bare", "full"])
 def test_stl_watertight_and_volume_matches_step(which, bare_die, full_die, tmp_path):
     trimesh = pytest.importorskip("trimesh")  # general-purpose mesh library as the independent check
-    from diegen.solid.export import write_step, write_stl
-    from diegen.solid.validate import read_step
+    from diegen.die.occ.export import write_step, write_stl
+    from diegen.die.occ.validate import read_step
 
     die = bare_die if which == "bare" else full_die
     write_step(die, tmp_path / "d.step")
@@ -212,7 +212,7 @@ def test_stl_watertight_and_volume_matches_step(which, bare_die, full_die, tmp_p
 
 
 def test_stl_not_written_when_check_fails(bare_die, tmp_path, monkeypatch):
-    import diegen.solid.export as export
+    import diegen.die.occ.export as export
 
     target = tmp_path / "keep.stl"
     target.write_bytes(b"earlier good file")
@@ -225,8 +225,8 @@ def test_stl_not_written_when_check_fails(bare_die, tmp_path, monkeypatch):
 
 def test_step_structure_check_finds_a_cut_short_file_and_keeps_the_earlier_one(bare_die, tmp_path, monkeypatch):
     """ISO 10303-21 frames the data between the "ISO-10303-21;" header and "END-ISO-10303-21;"."""
-    import diegen.solid.export as export
-    from diegen.solid.validate import step_file_problems
+    import diegen.die.occ.export as export
+    from diegen.die.occ.validate import step_file_problems
 
     good = tmp_path / "good.step"
     export.write_step(bare_die, good)
@@ -293,7 +293,7 @@ def test_top_radius_on_the_spar_face(bare_die, outline):
 
 def test_top_radius_on_the_curved_contour(bare_die, outline):
     """Cut normal to the curved contour on the upper surface at about 40 % of the piece."""
-    from diegen.solid.outline import OutlineModel
+    from diegen.die.outline import OutlineModel
 
     model = OutlineModel(outline, CUTTER, top_setback_mm(R, UNDERCUT))
     p, n = model.locate(100.0)
@@ -311,7 +311,7 @@ def test_top_radius_on_the_curved_contour(bare_die, outline):
 
 # ---------------------------------------------------------------- holes, flutes, engraving
 def test_pins_remove_their_cylinders(bare_input, bare_die):
-    from diegen.solid import build_die
+    from diegen.die.occ.form_block import build_die
 
     die = build_die(replace(bare_input, pins=PINS))
     removed = volume(bare_die) - volume(die)
@@ -335,7 +335,7 @@ def test_pins_remove_their_cylinders(bare_input, bare_die):
 
 def test_bore_removes_cylinder_and_top_rounding(bare_input, bare_die):
     """Removed volume: πd²/4·H plus the rounding, by Pappus's centroid theorem on the corner area ρ²(1 − π/4)."""
-    from diegen.solid import build_die
+    from diegen.die.occ.form_block import build_die
 
     die = build_die(replace(bare_input, bores=BORES))
     b, rho = BORES[0], R
@@ -359,9 +359,9 @@ def test_flute_depth_tapers_down_the_wall(bare_input):
     (plane geometry of a circular segment), measured from the wall along its normals; above, the same
     segment scaled in depth by depth/flute length.  The flute sits where the wall's radius is about 1 m.
     """
-    from diegen.solid import build_die
+    from diegen.die.occ.form_block import build_die
     from diegen.forming.relief import flute_arc_radius
-    from diegen.solid.outline import OutlineModel
+    from diegen.die.outline import OutlineModel
 
     flute = Flute(420.0, 8.0, 2.0)
     die = build_die(replace(bare_input, flutes=(flute,), flute_length_mm=FLUTE_LENGTH))
@@ -391,8 +391,8 @@ def test_flute_depth_tapers_down_the_wall(bare_input):
 
 def test_flute_at_a_corner_moves_clear_of_it_and_crowded_flutes_are_refused(bare_input):
     """A flute whose lip would reach the corner trim moves just clear of it; touching flutes are refused."""
-    from diegen.solid import build_die
-    from diegen.solid.outline import LIP_CLEARANCE_MM, OutlineModel
+    from diegen.die.occ.form_block import build_die
+    from diegen.die.outline import LIP_CLEARANCE_MM, OutlineModel
 
     inset = max(top_setback_mm(R, UNDERCUT), H * math.tan(math.radians(UNDERCUT)))
     flute = Flute(1.0, 8.0, 2.0)  # 1 mm from the upper corner at the spar face
@@ -414,7 +414,7 @@ def test_flute_at_a_corner_moves_clear_of_it_and_crowded_flutes_are_refused(bare
 
 
 def test_engraving_on_bottom_face_only_and_reads_from_below(bare_input, bare_die):
-    from diegen.solid import build_die
+    from diegen.die.occ.form_block import build_die
 
     die = build_die(replace(bare_input, engraving=("F",)))
     assert planar_face_at(die, 0.0).Area() == pytest.approx(planar_face_at(bare_die, 0.0).Area(), rel=1e-9)
@@ -439,28 +439,28 @@ def test_engraving_on_bottom_face_only_and_reads_from_below(bare_input, bare_die
 
 # ---------------------------------------------------------------- errors a builder can act on
 def test_radius_too_large_for_stock(bare_input):
-    from diegen.solid import build_die
+    from diegen.die.occ.form_block import build_die
 
     with pytest.raises(GeometryError, match="thicker stock or a smaller radius"):
         build_die(replace(bare_input, top_radius_mm=12.5))
 
 
 def test_pin_off_the_top_face(bare_input):
-    from diegen.solid import build_die
+    from diegen.die.occ.form_block import build_die
 
     with pytest.raises(GeometryError, match="pin hole"):
         build_die(replace(bare_input, pins=(Pin(252.0, 10.0, 3.2, 5.0),)))
 
 
 def test_flute_deeper_than_half_its_width(bare_input):
-    from diegen.solid import build_die
+    from diegen.die.occ.form_block import build_die
 
     with pytest.raises(GeometryError, match="half its width"):
         build_die(replace(bare_input, flutes=(Flute(300.0, 4.0, 3.0),), flute_length_mm=9.0))
 
 
 def test_clockwise_outline(bare_input):
-    from diegen.solid import build_die
+    from diegen.die.occ.form_block import build_die
 
     rev = tuple(OutlineRun(r.kind, tuple(reversed(r.points))) for r in reversed(bare_input.outline))
     with pytest.raises(GeometryError, match="clockwise"):
@@ -468,7 +468,7 @@ def test_clockwise_outline(bare_input):
 
 
 def test_inside_corner_tighter_than_cutter(bare_input):
-    from diegen.solid import build_die
+    from diegen.die.occ.form_block import build_die
 
     # a rectangle with a notch: the notch's inside corners are sharp
     pts = ((0, 0), (100, 0), (100, 40), (60, 40), (60, 30), (40, 30), (40, 40), (0, 40), (0, 0))
@@ -478,7 +478,7 @@ def test_inside_corner_tighter_than_cutter(bare_input):
 
 
 def test_blind_pin_leaving_a_thin_floor(bare_input):
-    from diegen.solid import build_die
+    from diegen.die.occ.form_block import build_die
 
     with pytest.raises(GeometryError, match="drill it through or less deep"):
         build_die(replace(bare_input, pins=(Pin(60.0, 10.0, 3.2, H - 0.4),)))
@@ -486,7 +486,7 @@ def test_blind_pin_leaving_a_thin_floor(bare_input):
 
 def test_invalid_die_names_the_part_at_fault(full_input, monkeypatch):
     """When the finished solid fails the check, the die is rebuilt without the engraving to find the culprit."""
-    import diegen.solid.form_block as fb
+    import diegen.die.occ.form_block as fb
 
     real = fb.solid_problems
     plain = fb.build_die(replace(full_input, engraving=()))
@@ -497,7 +497,7 @@ def test_invalid_die_names_the_part_at_fault(full_input, monkeypatch):
 
 
 def test_kernel_failure_becomes_solid_error(bare_input, monkeypatch):
-    import diegen.solid.form_block as fb
+    import diegen.die.occ.form_block as fb
 
     def broken(wires, ruled):
         raise RuntimeError("Standard_Failure")
@@ -509,7 +509,7 @@ def test_kernel_failure_becomes_solid_error(bare_input, monkeypatch):
 
 # ---------------------------------------------------------------- tiles and laminates
 def test_tiles_fit_the_bed_and_keep_the_volume(bare_die):
-    from diegen.solid.export import tile_for_bed
+    from diegen.die.occ.tiles import tile_for_bed
 
     bed = (150.0, 200.0)
     tiles = tile_for_bed(bare_die, bed, dowel_d_mm=5.0, dowel_depth_mm=10.0)
@@ -526,14 +526,14 @@ def test_tiles_fit_the_bed_and_keep_the_volume(bare_die):
 
 
 def test_bed_too_small(bare_die):
-    from diegen.solid.export import tile_for_bed
+    from diegen.die.occ.tiles import tile_for_bed
 
     with pytest.raises(SolidError, match="cannot take a tile"):
         tile_for_bed(bare_die, (100.0, 100.0))
 
 
 def test_laminate_layers(bare_input, outline):
-    from diegen.solid.laminate import laminate_layers
+    from diegen.die.laminate import laminate_layers
 
     layers = laminate_layers(bare_input, 6.0)
     assert [round(l.thickness_mm, 9) for l in layers] == [6.0, 6.0, 0.7]
@@ -548,8 +548,8 @@ def test_laminate_layers(bare_input, outline):
 def test_laminate_layers_carry_the_flutes(bare_input):
     """A flute takes the area of its circular segment, r²(2φ − sin 2φ)/2 with sin φ = w/2r (plane geometry),
     scaled by its taper, out of each layer's outline: full at the bottom, none at the top face."""
-    from diegen.solid.laminate import laminate_layers
-    from diegen.solid.outline import GROOVE_SAMPLES
+    from diegen.die.laminate import laminate_layers
+    from diegen.die.outline import GROOVE_SAMPLES
 
     flute = Flute(420.0, 8.0, 2.0)  # where the wall's radius is about 1 m
     plain = laminate_layers(bare_input, 4.5)
@@ -569,7 +569,7 @@ def test_laminate_layers_carry_the_flutes(bare_input):
 
 def test_single_closed_curve_outline(bare_input):
     """A whole closed contour (one periodic curve run): an ellipse 200 × 80 mm, area check by πab."""
-    from diegen.solid import build_die
+    from diegen.die.occ.form_block import build_die
 
     t = np.linspace(0, 2 * np.pi, 241)
     pts = np.column_stack([100 * np.cos(t), 40 * np.sin(t)])
@@ -594,8 +594,8 @@ def test_flute_on_a_single_closed_curve(bare_input):
     ∫ min(z/L, 1) dz over the block = H − L/2.  At the ellipse's vertices the wall's radius is a²/b = 250 mm,
     which changes that by a few tenths of a per cent.
     """
-    from diegen.solid import build_die
-    from diegen.solid.outline import OutlineModel
+    from diegen.die.occ.form_block import build_die
+    from diegen.die.outline import OutlineModel
 
     t = np.linspace(0, 2 * np.pi, 241)
     pts = np.column_stack([100 * np.sin(t), 40 * np.cos(t) * -1])  # starts at (0, −40), runs counter-clockwise

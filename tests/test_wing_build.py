@@ -1,6 +1,6 @@
 """Whole-wing builds: every piece of every rib, incremental rebuilds and the change report.
 
-The solid step is replaced by the stand-in of ``conftest.fake_solids``; the die
+The solid step is replaced by the stand-in die writer of ``conftest.fake_solids``; the die
 layer is tested on its own in test_solid.py.
 """
 
@@ -29,7 +29,7 @@ def _small_wing(tmp_path: Path, tip: str = "naca 23012") -> Path:
 @pytest.mark.slow  # three ribs of blanks, PDFs and previews, twice
 def test_airfoil_change_rebuilds_exactly_the_pieces_whose_outline_changed(tmp_path, fake_solids):
     out = tmp_path / "out"
-    first = api.build(api.load(_small_wing(tmp_path)), out, jobs=1)
+    first = api.build(api.load(_small_wing(tmp_path)), out, jobs=1, die_writer=fake_solids)
     assert {o.status for o in first.outcomes} == {"built"} and len(first.outcomes) == 6
     folder = out / "Q2-wing"
     rows = list(csv.DictReader((folder / "summary.csv").open()))
@@ -37,7 +37,7 @@ def test_airfoil_change_rebuilds_exactly_the_pieces_whose_outline_changed(tmp_pa
     assert (folder / "summary.pdf").read_bytes().startswith(b"%PDF")
 
     fake_solids.clear()
-    second = api.build(api.load(_small_wing(tmp_path, tip="naca 4412")), out, jobs=1)
+    second = api.build(api.load(_small_wing(tmp_path, tip="naca 4412")), out, jobs=1, die_writer=fake_solids)
     outcome = {o.part_id: o for o in second.outcomes}
     # span fraction 0 is the root section exactly, so rib 1 keeps its outlines; ribs 2 and 3 change
     assert outcome["Q2-wing-R01-nose"].status == "unchanged"

@@ -21,13 +21,26 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from diegen.errors import OutputError
-from diegen.export.drawing import CUT, DRILL, LAYERS, NOTE, SCRIBE, BlankDrawing, Circle, Polyline
+from diegen.blank.drawing import CUT, DRILL, LAYERS, NOTE, SCRIBE, BlankDrawing, Circle, Polyline
 from diegen.fileio import write_with
 
 DXF_VERSION = "R2010"
 INSUNITS_MM = 4  # DXF Reference, HEADER $INSUNITS: 4 = millimetres
 MEASUREMENT_METRIC = 1  # DXF Reference, HEADER $MEASUREMENT: 1 = metric
 BEND_LINETYPE = "BENDLINE"  # 6 mm dash, 3 mm gap
+
+
+def write_outlines_dxf(outlines: list[tuple[str, list[tuple[float, float]]]], path: Path) -> None:
+    """Write closed outlines (mm), each on its own named layer, as a DXF in millimetres (atomically)."""
+    import ezdxf
+
+    doc = ezdxf.new(DXF_VERSION, setup=False)
+    doc.header["$INSUNITS"] = INSUNITS_MM
+    msp = doc.modelspace()
+    for index, (layer, points) in enumerate(outlines):
+        doc.layers.add(layer, color=1 + index % 6)
+        msp.add_lwpolyline(points, close=True, dxfattribs={"layer": layer})
+    write_with(path, lambda tmp: doc.saveas(tmp))
 
 
 def build_dxf(drawing: BlankDrawing):  # -> ezdxf.document.Drawing (kept untyped so ezdxf loads lazily)

@@ -26,7 +26,7 @@ from pathlib import Path
 from typing import Any, Final, Literal, get_args
 
 from diegen.errors import OutputError
-from diegen.export.drawing import CUT, DRILL, NOTE, SCRIBE, BlankDrawing, arrow_segments
+from diegen.blank.drawing import CUT, DRILL, NOTE, SCRIBE, BlankDrawing, arrow_segments
 from diegen.fileio import write_with
 
 Paper = Literal["letter", "a4"]

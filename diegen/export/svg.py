@@ -16,7 +16,7 @@ from pathlib import Path
 from xml.sax.saxutils import escape
 
 from diegen.errors import OutputError
-from diegen.export.drawing import CUT, DRILL, NOTE, SCRIBE, BlankDrawing, LayerStyle, Note, Polyline
+from diegen.blank.drawing import CUT, DRILL, NOTE, SCRIBE, BlankDrawing, LayerStyle, Note, Polyline
 from diegen.fileio import write_text
 
 SVG_MARGIN = 5.0

@@ -96,3 +96,8 @@ def vertical_extents(polygon: Polygon, xs: np.ndarray) -> np.ndarray:
     lines = shapely.linestrings([[(x, miny - 1), (x, maxy + 1)] for x in xs])
     bounds = shapely.bounds(shapely.intersection(polygon, lines))
     return bounds[:, [1, 3]]
+
+
+def outline_deviation_mm(old: Points | list, new: Points) -> float:
+    """Largest distance between two closed outlines (Hausdorff distance of their rings, mm)."""
+    return float(Polygon(old).exterior.hausdorff_distance(Polygon(new).exterior))

@@ -4,25 +4,26 @@ from __future__ import annotations
 
 import csv
 import io
+from collections.abc import Sequence
 from pathlib import Path
 from typing import Any
 
 import numpy as np
 
+from diegen.analysis import PieceAnalysis, RibAnalysis
 from diegen.fileio import write_text, write_with
 from diegen.spec.model import WingSpec
+from diegen.wing import chord_at, leading_edge_at, stations
 
 COLUMNS = ("rib", "station_mm", "chord_mm", "piece", "part_id", "die_length_mm", "die_depth_mm", "die_height_mm",
            "stock_layers", "blank_length_mm", "blank_width_mm", "overbend_deg", "die_radius_mm", "max_shrink",
            "max_stretch", "flutes", "notches", "press_verdict", "warnings")
 
 
-def summary_rows(spec: WingSpec, analysis: Any) -> list[dict[str, Any]]:
-    from diegen.wing import stations
-
+def summary_rows(spec: WingSpec, ribs: Sequence[RibAnalysis]) -> list[dict[str, Any]]:
     by_rib = {f"{spec.id}-R{s.number:02d}": s for s in stations(spec)}
     rows = []
-    for rib in analysis.ribs:
+    for rib in ribs:
         station = by_rib[rib.spec.id]
         for p in rib.pieces:
             outline, blank = np.asarray(p.piece.outline), np.asarray(p.blank.outer)
@@ -40,24 +41,19 @@ def summary_rows(spec: WingSpec, analysis: Any) -> list[dict[str, Any]]:
     return rows
 
 
-def write_wing_summary(spec: WingSpec, folder: Path, manifest: Any = None) -> list[Path]:
-    """Write ``summary.csv`` and ``summary.pdf`` for the whole wing into ``folder``."""
-    from diegen.api import analyse
-
-    analysis = analyse(spec)
-    rows = summary_rows(spec, analysis)
+def write_wing_summary(spec: WingSpec, ribs: Sequence[RibAnalysis], folder: Path) -> list[Path]:
+    """Write ``summary.csv`` and ``summary.pdf`` for the whole wing (``ribs``: every rib, analysed) into ``folder``."""
+    rows = summary_rows(spec, ribs)
     buffer = io.StringIO()
     writer = csv.DictWriter(buffer, fieldnames=COLUMNS)
     writer.writeheader()
     writer.writerows(rows)
     write_text(folder / "summary.csv", buffer.getvalue())
-    write_with(folder / "summary.pdf", lambda tmp: _pdf(spec, analysis, rows, tmp))
+    write_with(folder / "summary.pdf", lambda tmp: _pdf(spec, ribs, rows, tmp))
     return [folder / "summary.csv", folder / "summary.pdf"]
 
 
 def _planform(ax, spec: WingSpec) -> None:
-    from diegen.wing import chord_at, leading_edge_at, stations
-
     ys = np.array([0.0, spec.span_mm])
     le = np.array([leading_edge_at(spec, y) for y in ys])
     te = le + np.array([chord_at(spec, y) for y in ys])
@@ -78,7 +74,7 @@ def _planform(ax, spec: WingSpec) -> None:
     ax.legend(fontsize=7)
 
 
-def _pdf(spec: WingSpec, analysis: Any, rows: list[dict[str, Any]], path: Path) -> None:
+def _pdf(spec: WingSpec, ribs: Sequence[RibAnalysis], rows: list[dict[str, Any]], path: Path) -> None:
     from matplotlib.backends.backend_pdf import PdfPages
     from matplotlib.figure import Figure
 
@@ -98,12 +94,12 @@ def _pdf(spec: WingSpec, analysis: Any, rows: list[dict[str, Any]], path: Path) 
             table.auto_set_font_size(False)
             table.set_fontsize(6)
             pdf.savefig(fig)
-        for rib in analysis.ribs:
+        for rib in ribs:
             for p in rib.pieces:
                 pdf.savefig(_piece_page(p))
 
 
-def _piece_page(p: Any):
+def _piece_page(p: PieceAnalysis):
     from matplotlib.figure import Figure
 
     fig = Figure(figsize=(11, 8.5))
@@ -126,3 +122,6 @@ def _piece_page(p: Any):
     bottom.grid(True, lw=0.3)
     bottom.legend(fontsize=7)
     return fig
+
+
+__all__ = ["COLUMNS", "summary_rows", "write_wing_summary"]

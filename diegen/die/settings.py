@@ -11,7 +11,7 @@ from dataclasses import dataclass
 
 @dataclass(frozen=True)
 class BuildSettings:
-    """Knobs of :func:`diegen.solid.form_block.build_die`.
+    """Knobs of :func:`diegen.die.occ.form_block.build_die`.
 
     ``fillet_sections``: loft sections across the top-edge arc (6 put the lofted
     arc within 0.002 mm of the true radius; 4 left 0.035 mm).

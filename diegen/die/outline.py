@@ -37,7 +37,7 @@ from shapely.validation import explain_validity
 
 from diegen.errors import GeometryError
 from diegen.forming.relief import flute_arc_radius
-from diegen.solid.die_input import Flute, OutlineRun, RunKind
+from diegen.die.die_input import Flute, OutlineRun, RunKind
 
 Array = NDArray[np.float64]
 

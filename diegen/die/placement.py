@@ -1,10 +1,10 @@
 """Where the die's holes and marks go: checks and 2D shapes (pure 2D, no kernel).
 
-Conventions as in :mod:`diegen.solid.form_block` (mm, degrees, top face at z = 0,
+Conventions as in :mod:`diegen.die.model` (mm, degrees, top face at z = 0,
 block down to z = −height).  Every hole is checked against the smallest
 horizontal section of the die (flutes included) and against the other holes
 before any solid is made, raising :class:`GeometryError` with the feature and
-what to change.  :func:`diegen.solid.form_block.build_body` then makes:
+what to change.  :func:`diegen.die.occ.form_block.build_body` then makes:
 
 * Pin: a flat-bottomed hole of diameter d, ``depth`` deep from the top face
   (through if ``depth`` equals the height).
@@ -25,10 +25,11 @@ from shapely.ops import polylabel
 
 from diegen.errors import GeometryError, NoRoomForMarks
 from diegen.geometry import die_wall
-from diegen.solid import lettering
-from diegen.solid.die_input import DieInput
-from diegen.solid.outline import OutlineModel, pieces_to_polygon
-from diegen.solid.settings import BuildSettings
+from diegen.die import lettering
+from diegen.die.die_input import DieInput
+from diegen.die.model import section
+from diegen.die.outline import OutlineModel, pieces_to_polygon
+from diegen.die.settings import BuildSettings
 
 
 def _smallest_section(die: DieInput, model: OutlineModel) -> Polygon:
@@ -38,8 +39,6 @@ def _smallest_section(die: DieInput, model: OutlineModel) -> Polygon:
 
 
 def _bottom_section(die: DieInput, model: OutlineModel) -> Polygon:
-    from diegen.solid.form_block import section
-
     return pieces_to_polygon(section(die, model, die_wall.wall_inset_mm(die.height_mm, die.undercut_deg),
                                      die.height_mm))
 
@@ -85,7 +84,7 @@ def check_placement(die: DieInput, model: OutlineModel, settings: BuildSettings)
 def engraving_marks(die: DieInput, model: OutlineModel, settings: BuildSettings) -> list[Polygon]:
     """The engraving on the bottom face as polygons (mm, die coordinates): the lines of text and an arrow.
 
-    Single-stroke capitals (:mod:`diegen.solid.lettering`), as large as fit
+    Single-stroke capitals (:mod:`diegen.die.lettering`), as large as fit
     between ``engrave_min_height_mm`` and ``engrave_max_height_mm``, placed in
     the bottom face clear of the edge, the flutes, the bores and the pins that
     reach it.  Seen from below with the die turned over about the X axis the

@@ -23,7 +23,7 @@ import numpy as np
 import shapely
 from shapely.geometry import LineString, Polygon
 
-from diegen.export.drawing import BlankDrawing, Circle
+from diegen.blank.drawing import BlankDrawing, Circle
 from diegen.geometry.polygon import QUAD_SEGS, single_polygon
 from diegen.geometry.types import PieceGeometry, Point
 

@@ -18,8 +18,8 @@ from typing import Any
 import numpy as np
 
 from diegen.errors import SolidError
-from diegen.solid.die_input import DieInput
-from diegen.solid.validate import check_solid
+from diegen.die.die_input import DieInput
+from diegen.die.occ.validate import check_solid
 
 
 @dataclass(frozen=True, eq=False)
@@ -101,7 +101,7 @@ def tile_for_bed(shape_or_die: Any, bed_xy_mm: tuple[float, float], dowel_d_mm: 
     import cadquery as cq
 
     if isinstance(shape_or_die, DieInput):
-        from diegen.solid.form_block import build_die
+        from diegen.die.occ.form_block import build_die
 
         shape = build_die(shape_or_die)
     else:

@@ -18,8 +18,9 @@ from dataclasses import dataclass
 
 from diegen.errors import GeometryError
 from diegen.geometry import die_wall
-from diegen.solid.die_input import DieInput, OutlineRun
-from diegen.solid.outline import OffsetPiece, OutlineModel
+from diegen.die.die_input import DieInput, OutlineRun
+from diegen.die.model import flute_scale, outline_model
+from diegen.die.outline import OffsetPiece, OutlineModel
 
 
 @dataclass(frozen=True)
@@ -46,7 +47,6 @@ def laminate_layers(die: DieInput, stock_thickness_mm: float, spacing_mm: float 
     """The layers of ``die`` laminated from stock ``stock_thickness_mm`` thick; curves sampled every ``spacing_mm``."""
     if not stock_thickness_mm > 0:
         raise GeometryError(f"stock thickness {stock_thickness_mm} mm must be positive")
-    from diegen.solid.form_block import flute_scale, outline_model
 
     model: OutlineModel = outline_model(die)
     count = max(1, math.ceil(die.height_mm / stock_thickness_mm - 1e-9))

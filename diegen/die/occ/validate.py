@@ -14,7 +14,7 @@ from typing import Any
 import numpy as np
 
 from diegen.errors import SolidError
-from diegen.solid.settings import VOLUME_EPS
+from diegen.die.settings import VOLUME_EPS
 
 
 def volume_mm3(shape: Any) -> float:

@@ -1,7 +1,6 @@
-"""The forming report: one JSON-ready dict per piece, and the same as readable text.
+"""The forming report as a JSON-ready document: one dict per piece, one per rib.
 
-Numbers in mm / MPa / degrees; strains as positive fractions.  Readable text
-also shows lengths in the spec's own units when those are inches.
+Numbers in mm / MPa / degrees; strains as positive fractions.
 """
 
 from __future__ import annotations
@@ -10,8 +9,7 @@ from typing import Any
 
 from diegen import __version__
 from diegen.analysis import MODELS, PieceAnalysis, RibAnalysis
-from diegen.export.drawing import BlankDrawing
-from diegen.units import MM_PER_IN, mpa_to_psi
+from diegen.blank.drawing import BlankDrawing
 
 SAFETY = (
     "A shop press stores a great deal of energy: rubber, blank or a split die or box can be ejected. Guard the "
@@ -111,66 +109,4 @@ def rib_json(rib: RibAnalysis) -> dict[str, Any]:
             "warnings": list(rib.geometry.warnings), "parts": [piece_json(rib, p) for p in rib.pieces]}
 
 
-def _len(mm: float, units: str) -> str:
-    shown = f"{mm:.3f} mm" if mm < 10 else f"{mm:.1f} mm"
-    return f"{shown} ({mm / MM_PER_IN:.3f} in)" if units == "in" else shown
-
-
-def die_life_text(material: str) -> str:
-    """'about N parts' (or 'indefinitely many parts') for a die of ``material``."""
-    parts = die_life(material)
-    return "indefinitely many parts" if parts is None else f"about {parts} parts"
-
-
-def piece_text(rib: RibAnalysis, p: PieceAnalysis) -> str:
-    g, u, d = p.piece, rib.spec.units, piece_json(rib, p)
-    lines = [
-        f"== {g.part_id} ({g.name} piece)  x {g.x_range_mm[0]:.1f}–{g.x_range_mm[1]:.1f} mm of {rib.geometry.chord_mm:.1f} mm chord",
-        f"  die outline   length {_len(g.length_mm, u)}, area {g.area_mm2:.0f} mm², depth {g.depth_range_mm[0]:.1f}–"
-        f"{g.depth_range_mm[1]:.1f} mm, height {_len(p.die_height_mm, u)} ({p.die_layers} layer(s) of stock)",
-        f"  bend          part R {p.springback.part_radius_mm:.3f} mm (min {p.min_radius.radius_mm:.3f} mm, "
-        f"{p.min_radius.table} table); die R {p.springback.die_radius_mm:.3f} mm; die angle "
-        f"{p.springback.die_angle_deg:.2f}° → over-bend {p.springback.overbend_deg:.2f}°",
-        f"                BA {p.layout.bend_allowance_mm:.3f} mm (k = {p.layout.k_factor:.3f}); aviation formula "
-        f"{p.layout.bend_allowance_aviation_mm:.3f} mm; setback {p.layout.setback_mm:.3f} mm; developed flange "
-        f"{p.layout.developed_width_mm:.2f} mm",
-        f"  flange strain max shrink {p.max_shrink:.3f} (limit {p.alloy.shrink_limit:.3f}), max stretch "
-        f"{p.max_stretch:.3f} (limit {p.alloy.stretch_limit:.3f})",
-    ]
-    if p.flutes or p.notches:
-        lines += [f"  relief        {note}" for note in p.relief_notes]
-    else:
-        lines.append(f"  relief        none needed (policy: {rib.spec.shared.relief})")
-    for j in g.joggles:
-        lines.append(f"  joggle        spar {j.spar + 1} {j.surface}: {j.depth_mm:.2f} mm deep over x {j.x_start_mm:.1f}–"
-                     f"{j.x_end_mm:.1f} mm, ramps {j.ramp_mm:.1f} mm")
-    for h in d["holes"]:
-        kind = f"flanged {h['flange_height_mm']:.1f} mm, pilot Ø{h['pilot_d_mm']:.1f}" if h["flanged"] else "plain"
-        lines.append(f"  hole          Ø{h['d_mm']:.0f} mm at ({h['x_mm']:.1f}, {h['y_mm']:.1f}) {kind}, "
-                     f"stretch {h['stretch_strain']:.3f}")
-    lines.append("  pins          " + ", ".join(f"Ø{q.d:.2f} at ({q.x:.1f}, {q.y:.1f})" for q in g.pins))
-    pr = p.press
-    lines += [
-        f"  press         {pr.pressure_mpa:.2f} MPa ({mpa_to_psi(pr.pressure_mpa):.0f} psi) over the box; "
-        f"{pr.die_contact_pressure_mpa:.2f} MPa on the die early in the stroke; flanges need up to "
-        f"{pr.needed_mpa:.2f} MPa ({mpa_to_psi(pr.needed_mpa):.0f} psi) → {pr.verdict.upper()}",
-        f"  die life      {die_life_text(rib.spec.shared.die.material)} from {rib.spec.shared.die.material} "
-        f"(catalogue value); {pr.durometer_advice}",
-        f"  blank         {d['blank']['area_mm2']:.0f} mm², perimeter {d['blank']['perimeter_mm']:.0f} mm",
-    ]
-    lines += [f"  warning       {w}" for w in p.warnings]
-    return "\n".join(lines)
-
-
-def footer_text() -> str:
-    """Which model each number comes from, and the safety cautions."""
-    models = ["Models behind the numbers:"] + [f"  {name.replace('_', ' ')}: {text}" for name, text in MODELS.items()]
-    return "\n".join(models + ["", "Safety: " + SAFETY])
-
-
-def rib_text(rib: RibAnalysis, footer: bool = True) -> str:
-    head = [f"diegen {__version__} — rib {rib.spec.id}" + (f": {rib.spec.title}" if rib.spec.title else ""),
-            f"  {rib.spec.airfoil.label}, chord {_len(rib.spec.chord_mm, rib.spec.units)}, "
-            f"{rib.spec.shared.sheet.alloy} {_len(rib.spec.shared.sheet.thickness_mm, rib.spec.units)}"]
-    head += [f"  warning: {w}" for w in rib.geometry.warnings]
-    return "\n".join(head + [piece_text(rib, p) for p in rib.pieces] + (["", footer_text()] if footer else []))
+__all__ = ["SAFETY", "blank_numbers", "die_life", "piece_json", "rib_json"]

@@ -6,7 +6,8 @@ from collections.abc import Sequence
 
 from diegen.analysis import PieceAnalysis, RibAnalysis
 from diegen.forming.relief import flute_arc_radius
-from diegen.report import SAFETY, die_life_text
+from diegen.reports.document import SAFETY
+from diegen.reports.text import die_life_text
 from diegen.units import MM_PER_IN, mpa_to_psi
 
 # Standard round-over bit radii (common practice, no source): 1/16 to 1/2 in by 1/32 in, and 1 to 12 mm.

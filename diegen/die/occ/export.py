@@ -25,8 +25,8 @@ from typing import Any
 
 from diegen.errors import SolidError
 from diegen.fileio import atomic_path
-from diegen.solid.tiles import DieTile, tile_for_bed
-from diegen.solid.validate import step_file_problems, stl_problems
+from diegen.die.occ.tiles import DieTile, tile_for_bed
+from diegen.die.occ.validate import step_file_problems, stl_problems
 
 STL_TOLERANCE_MM = 0.05
 STL_ANGULAR_TOLERANCE_DEG = 15.0

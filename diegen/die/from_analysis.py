@@ -1,0 +1,61 @@
+"""From an analysed rib piece to the die builder's plain-data input, and the shop notes about its marks and pins.
+
+Pins are press fits: the die hole is drilled ``PIN_INTERFERENCE_MM`` under the
+dowel diameter (from memory, unverified: a few hundredths of a millimetre holds a
+dowel in plastics and solid-surface stock) and ``pin_depth_mm`` deep.
+"""
+
+from __future__ import annotations
+
+from typing import Any
+
+from diegen.die.die_input import Bore, DieInput, Flute, OutlineRun, Pin
+
+PIN_INTERFERENCE_MM = 0.03
+ENGRAVING_NOTE = "Marks on the bottom face: part id, sheet, and an arrow pointing to the leading edge."
+
+
+def pin_depth_mm(dowel_d_mm: float, die_height_mm: float) -> float:
+    """Dowel hole depth (mm): three diameters, at least 10 mm, leaving 3 mm of floor."""
+    return min(die_height_mm - 3.0, max(3.0 * dowel_d_mm, 10.0))
+
+
+def die_input(rib: Any, piece: Any) -> DieInput:
+    """The die builder's input for one analysed piece (``rib``: RibAnalysis, ``piece``: PieceAnalysis)."""
+    g, shared = piece.piece, rib.spec.shared
+    height = piece.die_height_mm
+    return DieInput(
+        part_id=g.part_id,
+        outline=tuple(OutlineRun(run.kind, run.points) for run in g.runs),
+        height_mm=height,
+        top_radius_mm=piece.springback.die_radius_mm,
+        undercut_deg=piece.springback.overbend_deg,
+        cutter_radius_mm=shared.die.cutter_diameter_mm / 2,
+        flutes=tuple(Flute(f.s_mm, f.width_mm, f.depth_mm) for f in piece.flutes),
+        flute_length_mm=shared.flange.height_mm,
+        bores=tuple(Bore(h.x, h.y, h.d) for h in g.holes if h.flanged),
+        pins=tuple(Pin(p.x, p.y, p.d - PIN_INTERFERENCE_MM, pin_depth_mm(p.d, height)) for p in g.pins),
+        engraving=(g.part_id, f"{shared.sheet.alloy} {shared.sheet.thickness_mm:.2f} mm"),
+    )
+
+
+def marks_note(asked: tuple[str, ...], marked: tuple[str, ...]) -> str:
+    if marked == asked:
+        return ENGRAVING_NOTE
+    if marked:
+        return (f"No room on the bottom face for all the marks: only {', '.join(marked)} and the arrow are engraved; "
+                f"write {', '.join(line for line in asked if line not in marked)} on it by hand.")
+    return (f"No room on the bottom face for the marks: write {', '.join(asked)} and an arrow pointing to the leading "
+            "edge on it by hand.")
+
+
+def pin_note(die: DieInput) -> str | None:
+    """The shop sheet's line about the dowel holes, or None for a die without pins."""
+    if not die.pins:
+        return None
+    pin = die.pins[0]
+    return (f"Dowel holes in the die: Ø{pin.d:.2f} mm ({PIN_INTERFERENCE_MM:.2f} mm under the dowel for a "
+            f"press fit), {pin.depth:.1f} mm deep from the top face.")
+
+
+__all__ = ["ENGRAVING_NOTE", "PIN_INTERFERENCE_MM", "die_input", "marks_note", "pin_depth_mm", "pin_note"]

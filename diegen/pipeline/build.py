@@ -1,0 +1,145 @@
+"""Build every piece of a spec under ``<out>/<spec id>/``: what to rebuild, the manifest, the wing summary."""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+from dataclasses import dataclass
+from pathlib import Path
+
+from diegen.analysis import RibAnalysis
+from diegen.geometry.polygon import outline_deviation_mm
+from diegen.pipeline.hashing import piece_hash, rib_input_hash
+from diegen.pipeline.jobs import Spec, rib_jobs
+from diegen.pipeline.lock import BuildLock, remove_stale_temporaries
+from diegen.pipeline.manifest import MANIFEST, Manifest, PieceRecord, RibRecord
+from diegen.pipeline.outputs import DieWriter
+from diegen.pipeline.workers import PieceTask, Progress, TaskResult, analysed, run_tasks
+from diegen.reports.document import piece_json
+from diegen.spec.model import WingSpec
+
+
+@dataclass
+class PieceOutcome:
+    part_id: str
+    status: str  # built | unchanged | failed
+    files: tuple[str, ...] = ()
+    error: str = ""
+    deviation_mm: float | None = None  # largest die-outline change from the previous build
+    seconds: float = 0.0
+
+
+@dataclass
+class BuildResult:
+    folder: Path
+    outcomes: list[PieceOutcome]
+    warnings: list[str]
+
+    @property
+    def failed(self) -> list[PieceOutcome]:
+        return [o for o in self.outcomes if o.status == "failed"]
+
+    def summary(self) -> str:
+        built = [o for o in self.outcomes if o.status == "built"]
+        same = [o for o in self.outcomes if o.status == "unchanged"]
+        lines = [f"{len(built)} piece(s) built, {len(same)} unchanged, {len(self.failed)} failed → {self.folder}"]
+        for o in built:
+            change = "new" if o.deviation_mm is None else f"die outline moved up to {o.deviation_mm:.3f} mm"
+            lines.append(f"  built      {o.part_id} ({change}; {o.seconds:.1f} s)")
+        if same and built:
+            lines.append(f"  unchanged  {', '.join(o.part_id for o in same)}")
+        for o in self.failed:
+            lines.append(f"  FAILED     {o.part_id}: {o.error}")
+        if self.warnings:
+            lines.append(f"{len(self.warnings)} warning(s): see each piece's report and shop sheet")
+        return "\n".join(lines)
+
+
+def _record(manifest: Manifest, task: PieceTask, result: TaskResult) -> PieceOutcome:
+    rib, piece = task.rib, task.rib.pieces[task.index]
+    part = piece.piece.part_id
+    old = manifest.piece(part)
+    deviation = outline_deviation_mm(old.outline, piece.piece.outline) if old and old.outline else None
+    numbers = piece_json(rib, piece)
+    failed = bool(result.error)
+    manifest.pieces[part] = PieceRecord(
+        rib=rib.spec.id, piece=piece.piece.name, hash="" if failed else task.digest,
+        status="failed" if failed else "built", error=result.error, files=list(result.files),
+        outline=[[round(x, 4), round(y, 4)] for x, y in piece.piece.outline],
+        numbers={"chord_mm": numbers["chord_mm"], "bend": numbers["bend"], "die": numbers["die"],
+                 "blank": numbers["blank"], "press": numbers["press"],
+                 "max_shrink_strain": numbers["flange"]["max_shrink_strain"],
+                 "max_stretch_strain": numbers["flange"]["max_stretch_strain"],
+                 "flutes": len(numbers["flange"]["flutes"]), "notches": len(numbers["flange"]["notches"])},
+        warnings=list(piece.warnings),
+    )
+    manifest.save()
+    return PieceOutcome(part, "failed" if failed else "built", result.files, result.error, deviation, result.seconds)
+
+
+def build_spec(spec: Spec, out: Path, die_writer: DieWriter, warm_up: Callable[[], None] | None = None,
+               force: bool = False, jobs: int | None = None, progress: bool = False) -> BuildResult:
+    """Build every piece of ``spec`` under ``out/<spec id>/``; ``die_writer`` writes each piece's die files."""
+    folder = out / spec.id
+    with BuildLock(folder):
+        remove_stale_temporaries(folder)
+        manifest = Manifest.load(folder / MANIFEST)
+        manifest.spec, manifest.kind = spec.id, "wing" if isinstance(spec, WingSpec) else "rib"
+        outcomes: list[PieceOutcome] = []
+        tasks: list[PieceTask] = []
+        warnings: list[str] = []
+        analyses: list[RibAnalysis] = []
+        jobs_of_spec = list(rib_jobs(spec))
+        for job in jobs_of_spec:
+            key = rib_input_hash(job.rib, job.section)
+            rib_entry = manifest.ribs.get(job.rib.id)
+            if (not force and rib_entry and rib_entry.input_hash == key
+                    and all(manifest.files_ok(folder, p) for p in rib_entry.pieces)):
+                outcomes.extend(PieceOutcome(p, "unchanged") for p in rib_entry.pieces)
+                warnings.extend(w for p in rib_entry.pieces for w in manifest.pieces[p].warnings)
+                continue
+            rib = analysed(job.rib, job.section)
+            analyses.append(rib)
+            manifest.ribs[job.rib.id] = RibRecord(key, [p.piece.part_id for p in rib.pieces])
+            for index, piece in enumerate(rib.pieces):
+                part = piece.piece.part_id
+                digest = piece_hash(rib, piece)
+                entry = manifest.piece(part)
+                warnings.extend(piece.warnings)
+                if not force and entry and entry.hash == digest and manifest.files_ok(folder, part):
+                    outcomes.append(PieceOutcome(part, "unchanged"))
+                    continue
+                tasks.append(PieceTask(rib, job.section, index, digest))
+        _build_tasks(tasks, folder, manifest, outcomes, die_writer, warm_up, jobs, progress)
+        for rib in analyses:
+            entry = manifest.ribs[rib.spec.id]
+            entry.complete = all((manifest.piece(p) or PieceRecord()).status == "built" for p in entry.pieces)
+            if not entry.complete:
+                entry.input_hash = ""  # re-analyse next time
+        manifest.save()
+        if isinstance(spec, WingSpec) and (tasks or not (folder / "summary.csv").is_file()):
+            from diegen.reports.summary import write_wing_summary
+
+            write_wing_summary(spec, [analysed(job.rib, job.section) for job in jobs_of_spec], folder)
+    order = manifest.part_order()
+    outcomes.sort(key=lambda o: order.get(o.part_id, 0))
+    return BuildResult(folder, outcomes, warnings)
+
+
+def _build_tasks(tasks: list[PieceTask], folder: Path, manifest: Manifest, outcomes: list[PieceOutcome],
+                 die_writer: DieWriter, warm_up: Callable[[], None] | None, jobs: int | None,
+                 progress: bool) -> None:
+    bar = Progress(len(tasks), progress)
+    claimed = {t.part_id: manifest.piece(t.part_id) is not None for t in tasks}
+    for task in tasks:  # claim every piece before writing, so an interrupted piece's files stay ours
+        entry = manifest.pieces.setdefault(task.part_id, PieceRecord())
+        entry.status, entry.hash = "building", ""
+    manifest.save()
+
+    def finish(task: PieceTask, result: TaskResult) -> None:
+        outcomes.append(_record(manifest, task, result))
+        bar.step(result.part_id)
+
+    run_tasks(tasks, folder, claimed, die_writer, warm_up, finish, jobs)
+
+
+__all__ = ["BuildResult", "PieceOutcome", "build_spec"]
