@@ -15,6 +15,7 @@ from diegen import materials
 from diegen.blank.develop import develop_blank, notch_polygon
 from diegen.errors import FormingError
 from diegen.blank.drawing import BlankDrawing
+from diegen.findings import Finding
 from diegen.forming import press as press_model
 from diegen.forming import relief as relief_model
 from diegen.forming.bend import FlangeLayout, flange_layout
@@ -78,7 +79,7 @@ class PieceAnalysis:
     blank: BlankDrawing
     die_height_mm: float
     die_layers: int
-    warnings: tuple[str, ...]
+    warnings: tuple[Finding, ...]
 
     @property
     def max_shrink(self) -> float:
@@ -96,7 +97,7 @@ class RibAnalysis:
     pieces: tuple[PieceAnalysis, ...]
 
     @property
-    def warnings(self) -> tuple[str, ...]:
+    def warnings(self) -> tuple[Finding, ...]:
         return self.geometry.warnings + tuple(w for p in self.pieces for w in p.warnings)
 
 
@@ -151,7 +152,7 @@ def _analyse_piece(spec: RibSpec, piece: PieceGeometry, alloy: materials.SheetAl
     shared = spec.shared
     t = shared.sheet.thickness_mm
     width = layout.developed_width_mm
-    warnings: list[str] = []
+    warnings: list[Finding] = []
     runs = []
     for index, (run, offset) in enumerate(zip(piece.plain_runs, _run_offsets(piece))):
         if run.kind != "curve" or not run.flanged:
@@ -164,16 +165,19 @@ def _analyse_piece(spec: RibSpec, piece: PieceGeometry, alloy: materials.SheetAl
     for run in runs:
         for stretch in run.stretch_runs:
             where = run.s_offset_mm + stretch.s_start_mm
-            warnings.append(
-                f"{piece.part_id}: stretch flange {stretch.peak_strain:.3f} above the {alloy.name} limit "
+            warnings.append(Finding(
+                "stretch-over-limit", f"stretch flange {stretch.peak_strain:.3f} above the {alloy.name} limit "
                 f"{alloy.stretch_limit:.3f} at {where:.0f} mm along the outline (plan radius "
-                f"{stretch.min_radius_mm:.1f} mm); a flange of {stretch.allowed_width_mm:.1f} mm developed width would pass")
+                f"{stretch.min_radius_mm:.1f} mm); a flange of {stretch.allowed_width_mm:.1f} mm developed width would "
+                "pass", key="flange.height", s_mm=where))
     if shared.relief == "none":
         for run in runs:
             for shrink in run.shrink_runs:
-                warnings.append(f"{piece.part_id}: shrink {-shrink.peak_strain:.3f} above the limit {alloy.shrink_limit:.3f} "
-                                f"over {shrink.length_mm:.0f} mm from {run.s_offset_mm + shrink.s_start_mm:.0f} mm along "
-                                "the outline and relief is 'none': expect wrinkles")
+                where = run.s_offset_mm + shrink.s_start_mm
+                warnings.append(Finding(
+                    "shrink-without-relief", f"shrink {-shrink.peak_strain:.3f} above the limit "
+                    f"{alloy.shrink_limit:.3f} over {shrink.length_mm:.0f} mm from {where:.0f} mm along the outline "
+                    "and relief is 'none': expect wrinkles", key="relief", s_mm=where))
     holes = []
     for hole in piece.holes:
         if not hole.flanged:
@@ -183,8 +187,8 @@ def _analyse_piece(spec: RibSpec, piece: PieceGeometry, alloy: materials.SheetAl
         pilot = pilot_diameter(hole.d, hole.flange_height, t, shared.flange.bend_radius_mm, alloy.k_factor)
         ok = strain <= alloy.stretch_limit
         if not ok:
-            warnings.append(f"{piece.part_id}: hole at x = {hole.x:.0f} mm: flange stretch {strain:.3f} above the "
-                            f"limit {alloy.stretch_limit:.3f}")
+            warnings.append(Finding("hole-flange-stretch", f"hole at x = {hole.x:.0f} mm: flange stretch {strain:.3f} "
+                                    f"above the limit {alloy.stretch_limit:.3f}", key="lightening_holes"))
         holes.append(HoleCheck(strain, pilot, ok))
     die = materials.die_material(shared.die.material)
     layers = die_layers(shared.die.stock_thickness_mm, shared.flange.height_mm)
@@ -198,16 +202,18 @@ def _analyse_piece(spec: RibSpec, piece: PieceGeometry, alloy: materials.SheetAl
         legs, t, alloy.yield_mpa, shared.press.rubber.thickness_mm, shared.press.rubber.durometer,
         die.compressive_strength_mpa, die.life_parts if die.life_parts is not None else 10**9,
         wall_clearance_mm=shared.press.wall_clearance_mm)
-    warnings.extend(f"{piece.part_id}: {w}" for w in press.warnings if not w.startswith("flange(s)"))
+    warnings.extend(press.warnings)
     if press.unformable_flanges:
         names = sorted({leg_names[i] for i in press.unformable_flanges})
-        warnings.append(f"{piece.part_id}: the press gives {press.pressure_mpa:.2f} MPa but "
-                        f"{', '.join(names)} need(s) up to {press.needed_mpa:.2f} MPa to fold (plastic-hinge "
-                        "estimate): form what the press can, then finish these by hand over the die")
+        warnings.append(Finding(
+            "press-folds-part-way", f"the press gives {press.pressure_mpa:.2f} MPa but {', '.join(names)} need(s) up "
+            f"to {press.needed_mpa:.2f} MPa to fold (plastic-hinge estimate): form what the press can, then finish "
+            "these by hand over the die", key="press.force"))
     if layers > 1:
-        warnings.append(f"{piece.part_id}: die stock {shared.die.stock_thickness_mm:.1f} mm is thinner than the flange "
-                        f"height {shared.flange.height_mm:.1f} mm + {STOCK_CLEARANCE_MM:.0f} mm clearance: laminate "
-                        f"{layers} layers ({layers * shared.die.stock_thickness_mm:.1f} mm)")
+        warnings.append(Finding(
+            "die-laminated", f"die stock {shared.die.stock_thickness_mm:.1f} mm is thinner than the flange height "
+            f"{shared.flange.height_mm:.1f} mm + {STOCK_CLEARANCE_MM:.0f} mm clearance: laminate {layers} layers "
+            f"({layers * shared.die.stock_thickness_mm:.1f} mm)", key="die.stock_thickness"))
     tangent_inset = springback.die_radius_mm * math.tan(math.radians(springback.die_angle_deg) / 2)
     offset = layout.developed_width_mm - tangent_inset
     cuts = [notch_polygon(piece, n.s_mm, n.opening_mm, n.depth_mm, offset) for n in notches]
@@ -217,7 +223,8 @@ def _analyse_piece(spec: RibSpec, piece: PieceGeometry, alloy: materials.SheetAl
                           notch_cuts=cuts)
     blank = replace(blank, grain_angle_deg=GRAIN_ANGLE_DEG)
     return PieceAnalysis(piece, alloy, minimum, springback, layout, tuple(runs), tuple(leg_names), flutes, notches, notes,
-                         tuple(holes), press, blank, layers * shared.die.stock_thickness_mm, layers, tuple(warnings))
+                         tuple(holes), press, blank, layers * shared.die.stock_thickness_mm, layers,
+                         tuple(w.about(piece.part_id, spec.positions) for w in warnings))
 
 
 def _bounds(piece: PieceGeometry) -> tuple[float, float, float, float]:
@@ -226,14 +233,14 @@ def _bounds(piece: PieceGeometry) -> tuple[float, float, float, float]:
 
 
 def _relief(spec: RibSpec, piece: PieceGeometry, runs: list[FlangeRun], layout: FlangeLayout,
-            springback: Springback) -> tuple[tuple, tuple, tuple[str, ...], list[str]]:
+            springback: Springback) -> tuple[tuple, tuple, tuple[str, ...], list[Finding]]:
     """Flutes, notches, their notes, and warnings for relief that falls short."""
     shared = spec.shared
     t = shared.sheet.thickness_mm
     flutes: list[relief_model.Flute] = []
     notches: list[relief_model.Notch] = []
     notes: list[str] = []
-    warnings: list[str] = []
+    warnings: list[Finding] = []
     for run in runs:
         for shrink in run.shrink_runs:
             if shared.relief == "flutes":
@@ -241,7 +248,8 @@ def _relief(spec: RibSpec, piece: PieceGeometry, runs: list[FlangeRun], layout: 
                 flutes.extend(_shift(f, run.s_offset_mm) for f in found.flutes)
                 notes.append(found.note)
                 if not found.fits:
-                    warnings.append(f"{piece.part_id}: {found.note}")
+                    warnings.append(Finding("relief-short", found.note, key="relief",
+                                            s_mm=run.s_offset_mm + shrink.s_start_mm))
             elif shared.relief == "notches":
                 found_n = relief_model.notches(shrink, layout.developed_width_mm, t, shared.flange.bend_radius_mm)
                 notches.extend(_shift(n, run.s_offset_mm) for n in found_n.notches)

@@ -42,7 +42,7 @@ def report_json(analysis: Analysis) -> dict[str, Any]:
     from diegen import __version__
 
     return {"diegen_version": __version__, "spec": analysis.spec.id, "kind": "wing", "models": MODELS,
-            "safety": SAFETY, "warnings": [w for r in analysis.ribs for w in r.geometry.warnings],
+            "safety": SAFETY, "warnings": [w.as_json() for r in analysis.ribs for w in r.geometry.warnings],
             "parts": [piece_json(r, p) for r in analysis.ribs for p in r.pieces]}
 
 

@@ -20,6 +20,7 @@ from dataclasses import dataclass
 from typing import Literal
 
 from diegen.errors import FormingError
+from diegen.findings import Finding
 
 Verdict = Literal["full", "partial", "insufficient"]
 
@@ -122,7 +123,7 @@ class PressCheck:
     die_crush_ok: bool
     die_life_ok: bool
     durometer_advice: str
-    warnings: tuple[str, ...]
+    warnings: tuple[Finding, ...]
     models: tuple[tuple[str, str], ...]
     caution: str
 
@@ -207,39 +208,30 @@ def press_check(
     crush_ok = contact <= die_compressive_mpa
     life_ok = die_life_parts >= parts_wanted
 
-    warnings: list[str] = []
-    if bad:
-        worst = max(needed)
-        warnings.append(
-            f"flange(s) {', '.join(str(i) for i in bad)} need up to {worst:.2f} MPa to start folding; "
-            f"the press gives {pressure:.2f} MPa: use a bigger press, a smaller box or longer flanges"
-        )
+    warnings: list[Finding] = []
     if pressure < USUAL_MIN_PRESSURE_MPA:
-        warnings.append(
-            f"box pressure {pressure:.2f} MPa is below the about {USUAL_MIN_PRESSURE_MPA:.2f} MPa "
-            "(about 330 psi) usually taken as the minimum for this work (common practice, no source)"
-        )
+        warnings.append(Finding(
+            "press-below-usual", f"box pressure {pressure:.2f} MPa is below the about {USUAL_MIN_PRESSURE_MPA:.2f} MPa "
+            "(about 330 psi) usually taken as the minimum for this work (common practice, no source)",
+            key="press.force"))
     if not fits:
-        warnings.append(
-            f"die {die_length_mm:.0f} x {die_width_mm:.0f} mm does not fit a {box_w_mm:.0f} x "
-            f"{box_l_mm:.0f} mm box with {wall_clearance_mm:.0f} mm clearance each side"
-        )
+        warnings.append(Finding(
+            "die-too-big-for-box", f"die {die_length_mm:.0f} x {die_width_mm:.0f} mm does not fit a {box_w_mm:.0f} x "
+            f"{box_l_mm:.0f} mm box with {wall_clearance_mm:.0f} mm clearance each side", key="press.box"))
     if not rubber_ok:
-        warnings.append(
-            f"rubber {rubber_thickness_mm:.0f} mm is thinner than {RUBBER_TO_DIE_HEIGHT:g} x the "
+        warnings.append(Finding(
+            "rubber-too-thin", f"rubber {rubber_thickness_mm:.0f} mm is thinner than {RUBBER_TO_DIE_HEIGHT:g} x the "
             f"{die_height_mm:.0f} mm die height ({RUBBER_TO_DIE_HEIGHT * die_height_mm:.0f} mm): "
-            "add a layer or lower the die"
-        )
+            "add a layer or lower the die", key="press.rubber.thickness"))
     if not crush_ok:
-        warnings.append(
-            f"early in the stroke the die top carries {contact:.1f} MPa, more than the die "
-            f"material's {die_compressive_mpa:.1f} MPa compressive strength: it may crush or split"
-        )
+        warnings.append(Finding(
+            "die-may-crush", f"early in the stroke the die top carries {contact:.1f} MPa, more than the die "
+            f"material's {die_compressive_mpa:.1f} MPa compressive strength: it may crush or split",
+            key="die.material"))
     if not life_ok:
-        warnings.append(
-            f"the die material is expected to last about {die_life_parts} part(s); "
-            f"{parts_wanted} are wanted: plan a second die or a harder material"
-        )
+        warnings.append(Finding(
+            "die-life-short", f"the die material is expected to last about {die_life_parts} part(s); "
+            f"{parts_wanted} are wanted: plan a second die or a harder material", key="die.material"))
     return PressCheck(
         pressure_mpa=pressure,
         die_contact_pressure_mpa=contact,

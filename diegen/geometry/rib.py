@@ -11,6 +11,7 @@ import numpy as np
 from shapely.geometry import Polygon
 
 from diegen.errors import GeometryError
+from diegen.findings import Finding
 from diegen.geometry import holes as hole_rules
 from diegen.geometry import pins as pin_rules
 from diegen.geometry.pieces import SparCut, depth_at, joggles_for, piece_runs, relief_points, split_surfaces, tail_end
@@ -68,19 +69,19 @@ def rib_geometry(spec: RibSpec, section: np.ndarray | None = None, die_inset_mm:
     die = offset_inward(oml, sheet_t, f"offsetting the outer mold line inward by the rib sheet ({sheet_t:.3f} mm)")
     upper, lower = split_surfaces(np.asarray(as_points(die)))
     spars = [SparCut(s.at * spec.chord_mm, s.web_mm, s.cap_thickness_mm, s.cap_width_mm) for s in spec.spars]
-    warnings: list[str] = []
+    warnings: list[Finding] = []
     pieces = []
     fair_radius = max(shared.die.cutter_diameter_mm / 2, die_inset_mm + FAIR_MARGIN_MM if die_inset_mm > 0 else 0.0)
     for name, x0, x1, aft_flanged in _piece_ranges(spec, spars, upper, lower, warnings):
         pieces.append(_piece(spec, name, x0, x1, aft_flanged, upper, lower, spars, fair_radius))
     if not pieces:
-        raise GeometryError(f"rib {spec.id} has no piece left to make: {'; '.join(warnings)}")
+        raise GeometryError(f"rib {spec.id} has no piece left to make: {'; '.join(w.message for w in warnings)}")
     return RibGeometry(spec.id, spec.chord_mm, _tuple(scaled), as_points(oml), as_points(die), tuple(pieces),
                        tuple(warnings))
 
 
 def _piece_ranges(spec: RibSpec, spars: list[SparCut], upper: np.ndarray, lower: np.ndarray,
-                  warnings: list[str]) -> list[tuple[str, float | None, float, bool]]:
+                  warnings: list[Finding]) -> list[tuple[str, float | None, float, bool]]:
     t = spec.shared.sheet.thickness_mm
     ranges: list[tuple[str, float | None, float, bool]] = []
     for name in spec.shared.pieces:
@@ -98,8 +99,10 @@ def _piece_ranges(spec: RibSpec, spars: list[SparCut], upper: np.ndarray, lower:
                 where = (f"already below the minimum tail depth of {limit:.1f} mm" if end is None else
                          f"and it falls below the minimum tail depth of {limit:.1f} mm within {end - start:.1f} mm; "
                          f"a tail piece needs at least {shortest:.1f} mm (2 × flange height) of length")
-                warnings.append(f"no tail piece: the die depth aft of the rear spar is {depth:.1f} mm, {where} "
-                                "(set flange.min_tail_depth to change this)")
+                warnings.append(Finding(
+                    "tail-piece-dropped", f"no tail piece: the die depth aft of the rear spar is {depth:.1f} mm, "
+                    f"{where} (set flange.min_tail_depth to change this)", key="flange.min_tail_depth",
+                ).about(spec.id, spec.positions))
                 continue
             ranges.append((name, start, end, False))
     return ranges

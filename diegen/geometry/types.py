@@ -9,6 +9,8 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Literal
 
+from diegen.findings import Finding
+
 Point = tuple[float, float]
 Points = tuple[Point, ...]
 
@@ -107,4 +109,4 @@ class RibGeometry:
     oml: Points  # outer mold line: section offset inward by the skin
     die_outline: Points  # inner mold line of the flange: OML offset inward by the rib sheet
     pieces: tuple[PieceGeometry, ...]
-    warnings: tuple[str, ...] = ()
+    warnings: tuple[Finding, ...] = ()

@@ -7,6 +7,7 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from diegen.analysis import RibAnalysis
+from diegen.findings import Finding
 from diegen.geometry.polygon import outline_deviation_mm
 from diegen.pipeline.hashing import piece_hash, rib_input_hash
 from diegen.pipeline.jobs import Spec, rib_jobs
@@ -32,7 +33,7 @@ class PieceOutcome:
 class BuildResult:
     folder: Path
     outcomes: list[PieceOutcome]
-    warnings: list[str]
+    warnings: list[Finding]
 
     @property
     def failed(self) -> list[PieceOutcome]:
@@ -70,7 +71,7 @@ def _record(manifest: Manifest, task: PieceTask, result: TaskResult) -> PieceOut
                  "max_shrink_strain": numbers["flange"]["max_shrink_strain"],
                  "max_stretch_strain": numbers["flange"]["max_stretch_strain"],
                  "flutes": len(numbers["flange"]["flutes"]), "notches": len(numbers["flange"]["notches"])},
-        warnings=list(piece.warnings),
+        warnings=[w.as_json() for w in piece.warnings],
     )
     manifest.save()
     return PieceOutcome(part, "failed" if failed else "built", result.files, result.error, deviation, result.seconds)
@@ -86,7 +87,7 @@ def build_spec(spec: Spec, out: Path, die_writer: DieWriter, warm_up: Callable[[
         manifest.spec, manifest.kind = spec.id, "wing" if isinstance(spec, WingSpec) else "rib"
         outcomes: list[PieceOutcome] = []
         tasks: list[PieceTask] = []
-        warnings: list[str] = []
+        warnings: list[Finding] = []
         analyses: list[RibAnalysis] = []
         jobs_of_spec = list(rib_jobs(spec))
         for job in jobs_of_spec:
@@ -95,7 +96,7 @@ def build_spec(spec: Spec, out: Path, die_writer: DieWriter, warm_up: Callable[[
             if (not force and rib_entry and rib_entry.input_hash == key
                     and all(manifest.files_ok(folder, p) for p in rib_entry.pieces)):
                 outcomes.extend(PieceOutcome(p, "unchanged") for p in rib_entry.pieces)
-                warnings.extend(w for p in rib_entry.pieces for w in manifest.pieces[p].warnings)
+                warnings.extend(Finding.from_json(w) for p in rib_entry.pieces for w in manifest.pieces[p].warnings)
                 continue
             rib = analysed(job.rib, job.section)
             analyses.append(rib)

@@ -35,12 +35,13 @@ def piece_hash(rib: RibAnalysis, piece: PieceAnalysis) -> str:
     """Hash of everything a piece's files are made from: the piece's analysed values and the parts of the rib's
     spec its writers read (not the whole spec: moving the rear spar leaves the nose piece alone).
 
-    The strain profiles (numpy arrays, whose ``repr`` abbreviates) enter through their bytes.
+    The findings enter without the spec file's path (like :func:`rib_input_hash`); the strain profiles (numpy arrays, whose ``repr`` abbreviates) enter through their bytes.
     """
     spec, shared = rib.spec, rib.spec.shared
     read_by_writers = (spec.id, spec.title, spec.units, spec.airfoil, spec.chord_mm, rib.geometry.chord_mm,
                        shared.die, shared.sheet, shared.flange, shared.press, shared.relief)
-    values = [getattr(piece, f.name) for f in fields(piece) if f.name != "runs"]
+    values = [getattr(piece, f.name) for f in fields(piece) if f.name not in ("runs", "warnings")]
+    values.append([replace(w, file="") for w in piece.warnings])  # where the spec file lies is not content
     profiles = [(r.run_index, r.s_offset_mm, r.shrink_runs, r.stretch_runs,
                  np.asarray(r.profile.strain, float).tobytes()) for r in piece.runs]
     return _digest(*read_by_writers, *values, *profiles)

@@ -27,7 +27,7 @@ class PieceRecord:
     files: list[str] = field(default_factory=list)
     outline: list[list[float]] = field(default_factory=list)
     numbers: dict[str, Any] = field(default_factory=dict)
-    warnings: list[str] = field(default_factory=list)
+    warnings: list[dict[str, Any]] = field(default_factory=list)  # findings, as in the report
 
 
 @dataclass

@@ -22,12 +22,12 @@ from diegen.pipeline.hashing import rib_input_hash
 from diegen.pipeline.outputs import DieWriter, write_piece
 from diegen.spec.model import RibSpec
 
-_ANALYSIS_CACHE: dict[str, RibAnalysis] = {}
+_ANALYSIS_CACHE: dict[tuple, RibAnalysis] = {}
 
 
 def analysed(rib_spec: RibSpec, section: np.ndarray | None) -> RibAnalysis:
     """The rib's analysis, computed once per process (workers get plain specs, not analyses)."""
-    key = rib_input_hash(rib_spec, section)
+    key = (rib_input_hash(rib_spec, section), rib_spec.file, rib_spec.positions)  # findings name the file
     if key not in _ANALYSIS_CACHE:
         if len(_ANALYSIS_CACHE) >= 256:
             _ANALYSIS_CACHE.clear()

@@ -100,13 +100,13 @@ def piece_json(rib: RibAnalysis, p: PieceAnalysis) -> dict[str, Any]:
             "durometer_advice": p.press.durometer_advice,
             "die_life_parts": die_life(rib.spec.shared.die.material),
         },
-        "warnings": list(p.warnings),
+        "warnings": [w.as_json() for w in p.warnings],
     }
 
 
 def rib_json(rib: RibAnalysis) -> dict[str, Any]:
     return {"diegen_version": __version__, "spec": rib.spec.id, "models": MODELS, "safety": SAFETY,
-            "warnings": list(rib.geometry.warnings), "parts": [piece_json(rib, p) for p in rib.pieces]}
+            "warnings": [w.as_json() for w in rib.geometry.warnings], "parts": [piece_json(rib, p) for p in rib.pieces]}
 
 
 __all__ = ["SAFETY", "blank_numbers", "die_life", "piece_json", "rib_json"]

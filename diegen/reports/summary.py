@@ -36,7 +36,7 @@ def summary_rows(spec: WingSpec, ribs: Sequence[RibAnalysis]) -> list[dict[str, 
                 "overbend_deg": round(p.springback.overbend_deg, 2), "die_radius_mm": round(p.springback.die_radius_mm, 3),
                 "max_shrink": round(p.max_shrink, 4), "max_stretch": round(p.max_stretch, 4),
                 "flutes": len(p.flutes), "notches": len(p.notches), "press_verdict": p.press.verdict,
-                "warnings": " | ".join(p.warnings),
+                "warnings": " | ".join(str(w) for w in p.warnings),
             })
     return rows
 

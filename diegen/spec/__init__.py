@@ -2,10 +2,12 @@
 
 from __future__ import annotations
 
+from collections.abc import Iterator
+from dataclasses import replace
 from pathlib import Path
 
 from diegen.errors import Problem, SpecError
-from diegen.spec.model import RibSpec, Spec, WingSpec
+from diegen.spec.model import RibSpec, Spec, SpecPositions, WingSpec
 from diegen.spec.reader import Reader
 from diegen.spec.schema import read_rib, read_wing
 from diegen.spec.yamltree import YNode, load_file, load_text
@@ -31,7 +33,20 @@ def _validate(tree: YNode, file: str, spec_dir: Path) -> Spec:
     spec = read_rib(reader, root, spec_dir) if kind == "rib" else read_wing(reader, root, spec_dir)
     if reader.problems:
         raise SpecError(sorted(reader.problems, key=lambda p: (p.line or 0, p.column or 0)))
-    return spec
+    return replace(spec, positions=SpecPositions(file, tuple(_key_positions(tree, ""))))
+
+
+def _key_positions(node: YNode, path: str) -> Iterator[tuple[str, int, int]]:
+    """Every key path under ``node`` with the line and column of its key (of the item, in a list)."""
+    if node.is_map:
+        for key, child in node.value.items():
+            child_path = f"{path}.{key}" if path else str(key)
+            yield (child_path, *node.keys.get(key, (child.line, child.column)))
+            yield from _key_positions(child, child_path)
+    elif node.is_list:
+        for i, child in enumerate(node.value):
+            yield f"{path}[{i}]", child.line, child.column
+            yield from _key_positions(child, f"{path}[{i}]")
 
 
 def load_spec(path: str | Path) -> Spec:

@@ -132,6 +132,31 @@ class Shared:
 
 
 @dataclass(frozen=True)
+class SpecPositions:
+    """Where each key of a spec file is: ``(key path, line, column)`` of its value, 1-based.
+
+    ``prefixes`` are tried in order before the bare key: a wing rib looks first in the overrides that apply to
+    it (``overrides[2].``), then in the wing's shared keys.  A key the file leaves at its default is found at its
+    nearest written parent.
+    """
+
+    file: str = ""
+    keys: tuple[tuple[str, int, int], ...] = ()
+    prefixes: tuple[str, ...] = ("",)
+
+    def where(self, key: str) -> tuple[str, int | None, int | None]:
+        """``(file, line, column)`` of ``key``, or of its nearest written parent (line None: not in the file)."""
+        table = {k: (line, col) for k, line, col in self.keys}
+        path = key
+        while path:
+            for prefix in self.prefixes:
+                if prefix + path in table:
+                    return (self.file, *table[prefix + path])
+            path = path.rpartition(".")[0]
+        return self.file, None, None
+
+
+@dataclass(frozen=True)
 class RibSpec:
     id: str
     units: str
@@ -141,6 +166,7 @@ class RibSpec:
     shared: Shared
     file: str = ""
     title: str = ""
+    positions: SpecPositions = field(default=SpecPositions(), compare=False, repr=False)
 
 
 @dataclass(frozen=True)
@@ -185,6 +211,7 @@ class WingSpec:
     overrides: tuple[RibOverride, ...] = ()
     file: str = ""
     title: str = ""
+    positions: SpecPositions = field(default=SpecPositions(), compare=False, repr=False)
 
 
 Spec = RibSpec | WingSpec

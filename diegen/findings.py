@@ -1,0 +1,64 @@
+"""Findings: what the analysis warns a builder about, as one frozen, located type.
+
+A finding has a stable ``code`` (documented in ``specs/README.md``), the part it concerns, the spec key at fault
+and that key's place in the spec file where there is one, the position along the die outline where there is one,
+and the message.  The text form (``str``) is ``"<part id>: <message>"``, as every report prints it.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, replace
+from typing import Any
+
+from diegen.spec.model import SpecPositions
+
+
+@dataclass(frozen=True)
+class Finding:
+    """One warning about a part or a rib (lengths in mm)."""
+
+    code: str
+    message: str
+    part_id: str = ""
+    key: str = ""  # spec key path at fault, such as ``flange.height``
+    file: str = ""
+    line: int | None = None  # 1-based, of the key's value in ``file``
+    column: int | None = None
+    s_mm: float | None = None  # position along the die outline, from its start
+
+    def __str__(self) -> str:
+        return f"{self.part_id}: {self.message}" if self.part_id else self.message
+
+    def located(self) -> str:
+        """``file:line:col: key: part: message`` (whatever of it is known)."""
+        where = ":".join(str(v) for v in (self.file, self.line, self.column) if v not in ("", None))
+        key = f" {self.key}:" if self.key else ""
+        return f"{where}:{key} {self}" if where else f"{self.key + ': ' if self.key else ''}{self}"
+
+    def as_json(self) -> dict[str, Any]:
+        """The report's form: code, part and message always; key, place and position when known."""
+        data: dict[str, Any] = {"code": self.code, "part": self.part_id, "message": self.message}
+        for name in ("key", "file", "line", "column"):
+            value = getattr(self, name)
+            if value not in ("", None):
+                data[name] = value
+        if self.s_mm is not None:
+            data["s_mm"] = round(self.s_mm, 1)
+        return data
+
+    @classmethod
+    def from_json(cls, data: dict[str, Any]) -> Finding:
+        """The finding :meth:`as_json` wrote."""
+        names = {"part": "part_id"}
+        return cls(**{names.get(k, k): v for k, v in data.items() if names.get(k, k) in cls.__dataclass_fields__})
+
+    def about(self, part_id: str, positions: SpecPositions | None = None) -> Finding:
+        """The same finding for ``part_id``, located in the spec through ``positions`` when it names a key."""
+        found = replace(self, part_id=part_id)
+        if positions is not None and self.key:
+            file, line, column = positions.where(self.key)
+            found = replace(found, file=file, line=line, column=column)
+        return found
+
+
+__all__ = ["Finding"]
