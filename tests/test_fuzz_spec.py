@@ -53,7 +53,7 @@ DEMO_WING_TEXT = (SPECS / "demo-wing.yaml").read_text(encoding="utf-8")
 DEMO_RIB = yaml.safe_load(DEMO_RIB_TEXT)
 DEMO_WING = yaml.safe_load(DEMO_WING_TEXT)
 
-# Safety bounds from the brief (not benchmarks): refusing a hostile file must be quick and small.
+# Safety bounds (project limits, not benchmarks): refusing a hostile file must be quick and small.
 REFUSE_SECONDS = 2.0
 REFUSE_PEAK_BYTES = 200 * 2**20
 # Messages about the whole file, which have neither a line nor a key.
