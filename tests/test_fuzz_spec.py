@@ -794,7 +794,7 @@ def test_bad_files_on_disk(tmp_path):
     """File-level failures of load_spec: binary, not UTF-8, empty, folder, missing, oversized (sparse)."""
     cases = {
         "binary.yaml": bytes(random.Random(5).randrange(256) for _ in range(5_000)),
-        "latin1.yaml": DEMO_RIB_TEXT.replace("Quillon", "Quillón").encode("latin-1"),
+        "latin1.yaml": DEMO_RIB_TEXT.replace("Brackenwold", "Brackenwöld").encode("latin-1"),
         "utf16.yaml": DEMO_RIB_TEXT.encode("utf-16"),
         "empty.yaml": b"",
         "bom.yaml": DEMO_RIB_TEXT.encode("utf-8-sig"),
