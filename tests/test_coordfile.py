@@ -37,7 +37,7 @@ from diegen.geometry.section import (
 DATA = Path(__file__).parent / "data" / "airfoils"
 SELIG = DATA / "naca2412_selig.dat"
 LEDNICER = DATA / "naca2412_lednicer.dat"
-PRINT_TOL = 1e-6  # the fixtures print 8 decimals; the brief's "identical" tolerance
+PRINT_TOL = 1e-6  # the fixtures print 8 decimals; "identical" within this (project limit)
 
 
 def _rows(loop: np.ndarray, scale: float = 1.0, sep: str = " ") -> str:

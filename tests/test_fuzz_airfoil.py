@@ -46,7 +46,7 @@ LEDNICER_TEXT = (DATA / "naca2412_lednicer.dat").read_text(encoding="utf-8")
 NAME = "fuzz.dat"
 LOOP_TOL = 1e-9  # the LE/TE placement of a normalised loop is exact up to rounding
 SAME_LOOP_TOL = 1e-6  # two files of the same section printed to 8 decimals give loops this close (fraction of chord)
-REFUSE_SECONDS = 2.0  # safety bound from the brief, not a benchmark
+REFUSE_SECONDS = 2.0  # safety bound, not a benchmark (project limit)
 REFUSE_PEAK_BYTES = 200 * 2**20
 
 _LOCATED = re.compile(rf"^{re.escape(NAME)}:(\d+):")

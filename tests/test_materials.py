@@ -34,17 +34,48 @@ REL = 1e-9  # values are stored exactly as their source prints them; only float 
 # --------------------------------------------------------------------------- sources
 
 
+# A web address or a bare domain name (e.g. "example.com/page"): no source may point to one.
+_ADDRESS = re.compile(r"://|\bwww\.|\b[A-Za-z0-9-]+(?:\.[A-Za-z0-9-]+)*\.[a-z]{2,}\b")
+# A standard named by its body and number, e.g. "ASTM B209" or "ANSI A208.2".
+_STANDARD = re.compile(r"\b(?:ASTM|ANSI|ISO|SAE|AMS|EN|DIN|NIST SP|MIL-[A-Z]+)[- ]?[A-Z]?\d")
+
+
 def _source_kind(source: str) -> str | None:
     """Which accepted kind a source string is, or None if it is none of them."""
     text = source.strip()
-    if text.startswith("common practice, no source"):
-        return "common practice"
-    if text.startswith("from memory, unverified"):
-        return "memory"
-    # A published document: names a table, figure, section, edition or an address.
-    if re.search(r"\b(Table|Fig\.|Section|ed\.)|§|https?://", text):
-        return "published"
+    if _ADDRESS.search(text):
+        return None
+    for prefix, kind in (
+        ("common practice, no source", "common practice"),
+        ("from memory, unverified", "memory"),
+        ("project limit", "project limit"),
+        ("unattributed table, unverified", "unattributed"),
+    ):
+        if text.startswith(prefix):
+            return kind
+    # A publication: a year, and a table, figure or section with a page or an article number.
+    where = re.search(r"\b(?:Table|Fig\.|Figure|Section)\s+[\w.-]+|§\s*[\w.-]+", text)
+    page = re.search(r"\b(?:p|pp)\.\s*[\w-]+|\barticle\s+\w", text)
+    if where and page and re.search(r"\b(?:19|20)\d\d\b", text):
+        return "publication"
+    if _STANDARD.search(text):
+        return "standard"
     return None
+
+
+def _catalogue_sources() -> Iterator[tuple[str, str]]:
+    """Every source string the catalogue hands out, with where it belongs."""
+    for name in sheet_alloy_names():
+        for field_name, source in sheet_alloy(name).sources.items():
+            yield f"{name}.{field_name}", source
+    for table in bend_radius_tables():
+        yield f"{table}.citation", _data("sheet.yaml")["bend_radius_tables"][table]["citation"]
+        for alloy in _data("sheet.yaml")["bend_radius_tables"][table]["rows"]:
+            r = min_bend_radius(alloy, 0.5 * IN / 16, table)
+            yield f"{table}.{alloy}", r.citation
+    for name in die_material_names():
+        for field_name, source in die_material(name).sources.items():
+            yield f"{name}.{field_name}", source
 
 
 def _numbers_with_sources(node: Any, path: str, source: str | None) -> Iterator[tuple[str, object, str | None]]:
@@ -71,6 +102,50 @@ def test_every_number_in_the_data_files_has_an_accepted_source(filename: str) ->
     for path, _value, source in found:
         assert source and source.strip(), f"{path} has no source"
         assert _source_kind(source) is not None, f"{path}: source {source!r} is not an accepted kind"
+
+
+def test_every_catalogue_value_has_an_accepted_source_and_no_address() -> None:
+    found = dict(_catalogue_sources())
+    assert len(found) > 80
+    for where, source in found.items():
+        assert _source_kind(source) is not None, f"{where}: source {source!r} is not an accepted kind"
+
+
+@pytest.mark.parametrize("filename", ["sheet.yaml", "die.yaml"])
+def test_no_data_file_holds_a_web_address(filename: str) -> None:
+    # Sources cite the publication itself, never a copy of it on the web; notes and titles neither.
+    def strings(node: Any) -> Iterator[str]:
+        if isinstance(node, dict):
+            for value in node.values():
+                yield from strings(value)
+        elif isinstance(node, list):
+            for value in node:
+                yield from strings(value)
+        elif isinstance(node, str):
+            yield node
+
+    found = list(strings(_data(filename)))
+    assert len(found) > 20
+    assert not [text for text in found if _ADDRESS.search(text)]
+
+
+@pytest.mark.parametrize(
+    ("source", "kind"),
+    [
+        ("Aluminum Association, Aluminum Design Manual, 2005 ed., Table 3-1, p. VII-78", "publication"),
+        ("ASTM B209, Table 2", "standard"),
+        ("common practice, no source: usual", "common practice"),
+        ("from memory, unverified: roughly", "memory"),
+        ("project limit: chosen for the demo", "project limit"),
+        ("unattributed table, unverified: origin not known", "unattributed"),
+        ("Handbook of Things, Table 5", None),  # no year, no page
+        ("a handbook, Table 5, p. 12 (2002), https://copy.example/handbook", None),
+        ("from memory, unverified: see example.com/page", None),
+        ("typical values of 6061 by temper", None),
+    ],
+)
+def test_source_kinds_are_recognised(source: str, kind: str | None) -> None:
+    assert _source_kind(source) == kind
 
 
 def test_die_lives_given_as_words_have_sources() -> None:
@@ -153,21 +228,20 @@ def test_records_are_frozen() -> None:
 
 
 # Aluminum Association typical properties (Ftu, Fty in ksi; elongation % in 2 in, 1/16 in sheet;
-# E in 10^3 ksi) as printed in M. Kutz (ed.), Handbook of Materials Selection, Table 5
-# "Typical Mechanical Properties of Wrought Aluminum Alloys".
+# E in 10^3 ksi) as printed in M. Kutz (ed.), Handbook of Materials Selection, John Wiley & Sons,
+# 2002, Table 5 "Typical Mechanical Properties of Wrought Aluminum Alloys", p. 101.
 AA_TYPICAL_KSI = {
     "2024-O": (27, 11, 20, 10.6),
     "2024-T3": (70, 50, 18, 10.6),
     "3003-O": (16, 6, 30, 10.0),
     "3003-H14": (22, 21, 8, 10.0),
 }
-# Aluminum Association typical values quoted in MPa / GPa by data sheets:
+# Aluminum Association typical values (from memory, unverified) in ksi -- 5052-H32 33/28 ksi, 12 %,
+# E 10.2; 6061-T6 45/40 ksi, 12 %, E 10.0; 5052-O 28/13 ksi, 25 %, E 10.2 -- converted to MPa / GPa
+# and rounded to three figures:
 AA_TYPICAL_MPA = {
-    # https://www.cctprecision.com/materials/aluminum-data-sheet/ (5052-H32 row)
     "5052-H32": (228, 193, 12, 70.3),
-    # https://www.glemco.com/capabilities/material-expertise/aluminum-6061-t6/ ("AA; Typical")
     "6061-T6": (310, 276, 12, 68.9),
-    # http://asm.matweb.com/search/SpecificMaterial.asp?bassnum=MA5052O ("AA; Typical")
     "5052-O": (193, 89.6, 25, 70.3),
 }
 
@@ -203,14 +277,14 @@ def test_properties_match_the_aa_typical_values_in_mpa(name: str) -> None:
 def test_6061_properties_sit_inside_the_specified_limits() -> None:
     # Specified limits for 6061 sheet, 0.021-0.128 in (O) and 0.021-0.249 in (T6):
     # O: Ftu <= 22, Fty <= 12 ksi; T6: Ftu >= 42, Fty >= 35 ksi, elongation >= 10 %
-    # (https://www.ashlandaluminumcompany.com/aluminum-6061.aspx). Typical values must respect them.
+    # (ASTM B209, from memory, unverified). Typical values must respect them.
     o, t6 = sheet_alloy("6061-O"), sheet_alloy("6061-T6")
     assert o.ultimate_mpa <= 22 * KSI and o.yield_mpa <= 12 * KSI
     assert t6.ultimate_mpa >= 42 * KSI and t6.yield_mpa >= 35 * KSI and t6.elongation >= 0.10
 
 
 def test_k_factor_is_the_handbook_value_for_aluminium() -> None:
-    # Machinery's Handbook, 28th ed., 90 degree bend table: k = 0.41 for aluminium.
+    # k = 0.41 for aluminium in 90 degree bends (from memory, unverified: after Machinery's Handbook).
     for name in sheet_alloy_names():
         assert sheet_alloy(name).k_factor == pytest.approx(0.41, rel=REL)
 
@@ -228,7 +302,7 @@ def test_k_factor_is_the_handbook_value_for_aluminium() -> None:
 )
 def test_harder_tempers_are_stronger_and_less_ductile(hard: str, soft: str) -> None:
     # Physical fact of strain hardening and precipitation hardening, visible in every row of
-    # the Aluminum Association typical table (Kutz, Handbook of Materials Selection, Table 5).
+    # the Aluminum Association typical table (Kutz, Handbook of Materials Selection, 2002, Table 5, p. 101).
     h, s = sheet_alloy(hard), sheet_alloy(soft)
     assert h.yield_mpa > s.yield_mpa
     assert h.elongation < s.elongation
@@ -241,7 +315,7 @@ def test_flange_limits_are_plausible_positive_fractions() -> None:
         a = sheet_alloy(name)
         assert 0 < a.shrink_limit < a.stretch_limit <= a.elongation + 1e-12, name
         assert a.yield_mpa < a.ultimate_mpa, name
-    # 2024-T3 takes only a few percent of shrink without flutes (brief: 0.03-0.05; from memory).
+    # 2024-T3 takes only a few percent of shrink without flutes (from memory, unverified: 0.03-0.05).
     assert 0.03 <= sheet_alloy("2024-T3").shrink_limit <= 0.05
 
 
@@ -249,7 +323,8 @@ def test_flange_limits_are_plausible_positive_fractions() -> None:
 
 
 def test_aa_2024_t3_one_sixteenth_is_4t() -> None:
-    # Aluminum Association, Aluminum Standards and Data, Table 3-1: 2024-T3, t = 1/16 in -> 4t = 0.250 in.
+    # Aluminum Association, Aluminum Design Manual, 2005 ed., Table 3-1, p. VII-78:
+    # 2024-T3, t = 1/16 in -> 4t = 0.250 in.
     r = min_bend_radius("2024-T3", IN / 16, "aa")
     assert r.radius_mm == pytest.approx(0.250 * IN, rel=REL)
     assert r.table == "aa" and "Table 3-1" in r.citation
@@ -257,21 +332,22 @@ def test_aa_2024_t3_one_sixteenth_is_4t() -> None:
 
 
 def test_aa_5052_h32_one_eighth_is_one_and_a_half_t() -> None:
-    # Aluminum Association, Aluminum Standards and Data, Table 3-1: 5052-H32, t = 1/8 in -> 1.5t = 0.1875 in.
+    # Aluminum Association, Aluminum Design Manual, 2005 ed., Table 3-1, p. VII-78:
+    # 5052-H32, t = 1/8 in -> 1.5t = 0.1875 in.
     assert min_bend_radius("5052-H32", IN / 8).radius_mm == pytest.approx(0.1875 * IN, rel=REL)
 
 
 def test_aa_6061_t6_one_thirty_second_is_1t() -> None:
-    # Aluminum Association, Aluminum Standards and Data, Table 3-1: 6061-T6, t = 1/32 in -> 1t.
+    # Aluminum Association, Aluminum Design Manual, 2005 ed., Table 3-1, p. VII-78: 6061-T6, t = 1/32 in -> 1t.
     assert min_bend_radius("6061-T6", IN / 32).radius_mm == pytest.approx(IN / 32, rel=REL)
 
 
 def test_aerospace_2024_t3_forty_thou_is_point_12() -> None:
-    # "Recommended minimum bend radius for maximum strength" table,
-    # http://smtp.americanmachinetools.com/bend_radius.htm: 2024-T3, t = .040 -> R = .12 in.
+    # "Recommended minimum bend radius for maximum strength" (unattributed table, unverified):
+    # 2024-T3, t = .040 -> R = .12 in.
     r = min_bend_radius("2024-T3", 0.040 * IN, "aerospace")
     assert r.radius_mm == pytest.approx(0.12 * IN, rel=REL)
-    assert r.table == "aerospace" and "does not say where" in r.citation
+    assert r.table == "aerospace" and r.citation.startswith("unattributed table, unverified")
 
 
 def test_aa_between_columns_uses_the_next_thicker_column() -> None:
@@ -323,7 +399,7 @@ def test_thickness_must_be_positive_and_finite(bad: float) -> None:
 
 
 def test_alloy_missing_from_a_table_names_the_tables_that_have_it() -> None:
-    # 5052-H32 is not in the aerospace table (http://smtp.americanmachinetools.com/bend_radius.htm).
+    # 5052-H32 is not in the aerospace table (unattributed table, unverified).
     with pytest.raises(FormingError, match="tables that list it: aa"):
         min_bend_radius("5052-H32", 1.0, "aerospace")
 
@@ -358,7 +434,7 @@ def test_die_materials_are_well_formed() -> None:
         assert bool(d.stock_thicknesses_mm) != d.printed, name  # printed dies have no stock sizes
     # The aluminium die is 6061-T6 plate: its strength is that alloy's typical yield.
     assert die_material("aluminium").compressive_strength_mpa == pytest.approx(sheet_alloy("6061-T6").yield_mpa)
-    # Solid-surface sheet is standard at 1/2 in (Countertops Magazine archive, "Answering Architects' FAQs").
+    # Solid-surface sheet is usually 1/2 in thick (common practice, no source).
     assert 0.5 * IN in die_material("solid-surface").stock_thicknesses_mm
 
 

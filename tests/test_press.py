@@ -1,8 +1,8 @@
 """Press check: box pressure, die contact pressure, flange fold pressure, verdicts.
 
 Unit conversions exact per NIST SP 811: 1 lbf = 4.4482216152605 N, 1 in =
-25.4 mm, 1 ksi = 6.894757 MPa.  "A 20-short-ton press over an 11 in x 11 in
-box gives about 333 psi" is common practice, no source.  The flange fold
+25.4 mm, 1 ksi = 6.894757 MPa.  A 20-short-ton press over an 11 in x 11 in
+box gives about 333 psi (fact of the trade, no source).  The flange fold
 pressure p = Sy t^2 / (2 L^2) is a plastic-hinge model of our own (derived,
 not published); its 2024-O example (Sy 11 ksi, t 0.032 in, L 0.5 in ->
 22.5 psi) is derived from the same formula.
@@ -33,7 +33,7 @@ def test_unit_constants() -> None:
 
 
 def test_twenty_ton_press_over_eleven_inch_box() -> None:
-    # Common practice, no source: 40,000 lbf over 11 in x 11 in "about 333 psi" = 2.30 MPa.
+    # Fact of the trade, no source: 40,000 lbf over 11 in x 11 in gives about 333 psi = 2.30 MPa.
     p = box_pressure(40_000 * LBF, 11 * IN, 11 * IN)
     assert p == pytest.approx(40_000 / 121 * PSI, rel=1e-14)  # exact: 330.58 psi
     assert p / PSI == pytest.approx(333.0, rel=0.01)

@@ -15,7 +15,7 @@ Independent expectations:
   and a mold-line offset d takes d off each face (a small-slope approximation,
   hence the named tolerances).
 * Minimum bend radius of 2024-T3 at 1/16 in: 4t, Aluminum Association,
-  *Aluminum Standards and Data*, Table 3-1 (Jan 2005 ed., p. VII-78).
+  *Aluminum Design Manual*, 2005 ed., Part VII, Table 3-1, p. VII-78.
 * 1 in = 25.4 mm and 1 lbf = 4.4482216152605 N, exact (NIST SP 811).
 * The margins themselves (edge margin, ligament, 3 mm die clearance over the
   flange, 2 × flange height + 10 mm minimum tail depth, 1 mm shortest end face)

@@ -5,11 +5,11 @@ Marciniak, Duncan & Hu and in Kalpakjian -- attributions as commonly quoted,
 not checked against the originals) with a neutral line of constant length at
 mid-thickness.  No published numeric example was found: the check table below
 is derived from the formula with Aluminum Association typical properties
-(Kutz, *Handbook of Materials Selection*, Table 5 "Typical Mechanical
-Properties of Wrought Aluminum Alloys", for the 2024 and 3003 tempers; the
-5052-H32 and 6061-T6 values from suppliers' data sheets quoting the same
-typical values), bend through 90 deg.  Units converted with 1 in = 25.4 mm and
-1 ksi = 6.894757 MPa (NIST SP 811).
+(Kutz, *Handbook of Materials Selection*, Wiley 2002, Table 5 "Typical
+Mechanical Properties of Wrought Aluminum Alloys", p. 101, for the 2024 and
+3003 tempers; the 5052-H32 and 6061-T6 values are the same Association's
+typical values from memory, unverified), bend through 90 deg.  Units
+converted with 1 in = 25.4 mm and 1 ksi = 6.894757 MPa (NIST SP 811).
 """
 
 from __future__ import annotations
@@ -86,7 +86,7 @@ def test_stiff_sheet_has_no_springback() -> None:
 
 def test_harder_temper_springs_back_more() -> None:
     # Same t and R: the higher Sy/E, the larger X and the over-bend (2024-T3 > 6061-T6 > 2024-O),
-    # Aluminum Association typical properties (Kutz, Table 5; 6061-T6 from a supplier's AA-typical sheet).
+    # Aluminum Association typical properties (Kutz, Table 5, p. 101; 6061-T6 from memory, unverified).
     t, rf = 0.040 * IN, 0.16 * IN
     t3 = die_for_part(rf, t, 50 * KSI, 10_600 * KSI).overbend_deg
     t6 = die_for_part(rf, t, 40 * KSI, 10_000 * KSI).overbend_deg

@@ -31,7 +31,7 @@ def test_airfoil_change_rebuilds_exactly_the_pieces_whose_outline_changed(tmp_pa
     out = tmp_path / "out"
     first = api.build(api.load(_small_wing(tmp_path)), out, jobs=1, die_writer=fake_solids)
     assert {o.status for o in first.outcomes} == {"built"} and len(first.outcomes) == 6
-    folder = out / "Q2-wing"
+    folder = out / "BW418-wing"
     rows = list(csv.DictReader((folder / "summary.csv").open()))
     assert [r["part_id"] for r in rows] == [o.part_id for o in first.outcomes]
     assert (folder / "summary.pdf").read_bytes().startswith(b"%PDF")
@@ -40,10 +40,10 @@ def test_airfoil_change_rebuilds_exactly_the_pieces_whose_outline_changed(tmp_pa
     second = api.build(api.load(_small_wing(tmp_path, tip="naca 4412")), out, jobs=1, die_writer=fake_solids)
     outcome = {o.part_id: o for o in second.outcomes}
     # span fraction 0 is the root section exactly, so rib 1 keeps its outlines; ribs 2 and 3 change
-    assert outcome["Q2-wing-R01-nose"].status == "unchanged"
-    assert outcome["Q2-wing-R01-tail"].status == "unchanged"
+    assert outcome["BW418-wing-R01-nose"].status == "unchanged"
+    assert outcome["BW418-wing-R01-tail"].status == "unchanged"
     changed = {p for p, o in outcome.items() if o.status == "built"}
-    assert changed == {"Q2-wing-R02-nose", "Q2-wing-R02-tail", "Q2-wing-R03-nose", "Q2-wing-R03-tail"}
+    assert changed == {"BW418-wing-R02-nose", "BW418-wing-R02-tail", "BW418-wing-R03-nose", "BW418-wing-R03-tail"}
     assert all(outcome[p].deviation_mm > 0.1 for p in changed)
     assert sorted(fake_solids) == sorted(changed)
     summary = second.summary()
@@ -58,9 +58,9 @@ def test_check_of_the_whole_demo_wing():
     assert len(analysis.ribs) == 13
     report = api.report_json(analysis)
     ids = [p["id"] for p in report["parts"]]
-    assert len(ids) == len(set(ids)) and all(i.startswith("Q2-wing-R") for i in ids)
+    assert len(ids) == len(set(ids)) and all(i.startswith("BW418-wing-R") for i in ids)
     # the root rib override: heavier sheet and a larger radius
-    root = next(p for p in report["parts"] if p["id"] == "Q2-wing-R01-nose")
+    root = next(p for p in report["parts"] if p["id"] == "BW418-wing-R01-nose")
     assert root["bend"]["part_radius_mm"] == pytest.approx(3.175)
     # the fuel-bay ribs 4 and 5 have no lightening holes
-    assert not any(p["holes"] for p in report["parts"] if p["rib"] in ("Q2-wing-R04", "Q2-wing-R05"))
+    assert not any(p["holes"] for p in report["parts"] if p["rib"] in ("BW418-wing-R04", "BW418-wing-R05"))

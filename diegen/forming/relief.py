@@ -389,8 +389,8 @@ def notch_depth(flange_width: float, thickness: float, bend_radius: float) -> fl
     """Depth (mm) of a V-notch from the flange edge: stop ``T + R`` short of the bend tangent line.
 
     The set-back of a relief notch when none is specified is at least sheet
-    thickness + bend radius (sheetmetalworkbook.com, "Reliefs"); applying it
-    to flange V-notches is our own choice.
+    thickness + bend radius (common practice, no source); applying it to
+    flange V-notches is our own choice.
     """
     depth = flange_width - (thickness + bend_radius)
     if depth <= 0.0:

@@ -1,10 +1,11 @@
 """Materials catalogue: sheet alloys, minimum bend radii and die stock, with sources.
 
 The numbers live in ``sheet.yaml`` and ``die.yaml`` beside this module; each one
-carries its source string (a published document with table or section, "common
-practice, no source", or "from memory, unverified").  The files are read once,
-on first use, and turned into frozen dataclasses.  Everything returned is in
-millimetres, MPa and fractions, whatever unit the source used.
+carries its source string (a publication with table and page, a standard,
+"common practice, no source", "from memory, unverified", or "unattributed table,
+unverified").  The files are read once, on first use, and turned into frozen
+dataclasses.  Everything returned is in millimetres, MPa and fractions, whatever
+unit the source used.
 
 The sheet values are *typical* properties, not design allowables: flight
 structure follows the aircraft designer's drawings and the MMPDS minima.
