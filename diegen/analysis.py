@@ -19,8 +19,8 @@ from diegen.findings import Finding
 from diegen.forming import press as press_model
 from diegen.forming import relief as relief_model
 from diegen.forming.bend import FlangeLayout, flange_layout
-from diegen.forming.springback import Springback, die_for_part
-from diegen.forming.strain import StrainProfile, hole_flange_strain, pilot_diameter, strain_along
+from diegen.forming.springback import BendSheet, PowerLaw, Springback, Trial, die_for_part, die_from_trial
+from diegen.forming.strain import StrainProfile, pilot_diameter, strain_along
 from diegen.geometry import die_wall
 from diegen.geometry.rib import rib_geometry
 from diegen.geometry.types import PieceGeometry, RibGeometry
@@ -34,15 +34,22 @@ GRAIN_ANGLE_DEG = 90.0
 MODELS = {
     "bend_allowance": "K-factor form BA = θ(R + kT), FAA-H-8083-31 ch. 4; aviation form (0.01743R + 0.0078T)N beside it",
     "setback": "SB = tan(θ/2)(R + T), FAA-H-8083-31 ch. 4",
-    "springback": "elastic–perfectly-plastic bending Ri/Rf = 4X³ − 3X + 1 (Gardiner 1957, as commonly quoted); "
-                  "angle from constant neutral-line length",
+    "springback": "pure bending about the neutral surface, plane strain, elastic unloading 1/ρf = 1/ρi − 12M/(E't³) "
+                  "(Marciniak, Duncan & Hu 2002, ch. 6; equals ρi/ρf = 4X³ − 3X + 1, Gardiner 1957, without "
+                  "hardening); power-law hardening through the typical yield and ultimate (Considère); a trial part "
+                  "in the spec overrides it",
     "flange_strain": "contoured flange e = −w/(ρ + w) shrink, w/(ρ − w) stretch, ρ from the turning angle over "
                      "one flange width (windowing: model of our own)",
-    "hole_strain": "hole flange stretch h/(R − h)",
-    "relief": "excess edge length above the shrink limit gathered by flutes / removed by V-notches (model of our own)",
-    "press": "box pressure F/A; early contact F/A_die; fold pressure σy·t²/(2L²) plastic hinge (model of our own)",
+    "shrink_limit": "catalogue shrink limit at h/t = 20, scaled by (20t/h)² as the plastic buckling strain of a "
+                    "flange with a free edge (Stowell, NACA TN 1556; model of our own)",
+    "residual_shrink": "edge shrink left in each flange-width window after the flutes or notches in it take up "
+                       "their length (model of our own)",
+    "hole_strain": "hole flange edge stretch (d + t)/pilot − 1, the pilot from the flange's developed length",
+    "relief": "excess edge length above the shrink limit gathered by flutes (placed by the local excess) / removed "
+              "by V-notches (model of our own)",
+    "press": "box pressure F/A; plastic hinge lever a = t√(σy'/2p): folding starts at a = L, the flange sets on "
+             "the die radius at a = R; part-way angle calibrated to a fact of the trade (model of our own)",
 }
-
 
 @dataclass(frozen=True)
 class FlangeRun:
@@ -57,9 +64,25 @@ class FlangeRun:
 
 @dataclass(frozen=True)
 class HoleCheck:
+    """A lightening hole as formed: its clear diameter, die bore and pilot (mm), edge stretch and limit."""
+
+    d_mm: float  # clear hole inside the flange
+    bore_d_mm: float  # the die's bore, d + 2t for a flanged hole
+    pilot_d_mm: float  # the hole cut in the blank
+    flange_height_mm: float
     stretch_strain: float
-    pilot_d_mm: float
     ok: bool
+
+
+@dataclass(frozen=True)
+class FlangeJudgement:
+    """Whether the perimeter flange forms: residual shrink after relief against the wrinkle limit, stretch."""
+
+    shrink_limit: float  # the wrinkle limit for this flange (positive fraction)
+    residual_shrink: float  # worst window after relief
+    residual_at_mm: float | None  # where along the outline
+    verdict: relief_model.FlangeVerdict
+    remedies: tuple[str, ...]
 
 
 @dataclass(frozen=True)
@@ -70,10 +93,10 @@ class PieceAnalysis:
     springback: Springback
     layout: FlangeLayout
     runs: tuple[FlangeRun, ...]
-    flange_names: tuple[str, ...]  # what each press.needed_by_flange entry is
     flutes: tuple[relief_model.Flute, ...]
     notches: tuple[relief_model.Notch, ...]
     relief_notes: tuple[str, ...]
+    flange: FlangeJudgement
     holes: tuple[HoleCheck, ...]
     press: press_model.PressCheck
     blank: BlankDrawing
@@ -113,25 +136,65 @@ def die_inset_mm(spec: RibSpec, springback: Springback) -> float:
     return die_wall.largest_inset_mm(springback.die_radius_mm, springback.overbend_deg, height)
 
 
-def check_radius(spec: RibSpec) -> materials.MinRadius:
-    """The table minimum for the sheet; :class:`FormingError` when the part radius is below it."""
+def bend_sheet(spec: RibSpec, alloy: materials.SheetAlloy) -> BendSheet:
+    """The sheet as springback sees it: thickness, yield, modulus, hardening through yield and ultimate."""
+    return BendSheet(spec.shared.sheet.thickness_mm, alloy.yield_mpa, alloy.youngs_modulus_mpa,
+                     PowerLaw.through(alloy.yield_mpa, alloy.ultimate_mpa))
+
+
+def springback_for(spec: RibSpec, alloy: materials.SheetAlloy) -> Springback:
+    """The die radius and angle for the spec's part: the model's, or a trial part's when the spec gives one."""
+    flange = spec.shared.flange
+    modelled = die_for_part(flange.bend_radius_mm, bend_sheet(spec, alloy))
+    if flange.trial is None:
+        return modelled
+    trial = flange.trial
+    return die_from_trial(Trial(trial.die_angle_deg, trial.part_angle_deg, trial.die_radius_mm, trial.part_radius_mm),
+                          modelled)
+
+
+def check_radius(spec: RibSpec, springback: Springback) -> materials.MinRadius:
+    """The table minimum for the sheet; :class:`FormingError` when the die radius the metal is bent to is below it.
+
+    The refusal names both radii, the table, and the smallest part radius whose die radius passes.
+    """
     sheet, flange = spec.shared.sheet, spec.shared.flange
     minimum = materials.min_bend_radius(sheet.alloy, sheet.thickness_mm, flange.radius_table)
-    if flange.bend_radius_mm < minimum.radius_mm - 1e-9:
+    if springback.die_radius_mm < minimum.radius_mm - 1e-9:
+        wanted = _part_radius_for_die(spec, minimum.radius_mm)
+        file, line, column = spec.positions.where("flange.bend_radius")
+        where = ":".join(str(v) for v in (file or spec.file or spec.id, line, column) if v not in ("", None))
         raise FormingError(
-            f"{spec.file or spec.id}: rib {spec.id}: flange.bend_radius: {flange.bend_radius_mm:.3f} mm is below the minimum inside "
-            f"bend radius {minimum.radius_mm:.3f} mm for {sheet.alloy} at {sheet.thickness_mm:.3f} mm "
-            f"({minimum.citation})")
+            f"{where}: flange.bend_radius: rib {spec.id}: the die bends the metal to {springback.die_radius_mm:.3f} mm "
+            f"(to spring back to the part's {flange.bend_radius_mm:.3f} mm), below the {minimum.radius_mm:.3f} mm "
+            f"minimum for {sheet.thickness_mm:.3f} mm {sheet.alloy} ({minimum.table} table: {minimum.citation}); "
+            f"use a part radius of at least {wanted:.3f} mm, or a softer temper"
+        )
     return minimum
+
+
+def _part_radius_for_die(spec: RibSpec, die_radius_mm: float) -> float:
+    """The smallest part radius (mm) whose die radius is at least ``die_radius_mm``."""
+    alloy = materials.sheet_alloy(spec.shared.sheet.alloy)
+    sheet = bend_sheet(spec, alloy)
+    lo, hi = die_radius_mm, die_radius_mm * 4.0
+    for _ in range(60):
+        mid = 0.5 * (lo + hi)
+        try:
+            passes = die_for_part(mid, sheet).die_radius_mm >= die_radius_mm
+        except FormingError:
+            passes = True
+        lo, hi = (lo, mid) if passes else (mid, hi)
+    return hi
 
 
 def analyse_rib(spec: RibSpec, section: np.ndarray | None = None) -> RibAnalysis:
     """Geometry and forming analysis of every piece of one rib."""
-    minimum = check_radius(spec)
     alloy = materials.sheet_alloy(spec.shared.sheet.alloy)
     t = spec.shared.sheet.thickness_mm
     flange = spec.shared.flange
-    springback = die_for_part(flange.bend_radius_mm, t, alloy.yield_mpa, alloy.youngs_modulus_mpa)
+    springback = springback_for(spec, alloy)
+    minimum = check_radius(spec, springback)
     geometry = rib_geometry(spec, section, die_inset_mm=die_inset_mm(spec, springback))
     layout = flange_layout(flange.height_mm, flange.bend_radius_mm, t, alloy.k_factor)
     pieces = tuple(_analyse_piece(spec, piece, alloy, minimum, springback, layout) for piece in geometry.pieces)
@@ -147,73 +210,167 @@ def _run_offsets(piece: PieceGeometry) -> list[float]:
     return offsets
 
 
-def _analyse_piece(spec: RibSpec, piece: PieceGeometry, alloy: materials.SheetAlloy, minimum: materials.MinRadius,
-                   springback: Springback, layout: FlangeLayout) -> PieceAnalysis:
-    shared = spec.shared
-    t = shared.sheet.thickness_mm
-    width = layout.developed_width_mm
-    warnings: list[Finding] = []
+def _flange_runs(spec: RibSpec, piece: PieceGeometry, alloy: materials.SheetAlloy, layout: FlangeLayout,
+                 shrink_limit: float) -> list[FlangeRun]:
+    """Strain along every flanged curve of the piece, with its runs past the limits."""
     runs = []
-    for index, (run, offset) in enumerate(zip(piece.plain_runs, _run_offsets(piece))):
+    for index, (run, offset) in enumerate(zip(piece.plain_runs, _run_offsets(piece), strict=False)):
         if run.kind != "curve" or not run.flanged:
             continue
-        profile = strain_along(np.asarray(run.points), width, closed=False)
-        runs.append(FlangeRun(index, offset, profile, relief_model.shrink_runs(profile, alloy.shrink_limit),
+        profile = strain_along(np.asarray(run.points), layout.developed_width_mm, closed=False)
+        runs.append(FlangeRun(index, offset, profile, relief_model.shrink_runs(profile, shrink_limit),
                               relief_model.stretch_runs(profile, alloy.stretch_limit)))
-    flutes, notches, notes, relief_warnings = _relief(spec, piece, runs, layout, springback)
-    warnings += relief_warnings
+    return runs
+
+
+def _stretch_findings(runs: list[FlangeRun], alloy: materials.SheetAlloy) -> list[Finding]:
+    found = []
     for run in runs:
         for stretch in run.stretch_runs:
             where = run.s_offset_mm + stretch.s_start_mm
-            warnings.append(Finding(
+            found.append(Finding(
                 "stretch-over-limit", f"stretch flange {stretch.peak_strain:.3f} above the {alloy.name} limit "
                 f"{alloy.stretch_limit:.3f} at {where:.0f} mm along the outline (plan radius "
                 f"{stretch.min_radius_mm:.1f} mm); a flange of {stretch.allowed_width_mm:.1f} mm developed width would "
                 "pass", key="flange.height", s_mm=where))
+    return found
+
+
+def _holes(spec: RibSpec, piece: PieceGeometry, alloy: materials.SheetAlloy) -> tuple[list[HoleCheck], list[Finding]]:
+    """Each hole as formed: the die bore d + 2t for a flanged hole, the pilot from the flange's developed length,
+    and the edge stretch from the pilot to the flange's mid-surface, (d + t)/pilot − 1."""
+    t = spec.shared.sheet.thickness_mm
+    checks, found = [], []
+    for hole in piece.holes:
+        if not hole.flanged:
+            checks.append(HoleCheck(hole.d, hole.d, hole.d, 0.0, 0.0, True))
+            continue
+        pilot = pilot_diameter(hole.d, hole.flange_height, t, spec.shared.flange.bend_radius_mm, alloy.k_factor)
+        stretch = (hole.d + t) / pilot - 1.0
+        ok = stretch <= alloy.stretch_limit
+        if not ok:
+            found.append(Finding("hole-flange-stretch", f"hole at x = {hole.x:.0f} mm: flange edge stretch "
+                                 f"{stretch:.3f} above the limit {alloy.stretch_limit:.3f}: lower its flange",
+                                 key="lightening_holes"))
+        checks.append(HoleCheck(hole.d, hole.d + 2.0 * t, pilot, hole.flange_height, stretch, ok))
+    return checks, found
+
+
+def _judge_flange(spec: RibSpec, runs: list[FlangeRun], flutes: tuple[relief_model.Flute, ...],
+                  notches: tuple[relief_model.Notch, ...], holes: list[HoleCheck], shrink_limit: float
+                  ) -> tuple[FlangeJudgement, list[Finding]]:
+    """Residual shrink window by window after relief, the verdict, and the remedies that apply, in order."""
+    worst, at = 0.0, None
+    for run in runs:
+        local = [(f.s_mm - run.s_offset_mm, f.width_mm, f.gather_mm) for f in flutes]
+        local += [(n.s_mm - run.s_offset_mm, n.opening_mm, n.opening_mm) for n in notches]
+        left = relief_model.residual_shrink(run.profile, local)
+        if left.size and float(left.max()) > worst:
+            worst, at = float(left.max()), run.s_offset_mm + float(run.profile.s_mm[int(left.argmax())])
+    stretch_bad = any(r.stretch_runs for r in runs) or not all(h.ok for h in holes)
+    relief = spec.shared.relief
+    alloy = spec.shared.sheet.alloy
+    remedies: list[str] = []
+    if worst > shrink_limit:
+        if relief != "notches":
+            remedies.append("V-notches in the blank (relief: notches) where the shrink is worst")
+        remedies.append("a lower flange, or one cut back where it shrinks most (the leading edge of a nose)")
+        if not alloy.endswith(("-O", "-W")):
+            remedies.append(f"form it in O or W temper and heat treat it to {alloy} afterwards, to the alloy's "
+                            "heat-treatment specification")
+        remedies.append("shrink the flange edge by hand after pressing (shrinker or fluting pliers)")
+    if stretch_bad:
+        remedies.append("a lower flange where it stretches, or a softer temper (O or W) heat treated afterwards")
+    if stretch_bad or worst > relief_model.HAND_FINISH_FACTOR * shrink_limit:
+        verdict: relief_model.FlangeVerdict = "not-formable"
+    elif worst > shrink_limit:
+        verdict = "hand-finish"
+        remedies.insert(0, remedies.pop())  # hand shrinking finishes what the press leaves
+    else:
+        verdict = "formable"
+    found = []
+    if worst > shrink_limit:
+        message = (f"edge shrink {worst:.3f} remains after relief at {at:.0f} mm along the outline, above the "
+                   f"{shrink_limit:.3f} wrinkle limit: {verdict}; " + "; or ".join(remedies))
+        if verdict == "not-formable" and alloy.endswith("-T3"):
+            message += (" (aggressive shapes in a hard temper crack when pressed hard: fact of the trade, no "
+                        "source)")
+        found.append(Finding("shrink-residual", message, key="relief", s_mm=at))
+    return FlangeJudgement(shrink_limit, worst, at, verdict, tuple(remedies)), found
+
+
+def _press(spec: RibSpec, piece: PieceGeometry, springback: Springback, flutes: tuple[relief_model.Flute, ...],
+           holes: list[HoleCheck], die_height_mm: float) -> press_model.PressCheck:
+    shared = spec.shared
+    alloy = materials.sheet_alloy(shared.sheet.alloy)
+    die = materials.die_material(shared.die.material)
+    minx, miny, maxx, maxy = _bounds(piece)
+    radius = springback.die_radius_mm
+    legs = [press_model.FlangeLeg("perimeter flange", "perimeter", shared.flange.height_mm, radius)]
+    if flutes:
+        lip = min(f.lip_radius_mm or radius for f in flutes)
+        legs.append(press_model.FlangeLeg("flutes", "flute", shared.flange.height_mm, lip))
+    legs += [press_model.FlangeLeg(f"hole flange Ø{h.d_mm:.0f} mm", "hole", h.flange_height_mm, radius)
+             for h in holes if h.flange_height_mm > 0.0]
+    press = shared.press
+    return press_model.press_check(
+        press_model.PressSetup(press.force_n, *press.box_mm, press.rubber.thickness_mm, press.rubber.durometer,
+                               press.wall_clearance_mm),
+        press_model.DieFootprint(maxx - minx, maxy - miny, piece.area_mm2, die_height_mm, die.compressive_strength_mpa,
+                                 die.life_parts if die.life_parts is not None else 10**9),
+        legs, shared.sheet.thickness_mm, alloy.yield_mpa)
+
+
+def _press_findings(check: press_model.PressCheck, springback: Springback) -> list[Finding]:
+    found = list(check.warnings)
+    short = check.short_legs
+    if short and check.fits_box:
+        folds = ", ".join(f"the {r.leg.name} to about {r.angle_deg:.0f}°" for r in short)
+        found.append(Finding(
+            "press-folds-part-way", f"the box gives {check.pressure_mpa:.2f} MPa but setting the flanges on the "
+            f"{springback.die_radius_mm:.2f} mm die radius needs {max(r.full_mpa for r in short):.2f} MPa: the press "
+            f"folds {folds}; finish them on the die by hand (hand seamer, or a hardwood block and soft mallet), or use "
+            "a bigger press or a smaller box", key="press.force"))
+    return found
+
+
+def _analyse_piece(spec: RibSpec, piece: PieceGeometry, alloy: materials.SheetAlloy, minimum: materials.MinRadius,
+                   springback: Springback, layout: FlangeLayout) -> PieceAnalysis:
+    shared = spec.shared
+    t = shared.sheet.thickness_mm
+    shrink_limit = relief_model.wrinkle_limit(alloy.shrink_limit, shared.flange.height_mm, t)
+    runs = _flange_runs(spec, piece, alloy, layout, shrink_limit)
+    flutes, notches, notes, warnings = _relief(spec, piece, runs, layout, springback)
+    warnings += _stretch_findings(runs, alloy)
     if shared.relief == "none":
         for run in runs:
             for shrink in run.shrink_runs:
                 where = run.s_offset_mm + shrink.s_start_mm
                 warnings.append(Finding(
                     "shrink-without-relief", f"shrink {-shrink.peak_strain:.3f} above the limit "
-                    f"{alloy.shrink_limit:.3f} over {shrink.length_mm:.0f} mm from {where:.0f} mm along the outline "
+                    f"{shrink_limit:.3f} over {shrink.length_mm:.0f} mm from {where:.0f} mm along the outline "
                     "and relief is 'none': expect wrinkles", key="relief", s_mm=where))
-    holes = []
-    for hole in piece.holes:
-        if not hole.flanged:
-            holes.append(HoleCheck(0.0, hole.d, True))
-            continue
-        strain = hole_flange_strain(hole.d, hole.flange_height)
-        pilot = pilot_diameter(hole.d, hole.flange_height, t, shared.flange.bend_radius_mm, alloy.k_factor)
-        ok = strain <= alloy.stretch_limit
-        if not ok:
-            warnings.append(Finding("hole-flange-stretch", f"hole at x = {hole.x:.0f} mm: flange stretch {strain:.3f} "
-                                    f"above the limit {alloy.stretch_limit:.3f}", key="lightening_holes"))
-        holes.append(HoleCheck(strain, pilot, ok))
-    die = materials.die_material(shared.die.material)
+    holes, hole_findings = _holes(spec, piece, alloy)
+    warnings += hole_findings
+    judgement, judged = _judge_flange(spec, runs, flutes, notches, holes, shrink_limit)
+    warnings += judged
     layers = die_layers(shared.die.stock_thickness_mm, shared.flange.height_mm)
-    minx, miny, maxx, maxy = _bounds(piece)
-    flanged_holes = [h for h in piece.holes if h.flanged]
-    legs = [shared.flange.height_mm] * len(runs) + [h.flange_height for h in flanged_holes]
-    leg_names = ["perimeter flange"] * len(runs) + [f"hole flange at x = {h.x:.0f} mm" for h in flanged_holes]
-    press = press_model.press_check(
-        shared.press.force_n, *shared.press.box_mm, maxx - minx, maxy - miny, piece.area_mm2,
-        layers * shared.die.stock_thickness_mm,
-        legs, t, alloy.yield_mpa, shared.press.rubber.thickness_mm, shared.press.rubber.durometer,
-        die.compressive_strength_mpa, die.life_parts if die.life_parts is not None else 10**9,
-        wall_clearance_mm=shared.press.wall_clearance_mm)
-    warnings.extend(press.warnings)
-    if press.unformable_flanges:
-        names = sorted({leg_names[i] for i in press.unformable_flanges})
-        warnings.append(Finding(
-            "press-folds-part-way", f"the press gives {press.pressure_mpa:.2f} MPa but {', '.join(names)} need(s) up "
-            f"to {press.needed_mpa:.2f} MPa to fold (plastic-hinge estimate): form what the press can, then finish "
-            "these by hand over the die", key="press.force"))
+    height = layers * shared.die.stock_thickness_mm
+    press = _press(spec, piece, springback, flutes, holes, height)
+    warnings += _press_findings(press, springback)
     if layers > 1:
         warnings.append(Finding(
             "die-laminated", f"die stock {shared.die.stock_thickness_mm:.1f} mm is thinner than the flange height "
             f"{shared.flange.height_mm:.1f} mm + {STOCK_CLEARANCE_MM:.0f} mm clearance: laminate {layers} layers "
-            f"({layers * shared.die.stock_thickness_mm:.1f} mm)", key="die.stock_thickness"))
+            f"({height:.1f} mm)", key="die.stock_thickness"))
+    blank = _blank(piece, springback, layout, notches, holes, alloy, t)
+    return PieceAnalysis(piece, alloy, minimum, springback, layout, tuple(runs), flutes, notches, notes, judgement,
+                         tuple(holes), press, blank, height, layers,
+                         tuple(w.about(piece.part_id, spec.positions) for w in warnings))
+
+
+def _blank(piece: PieceGeometry, springback: Springback, layout: FlangeLayout, notches: tuple[relief_model.Notch, ...],
+           holes: list[HoleCheck], alloy: materials.SheetAlloy, t: float) -> BlankDrawing:
     tangent_inset = springback.die_radius_mm * math.tan(math.radians(springback.die_angle_deg) / 2)
     offset = layout.developed_width_mm - tangent_inset
     cuts = [notch_polygon(piece, n.s_mm, n.opening_mm, n.depth_mm, offset) for n in notches]
@@ -221,10 +378,7 @@ def _analyse_piece(spec: RibSpec, piece: PieceGeometry, alloy: materials.SheetAl
                           tangent_inset_mm=tangent_inset, thickness_mm=t,
                           material=f"{alloy.name}, {t:.3f} mm", pilot_diameters=[h.pilot_d_mm for h in holes],
                           notch_cuts=cuts)
-    blank = replace(blank, grain_angle_deg=GRAIN_ANGLE_DEG)
-    return PieceAnalysis(piece, alloy, minimum, springback, layout, tuple(runs), tuple(leg_names), flutes, notches, notes,
-                         tuple(holes), press, blank, layers * shared.die.stock_thickness_mm, layers,
-                         tuple(w.about(piece.part_id, spec.positions) for w in warnings))
+    return replace(blank, grain_angle_deg=GRAIN_ANGLE_DEG)
 
 
 def _bounds(piece: PieceGeometry) -> tuple[float, float, float, float]:
@@ -234,7 +388,8 @@ def _bounds(piece: PieceGeometry) -> tuple[float, float, float, float]:
 
 def _relief(spec: RibSpec, piece: PieceGeometry, runs: list[FlangeRun], layout: FlangeLayout,
             springback: Springback) -> tuple[tuple, tuple, tuple[str, ...], list[Finding]]:
-    """Flutes, notches, their notes, and warnings for relief that falls short."""
+    """Flutes (placed by the local excess, lips rounded to the die radius), notches, their notes, and findings
+    for relief that does not fit."""
     shared = spec.shared
     t = shared.sheet.thickness_mm
     flutes: list[relief_model.Flute] = []
@@ -244,7 +399,8 @@ def _relief(spec: RibSpec, piece: PieceGeometry, runs: list[FlangeRun], layout: 
     for run in runs:
         for shrink in run.shrink_runs:
             if shared.relief == "flutes":
-                found = relief_model.flutes(shrink, shared.flange.height_mm, t, springback.die_radius_mm)
+                found = relief_model.flutes(shrink, shared.flange.height_mm, t, springback.die_radius_mm,
+                                            strain=run.profile, lip_radius=springback.die_radius_mm)
                 flutes.extend(_shift(f, run.s_offset_mm) for f in found.flutes)
                 notes.append(found.note)
                 if not found.fits:
@@ -259,3 +415,8 @@ def _relief(spec: RibSpec, piece: PieceGeometry, runs: list[FlangeRun], layout: 
 
 def _shift(item, offset: float):
     return replace(item, s_mm=item.s_mm + offset)
+
+
+__all__ = ["GRAIN_ANGLE_DEG", "MODELS", "STOCK_CLEARANCE_MM", "FlangeJudgement", "FlangeRun", "HoleCheck",
+           "PieceAnalysis", "RibAnalysis", "analyse_rib", "bend_sheet", "check_radius", "die_inset_mm", "die_layers",
+           "springback_for"]

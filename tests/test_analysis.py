@@ -21,9 +21,8 @@ import shapely
 from shapely.geometry import LinearRing, LineString, Polygon
 
 from diegen import api, materials
-from diegen.analysis import PieceAnalysis, RibAnalysis, _analyse_piece, check_radius
+from diegen.analysis import PieceAnalysis, RibAnalysis, _analyse_piece, check_radius, springback_for
 from diegen.forming.bend import flange_layout
-from diegen.forming.springback import die_for_part
 from diegen.forming.strain import strain_along
 from diegen.geometry.types import PieceGeometry, Run
 from diegen.spec.model import RibSpec
@@ -142,15 +141,16 @@ def test_strain_on_a_circle_matches_the_contoured_flange_formula(rho_in: float, 
 def test_analysis_of_a_circular_piece_reads_w_over_rho_plus_w(spec: RibSpec, rho: float) -> None:
     shared = spec.shared
     alloy = materials.sheet_alloy(shared.sheet.alloy)
-    springback = die_for_part(shared.flange.bend_radius_mm, shared.sheet.thickness_mm, alloy.yield_mpa,
-                              alloy.youngs_modulus_mpa)
+    springback = springback_for(spec, alloy)
     layout = flange_layout(shared.flange.height_mm, shared.flange.bend_radius_mm, shared.sheet.thickness_mm,
                            alloy.k_factor)
-    result = _analyse_piece(spec, _circle_piece(rho), alloy, check_radius(spec), springback, layout)
+    result = _analyse_piece(spec, _circle_piece(rho), alloy, check_radius(spec, springback), springback, layout)
     w = layout.developed_width_mm
     assert result.max_shrink == pytest.approx(w / (rho + w), rel=1e-4)
     assert result.max_stretch == 0.0
-    assert bool(result.flutes) == (w / (rho + w) > alloy.shrink_limit)
+    assert bool(result.flutes) == (w / (rho + w) > result.flange.shrink_limit)
+    # the verdict follows the residual after relief against the limit
+    assert (result.flange.verdict == "formable") == (result.flange.residual_shrink <= result.flange.shrink_limit)
 
 
 # --------------------------------------------------------------------------- report
@@ -160,10 +160,11 @@ REPORT_KEYS = {
     "bend": {"part_radius_mm", "die_radius_mm", "die_angle_deg", "overbend_deg", "k_factor", "bend_allowance_mm",
              "min_radius_mm"},
     "flange": {"height_mm", "developed_width_mm", "max_shrink_strain", "max_stretch_strain", "shrink_limit",
-               "stretch_limit", "flutes", "notches"},
+               "stretch_limit", "flutes", "notches", "residual_shrink_strain", "verdict", "remedies"},
     "die": {"outline_length_mm", "area_mm2", "height_mm"},
     "blank": {"area_mm2", "perimeter_mm"},
-    "press": {"force_n", "box_area_mm2", "pressure_mpa", "die_contact_pressure_mpa", "needed_mpa", "verdict"},
+    "press": {"force_n", "box_area_mm2", "pressure_mpa", "die_top_pressure_mpa", "needed_mpa", "verdict",
+              "reachable_radius_mm", "flange_angle_deg"},
 }
 
 

@@ -277,10 +277,16 @@ def test_pin_where_the_web_is_too_shallow(case_files) -> None:
 # 5. a bend radius below the material minimum
 def test_bend_radius_below_the_table_minimum(case_files) -> None:
     message = refusal(case_files, "radius_below_table")
-    # Aluminum Association Table 3-1, 2024-T3 at 1/16 in: 4t = 0.252 in
-    assert f"{0.03 * IN:.3f} mm is below the minimum inside bend radius {4 * 0.063 * IN:.3f} mm" in message
+    # Aluminum Association Table 3-1, 2024-T3 at 1/16 in: 4t = 0.252 in; judged on the die radius the metal is
+    # bent to, which is tighter than the part's 0.03 in
+    assert f"below the {4 * 0.063 * IN:.3f} mm minimum" in message
+    assert f"part's {0.03 * IN:.3f} mm" in message and "the die bends the metal to" in message
     assert "2024-T3" in message and f"{0.063 * IN:.3f} mm" in message
     assert "Aluminum Association" in message and "Table 3-1" in message
+    # located at the key that causes it, with a remedy
+    path = case_files["radius_below_table"]
+    assert message.startswith(f"{path}:") and "flange.bend_radius" in message.split(" ")[0] + message
+    assert "use a part radius of at least" in message
 
 
 # 6. a die that does not fit the press box is reported, not refused

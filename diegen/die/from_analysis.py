@@ -33,7 +33,7 @@ def die_input(rib: Any, piece: Any) -> DieInput:
         cutter_radius_mm=shared.die.cutter_diameter_mm / 2,
         flutes=tuple(Flute(f.s_mm, f.width_mm, f.depth_mm) for f in piece.flutes),
         flute_length_mm=shared.flange.height_mm,
-        bores=tuple(Bore(h.x, h.y, h.d) for h in g.holes if h.flanged),
+        bores=tuple(Bore(h.x, h.y, h.d + 2.0 * shared.sheet.thickness_mm) for h in g.holes if h.flanged),
         pins=tuple(Pin(p.x, p.y, p.d - PIN_INTERFERENCE_MM, pin_depth_mm(p.d, height)) for p in g.pins),
         engraving=(g.part_id, f"{shared.sheet.alloy} {shared.sheet.thickness_mm:.2f} mm"),
     )

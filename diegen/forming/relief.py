@@ -39,6 +39,62 @@ FLUTE_DEPTH_FRACTION = 0.25
 FLUTE_LAND_MM = 0.5
 #: Included angle of the widest V-notch (model of our own, no source).
 NOTCH_MAX_ANGLE_DEG = 30.0
+#: Flange slenderness h/t at which the catalogue's shrink limit is taken to apply: a 1/2 in flange on 0.025 in
+#: sheet, the usual light rib (model of our own; the catalogue limits are from memory, unverified).
+WRINKLE_REFERENCE_SLENDERNESS = 20.0
+#: The wrinkle limit moves with (t/h)² from that reference, within these bounds of the catalogue value.
+WRINKLE_SCALE_BOUNDS = (0.25, 2.0)
+#: Residual shrink up to this many times the limit is left for hand shrinking (shrinker or fluting pliers) after
+#: the press (common practice, no source: a shrinker takes up a few per cent of flange edge).
+HAND_FINISH_FACTOR = 2.0
+
+FlangeVerdict = Literal["formable", "hand-finish", "not-formable"]
+
+
+def wrinkle_limit(catalogue_limit: float, flange_height_mm: float, thickness_mm: float) -> float:
+    """Largest edge shrink (positive fraction) a flange of height ``flange_height_mm`` in ``thickness_mm`` sheet
+    takes without wrinkling, pressed against the die by the rubber.
+
+    Model of our own: the free edge of a compressed flange buckles like a long plate with one free edge, whose
+    critical strain in the plastic range goes with ``(t/h)²`` (the flange buckling coefficient 0.425 with the
+    secant modulus: E. Z. Stowell, NACA TN 1556, 1948; Timoshenko & Gere, *Theory of Elastic Stability*, 1961,
+    §9.2).  The rubber's support raises the level, not the scaling, so the catalogue limit (from memory,
+    unverified) is taken to hold at ``h/t = 20`` and scaled by ``(20·t/h)²`` within
+    :data:`WRINKLE_SCALE_BOUNDS`.  The contour radius enters through the strain itself.
+    """
+    _check_limit(catalogue_limit)
+    if not (flange_height_mm > 0.0 and thickness_mm > 0.0):
+        raise FormingError("flange height and thickness must be > 0 mm")
+    scale = (WRINKLE_REFERENCE_SLENDERNESS * thickness_mm / flange_height_mm) ** 2
+    lo, hi = WRINKLE_SCALE_BOUNDS
+    return catalogue_limit * min(max(scale, lo), hi)
+
+
+def residual_shrink(profile: StrainProfile, gathers: list[tuple[float, float, float]]) -> FloatArray:
+    """Edge shrink (positive, per sample of ``profile``) left after relief, window by window.
+
+    ``gathers``: ``(centre s, chord, length taken up)`` of each flute or notch, in the profile's arc length (mm).
+    Over the window of one flange width centred on a sample (the window the strain itself is averaged over), the
+    relief takes up its length in proportion to how much of its chord lies in the window; the residual is the
+    sample's shrink less that length over the window.  With no relief it is the shrink itself.
+    """
+    shrink = np.maximum(-np.asarray(profile.strain, float), 0.0)
+    shrink = np.where(np.isfinite(shrink), shrink, 0.0)
+    if not gathers:
+        return shrink
+    half = profile.window_mm / 2.0
+    lo, hi = profile.s_mm - half, profile.s_mm + half
+    if not profile.closed:
+        lo, hi = np.maximum(lo, 0.0), np.minimum(hi, profile.length_mm)
+    taken = np.zeros_like(shrink)
+    total = profile.length_mm
+    for centre, chord, gathered in gathers:
+        shifts = (-total, 0.0, total) if profile.closed else (0.0,)
+        for shift in shifts:
+            a, b = centre + shift - chord / 2.0, centre + shift + chord / 2.0
+            overlap = np.clip(np.minimum(hi, b) - np.maximum(lo, a), 0.0, None)
+            taken += gathered * overlap / chord
+    return np.maximum(shrink - taken / np.maximum(hi - lo, 1e-12), 0.0)
 
 
 @dataclass(frozen=True)
@@ -292,6 +348,7 @@ class Flute:
     width_mm: float  # chord at the flange edge
     depth_mm: float  # depth at the flange edge, tapering to 0 at the bend line
     gather_mm: float
+    lip_radius_mm: float = 0.0  # the radius to round the flute's lips to (0: not set)
 
 
 @dataclass(frozen=True)
@@ -316,13 +373,17 @@ def flutes(
     width: float | None = None,
     depth: float | None = None,
     profile: FluteProfile = "arc",
+    strain: StrainProfile | None = None,
+    lip_radius: float = 0.0,
 ) -> FluteSet:
-    """Flutes, evenly spaced over ``run``, that gather its excess (mm).
+    """Flutes over ``run`` that gather its excess (mm), placed where the excess is.
 
-    count = ceil(excess / gather per flute); sizes from :func:`flute_size`
-    unless given; the flutes share the run evenly, less a flute width kept
-    clear at each end where there is room.  Model of our own (common
-    practice, no source).
+    count = ceil(excess / gather per flute); sizes from :func:`flute_size` unless given.  With the run's
+    ``strain`` profile, flute k sits where the run's cumulative excess reaches (k + ½)/count of the whole, so
+    flutes crowd where the shrink is worst, kept at least a flute width and a land apart; without it they share
+    the run evenly.  A flute width is kept clear at each end where there is room.  ``lip_radius`` (mm) is the
+    radius the flutes' lips are rounded to (at least the alloy's minimum bend radius: a sharp lip cracks the
+    sheet).  Model of our own (common practice, no source).
     """
     dw, dd = flute_size(flange_height, thickness, bend_radius)
     b = dw if width is None else float(width)
@@ -348,8 +409,10 @@ def flutes(
     # outline, where the die's wall turns and the blank has its relief hole (common practice, no source)
     clear = min(b, max(0.0, (run.length_mm - count * (b + FLUTE_LAND_MM)) / 2.0))
     span = run.length_mm - 2.0 * clear
-    items = tuple(Flute(run.position((clear + (i + 0.5) / count * span) / run.length_mm), b, d, gather)
-                  for i in range(count))
+    offsets = [clear + (i + 0.5) / count * span for i in range(count)]
+    if strain is not None and not run.closed:
+        offsets = _by_excess(run, strain, count, b + FLUTE_LAND_MM, clear + b / 2.0) or offsets
+    items = tuple(Flute(run.position(o / run.length_mm), b, d, gather, lip_radius) for o in offsets)
     note = (
         f"{count} flute(s) {b:.1f} mm wide x {d:.1f} mm deep gather {count * gather:.1f} mm "
         f"of {excess:.1f} mm excess over {run.length_mm:.0f} mm of outline"
@@ -358,6 +421,32 @@ def flutes(
         note += (f"; {wanted:.1f} mm flutes do not fit side by side, so they are narrowed to {b:.1f} mm and gather "
                  "less than the excess: lower the flange or add notches")
     return FluteSet(run, profile, items, excess, count * gather, fits, note)
+
+
+def _by_excess(run: ShrinkRun, strain: StrainProfile, count: int, pitch: float, margin: float) -> list[float]:
+    """Offsets from the run's start (mm) at the quantiles of the run's excess, at least ``pitch`` apart and
+    ``margin`` from its ends; [] when the run has no sampled excess."""
+    w = strain.width_mm
+    kappa = strain.curvature_per_mm
+    g = np.maximum(w * kappa - run.limit * (1.0 + w * kappa), 0.0)
+    s = np.asarray(strain.s_mm, float)
+    inside = (s >= run.s_start_mm) & (s <= run.s_start_mm + run.length_mm)
+    if inside.sum() < 2:
+        return []
+    x, y = s[inside] - run.s_start_mm, g[inside]
+    cumulative = np.concatenate(([0.0], np.cumsum(0.5 * (y[1:] + y[:-1]) * np.diff(x))))
+    if cumulative[-1] <= 0.0:
+        return []
+    targets = (np.arange(count) + 0.5) / count * cumulative[-1]
+    offsets = np.interp(targets, cumulative, x)
+    lo, hi = min(margin, run.length_mm / 2.0), max(run.length_mm - margin, run.length_mm / 2.0)
+    offsets = np.clip(offsets, lo, hi)
+    for i in range(1, count):  # push apart forwards, then backwards from the far end
+        offsets[i] = max(offsets[i], offsets[i - 1] + pitch)
+    offsets[-1] = min(offsets[-1], hi)
+    for i in range(count - 2, -1, -1):
+        offsets[i] = min(offsets[i], offsets[i + 1] - pitch)
+    return [float(o) for o in offsets]
 
 
 # --- V-notches -------------------------------------------------------------------

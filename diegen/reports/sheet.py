@@ -83,7 +83,9 @@ def shop_sheet(rib: RibAnalysis, piece: PieceAnalysis, die_notes: Sequence[str] 
         lines.append(f"4. **Flutes ({len(piece.flutes)})**: grooves {f0.width_mm:.1f} mm wide, tapering from nothing "
                      f"at the top edge to {f0.depth_mm:.1f} mm deep at {_both(shared.flange.height_mm)} down, there "
                      f"an arc of radius {radius:.1f} mm; at the positions in the STEP file (ball-nose bit from the "
-                     "side, or a round file no larger than that radius).")
+                     "side, or a round file no larger than that radius). Round each flute's lips (where the groove "
+                     f"meets the wall) to at least {_both(f0.lip_radius_mm)} with a file: a sharp lip cracks the "
+                     "sheet.")
     bores = [h for h in g.holes if h.flanged]
     if bores:
         lines.append(f"5. Through bores for {len(bores)} flanged lightening hole(s), edges rounded to the die "
@@ -115,16 +117,30 @@ def shop_sheet(rib: RibAnalysis, piece: PieceAnalysis, die_notes: Sequence[str] 
         f"4. Centre the die in the box (≥ {_both(shared.press.wall_clearance_mm)} from every wall), close the press "
         f"to its rating ({shared.press.force_n / 1000:.0f} kN), hold, release.",
         f"5. Press check: **{press.verdict.upper()}** — {press.pressure_mpa:.2f} MPa "
-        f"({mpa_to_psi(press.pressure_mpa):.0f} psi) in the box; the flanges need up to {press.needed_mpa:.2f} MPa "
-        f"({mpa_to_psi(press.needed_mpa):.0f} psi) by the plastic-hinge estimate. Expect "
-        f"{die_life_text(shared.die.material)} from a {shared.die.material} die; {press.durometer_advice}.",
+        f"({mpa_to_psi(press.pressure_mpa):.0f} psi) in the box; setting the flanges on the "
+        f"{_both(sb.die_radius_mm)} die radius needs {press.needed_mpa:.2f} MPa ({mpa_to_psi(press.needed_mpa):.0f} "
+        f"psi), so expect the perimeter flange at about {press.flange_angle_deg:.0f}° (plastic-hinge model, see the "
+        f"report). Expect {die_life_text(shared.die.material)} from a {shared.die.material} die; "
+        f"{press.durometer_advice}.",
     ]
+    step = 6
     if press.verdict != "full":
-        names = sorted({piece.flange_names[i] for i in press.unformable_flanges})
-        lines.append(f"6. Finish by hand over the die with a soft mallet and a hardwood fid: {', '.join(names)}.")
+        names = ", ".join(f"{r.leg.name} (about {r.angle_deg:.0f}°)" for r in press.short_legs)
+        lines.append(f"{step}. Finish by hand over the die, with the blank still pinned: a hand seamer, or a "
+                     f"hardwood block and a soft mallet, working along the flange a little at a time: {names}.")
+        step += 1
+    flange = piece.flange
+    check = (f"{step}. Check the flange angle (90°) and radius. Edge shrink left after relief "
+             f"{flange.residual_shrink:.3f} at worst against a {flange.shrink_limit:.3f} wrinkle limit: "
+             f"**{flange.verdict}**")
+    lines.append(check + (". " + "; or ".join(flange.remedies) + "." if flange.remedies else "."))
+    step += 1
+    if piece.alloy.name.endswith(("-O", "-W")):
+        lines.append(f"{step}. **Heat treatment.** {piece.alloy.name} is not a flight temper: the formed part must be "
+                     "solution heat-treated and aged to the temper the drawings call for, to the alloy's heat-treatment "
+                     "specification, before it is a flight part. Trial-form and check it after heat treatment: it "
+                     "distorts and its springback differs.")
     lines += [
-        f"7. Check the flange angle (90°) and radius; shrink {piece.max_shrink:.3f} at worst "
-        f"(limit {piece.alloy.shrink_limit:.3f}); work out any wrinkles into the flutes.",
         "",
         "## 6. Warnings",
         "",

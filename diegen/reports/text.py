@@ -31,9 +31,12 @@ def piece_text(rib: RibAnalysis, p: PieceAnalysis) -> str:
         f"                BA {p.layout.bend_allowance_mm:.3f} mm (k = {p.layout.k_factor:.3f}); aviation formula "
         f"{p.layout.bend_allowance_aviation_mm:.3f} mm; setback {p.layout.setback_mm:.3f} mm; developed flange "
         f"{p.layout.developed_width_mm:.2f} mm",
-        f"  flange strain max shrink {p.max_shrink:.3f} (limit {p.alloy.shrink_limit:.3f}), max stretch "
-        f"{p.max_stretch:.3f} (limit {p.alloy.stretch_limit:.3f})",
+        f"                springback: {p.springback.model}",
+        f"  flange strain max shrink {p.max_shrink:.3f}, after relief {p.flange.residual_shrink:.3f} (wrinkle limit "
+        f"{p.flange.shrink_limit:.3f}), max stretch {p.max_stretch:.3f} (limit {p.alloy.stretch_limit:.3f}) → "
+        f"{p.flange.verdict.upper()}",
     ]
+    lines += [f"                remedy: {r}" for r in p.flange.remedies]
     if p.flutes or p.notches:
         lines += [f"  relief        {note}" for note in p.relief_notes]
     else:
@@ -43,14 +46,17 @@ def piece_text(rib: RibAnalysis, p: PieceAnalysis) -> str:
                      f"{j.x_end_mm:.1f} mm, ramps {j.ramp_mm:.1f} mm")
     for h in d["holes"]:
         kind = f"flanged {h['flange_height_mm']:.1f} mm, pilot Ø{h['pilot_d_mm']:.1f}" if h["flanged"] else "plain"
+        if h["flanged"]:
+            kind += f", die bore Ø{h['bore_d_mm']:.1f}"
         lines.append(f"  hole          Ø{h['d_mm']:.0f} mm at ({h['x_mm']:.1f}, {h['y_mm']:.1f}) {kind}, "
                      f"stretch {h['stretch_strain']:.3f}")
     lines.append("  pins          " + ", ".join(f"Ø{q.d:.2f} at ({q.x:.1f}, {q.y:.1f})" for q in g.pins))
     pr = p.press
     lines += [
         f"  press         {pr.pressure_mpa:.2f} MPa ({mpa_to_psi(pr.pressure_mpa):.0f} psi) over the box; "
-        f"{pr.die_contact_pressure_mpa:.2f} MPa on the die early in the stroke; flanges need up to "
-        f"{pr.needed_mpa:.2f} MPa ({mpa_to_psi(pr.needed_mpa):.0f} psi) → {pr.verdict.upper()}",
+        f"{pr.die_top_pressure_mpa:.2f} MPa on the die top; setting the flanges on the die radius needs "
+        f"{pr.needed_mpa:.2f} MPa ({mpa_to_psi(pr.needed_mpa):.0f} psi); the perimeter flange reaches about "
+        f"{pr.flange_angle_deg:.0f}°, pressed to R {pr.reachable_radius_mm:.2f} mm → {pr.verdict.upper()}",
         f"  die life      {die_life_text(rib.spec.shared.die.material)} from {rib.spec.shared.die.material} "
         f"(catalogue value); {pr.durometer_advice}",
         f"  blank         {d['blank']['area_mm2']:.0f} mm², perimeter {d['blank']['perimeter_mm']:.0f} mm",

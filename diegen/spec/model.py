@@ -44,6 +44,18 @@ class Flange:
     bend_radius_mm: float  # the finished part's inside bend radius
     radius_table: str = "aa"  # which minimum-bend-radius table to check against
     min_tail_depth_mm: float | None = None  # None: 2 x height + 10 mm
+    trial: FlangeTrial | None = None  # a trial part's measured springback
+
+
+@dataclass(frozen=True)
+class FlangeTrial:
+    """A trial part: the die angle it was formed on and the flange angle measured after release (degrees);
+    optionally the die's inside radius and the part's measured inside radius (mm)."""
+
+    die_angle_deg: float
+    part_angle_deg: float
+    die_radius_mm: float | None = None
+    part_radius_mm: float | None = None
 
 
 @dataclass(frozen=True)

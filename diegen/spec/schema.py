@@ -13,6 +13,7 @@ from pathlib import Path
 from typing import Any
 
 from diegen.spec.model import (
+    FlangeTrial,
     PIECE_NAMES,
     RELIEF_POLICIES,
     RIB_ORIENTATIONS,
@@ -149,7 +150,7 @@ def read_sheet(r: Reader, node: YNode | None, path: str, base: Sheet | None = No
 def read_flange(r: Reader, node: YNode | None, path: str, base: Flange | None = None) -> Flange | None:
     from diegen import materials
 
-    fields = r.mapping(node, path, ("height", "bend_radius", "radius_table", "min_tail_depth"),
+    fields = r.mapping(node, path, ("height", "bend_radius", "radius_table", "min_tail_depth", "trial"),
                        () if base else ("height", "bend_radius"))
     if fields is None:
         return None
@@ -157,8 +158,28 @@ def read_flange(r: Reader, node: YNode | None, path: str, base: Flange | None = 
     radius = r.length(fields.get("bend_radius"), join(path, "bend_radius"), high=100.0)
     table = r.choice(fields.get("radius_table"), join(path, "radius_table"), materials.bend_radius_tables())
     tail = r.length(fields.get("min_tail_depth"), join(path, "min_tail_depth"))
+    trial = read_trial(r, fields.get("trial"), join(path, "trial")) if "trial" in fields else None
     return Flange(_or(height, base and base.height_mm), _or(radius, base and base.bend_radius_mm),
-                  _or(table, base.radius_table if base else "aa"), _or(tail, base and base.min_tail_depth_mm))
+                  _or(table, base.radius_table if base else "aa"), _or(tail, base and base.min_tail_depth_mm),
+                  trial if "trial" in fields else (base.trial if base else None))
+
+
+def read_trial(r: Reader, node: YNode | None, path: str) -> FlangeTrial | None:
+    """``trial: {die_angle, part_angle, die_radius?, part_radius?}``: degrees, and lengths in the spec's units."""
+    fields = r.mapping(node, path, ("die_angle", "part_angle", "die_radius", "part_radius"),
+                       ("die_angle", "part_angle"))
+    if fields is None:
+        return None
+    die_angle = r.number(fields.get("die_angle"), join(path, "die_angle"), 45.0, 135.0, False, False)
+    part_angle = r.number(fields.get("part_angle"), join(path, "part_angle"), 45.0, 135.0, False, False)
+    die_r = r.length(fields.get("die_radius"), join(path, "die_radius"), high=100.0) if "die_radius" in fields else None
+    part_r = (r.length(fields.get("part_radius"), join(path, "part_radius"), high=100.0)
+              if "part_radius" in fields else None)
+    if ("die_radius" in fields) != ("part_radius" in fields):
+        r.problem(node, path, "give both die_radius and part_radius of the trial, or neither")
+    if die_angle is None or part_angle is None:
+        return None
+    return FlangeTrial(die_angle, part_angle, die_r, part_r)
 
 
 def read_spar(r: Reader, node: YNode, path: str, wing: bool) -> Spar | WingSpar | None:
