@@ -9,6 +9,7 @@ counted as the separate pieces shapely finds between a plain and a fluted layer.
 
 from __future__ import annotations
 
+import itertools
 import math
 from dataclasses import replace
 
@@ -69,7 +70,7 @@ def test_layer_count_and_thicknesses(dies, stock_mm: float) -> None:
     count = math.ceil(die.height_mm / stock_mm)
     assert [layer.index for layer in layers] == list(range(count))
     assert layers[0].z_top_mm == 0.0 and layers[-1].z_bottom_mm == pytest.approx(-die.height_mm, abs=1e-12)
-    for upper, lower in zip(layers, layers[1:]):
+    for upper, lower in itertools.pairwise(layers):
         assert lower.z_top_mm == pytest.approx(upper.z_bottom_mm, abs=1e-12)
         assert upper.thickness_mm == pytest.approx(stock_mm, abs=1e-12)
     assert layers[-1].thickness_mm == pytest.approx(die.height_mm - (count - 1) * stock_mm, abs=1e-9)

@@ -11,6 +11,7 @@ that many dowel holes, each a cylinder π r² long twice the dowel depth.
 
 from __future__ import annotations
 
+import itertools
 import math
 from pathlib import Path
 
@@ -96,7 +97,7 @@ def test_tiles_fit_the_bed_and_keep_the_volume(center_die, die_mesh, bed, tmp_pa
     # tightest box (OCCT's BRepBndLib enlarges it by tolerances and, on a meshed shape, by the mesh's deflection)
     assert x0 - BOX_SLACK <= tiles[0].x_min_mm <= x0 + STL_TOL
     assert x1 - STL_TOL <= tiles[-1].x_max_mm <= x1 + BOX_SLACK
-    for a, b in zip(tiles, tiles[1:]):
+    for a, b in itertools.pairwise(tiles):
         assert a.x_max_mm == b.x_min_mm
     assert np.ptp([t.x_max_mm - t.x_min_mm for t in tiles]) < 1e-6
 

@@ -9,6 +9,7 @@ centre lies r from both: c·cos α − r·sin α = r).  Distances are shapely's.
 
 from __future__ import annotations
 
+import itertools
 import math
 from dataclasses import replace
 
@@ -233,7 +234,7 @@ def test_small_square_die() -> None:
     """A 40 mm square die (one line run per side): marks fit, inside its 1 mm-inset bottom less the wall."""
     s = 40.0
     corners = ((0.0, 0.0), (s, 0.0), (s, s), (0.0, s), (0.0, 0.0))
-    runs = tuple(OutlineRun("line", (a, b)) for a, b in zip(corners, corners[1:]))
+    runs = tuple(OutlineRun("line", (a, b)) for a, b in itertools.pairwise(corners))
     die = DieInput("SQ", runs, 12.0, 1.0, 3.0, 1.5, engraving=("SQ",))
     marks = unary_union(engraving_marks(die, outline_model(die), DEFAULT_SETTINGS))
     inset = 12.0 * math.tan(math.radians(3.0))

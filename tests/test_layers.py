@@ -21,6 +21,7 @@ planted violation, so none of these tests can pass vacuously.
 from __future__ import annotations
 
 import ast
+import itertools
 import json
 import subprocess
 import sys
@@ -30,7 +31,6 @@ from dataclasses import dataclass
 from pathlib import Path
 
 import pytest
-
 from testing import DEMO_RIB, ROOT
 
 PACKAGE_DIR = ROOT / "diegen"
@@ -352,7 +352,7 @@ def _describe_cycles(cycles: list[list[str]], edges: list[Edge]) -> str:
     lines = []
     for cycle in cycles:
         lines.append("import cycle " + " → ".join(cycle))
-        for a, b in zip(cycle, cycle[1:]):
+        for a, b in itertools.pairwise(cycle):
             lines += ["    " + e.where() for e in edges if e.importer == a and e.target == b]
     return "\n".join(lines)
 
@@ -422,7 +422,7 @@ CHECK_PROBE = textwrap.dedent("""
 
 def test_check_loads_neither_kernel_nor_matplotlib(tmp_path: Path) -> None:
     run = subprocess.run([sys.executable, "-c", CHECK_PROBE, str(DEMO_RIB)], capture_output=True, text=True,
-                         cwd=tmp_path, timeout=120)
+                         cwd=tmp_path, timeout=120, check=False)
     assert run.returncode == 0, run.stderr
     result = json.loads(run.stdout.strip().splitlines()[-1])
     assert result["exit"] == 0 and result["report_chars"] > 1000, result
@@ -433,6 +433,6 @@ def test_probe_sees_a_heavy_import(tmp_path: Path) -> None:
     """The probe's module list is real: importing the plot writer's stack shows up in it."""
     probe = CHECK_PROBE.replace("from diegen.cli import main", "from diegen.cli import main\nimport matplotlib.figure")
     run = subprocess.run([sys.executable, "-c", probe, str(DEMO_RIB)], capture_output=True, text=True,
-                         cwd=tmp_path, timeout=120)
+                         cwd=tmp_path, timeout=120, check=False)
     assert run.returncode == 0, run.stderr
     assert "matplotlib" in json.loads(run.stdout.strip().splitlines()[-1])["heavy"]

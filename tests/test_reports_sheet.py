@@ -15,12 +15,12 @@ import re
 import pytest
 import yaml
 from shapely.geometry import Polygon
+from testing import DEMO_RIB
 
 from diegen import materials
 from diegen.reports.document import SAFETY
 from diegen.reports.sheet import shop_sheet
 from diegen.spec import parse_spec
-from testing import DEMO_RIB
 
 MM_PER_IN = 25.4  # NIST SP 811 App. B, exact
 N_PER_LBF = 4.4482216152605  # NIST SP 811 App. B, exact

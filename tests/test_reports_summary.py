@@ -15,9 +15,9 @@ from pathlib import Path
 import pytest
 import yaml
 from shapely.geometry import Polygon
+from testing import DEMO_WING
 
 from diegen.reports.summary import COLUMNS, summary_rows, write_wing_summary
-from testing import DEMO_WING
 
 MM_PER_IN = 25.4  # NIST SP 811 App. B, exact
 RAW = yaml.safe_load(DEMO_WING.read_text(encoding="utf-8"))

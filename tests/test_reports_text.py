@@ -18,13 +18,13 @@ import pytest
 import yaml
 from shapely.geometry import LinearRing, Point, Polygon
 from shapely.ops import unary_union
+from testing import DEMO_RIB, vertical_chord
 
 from diegen import __version__, materials
 from diegen.analysis import MODELS
 from diegen.reports.document import SAFETY
 from diegen.reports.text import die_life_text, footer_text, piece_text, rib_text
 from diegen.spec import parse_spec
-from testing import DEMO_RIB, vertical_chord
 
 MM_PER_IN = 25.4  # NIST SP 811 App. B, exact
 N_PER_LBF = 4.4482216152605  # NIST SP 811 App. B, exact

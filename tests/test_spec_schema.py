@@ -10,12 +10,12 @@ from __future__ import annotations
 from pathlib import Path
 
 import pytest
+from testing import DEMO_RIB, DEMO_WING, SPECS
 
 from diegen.spec.model import RibSpec, WingSpec
 from diegen.spec.reader import Reader
 from diegen.spec.schema import MAX_RIBS, read_rib, read_wing
 from diegen.spec.yamltree import load_text
-from testing import DEMO_RIB, DEMO_WING, SPECS
 
 MM_PER_IN = 25.4  # NIST SP 811 App. B, exact
 RIB = DEMO_RIB.read_text(encoding="utf-8")
@@ -139,7 +139,7 @@ def test_print_bed_is_in_millimetres_whatever_the_units() -> None:
     spec, r = read(edit(RIB, "cutter_diameter: 0.25}", "cutter_diameter: 0.25, print_bed: [220, 220]}"))
     assert not r.problems and spec.shared.die.print_bed_mm == (220.0, 220.0)
     text = edit(RIB, "cutter_diameter: 0.25}", "cutter_diameter: 0.25, print_bed: [220]}")
-    (key, (line, column, message)), = problems(text).items()
+    (key, (line, column, _)), = problems(text).items()
     assert key == "die.print_bed" and (line, column) == at(text, "[220]")
 
 
