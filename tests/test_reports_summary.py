@@ -1,0 +1,167 @@
+"""The wing summary (``diegen.reports.summary``) of the demo wing: its rows, ``summary.csv`` and ``summary.pdf``.
+
+Stations and chords are worked out here from the spec file itself (read with
+plain PyYAML): ``stations: {count: 13}`` spaces the ribs evenly from root to tip
+and the chord tapers linearly between them, as the spec's comments say; inches by
+NIST SP 811 (2008), App. B.  Extents are shapely's bounds; the CSV is read back
+with the standard library's ``csv`` and the PDF with pypdf.
+"""
+
+from __future__ import annotations
+
+import csv
+from pathlib import Path
+
+import pytest
+import yaml
+from shapely.geometry import Polygon
+from testing import DEMO_WING
+
+from diegen.reports.summary import COLUMNS, summary_rows, write_wing_summary
+
+MM_PER_IN = 25.4  # NIST SP 811 App. B, exact
+RAW = yaml.safe_load(DEMO_WING.read_text(encoding="utf-8"))
+PLAN = RAW["planform"]
+RIB_COUNT = PLAN["stations"]["count"]
+PIECES = RAW["pieces"]
+
+
+@pytest.fixture(scope="module")
+def wing_spec():
+    from diegen import api
+
+    return api.load(DEMO_WING)
+
+
+@pytest.fixture(scope="module")
+def wing(wing_spec):
+    from diegen import api
+
+    return api.analyse(wing_spec)
+
+
+@pytest.fixture(scope="module")
+def rows(wing_spec, wing):
+    return summary_rows(wing_spec, wing.ribs)
+
+
+def station_in(number: int) -> float:
+    return (number - 1) * PLAN["span"] / (RIB_COUNT - 1)
+
+
+def chord_in(number: int) -> float:
+    y = station_in(number)
+    return PLAN["root_chord"] + (PLAN["tip_chord"] - PLAN["root_chord"]) * y / PLAN["span"]
+
+
+def test_one_row_per_piece_root_first(rows) -> None:
+    expected = [(n, piece) for n in range(1, RIB_COUNT + 1) for piece in PIECES]
+    assert [(r["rib"], r["piece"]) for r in rows] == expected
+    assert [r["part_id"] for r in rows] == [f"{RAW['id']}-R{n:02d}-{piece}" for n, piece in expected]
+    assert all(tuple(r) == COLUMNS for r in rows)
+
+
+def test_stations_and_chords_from_the_planform(rows) -> None:
+    for r in rows:
+        assert r["station_mm"] == pytest.approx(station_in(r["rib"]) * MM_PER_IN, abs=0.05)
+        assert r["chord_mm"] == pytest.approx(chord_in(r["rib"]) * MM_PER_IN, abs=0.05)
+
+
+def test_values_equal_the_analysis(rows, wing) -> None:
+    pieces = [p for rib in wing.ribs for p in rib.pieces]
+    assert len(pieces) == len(rows)
+    for r, p in zip(rows, pieces):
+        assert r["part_id"] == p.piece.part_id
+        x0, y0, x1, y1 = Polygon(p.piece.outline).bounds
+        bx0, by0, bx1, by1 = Polygon(p.blank.outer).bounds
+        assert r["die_length_mm"] == pytest.approx(x1 - x0, abs=0.05)
+        assert r["die_depth_mm"] == pytest.approx(y1 - y0, abs=0.05)
+        assert r["blank_length_mm"] == pytest.approx(bx1 - bx0, abs=0.05)
+        assert r["blank_width_mm"] == pytest.approx(by1 - by0, abs=0.05)
+        assert r["die_height_mm"] == pytest.approx(p.die_height_mm, abs=0.005)
+        assert r["stock_layers"] == p.die_layers
+        assert r["overbend_deg"] == pytest.approx(p.springback.overbend_deg, abs=0.005)
+        assert r["die_radius_mm"] == pytest.approx(p.springback.die_radius_mm, abs=5e-4)
+        assert r["max_shrink"] == pytest.approx(p.max_shrink, abs=5e-5)
+        assert r["max_stretch"] == pytest.approx(p.max_stretch, abs=5e-5)
+        assert (r["flutes"], r["notches"], r["press_verdict"]) == (len(p.flutes), len(p.notches), p.press.verdict)
+        assert r["warnings"] == " | ".join(p.warnings)
+
+
+def test_root_rib_override_shows(rows) -> None:
+    """Rib 1 is made of heavier sheet with a larger bend radius (the spec's override): a larger die radius."""
+    root = {r["die_radius_mm"] for r in rows if r["rib"] == 1}
+    others = {r["die_radius_mm"] for r in rows if r["rib"] != 1}
+    assert len(root) == 1 and len(others) == 1 and root.pop() > others.pop()
+
+
+def test_die_height_is_whole_layers_of_stock(rows) -> None:
+    stock_mm = RAW["die"]["stock_thickness"] * MM_PER_IN
+    for r in rows:
+        assert r["die_height_mm"] == pytest.approx(r["stock_layers"] * stock_mm, abs=0.005)
+
+
+# ---------------------------------------------------------------- the files
+@pytest.fixture(scope="module")
+def written(wing_spec, wing, tmp_path_factory) -> tuple[Path, list, list[Path]]:
+    """The summary of the root rib only (quick: matplotlib takes about a quarter of a second a page)."""
+    folder = tmp_path_factory.mktemp("summary")
+    ribs = [wing.ribs[0]]
+    return folder, ribs, write_wing_summary(wing_spec, ribs, folder)
+
+
+def test_csv_reads_back_as_the_rows(wing_spec, written) -> None:
+    folder, ribs, paths = written
+    assert paths == [folder / "summary.csv", folder / "summary.pdf"]
+    with open(folder / "summary.csv", newline="", encoding="utf-8") as handle:
+        reader = csv.DictReader(handle)
+        assert tuple(reader.fieldnames or ()) == COLUMNS
+        read = list(reader)
+    expected = summary_rows(wing_spec, ribs)
+    assert len(read) == len(expected) == len(PIECES)
+    for got, want in zip(read, expected):
+        assert got == {k: str(v) for k, v in want.items()}
+
+
+def pdf_pages(path: Path) -> list[str]:
+    pypdf = pytest.importorskip("pypdf")
+    reader = pypdf.PdfReader(path)
+    for page in reader.pages:  # US letter, landscape: 11 × 8.5 in at 72 points to the inch
+        assert (float(page.mediabox.width), float(page.mediabox.height)) == (792.0, 612.0)
+    return [page.extract_text() for page in reader.pages]
+
+
+def check_pdf(pages: list[str], spec_id: str, rows: list[dict], ribs) -> None:
+    """Planform first, then the table pages (40 rows each), then a page a piece in order."""
+    tables = -(-len(rows) // 40)
+    assert len(pages) == 1 + tables + len(rows)
+    assert f"{spec_id}: planform, rib stations" in pages[0]
+    for n in range(1, RIB_COUNT + 1):
+        assert f"R{n}\n" in pages[0] + "\n"
+    table_lines = [line for page in pages[1:1 + tables] for line in page.splitlines()]
+    header = next(line for line in table_lines if line.startswith("part_id "))
+    shown = header.split()
+    assert set(shown) <= set(COLUMNS) and "part_id" in shown
+    for row in rows:
+        assert " ".join(str(row[c]) for c in shown) in table_lines, row["part_id"]
+    for k in range(tables):
+        last = min(40 * (k + 1), len(rows))
+        assert f"{spec_id}: pieces {40 * k + 1}–{last} of {len(rows)}" in pages[1 + k]
+    pieces = [p for rib in ribs for p in rib.pieces]
+    for page, p in zip(pages[1 + tables:], pieces):
+        assert (f"{p.piece.part_id}: over-bend {p.springback.overbend_deg:.2f}°, die R "
+                f"{p.springback.die_radius_mm:.2f} mm, {len(p.flutes)} flute(s), press {p.press.verdict}") in page
+        assert "die outline" in page and "shrink limit" in page
+
+
+def test_pdf_has_planform_table_and_a_page_a_piece(wing_spec, written) -> None:
+    folder, ribs, _ = written
+    check_pdf(pdf_pages(folder / "summary.pdf"), wing_spec.id, summary_rows(wing_spec, ribs), ribs)
+
+
+@pytest.mark.slow
+def test_whole_wing_pdf(wing_spec, wing, rows, tmp_path) -> None:
+    write_wing_summary(wing_spec, wing.ribs, tmp_path)
+    pages = pdf_pages(tmp_path / "summary.pdf")
+    assert len(pages) == 1 + 1 + RIB_COUNT * len(PIECES)
+    check_pdf(pages, wing_spec.id, rows, wing.ribs)
