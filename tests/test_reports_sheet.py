@@ -267,8 +267,6 @@ MIXED_FLUTES = (DEMO_RIB.read_text(encoding="utf-8").replace("chord: 40", "chord
                 .replace("naca 2412", "naca 6409").replace("pieces: [nose, center, tail]", "pieces: [nose]"))
 
 
-@pytest.mark.xfail(strict=True, reason="diegen/reports/sheet.py shop_sheet prints only piece.flutes[0]'s width, depth "
-                                       "and arc radius for every flute of the piece, though crowded runs narrow theirs")
 def test_every_flute_size_is_on_the_sheet() -> None:
     from diegen import api
 

@@ -360,7 +360,7 @@ class FluteSet:
     flutes: tuple[Flute, ...]
     excess_mm: float
     gathered_mm: float  # sum of the flutes' gather, >= excess
-    fits: bool  # False when the flutes of the asked width would not fit side by side in the run (then narrowed)
+    fits: bool  # False when the flutes, narrowed to fit side by side in the run, gather less than the excess
     note: str
 
 
@@ -418,8 +418,10 @@ def flutes(
         f"of {excess:.1f} mm excess over {run.length_mm:.0f} mm of outline"
     )
     if not fits:
-        note += (f"; {wanted:.1f} mm flutes do not fit side by side, so they are narrowed to {b:.1f} mm and gather "
-                 "less than the excess: lower the flange or add notches")
+        note += f"; {wanted:.1f} mm flutes do not fit side by side, so they are narrowed to {b:.1f} mm"
+        fits = count * gather >= excess - 1e-9
+        if not fits:
+            note += " and gather less than the excess: lower the flange or add notches"
     return FluteSet(run, profile, items, excess, count * gather, fits, note)
 
 

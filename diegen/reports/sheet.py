@@ -78,13 +78,17 @@ def shop_sheet(rib: RibAnalysis, piece: PieceAnalysis, die_notes: Sequence[str] 
         lines.append(f"3. Joggle recesses ({len(g.joggles)}): stepped into the wall by the cap thickness with "
                      "S-shaped run-outs; they are part of the outline and cut with it.")
     if piece.flutes:
-        f0 = piece.flutes[0]
-        radius = flute_arc_radius(f0.width_mm, f0.depth_mm)
-        lines.append(f"4. **Flutes ({len(piece.flutes)})**: grooves {f0.width_mm:.1f} mm wide, tapering from nothing "
-                     f"at the top edge to {f0.depth_mm:.1f} mm deep at {_both(shared.flange.height_mm)} down, there "
-                     f"an arc of radius {radius:.1f} mm; at the positions in the STEP file (ball-nose bit from the "
-                     "side, or a round file no larger than that radius). Round each flute's lips (where the groove "
-                     f"meets the wall) to at least {_both(f0.lip_radius_mm)} with a file: a sharp lip cracks the "
+        sizes: dict[tuple[float, float], list] = {}
+        for f in piece.flutes:
+            sizes.setdefault((round(f.width_mm, 1), round(f.depth_mm, 1)), []).append(f)
+        kinds = "; ".join(f"{len(same)} × {w:.1f} mm wide, {d:.1f} mm deep (an arc of radius "
+                          f"{flute_arc_radius(same[0].width_mm, same[0].depth_mm):.1f} mm)"
+                          for (w, d), same in sizes.items())
+        lip = max(f.lip_radius_mm for f in piece.flutes)
+        lines.append(f"4. **Flutes ({len(piece.flutes)})**: grooves tapering from nothing at the top edge to full depth "
+                     f"at {_both(shared.flange.height_mm)} down: {kinds}; at the positions in the STEP file (ball-nose "
+                     "bit from the side, or a round file no larger than the arc's radius). Round each flute's lips "
+                     f"(where the groove meets the wall) to at least {_both(lip)} with a file: a sharp lip cracks the "
                      "sheet.")
     bores = [h for h in g.holes if h.flanged]
     if bores:
