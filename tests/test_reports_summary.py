@@ -85,7 +85,7 @@ def test_values_equal_the_analysis(rows, wing) -> None:
         assert r["max_shrink"] == pytest.approx(p.max_shrink, abs=5e-5)
         assert r["max_stretch"] == pytest.approx(p.max_stretch, abs=5e-5)
         assert (r["flutes"], r["notches"], r["press_verdict"]) == (len(p.flutes), len(p.notches), p.press.verdict)
-        assert r["warnings"] == " | ".join(p.warnings)
+        assert r["warnings"] == " | ".join(f"{p.piece.part_id}: {w.message}" for w in p.warnings)
 
 
 def test_root_rib_override_shows(rows) -> None:
