@@ -213,14 +213,17 @@ def test_features_listed(sheets, name: str) -> None:
 
 
 def test_flute_numbers(sheets) -> None:
-    """The nose's flutes: width, depth, and the radius of their circular segment, r = (w²/4 + h²)/2h (plane
-    geometry: chord w, height h)."""
+    """The nose's flutes: their count, and for each size its width, depth and the radius of its circular segment,
+    r = (w²/4 + h²)/2h (plane geometry: chord w, height h); their lips rounded to at least the die radius."""
     piece, text = sheets["nose"]
     assert piece.flutes
-    f = piece.flutes[0]
-    r = (f.width_mm**2 / 4 + f.depth_mm**2) / (2 * f.depth_mm)
-    assert (f"**Flutes ({len(piece.flutes)})**: grooves {f.width_mm:.1f} mm wide" in text
-            and f"to {f.depth_mm:.1f} mm deep" in text and f"an arc of radius {r:.1f} mm" in text)
+    line = next(line for line in text.splitlines() if "**Flutes (" in line)
+    assert line.startswith(f"4. **Flutes ({len(piece.flutes)})**: grooves ")
+    for f in piece.flutes:
+        r = (f.width_mm**2 / 4 + f.depth_mm**2) / (2 * f.depth_mm)
+        assert f"{f.width_mm:.1f} mm wide" in line and f"{f.depth_mm:.1f} mm deep" in line, line
+        assert f"an arc of radius {r:.1f} mm" in line, line
+    assert f"at least {both(piece.springback.die_radius_mm)} with a file" in line
     assert "Flutes (" not in sheets["center"][1]
 
 
