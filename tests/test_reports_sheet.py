@@ -4,7 +4,11 @@ The numbers are read back from the Markdown and compared with the analysis and,
 where one exists, with a value worked out here from the spec file itself (read
 with plain PyYAML, not through diegen's units): inch values straight from the
 spec, the press's box pressure from its rating and box, conversions by the
-exact definitions of NIST SP 811 (2008), Appendix B.
+exact definitions of NIST SP 811 (2008), Appendix B.  The press's numbers come
+from the formulas of its model (a model of our own: plastic hinge, fold angle)
+and the wrinkle limit from its stated scaling, written out in ``testing.py``;
+the residual shrink and the flange verdict are the analysis's, checked for
+consistency with each other.
 """
 
 from __future__ import annotations
@@ -15,7 +19,17 @@ import re
 import pytest
 import yaml
 from shapely.geometry import Polygon
-from testing import DEMO_RIB
+from testing import (
+    DEMO_RIB,
+    assert_flange_verdict_consistent,
+    fits_box,
+    fold_angle_deg,
+    pilot_diameter_mm,
+    press_legs,
+    press_verdict,
+    set_on_radius_mpa,
+    wrinkle_limit,
+)
 
 from diegen import materials
 from diegen.reports.document import SAFETY
@@ -25,6 +39,10 @@ from diegen.spec import parse_spec
 MM_PER_IN = 25.4  # NIST SP 811 App. B, exact
 N_PER_LBF = 4.4482216152605  # NIST SP 811 App. B, exact
 LBF_PER_TON = 2000.0  # short ton-force, NIST SP 811 App. B
+PSI = N_PER_LBF / MM_PER_IN**2  # MPa per lbf/in², NIST SP 811 App. B
+# 2024-T3 sheet's typical yield, 50 ksi (Aluminum Association typical values as printed in Kutz, Handbook of
+# Materials Selection, 2002, Table 5, p. 101)
+T3_YIELD_MPA = 50_000 * PSI
 RAW = yaml.safe_load(DEMO_RIB.read_text(encoding="utf-8"))
 
 HEADINGS = ("## 1. Stock to cut", "## 2. Router set-ups (3-axis)", "## 3. Drilling", "## 4. The blank",
@@ -46,7 +64,7 @@ spars:
   - {at: 0.70, web: 1.3, cap_thickness: 1.3, cap_width: 16}
 pieces: [nose, tail]
 die: {material: solid-surface, stock_thickness: 20, cutter_diameter: 6}
-press: {force: 220 kN, box: [300, 250], rubber: {durometer: 55, thickness: 60}}
+press: {force: 1200 kN, box: [300, 250], rubber: {durometer: 55, thickness: 60}}
 """
 
 
@@ -63,6 +81,12 @@ def inches(value: str | float) -> float:
         num, _, den = frac.partition("/")
         return float(whole or 0) + (float(num) / float(den) if den else float(num))
     return float(value)
+
+
+def box_fits(piece) -> bool:
+    """The die in the spec's box with the 1 in default wall clearance (specs/README.md), by shapely's bounds."""
+    box = (RAW["press"]["box"][0] * MM_PER_IN, RAW["press"]["box"][1] * MM_PER_IN)
+    return fits_box(piece.piece.outline, box, 1.0 * MM_PER_IN)
 
 
 def number_after(text: str, pattern: str) -> float:
@@ -166,7 +190,7 @@ def test_router_numbers(sheets, name: str) -> None:
 
 @pytest.mark.parametrize("name", PIECES)
 def test_features_listed(sheets, name: str) -> None:
-    """Joggles, flutes, bores for the flanged holes only, every pin, every pilot hole."""
+    """Joggles, flutes, bores for the flanged holes only, every pin, every pilot hole (worked out here)."""
     piece, text = sheets[name]
     g = piece.piece
     assert (f"Joggle recesses ({len(g.joggles)})" in text) == bool(g.joggles)
@@ -179,55 +203,110 @@ def test_features_listed(sheets, name: str) -> None:
     assert pins_line.count("(") - 1 == len(g.pins)  # "(or ream)" and one pair per pin
     for q in g.pins:
         assert f"({q.x:.1f}, {q.y:.1f})" in pins_line and f"Ø{q.d:.2f} mm dowels" in pins_line
-    for h, check in zip(g.holes, piece.holes):
-        if h.flanged:
-            assert f"Ø{check.pilot_d_mm:.1f} mm" in text
+    # the pilots from the flange's developed length (FAA-H-8083-31 ch. 4 setback, K-factor bend allowance with the
+    # catalogue's k, from memory, unverified) on the spec's own radius and sheet
+    pilots = [pilot_diameter_mm(h.d, h.flange_height, inches(RAW["sheet"]["thickness"]) * MM_PER_IN,
+                                inches(RAW["flange"]["bend_radius"]) * MM_PER_IN, piece.alloy.k_factor)
+              for h in g.holes if h.flanged]
+    line = next(line for line in text.splitlines() if line.startswith("* Pilot holes for flanged"))
+    assert line.endswith(": " + (", ".join(f"Ø{d:.1f} mm" for d in pilots) or "none") + ".")
 
 
 def test_flute_numbers(sheets) -> None:
-    """The nose's flutes: width, depth, and the radius of their circular segment, r = (w²/4 + h²)/2h (plane
-    geometry: chord w, height h)."""
+    """The nose's flutes: their count, and for each size its width, depth and the radius of its circular segment,
+    r = (w²/4 + h²)/2h (plane geometry: chord w, height h); their lips rounded to at least the die radius."""
     piece, text = sheets["nose"]
     assert piece.flutes
-    f = piece.flutes[0]
-    r = (f.width_mm**2 / 4 + f.depth_mm**2) / (2 * f.depth_mm)
-    assert (f"**Flutes ({len(piece.flutes)})**: grooves {f.width_mm:.1f} mm wide" in text
-            and f"to {f.depth_mm:.1f} mm deep" in text and f"an arc of radius {r:.1f} mm" in text)
+    line = next(line for line in text.splitlines() if "**Flutes (" in line)
+    assert line.startswith(f"4. **Flutes ({len(piece.flutes)})**: grooves ")
+    for f in piece.flutes:
+        r = (f.width_mm**2 / 4 + f.depth_mm**2) / (2 * f.depth_mm)
+        assert f"{f.width_mm:.1f} mm wide" in line and f"{f.depth_mm:.1f} mm deep" in line, line
+        assert f"an arc of radius {r:.1f} mm" in line, line
+    assert f"at least {both(piece.springback.die_radius_mm)} with a file" in line
     assert "Flutes (" not in sheets["center"][1]
 
 
 @pytest.mark.parametrize("name", PIECES)
 def test_press_numbers(sheets, name: str) -> None:
     """The press's force and box pressure from the spec's rating and box: 25 ton (short, 2000 lbf) over a
-    12 × 10 in box is 50000 lbf / 120 in² = 416.7 psi (NIST SP 811 for the conversions)."""
+    12 × 10 in box is 50000 lbf / 120 in² = 416.7 psi (NIST SP 811 for the conversions).  The pressure that sets
+    the flanges on the die radius R, (2/√3)·σy·t²/(2R²), the angle the box's pressure folds the perimeter flange
+    to, and the verdict, from the press model's stated formulas (a model of our own) with the spec's sheet and
+    2024-T3's typical yield."""
     piece, text = sheets[name]
     force_lbf = float(RAW["press"]["force"].split()[0]) * LBF_PER_TON
     box_in2 = RAW["press"]["box"][0] * RAW["press"]["box"][1]
     psi = force_lbf / box_in2
-    mpa = force_lbf * N_PER_LBF / (box_in2 * MM_PER_IN**2)
+    mpa = psi * PSI
     assert f"close the press to its rating ({force_lbf * N_PER_LBF / 1000:.0f} kN)" in text
     assert f"{mpa:.2f} MPa ({psi:.0f} psi) in the box" in text
     p = piece.press
     assert p.pressure_mpa == pytest.approx(mpa, rel=1e-9)
-    needed_psi = p.needed_mpa * 1e6 / N_PER_LBF * (MM_PER_IN / 1000) ** 2
-    assert f"need up to {p.needed_mpa:.2f} MPa ({needed_psi:.0f} psi)" in text
-    assert f"Press check: **{p.verdict.upper()}**" in text
+
+    assert RAW["sheet"]["alloy"] == "2024-T3"
+    t = inches(RAW["sheet"]["thickness"]) * MM_PER_IN
+    height = inches(RAW["flange"]["height"]) * MM_PER_IN
+    radius = piece.springback.die_radius_mm
+    needed = set_on_radius_mpa(T3_YIELD_MPA, t, radius)  # every leg sits on the die radius (flute lips too)
+    assert p.needed_mpa == pytest.approx(needed, rel=1e-9)
+    assert (f"setting the flanges on the {both(radius)} die radius needs {needed:.2f} MPa ({needed / PSI:.0f} psi)"
+            in text)
+    legs = press_legs(piece, mpa, height, t, T3_YIELD_MPA)
+    fits = box_fits(piece)
+    verdict = press_verdict([a for _, a in legs], fits)
+    assert f"Press check: **{verdict.upper()}**" in text
+    if not fits:  # the center die: the box cannot take it (see test_a_die_too_big_for_the_box_is_promised_no_fold)
+        return
+    angle = fold_angle_deg(mpa, height, radius, t, T3_YIELD_MPA)
+    assert f"so expect the perimeter flange at about {angle:.0f}° (plastic-hinge model" in text
     hand = [line for line in text.splitlines() if line.startswith("6. Finish by hand")]
-    if p.verdict == "full":
+    if verdict == "full":
         assert not hand
     else:
-        names = sorted({piece.flange_names[i] for i in p.unformable_flanges})
-        assert hand == [f"6. Finish by hand over the die with a soft mallet and a hardwood fid: {', '.join(names)}."]
+        short = ", ".join(f"{leg} (about {a:.0f}°)" for leg, a in legs if a < 90.0)
+        assert hand == [("6. Finish by hand over the die, with the blank still pinned: a hand seamer, or a hardwood "
+                         f"block and a soft mallet, working along the flange a little at a time: {short}.")]
+
+
+@pytest.mark.xfail(strict=True, reason="diegen/reports/sheet.py shop_sheet: for a die that does not fit the box "
+                                       "(verdict insufficient, no press-folds-part-way finding) step 5 still says to "
+                                       "expect the perimeter flange at about 37° and step 6 has the flanges finished "
+                                       "by hand from the angles the box pressure would give")
+def test_a_die_too_big_for_the_box_is_promised_no_fold(sheets) -> None:
+    """The demo's center die, 454 mm long, does not fit the 12 × 10 in box with 1 in at each wall: the press
+    cannot take it, so the sheet promises no fold angle and no hand finishing of a fold."""
+    piece, text = sheets["center"]
+    assert not box_fits(piece)
+    assert "Press check: **INSUFFICIENT**" in text
+    forming = text[text.index("## 5. Forming"):text.index(HEADINGS[-1])]
+    promised = [int(a) for a in re.findall(r"about (\d+)°", forming)]
+    assert not any(promised), promised
+    assert "Finish by hand" not in forming
 
 
 @pytest.mark.parametrize("name", PIECES)
 def test_die_life_shrink_and_warnings(sheets, rib, name: str) -> None:
+    """The flange check: the residual shrink and the verdict as the analysis gives them, the wrinkle limit
+    worked out here (the catalogue's limit scaled by (20·t/h)², a model of our own), the verdict consistent with
+    them, its remedies; then every finding as "part: message"."""
     piece, text = sheets[name]
     life = materials.die_material(rib.spec.shared.die.material).life_parts
     assert f"Expect about {life} parts from a {rib.spec.shared.die.material} die" in text
-    assert (f"shrink {piece.max_shrink:.3f} at worst (limit {piece.alloy.shrink_limit:.3f})" in text)
+    flange = piece.flange
+    limit = wrinkle_limit(piece.alloy.shrink_limit, inches(RAW["flange"]["height"]) * MM_PER_IN,
+                          inches(RAW["sheet"]["thickness"]) * MM_PER_IN)
+    assert flange.shrink_limit == pytest.approx(limit, rel=1e-12)
+    assert_flange_verdict_consistent(piece)
+    check = next(line for line in text.splitlines() if "Check the flange angle (90°)" in line)
+    step = 6 if piece.press.verdict == "full" else 7
+    tail = ". " + "; or ".join(flange.remedies) + "." if flange.remedies else "."
+    assert check == (f"{step}. Check the flange angle (90°) and radius. Edge shrink left after relief "
+                     f"{flange.residual_shrink:.3f} at worst against a {limit:.3f} wrinkle limit: "
+                     f"**{flange.verdict}**{tail}")
     warnings = text[text.index(HEADINGS[-1]):text.rindex("---")]
-    assert [line[2:] for line in warnings.splitlines() if line.startswith("* ")] == list(piece.warnings)
+    listed = [line[2:] for line in warnings.splitlines() if line.startswith("* ")]
+    assert listed == [f"{piece.piece.part_id}: {w.message}" for w in piece.warnings] and listed
 
 
 def test_die_notes_go_under_drilling(rib) -> None:
@@ -256,9 +335,16 @@ def test_millimetre_spec_takes_metric_round_overs(mm_rib) -> None:
 
 
 def test_a_piece_without_warnings_says_none(mm_rib) -> None:
+    """The millimetre rib's press, 1200 kN over 300 × 250 mm = 16 MPa, sets its flanges on the die radius (the
+    set-on pressure (2/√3)·σy·t²/(2R²), a model of our own, with 2024-T3's typical yield): a full press, no hand
+    finishing, and a piece with nothing to warn of says so."""
     quiet = [p for p in mm_rib.pieces if not p.warnings]
     assert quiet, "the millimetre rib has a piece without warnings"
-    text = shop_sheet(mm_rib, quiet[0])
+    piece = quiet[0]
+    pressure = 1200e3 / (300.0 * 250.0)
+    assert pressure >= set_on_radius_mpa(T3_YIELD_MPA, 0.6, piece.springback.die_radius_mm)
+    text = shop_sheet(mm_rib, piece)
+    assert f"Press check: **FULL** — {pressure:.2f} MPa" in text and "Finish by hand" not in text
     assert text[text.index(HEADINGS[-1]):].split("\n---")[0].strip().endswith("* none")
 
 

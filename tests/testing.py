@@ -1,4 +1,4 @@
-"""Domain asserts and measurements shared by the geometry, analysis, blank and wing tests.
+"""Domain asserts and measurements shared by the geometry, analysis, blank, wing and report tests.
 
 Everything here measures with general-purpose tools (shapely, numpy) rather
 than with diegen's own helpers, so the tests compare diegen against an
@@ -8,10 +8,12 @@ otherwise.
 
 from __future__ import annotations
 
+import math
 from collections.abc import Sequence
 from pathlib import Path
 
 import numpy as np
+import pytest
 import shapely
 from shapely.geometry import LinearRing, LineString, Point, Polygon
 
@@ -138,3 +140,113 @@ REPORTED: list[str] = []
 def report(*parts: object) -> None:
     """A line for the end of the test run (counts of fuzz cases, database sweeps): shown even under -q."""
     REPORTED.append(" ".join(str(p) for p in parts))
+
+
+# --- the forming models the reports print, written out again from their stated formulas -------------------------
+# Units: mm, MPa, degrees.  Each carries its source; the press model and the wrinkle limit are the project's own
+# (specs/README.md, "What the report says"), so these check that the report prints what the model says, worked
+# out here from the spec's own inputs.
+
+#: Plane-strain flow stress over the uniaxial one, 2/√3 (the von Mises criterion in plane strain, as commonly
+#: quoted; from memory, unverified).
+PLANE_STRAIN = 2.0 / math.sqrt(3.0)
+
+
+def set_on_radius_mpa(yield_mpa: float, thickness_mm: float, radius_mm: float) -> float:
+    """Pressure that presses a flange onto a die radius ``R``: the plastic hinge moment per unit width,
+    (2/√3)·σy·t²/4, equal to a uniform pressure's moment over a lever R, p·R²/2, so p = (2/√3)·σy·t²/(2R²)
+    (model of our own, no source)."""
+    return PLANE_STRAIN * yield_mpa * thickness_mm**2 / (2.0 * radius_mm**2)
+
+
+def hinge_lever_mm(pressure_mpa: float, thickness_mm: float, yield_mpa: float) -> float:
+    """The lever a pressure bends to a plastic hinge: the same balance solved for the lever,
+    a = t·√((2/√3)·σy/(2p)) (model of our own, no source)."""
+    return thickness_mm * math.sqrt(PLANE_STRAIN * yield_mpa / (2.0 * pressure_mpa))
+
+
+def fold_angle_deg(pressure_mpa: float, leg_mm: float, radius_mm: float, thickness_mm: float,
+                   yield_mpa: float) -> float:
+    """How far a pressure folds a flange leg of height L onto a die radius R: 90° once the lever a is at most R,
+    nothing while a is at least L, between them 90°·((L − a)/(L − R))^2.5 (model of our own; the exponent
+    calibrated to a home box at about 330 psi folding 0.025 in 2024-T3 rib flanges to about 30°, a fact of the
+    trade, no source)."""
+    a = hinge_lever_mm(pressure_mpa, thickness_mm, yield_mpa)
+    if a <= radius_mm:
+        return 90.0
+    if a >= leg_mm:
+        return 0.0
+    return 90.0 * ((leg_mm - a) / (leg_mm - radius_mm)) ** 2.5
+
+
+def press_legs(piece, pressure_mpa: float, flange_height_mm: float, thickness_mm: float,
+               yield_mpa: float) -> list[tuple[str, float]]:
+    """Each flange the press folds, named as the report names it, with the angle it reaches: the perimeter flange
+    (the flange height, on the die radius), the flutes (the same height, on the radius their lips are rounded to)
+    and each flanged hole (its flange height, on the die radius)."""
+    radius = piece.springback.die_radius_mm
+    legs = [("perimeter flange", flange_height_mm, radius)]
+    if piece.flutes:
+        legs.append(("flutes", flange_height_mm, min(f.lip_radius_mm or radius for f in piece.flutes)))
+    legs += [(f"hole flange Ø{h.d:.0f} mm", h.flange_height, radius) for h in piece.piece.holes if h.flanged]
+    return [(name, fold_angle_deg(pressure_mpa, leg, r, thickness_mm, yield_mpa)) for name, leg, r in legs]
+
+
+def fits_box(outline: Sequence[Sequence[float]], box_mm: tuple[float, float], clearance_mm: float) -> bool:
+    """The die's plan extents (shapely bounds) plus the clearance at each wall within the box, either way round."""
+    x0, y0, x1, y1 = Polygon(outline).bounds
+    need = 2.0 * clearance_mm
+    return any(a + need <= box_mm[0] and b + need <= box_mm[1] for a, b in ((x1 - x0, y1 - y0), (y1 - y0, x1 - x0)))
+
+
+def press_verdict(angles: Sequence[float], fits: bool) -> str:
+    """specs/README.md: ``full`` only when every flange reaches 90°; ``insufficient`` when nothing folds or the die
+    does not fit the box; else ``partial``."""
+    if not fits or all(a <= 0.0 for a in angles):
+        return "insufficient"
+    return "full" if all(a >= 90.0 for a in angles) else "partial"
+
+
+def gent_modulus_mpa(shore_a: float) -> float:
+    """Young's modulus of rubber from its Shore A hardness, Gent's relation (A. N. Gent, Trans. IRI 34, 1958, as
+    commonly quoted): E = 0.0981(56 + 7.62336 S)/(0.137505(254 − 2.54 S)) MPa."""
+    return 0.0981 * (56.0 + 7.62336 * shore_a) / (0.137505 * (254.0 - 2.54 * shore_a))
+
+
+def wrinkle_limit(catalogue_limit: float, flange_height_mm: float, thickness_mm: float) -> float:
+    """The shrink a flange of height h in sheet t takes before it wrinkles: the catalogue's limit at h/t = 20,
+    scaled by (20·t/h)² (the plastic buckling strain of a plate with a free edge goes with (t/h)²: E. Z. Stowell,
+    NACA TN 1556, 1948), kept within 0.25 and 2 times the catalogue value (model of our own, specs/README.md)."""
+    return catalogue_limit * min(max((20.0 * thickness_mm / flange_height_mm) ** 2, 0.25), 2.0)
+
+
+def pilot_diameter_mm(hole_d_mm: float, flange_height_mm: float, thickness_mm: float, radius_mm: float,
+                      k_factor: float) -> float:
+    """The hole to cut in the blank for a 90° flanged hole of clear diameter d and mold-line height h: the web's
+    bend tangent lies at d/2 + t + R from the axis and the flange develops to BA + h − SB inward of it, with
+    BA = (π/2)(R + k·t) (K-factor form, common practice, no source) and SB = R + t (FAA-H-8083-31, ch. 4, setback
+    at 90°)."""
+    developed = math.pi / 2.0 * (radius_mm + k_factor * thickness_mm) + flange_height_mm - (radius_mm + thickness_mm)
+    return 2.0 * (hole_d_mm / 2.0 + thickness_mm + radius_mm - developed)
+
+
+def assert_flange_verdict_consistent(piece) -> None:
+    """The flange verdict agrees with the residual shrink and the limits it is judged by (specs/README.md):
+    ``formable`` exactly when the residual is within the wrinkle limit and nothing stretches past its limit;
+    ``hand-finish`` only for a residual within twice the limit (the share left for a shrinker: common practice, no
+    source); remedies exactly when it is not formable.  Relief only takes shrink away, and with none in the piece
+    the residual is the largest shrink itself."""
+    flange = piece.flange
+    assert 0.0 <= flange.residual_shrink <= piece.max_shrink + 1e-12
+    if not piece.flutes and not piece.notches:
+        assert flange.residual_shrink == pytest.approx(piece.max_shrink, abs=1e-12)
+    else:
+        assert flange.residual_shrink < piece.max_shrink
+    stretch_bad = piece.max_stretch > piece.alloy.stretch_limit or any(
+        h.stretch_strain > piece.alloy.stretch_limit for h in piece.holes)
+    within = flange.residual_shrink <= flange.shrink_limit
+    assert (flange.verdict == "formable") == (within and not stretch_bad)
+    if flange.verdict == "hand-finish":
+        assert not stretch_bad and flange.residual_shrink <= 2.0 * flange.shrink_limit
+    assert flange.verdict in ("formable", "hand-finish", "not-formable")
+    assert bool(flange.remedies) == (flange.verdict != "formable")
