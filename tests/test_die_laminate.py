@@ -140,9 +140,11 @@ def test_flutes_cut_each_layer_below_the_top(dies, plain_dies) -> None:
         grooves = [g for g in getattr(lost, "geoms", [lost]) if g.area > 0.5]
         assert len(grooves) == len(fluted.flutes), b.index
         scale = min(-b.z_bottom_mm / fluted.flute_length_mm, 1.0)  # 0 at the top face, 1 from the flange edge down
-        # The grooves are laid along the normals of a wall curving at about 20 mm plan radius where the nose's
-        # flutes sit, which takes about (centroid depth 1.3 mm) / 20 mm ≈ 6 % off the flat segments' area.
-        assert 0.90 * scale * full < lost.area <= scale * full, b.index
+        # The grooves are laid along the normals of a wall curving at about 12-20 mm plan radius where the nose's
+        # flutes crowd (they are placed by the local excess, densest at the leading edge), which takes about
+        # (centroid depth 1.3 mm) / 12 mm ≈ 11 % off the flat segments' area, and up to about 16 % where
+        # neighbouring grooves fan in together (measured).
+        assert 0.80 * scale * full < lost.area <= scale * full, b.index
         if scale < 1.0:
             assert lost.area > previous, b.index
         previous = lost.area

@@ -176,10 +176,6 @@ def test_pdf_has_planform_table_and_a_page_a_piece(wing_spec, written) -> None:
     check_pdf(pages, wing_spec.id, summary_rows(wing_spec, ribs), ribs)
 
 
-@pytest.mark.xfail(strict=True, reason="diegen/reports/summary.py _piece_page draws the 'shrink limit' line at the "
-                                       "catalogue's p.alloy.shrink_limit (0.040), not the flange's wrinkle limit "
-                                       "p.flange.shrink_limit that the JSON, text and shop sheet give (0.066 for "
-                                       "the root rib's 0.032 in sheet)")
 def test_piece_pages_draw_the_wrinkle_limit(written) -> None:
     """The root rib is of 0.032 in sheet (the spec's override) with a 0.5 in flange: its wrinkle limit is the
     catalogue's 2024-T3 limit scaled by (20·t/h)² = 1.28² (model of our own, specs/README.md), and the strain plot

@@ -261,7 +261,9 @@ def press_check(setup: PressSetup, die: DieFootprint, legs: Sequence[FlangeLeg],
     need = 2.0 * setup.wall_clearance_mm
     fits = any(a + need <= setup.box_w_mm and b + need <= setup.box_l_mm
                for a, b in ((die.length_mm, die.width_mm), (die.width_mm, die.length_mm)))
-    # a die that does not fit the box cannot be pressed in it at all
+    # a die that does not fit the box cannot be pressed in it at all: nothing folds
+    if not fits:
+        results = tuple(LegResult(r.leg, r.start_mpa, r.full_mpa, r.leg.leg_mm, 0.0) for r in results)
     if not fits or all(r.angle_deg <= 0.0 for r in results):
         verdict: Verdict = "insufficient"
     else:

@@ -123,12 +123,14 @@ def shop_sheet(rib: RibAnalysis, piece: PieceAnalysis, die_notes: Sequence[str] 
         f"5. Press check: **{press.verdict.upper()}** — {press.pressure_mpa:.2f} MPa "
         f"({mpa_to_psi(press.pressure_mpa):.0f} psi) in the box; setting the flanges on the "
         f"{_both(sb.die_radius_mm)} die radius needs {press.needed_mpa:.2f} MPa ({mpa_to_psi(press.needed_mpa):.0f} "
-        f"psi), so expect the perimeter flange at about {press.flange_angle_deg:.0f}° (plastic-hinge model, see the "
-        f"report). Expect {die_life_text(shared.die.material)} from a {shared.die.material} die; "
-        f"{press.durometer_advice}.",
+        "psi), " + (f"so expect the perimeter flange at about {press.flange_angle_deg:.0f}° (plastic-hinge model, see "
+                    "the report)." if press.fits_box else
+                    "but the die does not fit this box with the wall clearance: it cannot be pressed in it (use a "
+                    "larger box, or split the die).") +
+        f" Expect {die_life_text(shared.die.material)} from a {shared.die.material} die; {press.durometer_advice}.",
     ]
     step = 6
-    if press.verdict != "full":
+    if press.verdict != "full" and press.fits_box:
         names = ", ".join(f"{r.leg.name} (about {r.angle_deg:.0f}°)" for r in press.short_legs)
         lines.append(f"{step}. Finish by hand over the die, with the blank still pinned: a hand seamer, or a "
                      f"hardwood block and a soft mallet, working along the flange a little at a time: {names}.")

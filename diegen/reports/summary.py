@@ -116,7 +116,7 @@ def _piece_page(p: PieceAnalysis):
     bottom = fig.add_axes((0.07, 0.07, 0.88, 0.25))
     for run in p.runs:
         bottom.plot(run.s_offset_mm + run.profile.s_mm, -run.profile.strain, lw=1)
-    bottom.axhline(p.alloy.shrink_limit, color="tab:blue", ls="--", lw=1, label="shrink limit")
+    bottom.axhline(p.flange.shrink_limit, color="tab:blue", ls="--", lw=1, label="shrink limit")
     bottom.set_xlabel("position along the die outline (mm)")
     bottom.set_ylabel("shrink (+) / stretch (−)")
     bottom.grid(True, lw=0.3)
