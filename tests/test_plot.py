@@ -78,3 +78,16 @@ def test_geometry_plot_shows_outline_joggles_and_legend(rib, tmp_path: Path) -> 
     assert _count(pixels, TAB["purple"]) > 300
     assert _count(pixels, TAB["red"]) > 40
     assert _count(pixels, TAB["green"]) > 500
+
+
+def test_geometry_legend_follows_the_piece(rib, tmp_path: Path) -> None:
+    import dataclasses
+
+    tail = rib.pieces[2]
+    assert tail.piece.relief_points
+    plain = dataclasses.replace(tail, piece=dataclasses.replace(tail.piece, relief_points=()))
+    first = plot.piece_plot(rib, plain, tmp_path / "plain.png").read_bytes()
+    plot.piece_plot(rib, tail, tmp_path / "relief.png")
+    assert plot.piece_plot(rib, plain, tmp_path / "again.png").read_bytes() == first
+    texts = [t.get_text() for t in plot._FIGURES["geometry"].ax.get_legend().get_texts()]
+    assert "bend relief" not in texts and "die outline" in texts
