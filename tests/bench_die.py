@@ -41,9 +41,8 @@ def _timed(fn, repeat: int = REPEAT) -> float:
     return statistics.median(times)
 
 
-def floor_seconds(points, height_mm: float, radius_mm: float, out: Path, tolerance_mm: float | None = None,
-                  repeat: int = REPEAT) -> float:
-    """Median time of the floor: bare extrude of ``points`` + top fillet + STEP + STL (the die's STL settings)."""
+def floor_run(points, height_mm: float, radius_mm: float, out: Path, tolerance_mm: float | None = None):
+    """The floor as a callable: bare extrude of ``points`` + top fillet + STEP + STL (the die's STL settings)."""
     import cadquery as cq
 
     from diegen.die.occ.export import STL_ANGULAR_TOLERANCE_DEG, STL_TOLERANCE_MM
@@ -55,6 +54,13 @@ def floor_seconds(points, height_mm: float, radius_mm: float, out: Path, toleran
         shape.exportStep(str(out / "floor.step"))
         shape.exportStl(str(out / "floor.stl"), tol, math.radians(STL_ANGULAR_TOLERANCE_DEG), relative=False)
 
+    return run
+
+
+def floor_seconds(points, height_mm: float, radius_mm: float, out: Path, tolerance_mm: float | None = None,
+                  repeat: int = REPEAT) -> float:
+    """Median time of the floor: bare extrude of ``points`` + top fillet + STEP + STL (the die's STL settings)."""
+    run = floor_run(points, height_mm, radius_mm, out, tolerance_mm)
     run()
     return _timed(run, repeat)
 

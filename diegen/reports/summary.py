@@ -94,34 +94,54 @@ def _pdf(spec: WingSpec, ribs: Sequence[RibAnalysis], rows: list[dict[str, Any]]
             table.auto_set_font_size(False)
             table.set_fontsize(6)
             pdf.savefig(fig)
+        page = _PiecePage()
         for rib in ribs:
             for p in rib.pieces:
-                pdf.savefig(_piece_page(p))
+                page.write(pdf, p)
 
 
-def _piece_page(p: PieceAnalysis):
-    from matplotlib.figure import Figure
+class _PiecePage:
+    """One figure for every piece page: axes, grid, labels and legends are made once, a page adds its lines,
+    is saved and takes them off again (axis limits follow each page's own lines)."""
 
-    fig = Figure(figsize=(11, 8.5))
-    top = fig.add_axes((0.07, 0.42, 0.88, 0.5))
-    for points, style in ((p.blank.outer, dict(color="tab:green", lw=0.9, label="blank")),
-                          (p.piece.outline, dict(color="k", lw=1.2, label="die outline"))):
-        loop = np.vstack([np.asarray(points), np.asarray(points)[:1]])
-        top.plot(loop[:, 0], loop[:, 1], **style)
-    top.set_aspect("equal")
-    top.grid(True, lw=0.3)
-    top.legend(fontsize=7)
-    top.set_title(f"{p.piece.part_id}: over-bend {p.springback.overbend_deg:.2f}°, die R {p.springback.die_radius_mm:.2f} mm, "
-                  f"{len(p.flutes)} flute(s), press {p.press.verdict}", fontsize=9)
-    bottom = fig.add_axes((0.07, 0.07, 0.88, 0.25))
-    for run in p.runs:
-        bottom.plot(run.s_offset_mm + run.profile.s_mm, -run.profile.strain, lw=1)
-    bottom.axhline(p.flange.shrink_limit, color="tab:blue", ls="--", lw=1, label="shrink limit")
-    bottom.set_xlabel("position along the die outline (mm)")
-    bottom.set_ylabel("shrink (+) / stretch (−)")
-    bottom.grid(True, lw=0.3)
-    bottom.legend(fontsize=7)
-    return fig
+    def __init__(self) -> None:
+        from matplotlib.figure import Figure
+        from matplotlib.lines import Line2D
+
+        self.fig = Figure(figsize=(11, 8.5))
+        top = self.top = self.fig.add_axes((0.07, 0.42, 0.88, 0.5))
+        top.set_aspect("equal")
+        top.grid(True, lw=0.3)
+        top.legend([Line2D([], [], color="tab:green", lw=0.9), Line2D([], [], color="k", lw=1.2)],
+                   ["blank", "die outline"], fontsize=7)
+        self.title = top.set_title(" ", fontsize=9)
+        bottom = self.bottom = self.fig.add_axes((0.07, 0.07, 0.88, 0.25))
+        self.limit = bottom.axhline(0.0, color="tab:blue", ls="--", lw=1, label="shrink limit")
+        bottom.set_xlabel("position along the die outline (mm)")
+        bottom.set_ylabel("shrink (+) / stretch (−)")
+        bottom.grid(True, lw=0.3)
+        bottom.legend(fontsize=7)
+
+    def write(self, pdf: Any, p: PieceAnalysis) -> None:
+        top, bottom = self.top, self.bottom
+        added = []
+        for points, style in ((p.blank.outer, {"color": "tab:green", "lw": 0.9}),
+                              (p.piece.outline, {"color": "k", "lw": 1.2})):
+            loop = np.vstack([np.asarray(points), np.asarray(points)[:1]])
+            added += top.plot(loop[:, 0], loop[:, 1], **style)
+        self.title.set_text(f"{p.piece.part_id}: over-bend {p.springback.overbend_deg:.2f}°, die R "
+                            f"{p.springback.die_radius_mm:.2f} mm, {len(p.flutes)} flute(s), press {p.press.verdict}")
+        for index, run in enumerate(p.runs):
+            added += bottom.plot(run.s_offset_mm + run.profile.s_mm, -run.profile.strain, lw=1, color=f"C{index % 10}")
+        self.limit.set_ydata([p.flange.shrink_limit, p.flange.shrink_limit])
+        for ax in (top, bottom):
+            ax.relim()
+            ax.autoscale_view()
+        try:
+            pdf.savefig(self.fig)
+        finally:
+            for artist in added:
+                artist.remove()
 
 
 __all__ = ["COLUMNS", "summary_rows", "write_wing_summary"]
