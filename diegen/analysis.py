@@ -83,6 +83,8 @@ class FlangeJudgement:
     residual_at_mm: float | None  # where along the outline
     verdict: relief_model.FlangeVerdict
     remedies: tuple[str, ...]
+    # the residual shrink along each flange run, sample by sample (for pictures; numbers above are what counts)
+    residual_profiles: tuple[np.ndarray, ...] = field(default=(), compare=False, repr=False)
 
 
 @dataclass(frozen=True)
@@ -261,10 +263,12 @@ def _judge_flange(spec: RibSpec, runs: list[FlangeRun], flutes: tuple[relief_mod
                   ) -> tuple[FlangeJudgement, list[Finding]]:
     """Residual shrink window by window after relief, the verdict, and the remedies that apply, in order."""
     worst, at = 0.0, None
+    profiles = []
     for run in runs:
         local = [(f.s_mm - run.s_offset_mm, f.width_mm, f.gather_mm) for f in flutes]
         local += [(n.s_mm - run.s_offset_mm, n.opening_mm, n.opening_mm) for n in notches]
         left = relief_model.residual_shrink(run.profile, local)
+        profiles.append(left)
         if left.size and float(left.max()) > worst:
             worst, at = float(left.max()), run.s_offset_mm + float(run.profile.s_mm[int(left.argmax())])
     stretch_bad = any(r.stretch_runs for r in runs) or not all(h.ok for h in holes)
@@ -296,7 +300,7 @@ def _judge_flange(spec: RibSpec, runs: list[FlangeRun], flutes: tuple[relief_mod
             message += (" (aggressive shapes in a hard temper crack when pressed hard: fact of the trade, no "
                         "source)")
         found.append(Finding("shrink-residual", message, key="relief", s_mm=at))
-    return FlangeJudgement(shrink_limit, worst, at, verdict, tuple(remedies)), found
+    return FlangeJudgement(shrink_limit, worst, at, verdict, tuple(remedies), tuple(profiles)), found
 
 
 def _press(spec: RibSpec, piece: PieceGeometry, springback: Springback, flutes: tuple[relief_model.Flute, ...],

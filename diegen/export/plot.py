@@ -235,7 +235,7 @@ class _PreviewPicture(_Picture):
         self.line(top, *_closed(blank.outer).T, color="tab:green", lw=0.9)
         self.line(top, *outline.T, color="0.3", lw=0.6)
 
-        limit = piece_analysis.alloy.shrink_limit
+        limit = piece_analysis.flange.shrink_limit
         stretch = piece_analysis.alloy.stretch_limit
         norm_max = max(2 * limit, piece_analysis.max_shrink, piece_analysis.max_stretch, 1e-3)
         self.scale.set_clim(0.0, norm_max)
@@ -247,6 +247,9 @@ class _PreviewPicture(_Picture):
             magnitudes.append(np.abs(run.profile.strain[:-1]))
             s = run.s_offset_mm + run.profile.s_mm
             self.line(strain_ax, s, -run.profile.strain, lw=1.0, color=f"C{index % 10}")
+            if index < len(piece_analysis.flange.residual_profiles) and (piece_analysis.flutes or piece_analysis.notches):
+                self.line(strain_ax, s, piece_analysis.flange.residual_profiles[index], lw=0.8, ls=":",
+                          color=f"C{index % 10}")
             strain_x.append(s)
             strain_y.append(-run.profile.strain)
         if segments:
@@ -275,7 +278,7 @@ class _PreviewPicture(_Picture):
 
         self.shrink_limit.set_ydata([limit, limit])
         self.stretch_limit.set_ydata([-stretch, -stretch])
-        labels = (f"shrink limit {limit:.3f}", f"stretch limit {stretch:.3f}")
+        labels = (f"wrinkle limit {limit:.3f} (dotted: shrink left after relief)", f"stretch limit {stretch:.3f}")
         if labels != self.legend_labels:
             strain_ax.legend([self.shrink_limit, self.stretch_limit], labels, fontsize=7, loc="upper right")
             self.legend_labels = labels

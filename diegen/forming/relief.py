@@ -35,7 +35,8 @@ FLUTE_PROFILES: tuple[str, ...] = ("arc", "vee")
 
 #: Flute depth at most this fraction of the flange height (common practice, no source).
 FLUTE_DEPTH_FRACTION = 0.25
-#: Least wall (mm) left between neighbouring flutes at the flange edge (design choice).
+#: Least wall (mm) left between neighbouring flutes at the flange edge (design choice); with rounded lips the
+#: land is at least twice the lip radius, room for both roundings.
 FLUTE_LAND_MM = 0.5
 #: Included angle of the widest V-notch (model of our own, no source).
 NOTCH_MAX_ANGLE_DEG = 30.0
@@ -395,10 +396,11 @@ def flutes(
     if gather <= 0.0:
         raise FormingError("flutes of zero depth gather nothing: give a depth > 0 mm")
     count = math.ceil(excess / gather - 1e-12)
-    fits = count * (b + FLUTE_LAND_MM) <= run.length_mm
+    land = max(FLUTE_LAND_MM, 2.0 * lip_radius)  # room to round both lips of the land between two flutes
+    fits = count * (b + land) <= run.length_mm
     wanted = b
     if not fits:  # narrow them to fit side by side, with a land of wall between each pair
-        b = run.length_mm / count - FLUTE_LAND_MM
+        b = run.length_mm / count - land
         if b <= 0.0:
             return FluteSet(run, profile, (), excess, 0.0, False,
                             f"{count} flute(s) would be needed but the {run.length_mm:.0f} mm run has no room for them: "
@@ -407,11 +409,12 @@ def flutes(
         gather = flute_gather(b, d, profile)
     # keep a flute width clear of the run's ends when there is room: a run often ends at a corner of the
     # outline, where the die's wall turns and the blank has its relief hole (common practice, no source)
-    clear = min(b, max(0.0, (run.length_mm - count * (b + FLUTE_LAND_MM)) / 2.0))
+    clear = min(b, max(0.0, (run.length_mm - count * (b + land)) / 2.0))
     span = run.length_mm - 2.0 * clear
     offsets = [clear + (i + 0.5) / count * span for i in range(count)]
     if strain is not None and not run.closed:
-        offsets = _by_excess(run, strain, count, b + FLUTE_LAND_MM, clear + b / 2.0) or offsets
+        offsets = _where_needed(run, strain, b, gather, b + land) or offsets
+        count = len(offsets)
     items = tuple(Flute(run.position(o / run.length_mm), b, d, gather, lip_radius) for o in offsets)
     note = (
         f"{count} flute(s) {b:.1f} mm wide x {d:.1f} mm deep gather {count * gather:.1f} mm "
@@ -425,30 +428,38 @@ def flutes(
     return FluteSet(run, profile, items, excess, count * gather, fits, note)
 
 
-def _by_excess(run: ShrinkRun, strain: StrainProfile, count: int, pitch: float, margin: float) -> list[float]:
-    """Offsets from the run's start (mm) at the quantiles of the run's excess, at least ``pitch`` apart and
-    ``margin`` from its ends; [] when the run has no sampled excess."""
-    w = strain.width_mm
-    kappa = strain.curvature_per_mm
-    g = np.maximum(w * kappa - run.limit * (1.0 + w * kappa), 0.0)
+def _where_needed(run: ShrinkRun, strain: StrainProfile, chord: float, gather: float, pitch: float) -> list[float]:
+    """Offsets from the run's start (mm) of flutes laid where the shrink needs them; [] when none is needed.
+
+    Walking along the run, wherever the shrink left in a flange-width window (:func:`residual_shrink`) still
+    passes the limit, a flute goes as far along as still takes from that window, at least ``pitch`` after the one
+    before and inside the run.  Flutes therefore crowd where the excess is (up to one per ``pitch``) and none is
+    spent where the run needs little; where even that cannot bring a window under the limit, the residual says so.
+    """
     s = np.asarray(strain.s_mm, float)
-    inside = (s >= run.s_start_mm) & (s <= run.s_start_mm + run.length_mm)
-    if inside.sum() < 2:
+    start, end = run.s_start_mm, run.s_start_mm + run.length_mm
+    half = strain.window_mm / 2.0
+    lo_c, hi_c = start + chord / 2.0, end - chord / 2.0
+    if hi_c < lo_c:
         return []
-    x, y = s[inside] - run.s_start_mm, g[inside]
-    cumulative = np.concatenate(([0.0], np.cumsum(0.5 * (y[1:] + y[:-1]) * np.diff(x))))
-    if cumulative[-1] <= 0.0:
-        return []
-    targets = (np.arange(count) + 0.5) / count * cumulative[-1]
-    offsets = np.interp(targets, cumulative, x)
-    lo, hi = min(margin, run.length_mm / 2.0), max(run.length_mm - margin, run.length_mm / 2.0)
-    offsets = np.clip(offsets, lo, hi)
-    for i in range(1, count):  # push apart forwards, then backwards from the far end
-        offsets[i] = max(offsets[i], offsets[i - 1] + pitch)
-    offsets[-1] = min(offsets[-1], hi)
-    for i in range(count - 2, -1, -1):
-        offsets[i] = min(offsets[i], offsets[i + 1] - pitch)
-    return [float(o) for o in offsets]
+    centres: list[float] = []
+    scan = start
+    for _ in range(int(run.length_mm / pitch) + 2):
+        left = residual_shrink(strain, [(c, chord, gather) for c in centres])
+        over = np.nonzero((left > run.limit + 1e-9) & (s >= scan) & (s <= end))[0]
+        if not over.size:
+            break
+        at = float(s[over[0]])
+        centre = min(at + half - chord / 2.0, hi_c)
+        centre = max(centre, lo_c, (centres[-1] + pitch) if centres else lo_c)
+        if centre > hi_c + 1e-9 or centre - chord / 2.0 > at + half:  # no room left, or too far to help here
+            scan = at + half
+            if scan > end:
+                break
+            continue
+        centres.append(centre)
+        scan = at
+    return [c - start for c in centres]
 
 
 # --- V-notches -------------------------------------------------------------------
