@@ -30,7 +30,7 @@ from diegen.geometry.naca import (
     naca_surfaces,
     parse_designation,
 )
-from diegen.geometry.section import signed_area
+from diegen.geometry.loops import signed_area
 
 # PDAS table values are printed to 4 decimals of percent chord.
 PDAS_TOL_PERCENT = 0.6e-4

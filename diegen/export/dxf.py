@@ -23,6 +23,7 @@ from pathlib import Path
 from diegen.errors import OutputError
 from diegen.blank.drawing import CUT, DRILL, LAYERS, NOTE, SCRIBE, BlankDrawing, Circle, Polyline
 from diegen.fileio import write_with
+from diegen.geometry.loops import signed_area
 
 DXF_VERSION = "R2010"
 INSUNITS_MM = 4  # DXF Reference, HEADER $INSUNITS: 4 = millimetres
@@ -105,11 +106,6 @@ class DxfOutline:
     insunits: int
 
 
-def _shoelace(points: Polyline) -> float:
-    n = len(points)
-    return 0.5 * sum(points[i][0] * points[(i + 1) % n][1] - points[(i + 1) % n][0] * points[i][1] for i in range(n))
-
-
 def _closed_points(entity) -> Polyline:  # entity: ezdxf LWPolyline
     """Vertices of a closed LWPOLYLINE; arcs (bulges) flattened to 0.01 mm."""
     if any(abs(b) > 0.0 for (b,) in entity.get_points("b")):
@@ -140,7 +136,7 @@ def read_dxf_outline(path: str | os.PathLike[str]) -> DxfOutline:
     contours = [_closed_points(e) for e in msp.query(f'LWPOLYLINE[layer=="{CUT.name}"]') if e.closed]
     if not contours:
         raise OutputError(f"{path}: no closed polyline on layer {CUT.name}")
-    contours.sort(key=lambda c: abs(_shoelace(c)), reverse=True)
+    contours.sort(key=lambda c: abs(signed_area(c)), reverse=True)
 
     def circles(layer: str) -> tuple[Circle, ...]:
         found = msp.query(f'CIRCLE[layer=="{layer}"]')

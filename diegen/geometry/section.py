@@ -17,12 +17,10 @@ import re
 import numpy as np
 import shapely
 import shapely.validation
-from numpy.typing import ArrayLike, NDArray
+from numpy.typing import ArrayLike
 
 from diegen.errors import AirfoilError
-
-FloatArray = NDArray[np.float64]
-IntArray = NDArray[np.intp]
+from diegen.geometry.loops import FloatArray, IntArray, is_counter_clockwise, signed_area
 
 MIN_POINTS = 10
 # Two points closer than this (fraction of the outline's size) are the same point.
@@ -42,13 +40,6 @@ MAX_TE_GAP = 0.1
 _TE_MERGE_TOL = 1e-9
 # Samples of the spline per input segment used to measure its arc length.
 _ARC_SAMPLES_PER_SEGMENT = 16
-
-
-def signed_area(points: ArrayLike) -> float:
-    """Shoelace area of the closed polygon through ``points``; > 0 if counter-clockwise."""
-    p = np.asarray(points, dtype=float)
-    x, y = p[:, 0], p[:, 1]
-    return 0.5 * float(np.dot(x, np.roll(y, -1)) - np.dot(y, np.roll(x, -1)))
 
 
 def _as_points(points: ArrayLike, name: str) -> FloatArray:
@@ -218,7 +209,7 @@ def validate(loop: ArrayLike, name: str = "<section>") -> None:
     i = self_intersection_index(p)
     if i is not None:
         raise AirfoilError(f"{name}: the outline crosses or touches itself near point {i} {tuple(p[i].round(6))}")
-    if signed_area(p) <= 0.0:
+    if not is_counter_clockwise(p):
         raise AirfoilError(f"{name}: the outline is not counter-clockwise (Selig order) or has no area")
 
 
