@@ -20,7 +20,7 @@ from shapely.geometry import LineString, Point, Polygon, box
 from shapely.geometry.polygon import orient
 
 from diegen.errors import GeometryError, SolidError
-from diegen.die.die_input import Bore, DieInput, Flute, OutlineRun, Pin
+from diegen.die.die_input import DieBore, DieFlute, DieInput, DiePin, DieRun
 from diegen.geometry.die_wall import fillet_end_depth_mm, top_setback_mm
 from diegen.die.occ.validate import solid_problems
 
@@ -50,7 +50,7 @@ def naca4(code: str = "2412", chord: float = CHORD, n: int = 400) -> np.ndarray:
     return np.concatenate([upper, lower]) * chord
 
 
-def nose_outline() -> tuple[OutlineRun, ...]:
+def nose_outline() -> tuple[DieRun, ...]:
     """The nose piece: one curve run round the leading edge, one line run up the spar face at x = 254 mm."""
     piece = Polygon(naca4()).buffer(-SKIN_INSET, quad_segs=32).intersection(box(-10, -500, X_CUT, 500))
     ring = np.asarray(orient(piece, 1.0).exterior.coords)[:-1]
@@ -60,21 +60,21 @@ def nose_outline() -> tuple[OutlineRun, ...]:
     bottom = (bottom - top) % len(ring)
     curve = ring[: bottom + 1]
     line = np.array([ring[bottom], ring[0]])
-    return (OutlineRun("curve", tuple(map(tuple, curve.tolist()))), OutlineRun("line", tuple(map(tuple, line.tolist()))))
+    return (DieRun("curve", tuple(map(tuple, curve.tolist()))), DieRun("line", tuple(map(tuple, line.tolist()))))
 
 
-def outline_polygon(runs: tuple[OutlineRun, ...]) -> Polygon:
+def outline_polygon(runs: tuple[DieRun, ...]) -> Polygon:
     return Polygon(np.concatenate([np.asarray(r.points)[:-1] for r in runs]))
 
 
-PINS = (Pin(60.0, 10.0, 3.2, 8.0), Pin(220.0, 25.0, 4.0, H))
-BORES = (Bore(130.0, 15.0, 40.0),)
-FLUTES = (Flute(300.0, 8.0, 2.0), Flute(340.0, 8.0, 2.0))
+PINS = (DiePin(60.0, 10.0, 3.2, 8.0), DiePin(220.0, 25.0, 4.0, H))
+BORES = (DieBore(130.0, 15.0, 40.0),)
+FLUTES = (DieFlute(300.0, 8.0, 2.0), DieFlute(340.0, 8.0, 2.0))
 FLUTE_LENGTH = 9.0
 
 
 @pytest.fixture(scope="module")
-def outline() -> tuple[OutlineRun, ...]:
+def outline() -> tuple[DieRun, ...]:
     return nose_outline()
 
 
@@ -363,7 +363,7 @@ def test_flute_depth_tapers_down_the_wall(bare_input):
     from diegen.forming.relief import flute_arc_radius
     from diegen.die.outline import OutlineModel
 
-    flute = Flute(420.0, 8.0, 2.0)
+    flute = DieFlute(420.0, 8.0, 2.0)
     die = build_die(replace(bare_input, flutes=(flute,), flute_length_mm=FLUTE_LENGTH))
     model = OutlineModel(bare_input.outline, CUTTER, top_setback_mm(R, UNDERCUT))
     p, _ = model.locate(flute.s_mm)
@@ -395,7 +395,7 @@ def test_flute_at_a_corner_moves_clear_of_it_and_crowded_flutes_are_refused(bare
     from diegen.die.outline import LIP_CLEARANCE_MM, OutlineModel
 
     inset = max(top_setback_mm(R, UNDERCUT), H * math.tan(math.radians(UNDERCUT)))
-    flute = Flute(1.0, 8.0, 2.0)  # 1 mm from the upper corner at the spar face
+    flute = DieFlute(1.0, 8.0, 2.0)  # 1 mm from the upper corner at the spar face
     model = OutlineModel(bare_input.outline, CUTTER, inset, flutes=(flute,))
     (groove,) = model.grooves
     corner = model.segments[0].point(0.0, 0.0)
@@ -408,9 +408,9 @@ def test_flute_at_a_corner_moves_clear_of_it_and_crowded_flutes_are_refused(bare
     assert not solid_problems(die)
     length = model.segments[0].length
     with pytest.raises(GeometryError, match="straight end face"):
-        build_die(replace(bare_input, flutes=(Flute(length + 20.0, 8.0, 2.0),), flute_length_mm=9.0))
+        build_die(replace(bare_input, flutes=(DieFlute(length + 20.0, 8.0, 2.0),), flute_length_mm=9.0))
     with pytest.raises(GeometryError, match="further apart"):
-        build_die(replace(bare_input, flutes=(Flute(300.0, 8.0, 2.0), Flute(308.1, 8.0, 2.0)), flute_length_mm=9.0))
+        build_die(replace(bare_input, flutes=(DieFlute(300.0, 8.0, 2.0), DieFlute(308.1, 8.0, 2.0)), flute_length_mm=9.0))
 
 
 def test_engraving_on_bottom_face_only_and_reads_from_below(bare_input, bare_die):
@@ -449,20 +449,20 @@ def test_pin_off_the_top_face(bare_input):
     from diegen.die.occ.form_block import build_die
 
     with pytest.raises(GeometryError, match="pin hole"):
-        build_die(replace(bare_input, pins=(Pin(252.0, 10.0, 3.2, 5.0),)))
+        build_die(replace(bare_input, pins=(DiePin(252.0, 10.0, 3.2, 5.0),)))
 
 
 def test_flute_deeper_than_half_its_width(bare_input):
     from diegen.die.occ.form_block import build_die
 
     with pytest.raises(GeometryError, match="half its width"):
-        build_die(replace(bare_input, flutes=(Flute(300.0, 4.0, 3.0),), flute_length_mm=9.0))
+        build_die(replace(bare_input, flutes=(DieFlute(300.0, 4.0, 3.0),), flute_length_mm=9.0))
 
 
 def test_clockwise_outline(bare_input):
     from diegen.die.occ.form_block import build_die
 
-    rev = tuple(OutlineRun(r.kind, tuple(reversed(r.points))) for r in reversed(bare_input.outline))
+    rev = tuple(DieRun(r.kind, tuple(reversed(r.points))) for r in reversed(bare_input.outline))
     with pytest.raises(GeometryError, match="clockwise"):
         build_die(replace(bare_input, outline=rev))
 
@@ -472,7 +472,7 @@ def test_inside_corner_tighter_than_cutter(bare_input):
 
     # a rectangle with a notch: the notch's inside corners are sharp
     pts = ((0, 0), (100, 0), (100, 40), (60, 40), (60, 30), (40, 30), (40, 40), (0, 40), (0, 0))
-    runs = tuple(OutlineRun("line", (a, b)) for a, b in zip(pts[:-1], pts[1:]))
+    runs = tuple(DieRun("line", (a, b)) for a, b in zip(pts[:-1], pts[1:]))
     with pytest.raises(GeometryError, match="inside corner"):
         build_die(replace(bare_input, outline=runs))
 
@@ -481,7 +481,7 @@ def test_blind_pin_leaving_a_thin_floor(bare_input):
     from diegen.die.occ.form_block import build_die
 
     with pytest.raises(GeometryError, match="drill it through or less deep"):
-        build_die(replace(bare_input, pins=(Pin(60.0, 10.0, 3.2, H - 0.4),)))
+        build_die(replace(bare_input, pins=(DiePin(60.0, 10.0, 3.2, H - 0.4),)))
 
 
 def test_invalid_die_names_the_part_at_fault(full_input, monkeypatch):
@@ -551,7 +551,7 @@ def test_laminate_layers_carry_the_flutes(bare_input):
     from diegen.die.laminate import laminate_layers
     from diegen.die.outline import GROOVE_SAMPLES
 
-    flute = Flute(420.0, 8.0, 2.0)  # where the wall's radius is about 1 m
+    flute = DieFlute(420.0, 8.0, 2.0)  # where the wall's radius is about 1 m
     plain = laminate_layers(bare_input, 4.5)
     fluted = laminate_layers(replace(bare_input, flutes=(flute,), flute_length_mm=9.0), 4.5)
     r = (flute.width_mm**2 / 4 + flute.depth_mm**2) / (2 * flute.depth_mm)
@@ -574,7 +574,7 @@ def test_single_closed_curve_outline(bare_input):
     t = np.linspace(0, 2 * np.pi, 241)
     pts = np.column_stack([100 * np.cos(t), 40 * np.sin(t)])
     pts[-1] = pts[0]
-    die = build_die(replace(bare_input, outline=(OutlineRun("curve", tuple(map(tuple, pts.tolist()))),)))
+    die = build_die(replace(bare_input, outline=(DieRun("curve", tuple(map(tuple, pts.tolist()))),)))
     # area of the ellipse's inward offset by c: πab − c·P + πc² (Steiner's formula; valid as c is below the
     # smallest radius of curvature b²/a = 16 mm); P by numerical integration of the arc length
     tt = np.linspace(0, 2 * np.pi, 200001)
@@ -600,9 +600,9 @@ def test_flute_on_a_single_closed_curve(bare_input):
     t = np.linspace(0, 2 * np.pi, 241)
     pts = np.column_stack([100 * np.sin(t), 40 * np.cos(t) * -1])  # starts at (0, −40), runs counter-clockwise
     pts[-1] = pts[0]
-    ellipse = (OutlineRun("curve", tuple(map(tuple, pts.tolist()))),)
+    ellipse = (DieRun("curve", tuple(map(tuple, pts.tolist()))),)
     model = OutlineModel(ellipse, CUTTER, 2.0)
-    flutes = (Flute(1.0, 8.0, 2.0), Flute(model.perimeter_mm / 2, 8.0, 2.0))  # the first straddles the start
+    flutes = (DieFlute(1.0, 8.0, 2.0), DieFlute(model.perimeter_mm / 2, 8.0, 2.0))  # the first straddles the start
     plain = build_die(replace(bare_input, outline=ellipse))
     fluted = build_die(replace(bare_input, outline=ellipse, flutes=flutes, flute_length_mm=FLUTE_LENGTH))
     assert not solid_problems(fluted)

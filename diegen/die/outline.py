@@ -37,7 +37,7 @@ from shapely.validation import explain_validity
 
 from diegen.errors import GeometryError
 from diegen.forming.relief import flute_arc_radius
-from diegen.die.die_input import Flute, OutlineRun, RunKind
+from diegen.die.die_input import DieFlute, DieRun, RunKind
 
 Array = NDArray[np.float64]
 
@@ -196,8 +196,8 @@ class OutlineModel:
     corners and of the other flutes.
     """
 
-    def __init__(self, runs: tuple[OutlineRun, ...], cutter_radius_mm: float, max_inset_mm: float,
-                 sample_tol_mm: float = 0.001, max_spacing_mm: float = 6.0, flutes: Sequence[Flute] = ()) -> None:
+    def __init__(self, runs: tuple[DieRun, ...], cutter_radius_mm: float, max_inset_mm: float,
+                 sample_tol_mm: float = 0.001, max_spacing_mm: float = 6.0, flutes: Sequence[DieFlute] = ()) -> None:
         self.cutter_radius_mm = cutter_radius_mm
         self.max_inset_mm = max_inset_mm
         self.sample_tol_mm = sample_tol_mm
@@ -212,7 +212,7 @@ class OutlineModel:
         self.spans = self._plan_spans()
 
     # -- construction and checks ------------------------------------------------
-    def _build(self, runs: tuple[OutlineRun, ...]) -> None:
+    def _build(self, runs: tuple[DieRun, ...]) -> None:
         if not runs:
             raise GeometryError("die outline is empty: give at least one run")
         arrays = []
@@ -327,7 +327,7 @@ class OutlineModel:
             self._lip_ranges[index] = (lo + LIP_CLEARANCE_MM, hi - LIP_CLEARANCE_MM)
         return self._lip_ranges[index]
 
-    def _place_grooves(self, flutes: Sequence[Flute]) -> list[_Groove]:
+    def _place_grooves(self, flutes: Sequence[DieFlute]) -> list[_Groove]:
         """Flutes as grooves on their curve segments; raise :class:`GeometryError` for one that cannot be cut.
 
         A flute whose lip would reach into a corner trim is moved along the

@@ -46,8 +46,9 @@ class SparCut:
         return self.x_front_mm + self.web_mm
 
 
-def split_surfaces(loop: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """Upper and lower surfaces of a CCW loop, each ordered from the leading edge (min x) aft."""
+def monotone_surfaces(loop: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Upper and lower surfaces of a CCW loop (mm), each from the leading edge (min x) aft; a point that does not
+    advance in x beyond the one before it is dropped, so that the surfaces can be interpolated in x."""
     le, te = int(np.argmin(loop[:, 0])), int(np.argmax(loop[:, 0]))
     rolled = np.roll(loop, -te, axis=0)
     le_r = (le - te) % len(loop)

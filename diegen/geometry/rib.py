@@ -14,7 +14,7 @@ from diegen.errors import GeometryError
 from diegen.findings import Finding
 from diegen.geometry import holes as hole_rules
 from diegen.geometry import pins as pin_rules
-from diegen.geometry.pieces import SparCut, depth_at, joggles_for, piece_runs, relief_points, split_surfaces, tail_end
+from diegen.geometry.pieces import SparCut, depth_at, joggles_for, monotone_surfaces, piece_runs, relief_points, tail_end
 from diegen.geometry.polygon import QUAD_SEGS, as_points, inscribed_diameter, offset_inward, vertical_extents
 from diegen.geometry.types import Hole, PieceGeometry, RibGeometry
 from diegen.spec.model import AirfoilSource, RibSpec
@@ -67,7 +67,7 @@ def rib_geometry(spec: RibSpec, section: np.ndarray | None = None, die_inset_mm:
     skin, sheet_t = shared.skin_thickness_mm, shared.sheet.thickness_mm
     oml = offset_inward(airfoil, skin, f"offsetting the section inward by the skin ({skin:.3f} mm)")
     die = offset_inward(oml, sheet_t, f"offsetting the outer mold line inward by the rib sheet ({sheet_t:.3f} mm)")
-    upper, lower = split_surfaces(np.asarray(as_points(die)))
+    upper, lower = monotone_surfaces(np.asarray(as_points(die)))
     spars = [SparCut(s.at * spec.chord_mm, s.web_mm, s.cap_thickness_mm, s.cap_width_mm) for s in spec.spars]
     warnings: list[Finding] = []
     pieces = []
