@@ -132,7 +132,8 @@ def analyse_rib(spec: RibSpec, section: np.ndarray | None = None) -> RibAnalysis
     t = spec.shared.sheet.thickness_mm
     flange = spec.shared.flange
     springback = die_for_part(flange.bend_radius_mm, t, alloy.yield_mpa, alloy.youngs_modulus_mpa)
-    geometry = rib_geometry(spec, section, die_inset_mm=die_inset_mm(spec, springback))
+    geometry = rib_geometry(spec, section, die_inset_mm=die_inset_mm(spec, springback),
+                            stretch_limit=alloy.stretch_limit)
     layout = flange_layout(flange.height_mm, flange.bend_radius_mm, t, alloy.k_factor)
     pieces = tuple(_analyse_piece(spec, piece, alloy, minimum, springback, layout) for piece in geometry.pieces)
     return RibAnalysis(spec, geometry, pieces)

@@ -24,6 +24,14 @@ DEMO_WING = SPECS / "demo-wing.yaml"
 OUTLINE_TOL_MM = 0.01
 
 
+def stretch_limit(spec) -> float:
+    """The stretch limit of the spec's sheet alloy, read from the catalogue as the analysis passes it to
+    ``rib_geometry``."""
+    from diegen import materials
+
+    return materials.sheet_alloy(spec.shared.sheet.alloy).stretch_limit
+
+
 def as_array(points: Sequence[Sequence[float]]) -> np.ndarray:
     return np.asarray(points, dtype=float).reshape(-1, 2)
 

@@ -50,13 +50,16 @@ def min_tail_depth(spec: RibSpec) -> float:
     return flange.min_tail_depth_mm if flange.min_tail_depth_mm is not None else 2 * flange.height_mm + 10.0
 
 
-def rib_geometry(spec: RibSpec, section: np.ndarray | None = None, die_inset_mm: float = 0.0) -> RibGeometry:
+def rib_geometry(spec: RibSpec, section: np.ndarray | None = None, die_inset_mm: float = 0.0, *,
+                 stretch_limit: float) -> RibGeometry:
     """Compute the rib's 2D geometry; ``section`` (unit chord) defaults to the spec's airfoil.
 
     ``die_inset_mm`` is the largest inset of the die's wall from its outline
     (top-edge setback or bottom inset, mm): the joggle ramps bend no tighter
     than it (plus ``FAIR_MARGIN_MM``) where they turn convex, so the die's
     offset sections stay smooth, and no tighter than the cutter radius.
+    ``stretch_limit`` is the sheet alloy's largest edge stretch (fraction): it
+    sizes the flanges of lightening holes placed automatically.
     """
     shared = spec.shared
     unit = load_section(spec.airfoil) if section is None else np.asarray(section, float)
@@ -73,7 +76,7 @@ def rib_geometry(spec: RibSpec, section: np.ndarray | None = None, die_inset_mm:
     pieces = []
     fair_radius = max(shared.die.cutter_diameter_mm / 2, die_inset_mm + FAIR_MARGIN_MM if die_inset_mm > 0 else 0.0)
     for name, x0, x1, aft_flanged in _piece_ranges(spec, spars, upper, lower, warnings):
-        pieces.append(_piece(spec, name, x0, x1, aft_flanged, upper, lower, spars, fair_radius))
+        pieces.append(_piece(spec, name, x0, x1, aft_flanged, upper, lower, spars, fair_radius, stretch_limit))
     if not pieces:
         raise GeometryError(f"rib {spec.id} has no piece left to make: {'; '.join(w.message for w in warnings)}")
     return RibGeometry(spec.id, spec.chord_mm, _tuple(scaled), as_points(oml), as_points(die), tuple(pieces),
@@ -109,7 +112,7 @@ def _piece_ranges(spec: RibSpec, spars: list[SparCut], upper: np.ndarray, lower:
 
 
 def _piece(spec: RibSpec, name: str, x0: float | None, x1: float, aft_flanged: bool, upper: np.ndarray,
-           lower: np.ndarray, spars: list[SparCut], fair_radius: float) -> PieceGeometry:
+           lower: np.ndarray, spars: list[SparCut], fair_radius: float, stretch_limit: float) -> PieceGeometry:
     shared = spec.shared
     part_id = f"{spec.id}-{name}"
     lo = float(upper[0, 0]) if x0 is None else float(x0)
@@ -135,25 +138,23 @@ def _piece(spec: RibSpec, name: str, x0: float | None, x1: float, aft_flanged: b
             f"the {name} piece of rib {spec.id} has no flat web between its flange bends: its die outline is only "
             f"{deepest:.2f} mm deep at its deepest, and the bend radius of {radius:.2f} mm on each side needs more "
             f"than {2 * radius:.2f} mm (the flange bends would overlap)")
-    holes = _holes(spec, name, polygon, (lo, x1), radius)
+    holes = _holes(spec, name, polygon, (lo, x1), radius, stretch_limit)
     pins = _pins(spec, name, polygon, (lo, x1), radius, holes)
     plain = piece_runs(upper, lower, x0, x1, (), aft_flanged) if joggles else runs
     return PieceGeometry(name, part_id, (lo, x1), runs, tuple(joggles), holes, pins, relief_points(runs),
                          _depth_range(polygon, lo, x1, name), plain)
 
 
-def _holes(spec: RibSpec, name: str, polygon: Polygon, x_range: tuple[float, float], radius: float) -> tuple[Hole, ...]:
+def _holes(spec: RibSpec, name: str, polygon: Polygon, x_range: tuple[float, float], radius: float,
+           stretch_limit: float) -> tuple[Hole, ...]:
     holes = spec.shared.holes
     if holes.mode == "none":
         return ()
     if holes.mode == "list":
         return hole_rules.explicit_holes(polygon, x_range, radius, holes.rules, holes.explicit, name)
-    from diegen import materials
-
-    limit = materials.sheet_alloy(spec.shared.sheet.alloy).stretch_limit
     # a hole flange needs a straight leg beyond its bend: at least R + T + 1 mm high
     shortest = radius + spec.shared.sheet.thickness_mm + 1.0
-    return hole_rules.auto_holes(polygon, radius, holes.rules, limit, shortest)
+    return hole_rules.auto_holes(polygon, radius, holes.rules, stretch_limit, shortest)
 
 
 def _pins(spec: RibSpec, name: str, polygon: Polygon, x_range: tuple[float, float], radius: float,
