@@ -112,7 +112,7 @@ class Press:
     force_n: float
     box_mm: tuple[float, float]  # inside width and length of the rubber box
     rubber: Rubber
-    wall_clearance_mm: float = 25.4
+    wall_clearance_mm: float  # default: spec.schema.WALL_CLEARANCE
 
 
 @dataclass(frozen=True)

@@ -50,6 +50,10 @@ SHARED_KEYS = ("skin_thickness", "sheet", "flange", "pieces", "lightening_holes"
 RIB_KEYS = HEADER_KEYS + ("airfoil", "chord", "spars") + SHARED_KEYS
 WING_KEYS = HEADER_KEYS + ("planform", "airfoil", "spars", "overrides") + SHARED_KEYS
 
+# Room wanted between the die and each wall of the rubber box when the spec gives none: a round number in the
+# spec's own units, 1 in or 25 mm (common practice, no source).  Read as ``by_units(units, *WALL_CLEARANCE)``.
+WALL_CLEARANCE = (1.0, 25.0)  # (in, mm)
+
 
 def by_units(units_name: str, inch_value: float, mm_value: float) -> float:
     """A default that is a round number in the spec's own units (returned in mm)."""
@@ -313,7 +317,7 @@ def read_press(r: Reader, node: YNode | None, path: str, base: Press | None = No
                             r.length(rf.get("thickness"), join(rp, "thickness"), high=500.0))
     clearance = r.length(fields.get("wall_clearance"), join(path, "wall_clearance"), low_open=False)
     return Press(_or(force, base and base.force_n), _or(box, base and base.box_mm), rubber,
-                 _or(clearance, base.wall_clearance_mm if base else by_units(r.units, 1.0, 25.0)))
+                 _or(clearance, base.wall_clearance_mm if base else by_units(r.units, *WALL_CLEARANCE)))
 
 
 def read_shared(r: Reader, root: dict[str, YNode], base: Shared | None = None) -> Shared:
