@@ -26,13 +26,12 @@ from shapely.geometry import LineString, Polygon
 from diegen.blank.drawing import BlankDrawing, Circle
 from diegen.geometry.polygon import QUAD_SEGS, single_polygon
 from diegen.geometry.types import PieceGeometry, Point
-
-IN = 25.4
+from diegen.units import MM_PER_IN
 
 
 def relief_hole_diameter(thickness_mm: float, bend_radius_mm: float) -> float:
     """Corner relief hole (mm): FAA-H-8083-31 minimum by thickness, or 2 × bend radius if larger."""
-    minimum = (1 / 8 if thickness_mm <= 0.064 * IN + 1e-9 else 3 / 16) * IN
+    minimum = (1 / 8 if thickness_mm <= 0.064 * MM_PER_IN + 1e-9 else 3 / 16) * MM_PER_IN
     return max(minimum, 2 * bend_radius_mm)
 
 

@@ -37,6 +37,7 @@ from diegen.spec.model import (
 )
 from diegen.spec.reader import Reader, describe, join
 from diegen.spec.yamltree import YNode
+from diegen.units import in_to_mm
 
 SPEC_VERSION = 1
 MAX_RIBS = 200  # ribs of one wing spec, however the stations are given
@@ -57,7 +58,7 @@ WALL_CLEARANCE = (1.0, 25.0)  # (in, mm)
 
 def by_units(units_name: str, inch_value: float, mm_value: float) -> float:
     """A default that is a round number in the spec's own units (returned in mm)."""
-    return inch_value * 25.4 if units_name == "in" else mm_value
+    return in_to_mm(inch_value) if units_name == "in" else mm_value
 
 
 def _get(node_map: dict[str, YNode] | None, key: str) -> YNode | None:
@@ -146,7 +147,7 @@ def read_sheet(r: Reader, node: YNode | None, path: str, base: Sheet | None = No
     if fields is None:
         return None
     alloy = r.choice(fields.get("alloy"), join(path, "alloy"), materials.sheet_alloy_names())
-    thickness = r.length(fields.get("thickness"), join(path, "thickness"), high=12.7)
+    thickness = r.length(fields.get("thickness"), join(path, "thickness"), high=in_to_mm(0.5))
     return Sheet(_or(alloy, base and base.alloy), _or(thickness, base and base.thickness_mm))
 
 
@@ -325,10 +326,10 @@ def read_shared(r: Reader, root: dict[str, YNode], base: Shared | None = None) -
     for key in ("skin_thickness", "sheet", "flange", "die", "press"):
         if base is None and key not in root:
             r.problem(None, key, f"missing required key {key!r}")
-    skin = r.length(root.get("skin_thickness"), "skin_thickness", high=12.7)
+    skin = r.length(root.get("skin_thickness"), "skin_thickness", high=in_to_mm(0.5))
     rules = read_hole_rules(r, root.get("hole_rules"), "hole_rules",
                             base.holes.rules if base else default_hole_rules(r.units))
-    dowel = r.length(root.get("dowel_diameter"), "dowel_diameter", high=25.4)
+    dowel = r.length(root.get("dowel_diameter"), "dowel_diameter", high=in_to_mm(1.0))
     dowel = _or(dowel, base.pins.diameter_mm if base else by_units(r.units, 0.125, 3.0))
     holes_node = root.get("lightening_holes")
     holes = read_holes(r, holes_node, "lightening_holes", rules) if (holes_node or not base) else replace(base.holes, rules=rules)
