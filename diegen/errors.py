@@ -58,6 +58,13 @@ class FormingError(DiegenError, ValueError):
     """A part that cannot be formed as specified (radius below the minimum, ...)."""
 
 
+class MaterialError(DiegenError, KeyError):
+    """An alloy, die material or bend-radius table name that is not in the catalogue."""
+
+    def __str__(self) -> str:  # KeyError would quote the message
+        return str(self.args[0]) if self.args else ""
+
+
 class SolidError(DiegenError, RuntimeError):
     """The solid-modelling kernel refused or produced an invalid die."""
 

@@ -13,9 +13,8 @@ from typing import Any
 import pytest
 import yaml
 
-from diegen.errors import DiegenError, FormingError
+from diegen.errors import DiegenError, FormingError, MaterialError
 from diegen.materials import (
-    MaterialError,
     bend_radius_tables,
     catalogue_text,
     die_material,

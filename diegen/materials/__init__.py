@@ -24,12 +24,11 @@ from typing import Any
 
 import yaml
 
-from diegen.errors import DiegenError, FormingError
+from diegen.errors import DiegenError, FormingError, MaterialError
 from diegen.units import MM_PER_IN, MPA_PER_KSI, mm_to_in
 
 __all__ = [
     "DieMaterial",
-    "MaterialError",
     "MinRadius",
     "SheetAlloy",
     "bend_radius_tables",
@@ -47,13 +46,6 @@ _MM_PER_UNIT: Mapping[str, float] = {"mm": 1.0, "in": MM_PER_IN}
 _MPA_PER_UNIT: Mapping[str, float] = {"MPa": 1.0, "GPa": 1000.0, "ksi": MPA_PER_KSI}
 _FRACTION_PER_UNIT: Mapping[str, float] = {"fraction": 1.0, "percent": 0.01}
 _INDEFINITELY = "indefinitely"
-
-
-class MaterialError(DiegenError, KeyError):
-    """An alloy, die material or bend-radius table name that is not in the catalogue."""
-
-    def __str__(self) -> str:  # KeyError would quote the message
-        return str(self.args[0]) if self.args else ""
 
 
 @dataclass(frozen=True)
