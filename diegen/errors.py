@@ -9,6 +9,19 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+__all__ = [
+    "AirfoilError",
+    "DiegenError",
+    "FormingError",
+    "GeometryError",
+    "MaterialError",
+    "NoRoomForMarks",
+    "OutputError",
+    "Problem",
+    "SolidError",
+    "SpecError",
+]
+
 
 @dataclass(frozen=True)
 class Problem:

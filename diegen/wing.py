@@ -23,6 +23,8 @@ import numpy as np
 from diegen.errors import GeometryError
 from diegen.spec.model import RibSpec, Spar, WingSpec
 
+__all__ = ["RibStation", "chord_at", "leading_edge_at", "rib_spec", "section_at", "station_positions", "stations"]
+
 
 @dataclass(frozen=True)
 class RibStation:

@@ -28,6 +28,8 @@ from diegen.geometry.polygon import QUAD_SEGS, single_polygon
 from diegen.geometry.types import PieceGeometry, Point
 from diegen.units import MM_PER_IN
 
+__all__ = ["develop_blank", "flange_band_area", "notch_polygon", "relief_hole_diameter"]
+
 
 def relief_hole_diameter(thickness_mm: float, bend_radius_mm: float) -> float:
     """Corner relief hole (mm): FAA-H-8083-31 minimum by thickness, or 2 × bend radius if larger."""

@@ -21,6 +21,8 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Literal
 
+__all__ = ["RUN_KINDS", "DieBore", "DieFlute", "DieInput", "DiePin", "DieRun", "RunKind"]
+
 RunKind = Literal["curve", "line"]
 RUN_KINDS: tuple[RunKind, ...] = ("curve", "line")
 

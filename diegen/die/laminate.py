@@ -22,6 +22,8 @@ from diegen.die.die_input import DieInput, DieRun
 from diegen.die.model import flute_scale, outline_model
 from diegen.die.outline import OffsetPiece, OutlineModel
 
+__all__ = ["LaminateLayer", "laminate_layers"]
+
 
 @dataclass(frozen=True)
 class LaminateLayer:

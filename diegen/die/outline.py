@@ -39,6 +39,18 @@ from diegen.forming.relief import flute_arc_radius
 from diegen.die.die_input import DieFlute, DieRun, RunKind
 from diegen.geometry.loops import FloatArray
 
+__all__ = [
+    "CONCAVE_JUNCTION_DEG",
+    "GROOVE_SAMPLES",
+    "JOIN_TOL_MM",
+    "LIP_CLEARANCE_MM",
+    "MAX_EXTENSION_MM",
+    "MIN_GROOVE_GAP_MM",
+    "OffsetPiece",
+    "OutlineModel",
+    "pieces_to_polygon",
+]
+
 JOIN_TOL_MM = 1e-6  # consecutive runs must share end points to this distance
 CONCAVE_JUNCTION_DEG = 0.5  # a sharper concave turn at a run junction is a corner no cutter can make
 MAX_EXTENSION_MM = 0.05  # how far a segment may be extended past its end to meet its neighbour

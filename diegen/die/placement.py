@@ -31,6 +31,8 @@ from diegen.die.model import section
 from diegen.die.outline import OutlineModel, pieces_to_polygon
 from diegen.die.settings import BuildSettings
 
+__all__ = ["ARROW_LENGTH", "check_placement", "engraving_marks"]
+
 
 def _smallest_section(die: DieInput, model: OutlineModel) -> Polygon:
     """What every horizontal section of the die contains: the flat top face and the bottom face, flutes and all."""

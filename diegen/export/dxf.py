@@ -25,6 +25,18 @@ from diegen.blank.drawing import CUT, DRILL, LAYERS, NOTE, SCRIBE, BlankDrawing,
 from diegen.fileio import write_with
 from diegen.geometry.loops import signed_area
 
+__all__ = [
+    "BEND_LINETYPE",
+    "DXF_VERSION",
+    "INSUNITS_MM",
+    "MEASUREMENT_METRIC",
+    "DxfOutline",
+    "build_dxf",
+    "read_dxf_outline",
+    "write_dxf",
+    "write_outlines_dxf",
+]
+
 DXF_VERSION = "R2010"
 INSUNITS_MM = 4  # DXF Reference, HEADER $INSUNITS: 4 = millimetres
 MEASUREMENT_METRIC = 1  # DXF Reference, HEADER $MEASUREMENT: 1 = metric

@@ -40,6 +40,16 @@ from diegen.geometry.section import (
     validate,
 )
 
+__all__ = [
+    "MAX_ABS_COORDINATE",
+    "MAX_FILE_BYTES",
+    "MAX_POINTS",
+    "PERCENT_THRESHOLD",
+    "X_REVERSAL_TOL",
+    "parse_coordinates",
+    "read_coordinates",
+]
+
 MAX_FILE_BYTES = 5 * 1024 * 1024  # size guard: refuse larger files unread
 MAX_POINTS = 100_000  # size guard: refuse files with more coordinate rows
 PERCENT_THRESHOLD = 1.5  # any |value| above this means the data is in percent of chord

@@ -24,6 +24,16 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
+__all__ = [
+    "WallSection",
+    "fillet_end_depth_mm",
+    "fillet_point",
+    "fillet_sections",
+    "largest_inset_mm",
+    "top_setback_mm",
+    "wall_inset_mm",
+]
+
 
 @dataclass(frozen=True)
 class WallSection:

@@ -24,6 +24,16 @@ from diegen.geometry.polygon import QUAD_SEGS, vertical_extent
 from diegen.geometry.types import Hole
 from diegen.spec.model import HoleRules, HoleSpec
 
+__all__ = [
+    "MAX_AUTO_HOLES",
+    "MAX_DEPTH_FRACTION",
+    "ROUND_TO_MM",
+    "auto_holes",
+    "explicit_holes",
+    "hole_flange_height",
+    "usable_web",
+]
+
 MAX_DEPTH_FRACTION = 0.65
 MAX_AUTO_HOLES = 12
 ROUND_TO_MM = 1.0  # auto diameters are rounded down to a whole millimetre (hole saws and cutters come in steps)

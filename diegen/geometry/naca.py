@@ -32,6 +32,18 @@ from diegen.errors import AirfoilError
 from diegen.geometry.loops import FloatArray
 from diegen.geometry.section import MIN_POINTS
 
+__all__ = [
+    "NacaParameters",
+    "cosine_stations",
+    "leading_edge_radius",
+    "naca4_camber",
+    "naca4_thickness",
+    "naca5_camber",
+    "naca_section",
+    "naca_surfaces",
+    "parse_designation",
+]
+
 # Thickness-distribution coefficients, NACA Report 824 / Theory of Wing Sections
 # ch. 6: yt = 5 t (0.29690 sqrt(x) - 0.12600 x - 0.35160 x^2 + 0.28430 x^3 - 0.10150 x^4).
 _A0, _A1, _A2, _A3, _A4 = 0.2969, -0.1260, -0.3516, 0.2843, -0.1015

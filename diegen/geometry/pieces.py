@@ -26,6 +26,23 @@ import numpy as np
 from diegen.errors import GeometryError
 from diegen.geometry.types import Joggle, Point, Points, Run
 
+__all__ = [
+    "JOGGLE_SAMPLE_MM",
+    "MIN_END_FACE_MM",
+    "MIN_POINT_GAP_MM",
+    "RAMP_BEND",
+    "SparCut",
+    "depth_at",
+    "joggles_for",
+    "monotone_surfaces",
+    "piece_runs",
+    "ramp_length",
+    "ramp_shape",
+    "relief_points",
+    "surface_y",
+    "tail_end",
+]
+
 JOGGLE_SAMPLE_MM = 0.5  # point spacing along a joggle ramp and zone
 RAMP_BEND = 10.0 / math.sqrt(3.0)  # the ramp's tightest radius is L²/(RAMP_BEND·d) (see ramp_shape)
 MIN_POINT_GAP_MM = 0.2  # closer outline points are merged

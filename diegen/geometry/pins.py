@@ -20,6 +20,8 @@ from diegen.geometry.polygon import QUAD_SEGS, inscribed_diameter, vertical_exte
 from diegen.geometry.types import Hole, Pin
 from diegen.spec.model import PinSpot
 
+__all__ = ["LONG_PIECE_MM", "SCAN_LINES", "auto_pins", "explicit_pins", "pin_room", "pin_web_depth"]
+
 SCAN_LINES = 200  # candidate x positions across the piece
 LONG_PIECE_MM = 400.0  # pieces longer than this get a third pin (common practice, no source)
 

@@ -9,6 +9,18 @@ from shapely.geometry import Polygon
 from diegen.errors import GeometryError
 from diegen.geometry.types import Points
 
+__all__ = [
+    "QUAD_SEGS",
+    "as_points",
+    "inscribed_diameter",
+    "offset_inward",
+    "outline_deviation_mm",
+    "round_concave_corners",
+    "single_polygon",
+    "vertical_extent",
+    "vertical_extents",
+]
+
 # Segments per quarter circle for offsets: the chordal error of a round join of
 # radius r is r·(1 − cos(π/(4·QUAD_SEGS))), 0.0012·r at 16.
 QUAD_SEGS = 16

@@ -19,6 +19,8 @@ from diegen.geometry.polygon import QUAD_SEGS, as_points, inscribed_diameter, of
 from diegen.geometry.types import Hole, PieceGeometry, RibGeometry
 from diegen.spec.model import AirfoilSource, RibSpec
 
+__all__ = ["DEPTH_SAMPLES", "FAIR_MARGIN_MM", "load_section", "min_tail_depth", "raw_section", "rib_geometry"]
+
 DEPTH_SAMPLES = 64
 FAIR_MARGIN_MM = 0.5  # joggle ramps bend this much rounder than the die wall's inset (design choice: room for sampling)
 

@@ -22,6 +22,24 @@ from numpy.typing import ArrayLike
 from diegen.errors import AirfoilError
 from diegen.geometry.loops import FloatArray, IntArray, is_counter_clockwise, signed_area
 
+__all__ = [
+    "DUPLICATE_TOL",
+    "MAX_TE_GAP",
+    "MIN_POINTS",
+    "blend",
+    "cubic_spline",
+    "first_x_reversal",
+    "leading_edge_index",
+    "normalise",
+    "normalise_with_index",
+    "resample",
+    "self_intersection_index",
+    "split_surfaces",
+    "surface_fractions",
+    "thickness_at",
+    "validate",
+]
+
 MIN_POINTS = 10
 # Two points closer than this (fraction of the outline's size) are the same point.
 DUPLICATE_TOL = 1e-9

@@ -12,6 +12,8 @@ from typing import Literal
 from diegen.findings import Finding
 from diegen.geometry.loops import loop_length, signed_area
 
+__all__ = ["Hole", "Joggle", "PieceGeometry", "Pin", "Point", "Points", "RibGeometry", "Run"]
+
 Point = tuple[float, float]
 Points = tuple[Point, ...]
 

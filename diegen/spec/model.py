@@ -10,6 +10,35 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from typing import Literal
 
+__all__ = [
+    "PIECE_NAMES",
+    "RELIEF_POLICIES",
+    "RIB_ORIENTATIONS",
+    "AirfoilSource",
+    "Die",
+    "Flange",
+    "HoleRules",
+    "HoleSpec",
+    "Holes",
+    "PieceName",
+    "PinSpot",
+    "Pins",
+    "Press",
+    "ReliefPolicy",
+    "RibOrientation",
+    "RibOverride",
+    "RibSpec",
+    "Rubber",
+    "Shared",
+    "Sheet",
+    "Spar",
+    "Spec",
+    "SpecPositions",
+    "Stations",
+    "WingSpar",
+    "WingSpec",
+]
+
 PieceName = Literal["nose", "center", "tail"]
 PIECE_NAMES: tuple[str, ...] = ("nose", "center", "tail")
 ReliefPolicy = Literal["flutes", "notches", "none"]

@@ -16,6 +16,8 @@ from diegen import units
 from diegen.errors import Problem
 from diegen.spec.yamltree import YNode
 
+__all__ = ["MIN_LENGTH_MM", "Reader", "describe", "join", "suggest"]
+
 T = TypeVar("T")
 MIN_LENGTH_MM = 0.001
 

@@ -39,6 +39,38 @@ from diegen.spec.reader import Reader, describe, join
 from diegen.spec.yamltree import YNode
 from diegen.units import in_to_mm
 
+__all__ = [
+    "HEADER_KEYS",
+    "ID_PATTERN",
+    "MAX_RIBS",
+    "NACA_PATTERN",
+    "RIB_KEYS",
+    "SHARED_KEYS",
+    "SPEC_VERSION",
+    "WALL_CLEARANCE",
+    "WING_KEYS",
+    "by_units",
+    "check_pieces",
+    "default_hole_rules",
+    "read_airfoil",
+    "read_die",
+    "read_flange",
+    "read_header",
+    "read_hole_rules",
+    "read_holes",
+    "read_overrides",
+    "read_pieces",
+    "read_pins",
+    "read_press",
+    "read_rib",
+    "read_shared",
+    "read_sheet",
+    "read_spar",
+    "read_spars",
+    "read_stations",
+    "read_wing",
+]
+
 SPEC_VERSION = 1
 MAX_RIBS = 200  # ribs of one wing spec, however the stations are given
 ID_PATTERN = re.compile(r"^[A-Za-z0-9][A-Za-z0-9_.-]{0,63}$")

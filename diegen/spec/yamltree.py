@@ -16,6 +16,8 @@ import yaml
 
 from diegen.errors import Problem, SpecError
 
+__all__ = ["MAX_DEPTH", "MAX_FILE_BYTES", "MAX_NODES", "YNode", "load_file", "load_text"]
+
 # A spec is a few kB (a 200-rib wing with an override per rib is under 50 kB);
 # the pure-Python parser takes about a second per MB, so larger files are refused unread.
 MAX_FILE_BYTES = 256_000

@@ -72,4 +72,4 @@ def write_stl(shape: Any, path: str | os.PathLike[str], tolerance_mm: float = ST
             raise SolidError(f"STL for {os.fspath(path)!r} is not printable: {'; '.join(problems)}")
 
 
-__all__ = ["DieTile", "STL_ANGULAR_TOLERANCE_DEG", "STL_TOLERANCE_MM", "tile_for_bed", "write_step", "write_stl"]
+__all__ = ["STL_ANGULAR_TOLERANCE_DEG", "STL_TOLERANCE_MM", "DieTile", "tile_for_bed", "write_step", "write_stl"]

@@ -21,6 +21,8 @@ from diegen.errors import SolidError
 from diegen.die.die_input import DieInput
 from diegen.die.occ.validate import check_solid
 
+__all__ = ["DieTile", "tile_for_bed"]
+
 
 @dataclass(frozen=True, eq=False)
 class DieTile:

@@ -16,6 +16,19 @@ import numpy as np
 from diegen.errors import SolidError
 from diegen.die.settings import VOLUME_EPS
 
+__all__ = [
+    "check_solid",
+    "check_step_file",
+    "check_stl_file",
+    "quick_volume_mm3",
+    "read_step",
+    "read_stl_triangles",
+    "solid_problems",
+    "step_file_problems",
+    "stl_problems",
+    "volume_mm3",
+]
+
 
 def volume_mm3(shape: Any) -> float:
     """Volume of a cadquery/OCP shape (mm³), by adaptive integration (see ``VOLUME_EPS``)."""
