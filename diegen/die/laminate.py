@@ -16,11 +16,11 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from diegen.errors import GeometryError
-from diegen.geometry import die_wall
 from diegen.die.die_input import DieInput, DieRun
 from diegen.die.model import flute_scale, outline_model
 from diegen.die.outline import OffsetPiece, OutlineModel
+from diegen.errors import GeometryError
+from diegen.geometry import die_wall
 
 __all__ = ["LaminateLayer", "laminate_layers"]
 

@@ -25,6 +25,7 @@ flute that is too deep for its width, on a straight edge, or crowding another.
 
 from __future__ import annotations
 
+import itertools
 import math
 from collections.abc import Sequence
 from dataclasses import dataclass
@@ -34,9 +35,9 @@ from scipy.interpolate import BSpline, make_interp_spline
 from shapely.geometry import Polygon
 from shapely.validation import explain_validity
 
+from diegen.die.die_input import DieFlute, DieRun, RunKind
 from diegen.errors import GeometryError
 from diegen.forming.relief import flute_arc_radius
-from diegen.die.die_input import DieFlute, DieRun, RunKind
 from diegen.geometry.loops import FloatArray
 
 __all__ = [
@@ -91,7 +92,7 @@ class _LineSegment(_Segment):
 
     def deriv(self, s: FloatArray | float, inset: float) -> FloatArray:
         s = np.asarray(s, dtype=float)
-        return np.broadcast_to(self.t, s.shape + (2,)).copy()
+        return np.broadcast_to(self.t, (*s.shape, 2)).copy()
 
     def tangent(self, s: FloatArray | float) -> FloatArray:
         return self.deriv(s, 0.0)
@@ -104,7 +105,8 @@ class _CurveSegment(_Segment):
         if np.any(chord < 1e-9):
             i = int(np.argmin(chord))
             raise GeometryError(
-                f"outline curve has two coincident points at ({pts[i, 0]:.3f}, {pts[i, 1]:.3f}) mm: remove the duplicate"
+                f"outline curve has two coincident points at ({pts[i, 0]:.3f}, {pts[i, 1]:.3f}) mm: "
+                "remove the duplicate"
             )
         u = np.concatenate([[0.0], np.cumsum(chord)])
         self.length = float(u[-1])
@@ -251,7 +253,7 @@ class OutlineModel:
             if run.kind == "curve":
                 self.segments.append(_CurveSegment(pts, periodic=False))
             else:
-                for a, b in zip(pts[:-1], pts[1:]):
+                for a, b in itertools.pairwise(pts):
                     if np.linalg.norm(b - a) < 1e-6:
                         raise GeometryError(f"outline line run has a zero-length edge at ({a[0]:.3f}, {a[1]:.3f}) mm")
                     self.segments.append(_LineSegment(a, b))
@@ -316,7 +318,7 @@ class OutlineModel:
         rho = 1.0 / np.maximum(np.abs(seg.curvature(s)), 1e-9)
         h = np.clip((384.0 * self.sample_tol_mm / 8.0 * rho**3) ** 0.25, 0.25, self.max_spacing_mm)
         density = np.concatenate([[0.0], np.cumsum(0.5 * (1 / h[1:] + 1 / h[:-1]) * np.diff(s))])
-        count = max(4, int(math.ceil(density[-1])) + 1)
+        count = max(4, math.ceil(density[-1]) + 1)
         targets = np.linspace(0.0, density[-1], count)
         return (np.interp(targets, density, s) - s0) / length
 
@@ -544,7 +546,7 @@ class OutlineModel:
 
     @staticmethod
     def _even(length: float, spacing_mm: float) -> FloatArray:
-        return np.linspace(0.0, 1.0, max(4, int(math.ceil(length / spacing_mm)) + 1))
+        return np.linspace(0.0, 1.0, max(4, math.ceil(length / spacing_mm) + 1))
 
     @staticmethod
     def _check_simple(pieces: list[OffsetPiece], inset: float) -> None:
@@ -552,7 +554,8 @@ class OutlineModel:
         if not poly.is_valid or poly.area <= 0.0:
             raise GeometryError(
                 f"the die outline offset inward by {inset:.3f} mm crosses itself ({explain_validity(poly)}): "
-                "the piece is too thin there for its wall; lower the top radius or the undercut, or end the piece sooner"
+                "the piece is too thin there for its wall; lower the top radius or the undercut, "
+                "or end the piece sooner"
             )
 
 

@@ -20,8 +20,8 @@ import os
 from dataclasses import dataclass
 from pathlib import Path
 
-from diegen.errors import OutputError
 from diegen.blank.drawing import CUT, DRILL, LAYERS, NOTE, SCRIBE, BlankDrawing, Circle, Polyline
+from diegen.errors import OutputError
 from diegen.fileio import write_with
 from diegen.geometry.loops import signed_area
 
@@ -53,7 +53,7 @@ def write_outlines_dxf(outlines: list[tuple[str, list[tuple[float, float]]]], pa
     for index, (layer, points) in enumerate(outlines):
         doc.layers.add(layer, color=1 + index % 6)
         msp.add_lwpolyline(points, close=True, dxfattribs={"layer": layer})
-    write_with(path, lambda tmp: doc.saveas(tmp))
+    write_with(path, doc.saveas)
 
 
 def build_dxf(drawing: BlankDrawing):  # -> ezdxf.document.Drawing (kept untyped so ezdxf loads lazily)
@@ -101,7 +101,7 @@ def write_dxf(drawing: BlankDrawing, path: str | os.PathLike[str]) -> Path:
     doc = build_dxf(drawing)
     target = Path(path)
     try:
-        write_with(target, lambda tmp: doc.saveas(tmp))
+        write_with(target, doc.saveas)
     except OSError as exc:
         raise OutputError(f"cannot write DXF {target}: {exc}") from exc
     return target

@@ -127,7 +127,7 @@ def _build_chain(rows: _Rows, name: str) -> tuple[FloatArray, IntArray]:
     data, lines = rows.values, rows.lines
     first = data[0]
     if _is_count(first[0]) and _is_count(first[1]):
-        n_upper, n_lower = int(round(first[0])), int(round(first[1]))
+        n_upper, n_lower = round(float(first[0])), round(float(first[1]))
         rest, rest_lines = data[1:], lines[1:]
         if n_upper + n_lower == len(rest):
             rest = rest / 100.0 if np.abs(rest).max() > PERCENT_THRESHOLD else rest

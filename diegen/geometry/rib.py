@@ -14,7 +14,15 @@ from diegen.errors import GeometryError
 from diegen.findings import Finding
 from diegen.geometry import holes as hole_rules
 from diegen.geometry import pins as pin_rules
-from diegen.geometry.pieces import SparCut, depth_at, joggles_for, monotone_surfaces, piece_runs, relief_points, tail_end
+from diegen.geometry.pieces import (
+    SparCut,
+    depth_at,
+    joggles_for,
+    monotone_surfaces,
+    piece_runs,
+    relief_points,
+    tail_end,
+)
 from diegen.geometry.polygon import QUAD_SEGS, as_points, inscribed_diameter, offset_inward, vertical_extents
 from diegen.geometry.types import Hole, PieceGeometry, RibGeometry
 from diegen.spec.model import AirfoilSource, RibSpec
@@ -31,7 +39,10 @@ def raw_section(source: AirfoilSource) -> np.ndarray:
     from diegen.geometry.coordfile import read_coordinates
     from diegen.geometry.naca import naca_section
 
-    raw = naca_section(source.naca, n_points=801, closed_te=source.closed_te) if source.naca else read_coordinates(source.file)
+    if source.naca:
+        raw = naca_section(source.naca, n_points=801, closed_te=source.closed_te)
+    else:
+        raw = read_coordinates(source.file)
     raw.setflags(write=False)
     return raw
 
@@ -132,7 +143,8 @@ def _piece(spec: RibSpec, name: str, x0: float | None, x1: float, aft_flanged: b
     points = [p for run in runs for p in run.points[:-1]]
     polygon = Polygon(points)
     if not polygon.is_valid or polygon.area <= 0:
-        raise GeometryError(f"the {name} piece of rib {spec.id} is not a simple outline (joggles deeper than the section?)")
+        raise GeometryError(f"the {name} piece of rib {spec.id} is not a simple outline "
+                            "(joggles deeper than the section?)")
     radius = shared.flange.bend_radius_mm
     if polygon.buffer(-radius, quad_segs=QUAD_SEGS).is_empty:
         deepest = inscribed_diameter(polygon)

@@ -322,7 +322,7 @@ def _resample_surfaces(loop: ArrayLike, n_points: int) -> tuple[FloatArray, Floa
 
     out = []
     for t_end, end_point, count in ((t[0], chain[0], n_upper), (t[-1], chain[-1], n_lower)):
-        n_fine = max(_ARC_SAMPLES_PER_SEGMENT * int(round(abs(t_end - t[i_le]) / np.mean(seg))), 200)
+        n_fine = max(_ARC_SAMPLES_PER_SEGMENT * round(float(abs(t_end - t[i_le]) / np.mean(seg))), 200)
         tf = np.linspace(t[i_le], t_end, n_fine)
         pts = spline(tf)
         arc = np.concatenate(([0.0], np.cumsum(np.linalg.norm(np.diff(pts, axis=0), axis=1))))

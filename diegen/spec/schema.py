@@ -7,6 +7,7 @@ key of a section and keep the rest.
 
 from __future__ import annotations
 
+import itertools
 import re
 from dataclasses import replace
 from pathlib import Path
@@ -19,11 +20,11 @@ from diegen.spec.model import (
     AirfoilSource,
     Die,
     Flange,
-    Holes,
     HoleRules,
+    Holes,
     HoleSpec,
-    PinSpot,
     Pins,
+    PinSpot,
     Press,
     RibOverride,
     RibSpec,
@@ -80,8 +81,8 @@ NACA_PATTERN = re.compile(r"^(?:naca\s*)?(?:-\s*)?(\d{4,5})$", re.IGNORECASE)
 HEADER_KEYS = ("diegen", "kind", "id", "units", "title")
 SHARED_KEYS = ("skin_thickness", "sheet", "flange", "pieces", "lightening_holes", "hole_rules", "pins",
                "dowel_diameter", "relief", "die", "press", "joggle_runout")
-RIB_KEYS = HEADER_KEYS + ("airfoil", "chord", "spars") + SHARED_KEYS
-WING_KEYS = HEADER_KEYS + ("planform", "airfoil", "spars", "overrides") + SHARED_KEYS
+RIB_KEYS = (*HEADER_KEYS, "airfoil", "chord", "spars", *SHARED_KEYS)
+WING_KEYS = (*HEADER_KEYS, "planform", "airfoil", "spars", "overrides", *SHARED_KEYS)
 
 # Room wanted between the die and each wall of the rubber box when the spec gives none: a round number in the
 # spec's own units, 1 in or 25 mm (common practice, no source).  Read as ``by_units(units, *WALL_CLEARANCE)``.
@@ -200,7 +201,7 @@ def read_flange(r: Reader, node: YNode | None, path: str, base: Flange | None = 
 
 def read_spar(r: Reader, node: YNode, path: str, wing: bool) -> Spar | WingSpar | None:
     position_keys = ("at", "root_at", "tip_at") if wing else ("at",)
-    fields = r.mapping(node, path, position_keys + ("web", "cap_thickness", "cap_width"),
+    fields = r.mapping(node, path, (*position_keys, "web", "cap_thickness", "cap_width"),
                        ("web", "cap_thickness", "cap_width") + (() if wing else ("at",)))
     if fields is None:
         return None
@@ -212,7 +213,8 @@ def read_spar(r: Reader, node: YNode, path: str, wing: bool) -> Spar | WingSpar 
         return Spar(positions["at"], web, cap_t, cap_w)
     given = {k for k in position_keys if k in fields}
     if given not in ({"at"}, {"root_at", "tip_at"}):
-        r.problem(node, path, "expected either 'at' (constant chord fraction) or both 'root_at' and 'tip_at' (a straight spar line)")
+        r.problem(node, path, "expected either 'at' (constant chord fraction) or both 'root_at' and 'tip_at' "
+                              "(a straight spar line)")
         return None
     root_at = positions["at"] if "at" in given else positions["root_at"]
     tip_at = positions["at"] if "at" in given else positions["tip_at"]
@@ -364,7 +366,10 @@ def read_shared(r: Reader, root: dict[str, YNode], base: Shared | None = None) -
     dowel = r.length(root.get("dowel_diameter"), "dowel_diameter", high=in_to_mm(1.0))
     dowel = _or(dowel, base.pins.diameter_mm if base else by_units(r.units, 0.125, 3.0))
     holes_node = root.get("lightening_holes")
-    holes = read_holes(r, holes_node, "lightening_holes", rules) if (holes_node or not base) else replace(base.holes, rules=rules)
+    if holes_node or not base:
+        holes = read_holes(r, holes_node, "lightening_holes", rules)
+    else:
+        holes = replace(base.holes, rules=rules)
     pins_node = root.get("pins")
     pins = read_pins(r, pins_node, "pins", dowel) if (pins_node or not base) else replace(base.pins, diameter_mm=dowel)
     relief = r.choice(root.get("relief"), "relief", RELIEF_POLICIES)
@@ -390,12 +395,14 @@ def check_pieces(r: Reader, root: dict[str, YNode], pieces: tuple[str, ...] | No
     needs = {"nose": 1, "tail": 1, "center": 2}
     for name in pieces:
         if spar_count < needs[name]:
-            r.problem(node, "pieces", f"piece {name!r} needs at least {needs[name]} spar(s) to bound it, found {spar_count}")
+            r.problem(node, "pieces",
+                      f"piece {name!r} needs at least {needs[name]} spar(s) to bound it, found {spar_count}")
 
 
 # -- rib and wing ----------------------------------------------------------
 def read_rib(r: Reader, root: dict[str, YNode], spec_dir: Path) -> RibSpec:
-    r.mapping(YNode(root, 1, 1, {k: (v.line, v.column) for k, v in root.items()}), "", RIB_KEYS, ("id", "airfoil", "chord"))
+    r.mapping(YNode(root, 1, 1, {k: (v.line, v.column) for k, v in root.items()}), "", RIB_KEYS,
+              ("id", "airfoil", "chord"))
     ident, title = read_header(r, root, "rib")
     airfoil = read_airfoil(r, root.get("airfoil"), "airfoil", spec_dir)
     chord = r.length(root.get("chord"), "chord", high=20_000.0)
@@ -413,7 +420,7 @@ def read_stations(r: Reader, node: YNode | None, path: str) -> Stations | None:
                      for i, item in enumerate(r.sequence(node, path, 2, MAX_RIBS) or ())]
         if None in positions:
             return None
-        if any(b <= a for a, b in zip(positions, positions[1:])):
+        if any(b <= a for a, b in itertools.pairwise(positions)):
             r.problem(node, path, "expected rib stations in increasing order from the root")
             return None
         return Stations(positions_mm=tuple(positions))  # type: ignore[arg-type]
@@ -443,7 +450,8 @@ def read_wing(r: Reader, root: dict[str, YNode], spec_dir: Path) -> WingSpec:
     sweep = _or(r.number(_get(plan, "sweep"), "planform.sweep", -60.0, 60.0), 0.0)
     sweep_line = _or(r.number(_get(plan, "sweep_line"), "planform.sweep_line", 0.0, 1.0), 0.25)
     stations = read_stations(r, _get(plan, "stations"), "planform.stations")
-    orientation = _or(r.choice(_get(plan, "rib_orientation"), "planform.rib_orientation", RIB_ORIENTATIONS), "streamwise")
+    orientation = _or(r.choice(_get(plan, "rib_orientation"), "planform.rib_orientation", RIB_ORIENTATIONS),
+                      "streamwise")
     if stations and span and stations.pitch_mm and span / stations.pitch_mm > MAX_RIBS - 1:
         r.problem(_get(plan, "stations"), "planform.stations",
                   f"expected a pitch giving at most {MAX_RIBS} ribs over the span ({span:g} mm), "
@@ -453,7 +461,9 @@ def read_wing(r: Reader, root: dict[str, YNode], spec_dir: Path) -> WingSpec:
                   f"expected stations within the span ({span:g} mm), found one at {stations.positions_mm[-1]:g} mm")
     airfoil_node = root.get("airfoil")
     root_af = tip_af = None
-    if airfoil_node is not None and airfoil_node.is_map and ("root" in airfoil_node.value or "tip" in airfoil_node.value):
+    blended = airfoil_node is not None and airfoil_node.is_map and (
+        "root" in airfoil_node.value or "tip" in airfoil_node.value)
+    if blended:
         fields = r.mapping(airfoil_node, "airfoil", ("root", "tip"), ("root", "tip"))
         root_af = read_airfoil(r, _get(fields, "root"), "airfoil.root", spec_dir)
         tip_af = read_airfoil(r, _get(fields, "tip"), "airfoil.tip", spec_dir)
@@ -473,11 +483,14 @@ def read_overrides(r: Reader, node: YNode | None, shared: Shared) -> tuple[RibOv
     result = []
     for i, item in enumerate(r.sequence(node, "overrides", 0, 200) or ()):
         path = join("overrides", i)
-        fields = r.mapping(item, path, ("ribs",) + SHARED_KEYS, ("ribs",))
+        fields = r.mapping(item, path, ("ribs", *SHARED_KEYS), ("ribs",))
         if fields is None or any(getattr(shared, name) is None for name in Shared.__dataclass_fields__):
             continue  # the wing's own sections have problems (already reported): nothing to override
         ribs_node = fields.get("ribs")
-        rib_items = [ribs_node] if ribs_node is not None and not ribs_node.is_list else (r.sequence(ribs_node, join(path, "ribs"), 1, 200) or [])
+        if ribs_node is not None and not ribs_node.is_list:
+            rib_items = [ribs_node]
+        else:
+            rib_items = r.sequence(ribs_node, join(path, "ribs"), 1, 200) or []
         ribs = [r.integer(n, join(path, "ribs"), 1, 200) for n in rib_items]
         sub = Reader(r.file, r.units)
         prefixed = {k: v for k, v in fields.items() if k != "ribs"}

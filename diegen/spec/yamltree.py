@@ -213,7 +213,8 @@ def load_file(path: str | Path) -> YNode:
     try:
         size = path.stat().st_size
         if size > MAX_FILE_BYTES:
-            raise SpecError(Problem(f"file is {size} bytes: larger than {MAX_FILE_BYTES // 1000} kB, not a spec", str(path)))
+            raise SpecError(Problem(f"file is {size} bytes: larger than {MAX_FILE_BYTES // 1000} kB, not a spec",
+                                    str(path)))
         raw = path.read_bytes()
     except FileNotFoundError:
         raise SpecError(Problem("file not found", str(path))) from None

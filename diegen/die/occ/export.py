@@ -23,10 +23,10 @@ import math
 import os
 from typing import Any
 
-from diegen.errors import SolidError
-from diegen.fileio import atomic_path
 from diegen.die.occ.tiles import DieTile, tile_for_bed
 from diegen.die.occ.validate import step_file_problems, stl_problems
+from diegen.errors import SolidError
+from diegen.fileio import atomic_path
 
 STL_TOLERANCE_MM = 0.05
 STL_ANGULAR_TOLERANCE_DEG = 15.0
