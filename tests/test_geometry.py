@@ -16,9 +16,21 @@ from dataclasses import replace
 
 import numpy as np
 import pytest
-from scipy.interpolate import CubicSpline
 import shapely
+from scipy.interpolate import CubicSpline
 from shapely.geometry import LinearRing, LineString, Polygon
+from testing import (
+    DEMO_RIB,
+    DEMO_WING,
+    OUTLINE_TOL_MM,
+    ROOT,
+    as_array,
+    assert_valid_ccw_outline,
+    distances_to,
+    point,
+    stretch_limit,
+    vertical_chord,
+)
 
 from diegen import api
 from diegen.errors import GeometryError
@@ -26,9 +38,6 @@ from diegen.geometry.pieces import ramp_length
 from diegen.geometry.rib import min_tail_depth, rib_geometry
 from diegen.geometry.types import PieceGeometry, RibGeometry
 from diegen.spec.model import AirfoilSource, Holes, HoleSpec, RibSpec
-
-from testing import (DEMO_RIB, DEMO_WING, OUTLINE_TOL_MM, ROOT, as_array, assert_valid_ccw_outline, distances_to,
-                     point, stretch_limit, vertical_chord)
 
 
 @pytest.fixture(scope="module")
@@ -59,7 +68,8 @@ def test_check_path_does_not_import_the_solid_kernel() -> None:
     code = f"""
 import json, sys
 import diegen.geometry, diegen.geometry.rib, diegen.geometry.pieces, diegen.geometry.holes, diegen.geometry.pins
-import diegen.geometry.polygon, diegen.geometry.types, diegen.analysis, diegen.blank.develop, diegen.reports.document, diegen.reports.text, diegen.wing
+import diegen.geometry.polygon, diegen.geometry.types, diegen.analysis, diegen.blank.develop
+import diegen.reports.document, diegen.reports.text, diegen.wing
 import diegen.api, diegen.cli
 from diegen import api
 analysis = api.analyse(api.load({str(DEMO_RIB)!r}))
@@ -67,7 +77,8 @@ api.report_json(analysis)
 api.report_text(analysis)
 print(json.dumps(sorted(m for m in sys.modules if m.split('.')[0] in ('cadquery', 'OCP'))))
 """
-    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=ROOT, timeout=120)
+    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=ROOT, timeout=120,
+                          check=False)
     assert done.returncode == 0, done.stderr
     assert json.loads(done.stdout.strip().splitlines()[-1]) == []
 
@@ -124,7 +135,7 @@ def _le_radius(section: np.ndarray, slope: float) -> float:
 
 
 @pytest.mark.parametrize(("naca", "rel"), [("0006", 0.005), ("0012", 0.005), ("0015", 0.005), ("2412", 0.01)],
-                         ids=lambda v: str(v))
+                         ids=str)
 def test_leading_edge_radius_matches_report_824(spec: RibSpec, naca: str, rel: float) -> None:
     # NACA Report 824 (Abbott, von Doenhoff, Stivers 1945): r_t = 1.1019·t²·c for the 4-digit thickness form
     # (NACA 0012: 1.587 % c, as tabulated).  Measured on the scaled, re-sampled section the rib uses.
@@ -236,8 +247,9 @@ def _joggle_points(rib: RibGeometry, piece: PieceGeometry, surface: str) -> tupl
 @pytest.mark.parametrize("cutter_mm", [6.35, 25.4], ids=["demo-cutter", "25mm-cutter"])
 def test_joggle_depth_and_ramp_profile(spec: RibSpec, cutter_mm: float) -> None:
     # The joggle recess: the wall steps in by the spar-cap thickness (a joggle in the
-    # form block is a recess of depth d with a run-out ramp: plane geometry of two reverse bends).  Measured as the shapely normal distance between the joggled
-    # piece outline and the plain die outline.  Ramp: d·(10u³ − 15u⁴ + 6u⁵) over L = max(runout·d, √(k·d·r_cutter)),
+    # form block is a recess of depth d with a run-out ramp: plane geometry of two reverse bends).  Measured as the
+    # shapely normal distance between the joggled piece outline and the plain die outline.
+    # Ramp: d·(10u³ − 15u⁴ + 6u⁵) over L = max(runout·d, √(k·d·r_cutter)),
     # k = 10/√3 (the project's rule: run-out 4·d is from memory, unverified; the √ term keeps the quintic's
     # tightest radius L²/(k·d) at least the cutter radius — derived: y'' = (d/L²)(60u − 180u² + 120u³) peaks at
     # ±10/√3 where u = ½ ∓ √3/6).
@@ -252,7 +264,7 @@ def test_joggle_depth_and_ramp_profile(spec: RibSpec, cutter_mm: float) -> None:
             assert j.depth_mm == pytest.approx(cap)
             k = 10 / math.sqrt(3)
             assert j.ramp_mm == pytest.approx(max(variant.shared.joggle_runout * cap, math.sqrt(k * cap * r_cutter)))
-            pts, dist, foot_x = _joggle_points(rib, piece, j.surface)
+            _pts, dist, foot_x = _joggle_points(rib, piece, j.surface)
             full = (foot_x >= j.x_start_mm) & (foot_x <= j.x_end_mm)
             assert full.sum() >= 20
             assert np.abs(dist[full] - j.depth_mm).max() < OUTLINE_TOL_MM

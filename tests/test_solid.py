@@ -8,6 +8,7 @@ straight spar end face: the nose piece of a rib.
 
 from __future__ import annotations
 
+import itertools
 import math
 import subprocess
 import sys
@@ -19,10 +20,10 @@ import pytest
 from shapely.geometry import LineString, Point, Polygon, box
 from shapely.geometry.polygon import orient
 
-from diegen.errors import GeometryError, SolidError
 from diegen.die.die_input import DieBore, DieFlute, DieInput, DiePin, DieRun
-from diegen.geometry.die_wall import fillet_end_depth_mm, top_setback_mm
 from diegen.die.occ.validate import solid_problems
+from diegen.errors import GeometryError, SolidError
+from diegen.geometry.die_wall import fillet_end_depth_mm, top_setback_mm
 
 pytestmark = [pytest.mark.solid, pytest.mark.slow]
 
@@ -136,10 +137,9 @@ def wire_points(wire, step: float = 0.05) -> np.ndarray:
 
 def section_points(shape, origin, normal, step: float = 0.01, curved_only: bool = False) -> np.ndarray:
     """Points of the shape's boundary cut by the plane through ``origin`` normal to ``normal``."""
+    import cadquery as cq
     from OCP.BRepAlgoAPI import BRepAlgoAPI_Section
     from OCP.gp import gp_Dir, gp_Pln, gp_Pnt
-
-    import cadquery as cq
 
     sec = BRepAlgoAPI_Section(shape.wrapped, gp_Pln(gp_Pnt(*origin), gp_Dir(*normal)))
     sec.Build()
@@ -161,7 +161,8 @@ def fit_circle(u: np.ndarray, v: np.ndarray) -> tuple[float, float, float]:
 
 # ---------------------------------------------------------------- import boundary
 def test_package_imports_without_kernel():
-    code = "import sys, diegen.die.occ.files, diegen.die.laminate, diegen.pipeline.build, diegen.api; assert 'cadquery' not in sys.modules and 'OCP' not in sys.modules"
+    code = ("import sys, diegen.die.occ.files, diegen.die.laminate, diegen.pipeline.build, diegen.api; "
+            "assert 'cadquery' not in sys.modules and 'OCP' not in sys.modules")
     subprocess.run([sys.executable, "-c", code], check=True, cwd=Path(__file__).resolve().parents[1])
 
 
@@ -212,7 +213,7 @@ def test_stl_watertight_and_volume_matches_step(which, bare_die, full_die, tmp_p
 
 
 def test_stl_not_written_when_check_fails(bare_die, tmp_path, monkeypatch):
-    import diegen.die.occ.export as export
+    from diegen.die.occ import export
 
     target = tmp_path / "keep.stl"
     target.write_bytes(b"earlier good file")
@@ -225,7 +226,7 @@ def test_stl_not_written_when_check_fails(bare_die, tmp_path, monkeypatch):
 
 def test_step_structure_check_finds_a_cut_short_file_and_keeps_the_earlier_one(bare_die, tmp_path, monkeypatch):
     """ISO 10303-21 frames the data between the "ISO-10303-21;" header and "END-ISO-10303-21;"."""
-    import diegen.die.occ.export as export
+    from diegen.die.occ import export
     from diegen.die.occ.validate import step_file_problems
 
     good = tmp_path / "good.step"
@@ -345,7 +346,7 @@ def test_bore_removes_cylinder_and_top_rounding(bare_input, bare_die):
     expected = math.pi * a**2 * H + 2 * math.pi * moment
     assert volume(bare_die) - volume(die) == pytest.approx(expected, rel=1e-4)
     top = planar_face_at(die, 0.0)
-    inner = [w for w in top.innerWires()]
+    inner = list(top.innerWires())
     assert len(inner) == 1
     c = inner[0].Center()
     assert (c.x, c.y) == pytest.approx((b.x, b.y), abs=1e-6)
@@ -360,8 +361,8 @@ def test_flute_depth_tapers_down_the_wall(bare_input):
     segment scaled in depth by depth/flute length.  The flute sits where the wall's radius is about 1 m.
     """
     from diegen.die.occ.form_block import build_die
-    from diegen.forming.relief import flute_arc_radius
     from diegen.die.outline import OutlineModel
+    from diegen.forming.relief import flute_arc_radius
 
     flute = DieFlute(420.0, 8.0, 2.0)
     die = build_die(replace(bare_input, flutes=(flute,), flute_length_mm=FLUTE_LENGTH))
@@ -410,7 +411,8 @@ def test_flute_at_a_corner_moves_clear_of_it_and_crowded_flutes_are_refused(bare
     with pytest.raises(GeometryError, match="straight end face"):
         build_die(replace(bare_input, flutes=(DieFlute(length + 20.0, 8.0, 2.0),), flute_length_mm=9.0))
     with pytest.raises(GeometryError, match="further apart"):
-        build_die(replace(bare_input, flutes=(DieFlute(300.0, 8.0, 2.0), DieFlute(308.1, 8.0, 2.0)), flute_length_mm=9.0))
+        crowded = (DieFlute(300.0, 8.0, 2.0), DieFlute(308.1, 8.0, 2.0))
+        build_die(replace(bare_input, flutes=crowded, flute_length_mm=9.0))
 
 
 def test_engraving_on_bottom_face_only_and_reads_from_below(bare_input, bare_die):
@@ -472,7 +474,7 @@ def test_inside_corner_tighter_than_cutter(bare_input):
 
     # a rectangle with a notch: the notch's inside corners are sharp
     pts = ((0, 0), (100, 0), (100, 40), (60, 40), (60, 30), (40, 30), (40, 40), (0, 40), (0, 0))
-    runs = tuple(DieRun("line", (a, b)) for a, b in zip(pts[:-1], pts[1:]))
+    runs = tuple(DieRun("line", (a, b)) for a, b in itertools.pairwise(pts))
     with pytest.raises(GeometryError, match="inside corner"):
         build_die(replace(bare_input, outline=runs))
 
@@ -536,7 +538,7 @@ def test_laminate_layers(bare_input, outline):
     from diegen.die.laminate import laminate_layers
 
     layers = laminate_layers(bare_input, 6.0)
-    assert [round(l.thickness_mm, 9) for l in layers] == [6.0, 6.0, 0.7]
+    assert [round(layer.thickness_mm, 9) for layer in layers] == [6.0, 6.0, 0.7]
     base = outline_polygon(outline)
     tan_a = math.tan(math.radians(UNDERCUT))
     for layer in layers:

@@ -13,6 +13,7 @@ from dataclasses import replace
 import numpy as np
 import pytest
 from shapely.geometry import LineString
+from testing import DEMO_WING, assert_outlines_close, distances_to, stretch_limit
 
 from diegen import api
 from diegen.geometry.naca import naca_section
@@ -21,8 +22,6 @@ from diegen.geometry.section import blend, resample
 from diegen.spec import parse_spec
 from diegen.spec.model import RibSpec, Stations, WingSpec
 from diegen.wing import chord_at, rib_spec, section_at, station_positions, stations
-
-from testing import DEMO_WING, assert_outlines_close, distances_to, stretch_limit
 
 IN = 25.4
 

@@ -106,7 +106,7 @@ def nearest_index(points: Sequence[Sequence[float]], point: Sequence[float]) -> 
 
 def vertical_chord(polygon: Polygon, x: float) -> float:
     """Length (mm) of the polygon's cut by the vertical line at ``x`` (the local depth of a simple shape)."""
-    minx, miny, maxx, maxy = polygon.bounds
+    _minx, miny, _maxx, maxy = polygon.bounds
     return float(polygon.intersection(LineString([(x, miny - 10), (x, maxy + 10)])).length)
 
 
