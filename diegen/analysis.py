@@ -197,7 +197,8 @@ def analyse_rib(spec: RibSpec, section: np.ndarray | None = None) -> RibAnalysis
     flange = spec.shared.flange
     springback = springback_for(spec, alloy)
     minimum = check_radius(spec, springback)
-    geometry = rib_geometry(spec, section, die_inset_mm=die_inset_mm(spec, springback))
+    geometry = rib_geometry(spec, section, die_inset_mm=die_inset_mm(spec, springback),
+                            stretch_limit=alloy.stretch_limit)
     layout = flange_layout(flange.height_mm, flange.bend_radius_mm, t, alloy.k_factor)
     pieces = tuple(_analyse_piece(spec, piece, alloy, minimum, springback, layout) for piece in geometry.pieces)
     return RibAnalysis(spec, geometry, pieces)

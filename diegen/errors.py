@@ -9,6 +9,19 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+__all__ = [
+    "AirfoilError",
+    "DiegenError",
+    "FormingError",
+    "GeometryError",
+    "MaterialError",
+    "NoRoomForMarks",
+    "OutputError",
+    "Problem",
+    "SolidError",
+    "SpecError",
+]
+
 
 @dataclass(frozen=True)
 class Problem:
@@ -56,6 +69,13 @@ class NoRoomForMarks(GeometryError):
 
 class FormingError(DiegenError, ValueError):
     """A part that cannot be formed as specified (radius below the minimum, ...)."""
+
+
+class MaterialError(DiegenError, KeyError):
+    """An alloy, die material or bend-radius table name that is not in the catalogue."""
+
+    def __str__(self) -> str:  # KeyError would quote the message
+        return str(self.args[0]) if self.args else ""
 
 
 class SolidError(DiegenError, RuntimeError):

@@ -18,6 +18,25 @@ import math
 import re
 from fractions import Fraction
 
+__all__ = [
+    "FORCE_UNITS",
+    "LBF_PER_SHORT_TON",
+    "LENGTH_UNITS",
+    "MAX_QUANTITY_CHARS",
+    "MM_PER_IN",
+    "MPA_PER_KSI",
+    "MPA_PER_PSI",
+    "N_PER_LBF",
+    "N_PER_SHORT_TON",
+    "SPEC_UNITS",
+    "UnitError",
+    "force_n",
+    "in_to_mm",
+    "length_mm",
+    "mm_to_in",
+    "mpa_to_psi",
+]
+
 MM_PER_IN = 25.4
 N_PER_LBF = 4.4482216152605
 LBF_PER_SHORT_TON = 2000.0

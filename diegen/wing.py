@@ -23,6 +23,8 @@ import numpy as np
 from diegen.errors import GeometryError
 from diegen.spec.model import RibSpec, Spar, WingSpec
 
+__all__ = ["RibStation", "chord_at", "leading_edge_at", "rib_spec", "section_at", "station_positions", "stations"]
+
 
 @dataclass(frozen=True)
 class RibStation:
@@ -43,7 +45,7 @@ def station_positions(spec: WingSpec) -> tuple[float, ...]:
         return tuple(float(y) for y in np.linspace(0.0, spec.span_mm, stations.count))
     pitch = stations.pitch_mm
     ys = list(np.arange(0.0, spec.span_mm - 1e-6, pitch))
-    return tuple(float(y) for y in ys) + (spec.span_mm,)
+    return (*(float(y) for y in ys), spec.span_mm)
 
 
 def chord_at(spec: WingSpec, y: float) -> float:

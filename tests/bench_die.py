@@ -50,7 +50,8 @@ def floor_run(points, height_mm: float, radius_mm: float, out: Path, tolerance_m
     tol = STL_TOLERANCE_MM if tolerance_mm is None else tolerance_mm
 
     def run() -> None:
-        shape = cq.Workplane("XY").polyline(points).close().extrude(-height_mm).faces(">Z").edges().fillet(radius_mm).val()
+        block = cq.Workplane("XY").polyline(points).close().extrude(-height_mm)
+        shape = block.faces(">Z").edges().fillet(radius_mm).val()
         shape.exportStep(str(out / "floor.step"))
         shape.exportStl(str(out / "floor.stl"), tol, math.radians(STL_ANGULAR_TOLERANCE_DEG), relative=False)
 
@@ -67,8 +68,8 @@ def floor_seconds(points, height_mm: float, radius_mm: float, out: Path, toleran
 
 def die_seconds(die, out: Path, tolerance_mm: float | None = None, repeat: int = REPEAT) -> float:
     """Median time of the full die: build (checked) + STEP + STL."""
-    from diegen.die.occ.form_block import build_die
     from diegen.die.occ.export import STL_TOLERANCE_MM, write_step, write_stl
+    from diegen.die.occ.form_block import build_die
 
     def run() -> None:
         solid = build_die(die)
@@ -81,12 +82,12 @@ def die_seconds(die, out: Path, tolerance_mm: float | None = None, repeat: int =
 
 def stages(die, out: Path, tolerance_mm: float) -> str:
     """Median time of each stage of one die, as text."""
+    from diegen.die.model import outline_model
     from diegen.die.occ.export import write_step, write_stl
     from diegen.die.occ.form_block import build_body
-    from diegen.die.model import outline_model
+    from diegen.die.occ.validate import solid_problems
     from diegen.die.placement import check_placement, engraving_marks
     from diegen.die.settings import DEFAULT_SETTINGS
-    from diegen.die.occ.validate import solid_problems
 
     def layout():
         model = outline_model(die)
@@ -126,7 +127,7 @@ def demo_rib(out: Path) -> None:
 
 def test_outline(out: Path) -> None:
     """The NACA 2412 nose piece of tests/test_solid.py, plain and with every feature."""
-    from test_solid import FLUTE_LENGTH, FLUTES, PINS, BORES, CUTTER, H, R, UNDERCUT, nose_outline
+    from test_solid import BORES, CUTTER, FLUTE_LENGTH, FLUTES, PINS, UNDERCUT, H, R, nose_outline
 
     from diegen.die.die_input import DieInput
 
@@ -145,11 +146,11 @@ def test_outline(out: Path) -> None:
 def stl_sweep(out: Path) -> None:
     """STL tolerance against time, size and volume error on the plain test die."""
     import numpy as np
-    from test_solid import CUTTER, H, R, UNDERCUT, nose_outline
+    from test_solid import CUTTER, UNDERCUT, H, R, nose_outline
 
     from diegen.die.die_input import DieInput
-    from diegen.die.occ.form_block import build_die
     from diegen.die.occ.export import write_stl
+    from diegen.die.occ.form_block import build_die
     from diegen.die.occ.validate import read_stl_triangles, volume_mm3
 
     body = build_die(DieInput("BENCH-N1", nose_outline(), H, R, UNDERCUT, CUTTER))
@@ -157,7 +158,7 @@ def stl_sweep(out: Path) -> None:
     print("STL sweep on the plain test die (tolerance mm, angle °: time s, triangles, MB, volume error %):")
     for t, a in [(0.01, 5.0), (0.02, 10.0), (0.05, 10.0), (0.05, 15.0), (0.05, 30.0), (0.1, 15.0), (0.1, 30.0)]:
         path = out / f"sweep-{t}-{a}.stl"
-        med = _timed(lambda: write_stl(body, path, t, a), 3)
+        med = _timed(lambda path=path, t=t, a=a: write_stl(body, path, t, a), 3)
         v = read_stl_triangles(path).astype(float)
         vol = float((v[:, 0] * np.cross(v[:, 1], v[:, 2])).sum() / 6.0)
         print(f"  {t:5.2f}, {a:4.0f}: {med:6.3f} s, {len(v):7d}, {path.stat().st_size / 1e6:6.2f}, "

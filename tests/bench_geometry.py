@@ -21,7 +21,7 @@ from pathlib import Path
 ROOT = Path(__file__).resolve().parent.parent
 sys.path.insert(0, str(ROOT))
 
-from diegen import api  # noqa: E402
+from diegen import api, materials  # noqa: E402
 from diegen.analysis import analyse_rib  # noqa: E402
 from diegen.geometry.rib import rib_geometry  # noqa: E402
 
@@ -51,8 +51,9 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("--profile", action="store_true", help="also print a cProfile of each case")
     args = parser.parse_args(argv)
     spec = api.load(DEMO_RIB)
+    limit = materials.sheet_alloy(spec.shared.sheet.alloy).stretch_limit
     cases: list[tuple[str, Callable[[], object], int, float]] = [
-        ("demo rib geometry, 3 pieces", lambda: rib_geometry(spec), 20, 50.0),
+        ("demo rib geometry, 3 pieces", lambda: rib_geometry(spec, stretch_limit=limit), 20, 50.0),
         ("demo rib forming analysis", lambda: analyse_rib(spec), 20, 100.0),
         ("check of the demo wing (13 ribs)", check_wing, 5, 1000.0),
     ]

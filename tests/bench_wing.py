@@ -37,7 +37,8 @@ def floor_seconds(spec_path: Path) -> float:
     analysis = api.analyse(api.load(spec_path))
     piece = (analysis.ribs[0] if hasattr(analysis, "ribs") else analysis).pieces[0]
     with tempfile.TemporaryDirectory() as tmp:
-        return floor_of(list(piece.piece.outline), piece.die_height_mm, piece.springback.die_radius_mm, Path(tmp), repeat=3)
+        return floor_of(list(piece.piece.outline), piece.die_height_mm, piece.springback.die_radius_mm, Path(tmp),
+                        repeat=3)
 
 
 def main() -> None:
@@ -46,10 +47,10 @@ def main() -> None:
 
     pieces = sum(len(r.pieces) for r in api.analyse(api.load(spec)).ribs)
     with tempfile.TemporaryDirectory() as tmp:
-        one = timed(DIEGEN + ["build", str(spec), "-o", f"{tmp}/j1", "-j", "1", "-q"])
-        two = timed(DIEGEN + ["build", str(spec), "-o", f"{tmp}/j2", "-j", "2", "-q"])
-        again = statistics.median(timed(DIEGEN + ["build", str(spec), "-o", f"{tmp}/j2", "-q"]) for _ in range(3))
-    check = statistics.median(timed(DIEGEN + ["check", str(spec)]) for _ in range(3))
+        one = timed([*DIEGEN, "build", str(spec), "-o", f"{tmp}/j1", "-j", "1", "-q"])
+        two = timed([*DIEGEN, "build", str(spec), "-o", f"{tmp}/j2", "-j", "2", "-q"])
+        again = statistics.median(timed([*DIEGEN, "build", str(spec), "-o", f"{tmp}/j2", "-q"]) for _ in range(3))
+    check = statistics.median(timed([*DIEGEN, "check", str(spec)]) for _ in range(3))
     floor = floor_seconds(spec)
     per_piece = one / pieces
     print(f"spec: {spec.name}, {pieces} pieces")

@@ -8,9 +8,10 @@ import pytest
 @pytest.fixture(scope="module")
 def spec():
     """The demo rib spec (specs/demo-rib.yaml), loaded once per test module."""
+    from testing import DEMO_RIB
+
     from diegen import api
     from diegen.spec.model import RibSpec
-    from testing import DEMO_RIB
 
     loaded = api.load(DEMO_RIB)
     assert isinstance(loaded, RibSpec)
@@ -35,7 +36,7 @@ def pytest_report_header(config):
         from importlib.metadata import version
 
         kernel = f"cadquery {version('cadquery')}, OCP {version('cadquery-ocp')}"
-    except Exception:  # reported, not fatal: the quick tests do not need the kernel
+    except Exception:  # noqa: BLE001 - reported, not fatal: the quick tests do not need the kernel
         kernel = "cadquery not installed"
     return f"diegen {__version__}; {kernel}; shapely {shapely.__version__}"
 

@@ -19,7 +19,8 @@ from testing import report
 
 from diegen.errors import AirfoilError
 from diegen.geometry.coordfile import read_coordinates
-from diegen.geometry.section import leading_edge_index, signed_area, validate
+from diegen.geometry.loops import signed_area
+from diegen.geometry.section import leading_edge_index, validate
 
 
 def _database_folder() -> Path:

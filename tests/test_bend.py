@@ -63,7 +63,7 @@ def test_u_channel_bend_deduction_gives_same_flat_pattern() -> None:
 @pytest.mark.parametrize(
     ("angle", "k_expected"),
     [(30, 0.26795), (45, 0.41421), (60, 0.57735), (90, 1.00000), (120, 1.73205), (135, 2.41421)],
-    ids=lambda v: str(v),
+    ids=str,
 )
 def test_setback_k_chart(angle: float, k_expected: float) -> None:
     # FAA-H-8083-31 ch. 4 K-chart; K = tan(angle/2) (derived, standard geometry).

@@ -32,14 +32,13 @@ import numpy as np
 import pytest
 import shapely
 from shapely.geometry import LinearRing, LineString, Polygon
+from testing import DEMO_RIB, as_array, circle_points, nearest_index, point, signed_area, turning_angles
 
 from diegen import api
 from diegen.analysis import PieceAnalysis, RibAnalysis
 from diegen.blank.develop import develop_blank, flange_band_area, relief_hole_diameter
 from diegen.export.dxf import read_dxf_outline, write_dxf
 from diegen.geometry.types import PieceGeometry, Run
-
-from testing import DEMO_RIB, as_array, circle_points, nearest_index, point, signed_area, turning_angles
 
 IN = 25.4
 
@@ -150,7 +149,8 @@ def test_blank_of_a_disc_follows_steiner(n: int) -> None:
     # as n grows that tends to Steiner's L·w + π·w² (n = 720: relative difference 6e-6).
     rho, w = 60.0, 11.5
     disc = _circle_piece(rho, n)
-    blank = develop_blank(disc, offset_mm=w, die_radius_mm=2.0, tangent_inset_mm=2.0, thickness_mm=0.635, material="test", pilot_diameters=[])
+    blank = develop_blank(disc, offset_mm=w, die_radius_mm=2.0, tangent_inset_mm=2.0, thickness_mm=0.635,
+                          material="test", pilot_diameters=[])
     length = n * 2 * rho * math.sin(math.pi / n)
     band = flange_band_area(blank, disc)
     assert band == pytest.approx(length * w + w**2 * n * math.tan(math.pi / n), rel=1e-9)

@@ -21,13 +21,13 @@ from hypothesis import strategies as st
 
 from diegen.errors import AirfoilError
 from diegen.geometry.coordfile import MAX_FILE_BYTES, parse_coordinates, read_coordinates
+from diegen.geometry.loops import signed_area
 from diegen.geometry.naca import naca4_thickness, naca_section
 from diegen.geometry.section import (
     blend,
     leading_edge_index,
     normalise,
     resample,
-    signed_area,
     split_surfaces,
     surface_fractions,
     thickness_at,

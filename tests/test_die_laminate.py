@@ -16,7 +16,7 @@ from dataclasses import replace
 import pytest
 from shapely.geometry import Polygon
 
-from diegen.die.die_input import DieInput, OutlineRun
+from diegen.die.die_input import DieInput, DieRun
 from diegen.die.from_analysis import die_input
 from diegen.die.laminate import laminate_layers
 from diegen.errors import GeometryError
@@ -27,7 +27,7 @@ from diegen.errors import GeometryError
 MEAN_GAP_TOL_MM = 0.02
 
 
-def polygon(runs: tuple[OutlineRun, ...]) -> Polygon:
+def polygon(runs: tuple[DieRun, ...]) -> Polygon:
     """The closed loop of consecutive runs (each run's last point is the next one's first)."""
     points = [p for run in runs for p in run.points[:-1]]
     return Polygon(points)

@@ -17,7 +17,7 @@ import pytest
 from shapely.geometry import LineString, Point, Polygon
 from shapely.ops import nearest_points, polylabel, unary_union
 
-from diegen.die.die_input import Bore, DieInput, OutlineRun, Pin
+from diegen.die.die_input import DieBore, DieInput, DiePin, DieRun
 from diegen.die.from_analysis import die_input
 from diegen.die.model import bottom_inset_mm, outline_model, section
 from diegen.die.outline import pieces_to_polygon
@@ -117,18 +117,18 @@ def _probe_points(die: DieInput, clearance: float) -> tuple[tuple[float, float],
 def test_pin_near_the_edge_is_refused_just_inside_the_wall(bare, bare_model) -> None:
     d = 3.2
     ok, close = _probe_points(bare, d / 2 + WALL)
-    check_placement(replace(bare, pins=(Pin(*ok, d, 10.0),)), bare_model, DEFAULT_SETTINGS)
+    check_placement(replace(bare, pins=(DiePin(*ok, d, 10.0),)), bare_model, DEFAULT_SETTINGS)
     with pytest.raises(GeometryError, match=rf"{bare.part_id}: pin hole at .* closer than {WALL:g} mm to the die's edge"):
-        check_placement(replace(bare, pins=(Pin(*close, d, 10.0),)), bare_model, DEFAULT_SETTINGS)
+        check_placement(replace(bare, pins=(DiePin(*close, d, 10.0),)), bare_model, DEFAULT_SETTINGS)
 
 
 def test_bore_counts_its_rounded_top_edge(bare, bare_model) -> None:
     d = 30.0
     reach = d / 2 + bare.bore_radius_mm
     ok, close = _probe_points(bare, reach + WALL)
-    check_placement(replace(bare, bores=(Bore(*ok, d),)), bare_model, DEFAULT_SETTINGS)
+    check_placement(replace(bare, bores=(DieBore(*ok, d),)), bare_model, DEFAULT_SETTINGS)
     with pytest.raises(GeometryError, match="bore at .* closer than"):
-        check_placement(replace(bare, bores=(Bore(*close, d),)), bare_model, DEFAULT_SETTINGS)
+        check_placement(replace(bare, bores=(DieBore(*close, d),)), bare_model, DEFAULT_SETTINGS)
 
 
 def test_two_bores_keep_the_wall_between_them(bare, bare_model) -> None:
@@ -137,7 +137,7 @@ def test_two_bores_keep_the_wall_between_them(bare, bare_model) -> None:
     cx, cy = polylabel(smallest_section(bare), tolerance=0.01).coords[0]
     for gap, refused in ((WALL + PROBE_MM, False), (WALL - PROBE_MM, True)):
         step = 2 * reach + gap
-        pair = (Bore(cx - step / 2, cy, d), Bore(cx + step / 2, cy, d))
+        pair = (DieBore(cx - step / 2, cy, d), DieBore(cx + step / 2, cy, d))
         discs = [Point(b.x, b.y).buffer(reach) for b in pair]
         assert smallest_section(bare).buffer(-WALL - 0.1).contains(unary_union(discs)), "probe off the plate"
         die = replace(bare, bores=pair)
@@ -153,11 +153,11 @@ def test_pin_depths(bare, bare_model) -> None:
     x, y = polylabel(smallest_section(bare), tolerance=0.01).coords[0]
     h = bare.height_mm
     for depth in (10.0, h - WALL - PROBE_MM, h):
-        check_placement(replace(bare, pins=(Pin(x, y, 3.0, depth),)), bare_model, DEFAULT_SETTINGS)
+        check_placement(replace(bare, pins=(DiePin(x, y, 3.0, depth),)), bare_model, DEFAULT_SETTINGS)
     with pytest.raises(GeometryError, match="drill it through or less deep"):
-        check_placement(replace(bare, pins=(Pin(x, y, 3.0, h - WALL + PROBE_MM),)), bare_model, DEFAULT_SETTINGS)
+        check_placement(replace(bare, pins=(DiePin(x, y, 3.0, h - WALL + PROBE_MM),)), bare_model, DEFAULT_SETTINGS)
     with pytest.raises(GeometryError, match="deeper than"):
-        check_placement(replace(bare, pins=(Pin(x, y, 3.0, h + PROBE_MM),)), bare_model, DEFAULT_SETTINGS)
+        check_placement(replace(bare, pins=(DiePin(x, y, 3.0, h + PROBE_MM),)), bare_model, DEFAULT_SETTINGS)
 
 
 # ---------------------------------------------------------------- engraving
@@ -201,7 +201,7 @@ def test_marks_clear_a_through_pin(dies) -> None:
     die = dies["tail"]
     first = unary_union(engraving_marks(die, outline_model(die), DEFAULT_SETTINGS))
     x, y = first.representative_point().coords[0]  # right on a mark
-    pinned = replace(die, pins=(Pin(x, y, 3.0, die.height_mm),))
+    pinned = replace(die, pins=(DiePin(x, y, 3.0, die.height_mm),))
     moved = unary_union(engraving_marks(pinned, outline_model(pinned), DEFAULT_SETTINGS))
     assert moved.distance(Point(x, y).buffer(1.5)) >= WALL
 
@@ -234,7 +234,7 @@ def test_small_square_die() -> None:
     """A 40 mm square die (one line run per side): marks fit, inside its 1 mm-inset bottom less the wall."""
     s = 40.0
     corners = ((0.0, 0.0), (s, 0.0), (s, s), (0.0, s), (0.0, 0.0))
-    runs = tuple(OutlineRun("line", (a, b)) for a, b in itertools.pairwise(corners))
+    runs = tuple(DieRun("line", (a, b)) for a, b in itertools.pairwise(corners))
     die = DieInput("SQ", runs, 12.0, 1.0, 3.0, 1.5, engraving=("SQ",))
     marks = unary_union(engraving_marks(die, outline_model(die), DEFAULT_SETTINGS))
     inset = 12.0 * math.tan(math.radians(3.0))

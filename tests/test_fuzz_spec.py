@@ -20,6 +20,7 @@ the unmarked ones are small versions that run in a few seconds.
 
 from __future__ import annotations
 
+import contextlib
 import copy
 import math
 import os
@@ -32,12 +33,11 @@ from collections import Counter
 from pathlib import Path
 from typing import Any
 
-from testing import report, timed_with_peak
-
 import pytest
 import yaml
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
+from testing import report, timed_with_peak
 
 from diegen import units
 from diegen.errors import DiegenError, SpecError
@@ -94,7 +94,7 @@ def outcome(text: str, file: str = "fuzz.yaml", spec_dir: Path = SPECS) -> tuple
         except AssertionError as bad:
             raise Escape(f"malformed SpecError: {bad}") from error
         return "SpecError", error
-    except Exception as error:  # noqa: BLE001 - the property under test
+    except Exception as error:  # the property under test
         raise Escape(f"{type(error).__name__}: {error}") from error
     assert isinstance(spec, (RibSpec, WingSpec))
     return "valid", spec
@@ -120,11 +120,12 @@ MALFORMED_QUANTITIES = [
     "3 furlong", "3/0 in", "3//32 in", "1 1/2 in", "1 1/2", "½ in", "0x10 mm", "1,5 mm", "1e400 mm", "-0 mm",
     "-1/2 in", "3/16 inches", "2 cm", "0.5 m", "1 ft", "25 ton", "178 kN", "-5 kN", "1e-320 mm", "nan mm",
     "inf in", " 3 mm ", "mm", "", " ", "3 mm mm", '3"', '3 "', "1/1e3 in", "3 /16 in", "3/ 16in", "03/016 in",
-    "1 1/0 in", "10 tonnes", "10 kgf", "5 lbf", "5 N", "5 n", "5 KN", "3 in\t", "3\u00a0mm", "٣ mm", "3 ｍｍ",
+    "1 1/0 in", "10 tonnes", "10 kgf", "5 lbf", "5 N", "5 n", "5 KN", "3 in\t", "3\u00a0mm", "٣ mm", "3 ｍｍ",  # noqa: RUF001 - look-alike input on purpose
     "1" + "0" * 80 + " mm", "1/" + "0" * 70 + "1 in", "9" * 30 + "/1 in", "1 " + " " * 200 + "in",
     "3 inchesinches", "3.2.1 mm", "+4 mm", ".5 in", "5. in", "1e3", "1E-3 m", "0 mm", "0.000001 mm",
 ]
-UNICODE_TEXT = ["Ünïcödé", "翼肋", "ребро", "\u202eevil", "tab\there", "emoji \U0001F6E9", "a\u0301",
+UNICODE_TEXT = ["Ünïcödé", "翼肋", "ребро", "\u202eevil",  # noqa: RUF001 - look-alike input on purpose
+                "tab\there", "emoji \U0001F6E9", "a\u0301",
                 "\ufeffbom", "line\nbreak", "\\x00", "\u2028sep", "'quoted'", '"dq"', "#hash", "key: value", "- dash",
                 "&anchor", "*alias", "!tag", "%percent", "@at", "`tick`", "{brace}", "[bracket]", "|pipe", ">fold"]
 SPECIAL_FLOATS = [math.nan, math.inf, -math.inf, 0.0, -0.0, 1e308, -1e308, 5e-324, 1e-12, -1e-12, 1e15, 2.0**53]
@@ -179,14 +180,14 @@ def _paths(tree: Any, prefix: tuple = ()) -> list[tuple]:
         return out
     if isinstance(tree, dict):
         for k, v in tree.items():
-            out.append(prefix + (k,))
+            out.append((*prefix, k))
             if v is not tree:
-                out.extend(_paths(v, prefix + (k,)))
+                out.extend(_paths(v, (*prefix, k)))
     elif isinstance(tree, list) and len(tree) <= 50:
         for i, v in enumerate(tree):
-            out.append(prefix + (i,))
+            out.append((*prefix, i))
             if v is not tree:
-                out.extend(_paths(v, prefix + (i,)))
+                out.extend(_paths(v, (*prefix, i)))
     return out
 
 
@@ -246,10 +247,8 @@ def mutate_tree(tree: Any, rng: random.Random) -> tuple[Any, str]:
         shared = _parent(tree, a)[a[-1]]
         if not isinstance(shared, (dict, list)):
             shared = [shared]
-        try:
+        with contextlib.suppress(KeyError, IndexError, TypeError):
             _parent(tree, b)[b[-1]] = shared  # dumped as an anchor and an alias
-        except (KeyError, IndexError, TypeError):
-            pass
     elif op == "unit_system":
         tree["units"] = rng.choice(["mm", "in", "cm", "MM", "", None, 25.4])
     elif op == "kind":
@@ -355,7 +354,7 @@ def mutated_spec(rng: random.Random) -> tuple[str, str]:
     try:
         text = dump(tree)
     except (yaml.YAMLError, RecursionError, ValueError):
-        text, ops = DEMO_RIB_TEXT, ops + ["undumpable"]
+        text, ops = DEMO_RIB_TEXT, [*ops, "undumpable"]
     if rng.random() < 0.3:
         text, op = mutate_text(text, rng)
         ops.append(op)
@@ -658,7 +657,7 @@ def test_loader_regressions(name):
 
 
 def test_mutated_specs_quick():
-    counts, valid, escapes = run_mutations(150, seed=1)
+    counts, _valid, escapes = run_mutations(150, seed=1)
     print_counts("mutated specs (quick)", counts)
     assert_no_escapes(escapes)
     assert counts["valid"] + counts["SpecError"] == 150

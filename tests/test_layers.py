@@ -338,16 +338,6 @@ def test_walker_sees_the_package(modules: dict[str, Path], edges: list[Edge]) ->
 
 
 # ---------------------------------------------------------------- (a) no cycle
-# Cycles the package has today, each a defect to remove: (importer, imported) edges left out of the main check
-# so that it still guards against every other cycle; the xfail test below fails loudly once they are gone.
-KNOWN_CYCLE_EDGES = {
-    # diegen/geometry/polygon.py:10 imports Points from diegen.geometry.types at module level, and
-    # diegen/geometry/types.py:89 and :95 import loop_length / loop_area from diegen.geometry.polygon inside
-    # PieceGeometry.length_mm and .area_mm2: the two modules import each other.
-    ("diegen.geometry.types", "diegen.geometry.polygon"),
-}
-
-
 def _describe_cycles(cycles: list[list[str]], edges: list[Edge]) -> str:
     lines = []
     for cycle in cycles:
@@ -358,15 +348,7 @@ def _describe_cycles(cycles: list[list[str]], edges: list[Edge]) -> str:
 
 
 def test_no_import_cycle(modules: dict[str, Path], edges: list[Edge]) -> None:
-    """Every edge counts, TYPE_CHECKING and function-level ones too (but for the known cycle listed above)."""
-    kept = [e for e in edges if (e.importer, e.target) not in KNOWN_CYCLE_EDGES]
-    cycles = all_cycles(internal_graph(kept, modules))
-    assert not cycles, _describe_cycles(cycles, kept)
-
-
-@pytest.mark.xfail(strict=True, reason="diegen.geometry.polygon (line 10) and diegen.geometry.types (lines 89, 95, "
-                                       "inside PieceGeometry.length_mm / area_mm2) import each other")
-def test_no_import_cycle_at_all(modules: dict[str, Path], edges: list[Edge]) -> None:
+    """Every edge counts, TYPE_CHECKING and function-level ones too."""
     cycles = all_cycles(internal_graph(edges, modules))
     assert not cycles, _describe_cycles(cycles, edges)
 

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import dataclasses
+import itertools
 import re
 import subprocess
 import sys
@@ -13,9 +14,8 @@ from typing import Any
 import pytest
 import yaml
 
-from diegen.errors import DiegenError, FormingError
+from diegen.errors import DiegenError, FormingError, MaterialError
 from diegen.materials import (
-    MaterialError,
     bend_radius_tables,
     catalogue_text,
     die_material,
@@ -380,9 +380,9 @@ def test_rows_never_decrease_with_thickness(table: str) -> None:
     for alloy, row in data["rows"].items():
         values = row["values"]
         assert len(values) == len(columns)
-        assert all(b >= a for a, b in zip(values, values[1:])), alloy
+        assert all(b >= a for a, b in itertools.pairwise(values)), alloy
         radii = [min_bend_radius(alloy, c * IN, table).radius_mm for c in columns]
-        assert all(b >= a - 1e-12 for a, b in zip(radii, radii[1:])), alloy
+        assert all(b >= a - 1e-12 for a, b in itertools.pairwise(radii)), alloy
 
 
 def test_above_the_largest_column_names_the_range() -> None:

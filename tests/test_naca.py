@@ -14,12 +14,15 @@ Sources named beside each check:
 
 from __future__ import annotations
 
+import itertools
+
 import numpy as np
 import pytest
 import shapely
 from scipy.integrate import quad
 
 from diegen.errors import AirfoilError
+from diegen.geometry.loops import signed_area
 from diegen.geometry.naca import (
     cosine_stations,
     leading_edge_radius,
@@ -30,7 +33,6 @@ from diegen.geometry.naca import (
     naca_surfaces,
     parse_designation,
 )
-from diegen.geometry.section import signed_area
 
 # PDAS table values are printed to 4 decimals of percent chord.
 PDAS_TOL_PERCENT = 0.6e-4
@@ -199,7 +201,7 @@ def _fourier(mean_line: str, n: int) -> float:
         return float(naca5_camber((1.0 - np.cos(theta)) / 2.0, mean_line)[1]) * np.cos(n * theta)
 
     breaks = np.linspace(0.0, np.pi, 9)
-    return 2.0 / np.pi * sum(quad(integrand, a, b, limit=200)[0] for a, b in zip(breaks[:-1], breaks[1:]))
+    return 2.0 / np.pi * sum(quad(integrand, a, b, limit=200)[0] for a, b in itertools.pairwise(breaks))
 
 
 @pytest.mark.parametrize(
@@ -242,7 +244,7 @@ def test_designation_spellings(text: str) -> None:
     "bad", ["", "12", "abcd", "241", "123456", "2400", "2012", "03012", "26012", "21112", "23212", "NACA 24x2"]
 )
 def test_bad_designations_raise_airfoil_error(bad: str) -> None:
-    with pytest.raises(AirfoilError, match="NACA|mean line"):
+    with pytest.raises(AirfoilError, match=r"NACA|mean line"):
         naca_section(bad)
 
 

@@ -43,8 +43,8 @@ def _pin_axes(step_path: Path, radius_mm: float) -> list[tuple[float, float]]:
 @pytest.mark.slow
 @pytest.mark.solid
 def test_pins_in_die_and_blank_coincide(tmp_path):
-    from diegen.export.dxf import read_dxf_outline
     from diegen.die.from_analysis import PIN_INTERFERENCE_MM
+    from diegen.export.dxf import read_dxf_outline
 
     spec = api.load(ROOT / "specs" / "demo-rib.yaml")
     spec = replace(spec, shared=replace(spec.shared, pieces=("nose",)))

@@ -8,6 +8,7 @@ straight spar end face: the nose piece of a rib.
 
 from __future__ import annotations
 
+import itertools
 import math
 import subprocess
 import sys
@@ -19,10 +20,10 @@ import pytest
 from shapely.geometry import LineString, Point, Polygon, box
 from shapely.geometry.polygon import orient
 
-from diegen.errors import GeometryError, SolidError
-from diegen.die.die_input import Bore, DieInput, Flute, OutlineRun, Pin
-from diegen.geometry.die_wall import fillet_end_depth_mm, top_setback_mm
+from diegen.die.die_input import DieBore, DieFlute, DieInput, DiePin, DieRun
 from diegen.die.occ.validate import solid_problems
+from diegen.errors import GeometryError, SolidError
+from diegen.geometry.die_wall import fillet_end_depth_mm, top_setback_mm
 
 pytestmark = [pytest.mark.solid, pytest.mark.slow]
 
@@ -50,7 +51,7 @@ def naca4(code: str = "2412", chord: float = CHORD, n: int = 400) -> np.ndarray:
     return np.concatenate([upper, lower]) * chord
 
 
-def nose_outline() -> tuple[OutlineRun, ...]:
+def nose_outline() -> tuple[DieRun, ...]:
     """The nose piece: one curve run round the leading edge, one line run up the spar face at x = 254 mm."""
     piece = Polygon(naca4()).buffer(-SKIN_INSET, quad_segs=32).intersection(box(-10, -500, X_CUT, 500))
     ring = np.asarray(orient(piece, 1.0).exterior.coords)[:-1]
@@ -60,21 +61,21 @@ def nose_outline() -> tuple[OutlineRun, ...]:
     bottom = (bottom - top) % len(ring)
     curve = ring[: bottom + 1]
     line = np.array([ring[bottom], ring[0]])
-    return (OutlineRun("curve", tuple(map(tuple, curve.tolist()))), OutlineRun("line", tuple(map(tuple, line.tolist()))))
+    return (DieRun("curve", tuple(map(tuple, curve.tolist()))), DieRun("line", tuple(map(tuple, line.tolist()))))
 
 
-def outline_polygon(runs: tuple[OutlineRun, ...]) -> Polygon:
+def outline_polygon(runs: tuple[DieRun, ...]) -> Polygon:
     return Polygon(np.concatenate([np.asarray(r.points)[:-1] for r in runs]))
 
 
-PINS = (Pin(60.0, 10.0, 3.2, 8.0), Pin(220.0, 25.0, 4.0, H))
-BORES = (Bore(130.0, 15.0, 40.0),)
-FLUTES = (Flute(300.0, 8.0, 2.0), Flute(340.0, 8.0, 2.0))
+PINS = (DiePin(60.0, 10.0, 3.2, 8.0), DiePin(220.0, 25.0, 4.0, H))
+BORES = (DieBore(130.0, 15.0, 40.0),)
+FLUTES = (DieFlute(300.0, 8.0, 2.0), DieFlute(340.0, 8.0, 2.0))
 FLUTE_LENGTH = 9.0
 
 
 @pytest.fixture(scope="module")
-def outline() -> tuple[OutlineRun, ...]:
+def outline() -> tuple[DieRun, ...]:
     return nose_outline()
 
 
@@ -136,10 +137,9 @@ def wire_points(wire, step: float = 0.05) -> np.ndarray:
 
 def section_points(shape, origin, normal, step: float = 0.01, curved_only: bool = False) -> np.ndarray:
     """Points of the shape's boundary cut by the plane through ``origin`` normal to ``normal``."""
+    import cadquery as cq
     from OCP.BRepAlgoAPI import BRepAlgoAPI_Section
     from OCP.gp import gp_Dir, gp_Pln, gp_Pnt
-
-    import cadquery as cq
 
     sec = BRepAlgoAPI_Section(shape.wrapped, gp_Pln(gp_Pnt(*origin), gp_Dir(*normal)))
     sec.Build()
@@ -161,7 +161,8 @@ def fit_circle(u: np.ndarray, v: np.ndarray) -> tuple[float, float, float]:
 
 # ---------------------------------------------------------------- import boundary
 def test_package_imports_without_kernel():
-    code = "import sys, diegen.die.occ.files, diegen.die.laminate, diegen.pipeline.build, diegen.api; assert 'cadquery' not in sys.modules and 'OCP' not in sys.modules"
+    code = ("import sys, diegen.die.occ.files, diegen.die.laminate, diegen.pipeline.build, diegen.api; "
+            "assert 'cadquery' not in sys.modules and 'OCP' not in sys.modules")
     subprocess.run([sys.executable, "-c", code], check=True, cwd=Path(__file__).resolve().parents[1])
 
 
@@ -212,7 +213,7 @@ def test_stl_watertight_and_volume_matches_step(which, bare_die, full_die, tmp_p
 
 
 def test_stl_not_written_when_check_fails(bare_die, tmp_path, monkeypatch):
-    import diegen.die.occ.export as export
+    from diegen.die.occ import export
 
     target = tmp_path / "keep.stl"
     target.write_bytes(b"earlier good file")
@@ -225,7 +226,7 @@ def test_stl_not_written_when_check_fails(bare_die, tmp_path, monkeypatch):
 
 def test_step_structure_check_finds_a_cut_short_file_and_keeps_the_earlier_one(bare_die, tmp_path, monkeypatch):
     """ISO 10303-21 frames the data between the "ISO-10303-21;" header and "END-ISO-10303-21;"."""
-    import diegen.die.occ.export as export
+    from diegen.die.occ import export
     from diegen.die.occ.validate import step_file_problems
 
     good = tmp_path / "good.step"
@@ -345,7 +346,7 @@ def test_bore_removes_cylinder_and_top_rounding(bare_input, bare_die):
     expected = math.pi * a**2 * H + 2 * math.pi * moment
     assert volume(bare_die) - volume(die) == pytest.approx(expected, rel=1e-4)
     top = planar_face_at(die, 0.0)
-    inner = [w for w in top.innerWires()]
+    inner = list(top.innerWires())
     assert len(inner) == 1
     c = inner[0].Center()
     assert (c.x, c.y) == pytest.approx((b.x, b.y), abs=1e-6)
@@ -360,10 +361,10 @@ def test_flute_depth_tapers_down_the_wall(bare_input):
     segment scaled in depth by depth/flute length.  The flute sits where the wall's radius is about 1 m.
     """
     from diegen.die.occ.form_block import build_die
-    from diegen.forming.relief import flute_arc_radius
     from diegen.die.outline import OutlineModel
+    from diegen.forming.relief import flute_arc_radius
 
-    flute = Flute(420.0, 8.0, 2.0)
+    flute = DieFlute(420.0, 8.0, 2.0)
     die = build_die(replace(bare_input, flutes=(flute,), flute_length_mm=FLUTE_LENGTH))
     model = OutlineModel(bare_input.outline, CUTTER, top_setback_mm(R, UNDERCUT))
     p, _ = model.locate(flute.s_mm)
@@ -395,7 +396,7 @@ def test_flute_at_a_corner_moves_clear_of_it_and_crowded_flutes_are_refused(bare
     from diegen.die.outline import LIP_CLEARANCE_MM, OutlineModel
 
     inset = max(top_setback_mm(R, UNDERCUT), H * math.tan(math.radians(UNDERCUT)))
-    flute = Flute(1.0, 8.0, 2.0)  # 1 mm from the upper corner at the spar face
+    flute = DieFlute(1.0, 8.0, 2.0)  # 1 mm from the upper corner at the spar face
     model = OutlineModel(bare_input.outline, CUTTER, inset, flutes=(flute,))
     (groove,) = model.grooves
     corner = model.segments[0].point(0.0, 0.0)
@@ -408,9 +409,10 @@ def test_flute_at_a_corner_moves_clear_of_it_and_crowded_flutes_are_refused(bare
     assert not solid_problems(die)
     length = model.segments[0].length
     with pytest.raises(GeometryError, match="straight end face"):
-        build_die(replace(bare_input, flutes=(Flute(length + 20.0, 8.0, 2.0),), flute_length_mm=9.0))
+        build_die(replace(bare_input, flutes=(DieFlute(length + 20.0, 8.0, 2.0),), flute_length_mm=9.0))
     with pytest.raises(GeometryError, match="further apart"):
-        build_die(replace(bare_input, flutes=(Flute(300.0, 8.0, 2.0), Flute(308.1, 8.0, 2.0)), flute_length_mm=9.0))
+        crowded = (DieFlute(300.0, 8.0, 2.0), DieFlute(308.1, 8.0, 2.0))
+        build_die(replace(bare_input, flutes=crowded, flute_length_mm=9.0))
 
 
 def test_engraving_on_bottom_face_only_and_reads_from_below(bare_input, bare_die):
@@ -449,20 +451,20 @@ def test_pin_off_the_top_face(bare_input):
     from diegen.die.occ.form_block import build_die
 
     with pytest.raises(GeometryError, match="pin hole"):
-        build_die(replace(bare_input, pins=(Pin(252.0, 10.0, 3.2, 5.0),)))
+        build_die(replace(bare_input, pins=(DiePin(252.0, 10.0, 3.2, 5.0),)))
 
 
 def test_flute_deeper_than_half_its_width(bare_input):
     from diegen.die.occ.form_block import build_die
 
     with pytest.raises(GeometryError, match="half its width"):
-        build_die(replace(bare_input, flutes=(Flute(300.0, 4.0, 3.0),), flute_length_mm=9.0))
+        build_die(replace(bare_input, flutes=(DieFlute(300.0, 4.0, 3.0),), flute_length_mm=9.0))
 
 
 def test_clockwise_outline(bare_input):
     from diegen.die.occ.form_block import build_die
 
-    rev = tuple(OutlineRun(r.kind, tuple(reversed(r.points))) for r in reversed(bare_input.outline))
+    rev = tuple(DieRun(r.kind, tuple(reversed(r.points))) for r in reversed(bare_input.outline))
     with pytest.raises(GeometryError, match="clockwise"):
         build_die(replace(bare_input, outline=rev))
 
@@ -472,7 +474,7 @@ def test_inside_corner_tighter_than_cutter(bare_input):
 
     # a rectangle with a notch: the notch's inside corners are sharp
     pts = ((0, 0), (100, 0), (100, 40), (60, 40), (60, 30), (40, 30), (40, 40), (0, 40), (0, 0))
-    runs = tuple(OutlineRun("line", (a, b)) for a, b in zip(pts[:-1], pts[1:]))
+    runs = tuple(DieRun("line", (a, b)) for a, b in itertools.pairwise(pts))
     with pytest.raises(GeometryError, match="inside corner"):
         build_die(replace(bare_input, outline=runs))
 
@@ -481,7 +483,7 @@ def test_blind_pin_leaving_a_thin_floor(bare_input):
     from diegen.die.occ.form_block import build_die
 
     with pytest.raises(GeometryError, match="drill it through or less deep"):
-        build_die(replace(bare_input, pins=(Pin(60.0, 10.0, 3.2, H - 0.4),)))
+        build_die(replace(bare_input, pins=(DiePin(60.0, 10.0, 3.2, H - 0.4),)))
 
 
 def test_invalid_die_names_the_part_at_fault(full_input, monkeypatch):
@@ -536,7 +538,7 @@ def test_laminate_layers(bare_input, outline):
     from diegen.die.laminate import laminate_layers
 
     layers = laminate_layers(bare_input, 6.0)
-    assert [round(l.thickness_mm, 9) for l in layers] == [6.0, 6.0, 0.7]
+    assert [round(layer.thickness_mm, 9) for layer in layers] == [6.0, 6.0, 0.7]
     base = outline_polygon(outline)
     tan_a = math.tan(math.radians(UNDERCUT))
     for layer in layers:
@@ -551,7 +553,7 @@ def test_laminate_layers_carry_the_flutes(bare_input):
     from diegen.die.laminate import laminate_layers
     from diegen.die.outline import GROOVE_SAMPLES
 
-    flute = Flute(420.0, 8.0, 2.0)  # where the wall's radius is about 1 m
+    flute = DieFlute(420.0, 8.0, 2.0)  # where the wall's radius is about 1 m
     plain = laminate_layers(bare_input, 4.5)
     fluted = laminate_layers(replace(bare_input, flutes=(flute,), flute_length_mm=9.0), 4.5)
     r = (flute.width_mm**2 / 4 + flute.depth_mm**2) / (2 * flute.depth_mm)
@@ -574,7 +576,7 @@ def test_single_closed_curve_outline(bare_input):
     t = np.linspace(0, 2 * np.pi, 241)
     pts = np.column_stack([100 * np.cos(t), 40 * np.sin(t)])
     pts[-1] = pts[0]
-    die = build_die(replace(bare_input, outline=(OutlineRun("curve", tuple(map(tuple, pts.tolist()))),)))
+    die = build_die(replace(bare_input, outline=(DieRun("curve", tuple(map(tuple, pts.tolist()))),)))
     # area of the ellipse's inward offset by c: πab − c·P + πc² (Steiner's formula; valid as c is below the
     # smallest radius of curvature b²/a = 16 mm); P by numerical integration of the arc length
     tt = np.linspace(0, 2 * np.pi, 200001)
@@ -600,9 +602,9 @@ def test_flute_on_a_single_closed_curve(bare_input):
     t = np.linspace(0, 2 * np.pi, 241)
     pts = np.column_stack([100 * np.sin(t), 40 * np.cos(t) * -1])  # starts at (0, −40), runs counter-clockwise
     pts[-1] = pts[0]
-    ellipse = (OutlineRun("curve", tuple(map(tuple, pts.tolist()))),)
+    ellipse = (DieRun("curve", tuple(map(tuple, pts.tolist()))),)
     model = OutlineModel(ellipse, CUTTER, 2.0)
-    flutes = (Flute(1.0, 8.0, 2.0), Flute(model.perimeter_mm / 2, 8.0, 2.0))  # the first straddles the start
+    flutes = (DieFlute(1.0, 8.0, 2.0), DieFlute(model.perimeter_mm / 2, 8.0, 2.0))  # the first straddles the start
     plain = build_die(replace(bare_input, outline=ellipse))
     fluted = build_die(replace(bare_input, outline=ellipse, flutes=flutes, flute_length_mm=FLUTE_LENGTH))
     assert not solid_problems(fluted)

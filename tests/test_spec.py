@@ -66,17 +66,22 @@ BAD_SPECS = [
     ("wrong-type", _edit("chord: 40", "chord: [40]"), 6, ["chord", "expected a length", "found"]),
     ("unknown-key", _edit("chord: 40", "chord: 40\ncord_length: 3"), 7, ["cord_length", "unknown key"]),
     ("unknown-key-suggestion", _edit("relief: flutes ", "releif: flutes "), 16, ["did you mean 'relief'"]),
-    ("negative-thickness", _edit("thickness: 0.025}", "thickness: -0.025}"), 8, ["sheet.thickness", "greater than 0", "-0.635"]),
+    ("negative-thickness", _edit("thickness: 0.025}", "thickness: -0.025}"), 8,
+     ["sheet.thickness", "greater than 0", "-0.635"]),
     ("missing-chord", _edit("chord: 40\n", ""), None, ["chord", "missing required key"]),
-    ("bad-unit", _edit('bend_radius: "3/32 in"', 'bend_radius: "3/32 furlong"'), 9, ["flange.bend_radius", "unknown length unit", "furlong"]),
-    ("malformed-fraction", _edit('bend_radius: "3/32 in"', 'bend_radius: "3//32 in"'), 9, ["flange.bend_radius", "3//32"]),
+    ("bad-unit", _edit('bend_radius: "3/32 in"', 'bend_radius: "3/32 furlong"'), 9,
+     ["flange.bend_radius", "unknown length unit", "furlong"]),
+    ("malformed-fraction", _edit('bend_radius: "3/32 in"', 'bend_radius: "3//32 in"'), 9,
+     ["flange.bend_radius", "3//32"]),
     ("zero-fraction", _edit('bend_radius: "3/32 in"', 'bend_radius: "3/0 in"'), 9, ["divides by zero"]),
     ("spars-out-of-order", _edit("at: 0.70", "at: 0.20"), 12, ["spars[1].at", "in order"]),
     ("spar-outside-0-1", _edit("at: 0.70", "at: 1.3"), 12, ["spars[1].at", "less than 1", "1.3"]),
-    ("negative-bend-radius", _edit('bend_radius: "3/32 in"', "bend_radius: -0.1"), 9, ["flange.bend_radius", "greater than 0"]),
+    ("negative-bend-radius", _edit('bend_radius: "3/32 in"', "bend_radius: -0.1"), 9,
+     ["flange.bend_radius", "greater than 0"]),
     ("yaml-syntax", _edit("chord: 40", "chord: [40"), None, ["YAML syntax error"]),
     ("bad-alloy", _edit("alloy: 2024-T3", "alloy: 2042-T3"), 8, ["sheet.alloy", "did you mean '2024-T3'"]),
-    ("bad-die-material", _edit("material: solid-surface", "material: granite"), 17, ["die.material", "expected one of"]),
+    ("bad-die-material", _edit("material: solid-surface", "material: granite"), 17,
+     ["die.material", "expected one of"]),
     ("bad-force-unit", _edit("force: 25 ton", "force: 25"), 18, ["press.force", "with a unit"]),
     ("bad-relief-choice", _edit("relief: flutes ", "relief: crimps "), 16, ["relief", "flutes, notches, none"]),
     ("bad-naca", _edit("naca 2412", "naca 24x12"), 5, ["airfoil", "4 or 5 digits"]),
@@ -131,7 +136,8 @@ def test_alias_bomb_is_refused_quickly():
 def test_cli_exits_2_with_message_and_no_traceback(tmp_path):
     bad = tmp_path / "bad.yaml"
     bad.write_text(_edit("chord: 40", "chord: forty"))
-    result = subprocess.run([sys.executable, "-m", "diegen.cli", "check", str(bad)], capture_output=True, text=True)
+    result = subprocess.run([sys.executable, "-m", "diegen.cli", "check", str(bad)], capture_output=True, text=True,
+                            check=False)
     assert result.returncode == 2
     assert "Traceback" not in result.stderr
     assert f"{bad}:6:8: chord:" in result.stderr
@@ -139,7 +145,7 @@ def test_cli_exits_2_with_message_and_no_traceback(tmp_path):
 
 def test_cli_missing_file(tmp_path):
     result = subprocess.run([sys.executable, "-m", "diegen.cli", "check", str(tmp_path / "nope.yaml")],
-                            capture_output=True, text=True)
+                            capture_output=True, text=True, check=False)
     assert result.returncode == 2
     assert "file not found" in result.stderr and "Traceback" not in result.stderr
 

@@ -13,6 +13,7 @@ from dataclasses import replace
 import numpy as np
 import pytest
 from shapely.geometry import LineString
+from testing import DEMO_WING, assert_outlines_close, distances_to, stretch_limit
 
 from diegen import api
 from diegen.geometry.naca import naca_section
@@ -21,8 +22,6 @@ from diegen.geometry.section import blend, resample
 from diegen.spec import parse_spec
 from diegen.spec.model import RibSpec, Stations, WingSpec
 from diegen.wing import chord_at, rib_spec, section_at, station_positions, stations
-
-from testing import DEMO_WING, assert_outlines_close, distances_to
 
 IN = 25.4
 
@@ -119,10 +118,10 @@ def test_streamwise_rib_equals_the_rib_spec_built_alone() -> None:
     # chord, so it must equal a rib spec written by hand for that chord (die outline within 0.01 mm).
     spec = wing()
     for station in stations(spec)[::3]:
-        from_wing = rib_geometry(rib_spec(spec, station), section_at(spec, station))
+        from_wing = rib_geometry(rib_spec(spec, station), section_at(spec, station), stretch_limit=stretch_limit(spec))
         alone_spec = parse_spec(rib_text(station.chord_mm / IN, station.spar_fractions), "rib.yaml")
         assert isinstance(alone_spec, RibSpec)
-        alone = rib_geometry(alone_spec)
+        alone = rib_geometry(alone_spec, stretch_limit=stretch_limit(alone_spec))
         assert from_wing.chord_mm == pytest.approx(alone.chord_mm, abs=1e-9)
         assert_outlines_close(from_wing.die_outline, alone.die_outline)
         assert [p.name for p in from_wing.pieces] == [p.name for p in alone.pieces]
@@ -217,5 +216,5 @@ def test_normal_to_spar_rib_spans_the_wing_square_to_the_spar() -> None:
     plain = section_at(streamwise, stations(streamwise)[3]) * c
     assert np.ptp(section[:, 1]) == pytest.approx(np.ptp(plain[:, 1]), rel=1e-9)
     assert np.ptp(section[:, 0]) == pytest.approx(np.ptp(plain[:, 0]) * math.cos(lam), rel=1e-9)
-    geometry = rib_geometry(normal, section_at(spec, station))
+    geometry = rib_geometry(normal, section_at(spec, station), stretch_limit=stretch_limit(normal))
     assert geometry.chord_mm == pytest.approx(length, rel=1e-9)

@@ -26,6 +26,14 @@ DEMO_WING = SPECS / "demo-wing.yaml"
 OUTLINE_TOL_MM = 0.01
 
 
+def stretch_limit(spec) -> float:
+    """The stretch limit of the spec's sheet alloy, read from the catalogue as the analysis passes it to
+    ``rib_geometry``."""
+    from diegen import materials
+
+    return materials.sheet_alloy(spec.shared.sheet.alloy).stretch_limit
+
+
 def as_array(points: Sequence[Sequence[float]]) -> np.ndarray:
     return np.asarray(points, dtype=float).reshape(-1, 2)
 
@@ -100,7 +108,7 @@ def nearest_index(points: Sequence[Sequence[float]], point: Sequence[float]) -> 
 
 def vertical_chord(polygon: Polygon, x: float) -> float:
     """Length (mm) of the polygon's cut by the vertical line at ``x`` (the local depth of a simple shape)."""
-    minx, miny, maxx, maxy = polygon.bounds
+    _minx, miny, _maxx, maxy = polygon.bounds
     return float(polygon.intersection(LineString([(x, miny - 10), (x, maxy + 10)])).length)
 
 

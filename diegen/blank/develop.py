@@ -26,13 +26,14 @@ from shapely.geometry import LineString, Polygon
 from diegen.blank.drawing import BlankDrawing, Circle
 from diegen.geometry.polygon import QUAD_SEGS, single_polygon
 from diegen.geometry.types import PieceGeometry, Point
+from diegen.units import MM_PER_IN
 
-IN = 25.4
+__all__ = ["develop_blank", "flange_band_area", "notch_polygon", "relief_hole_diameter"]
 
 
 def relief_hole_diameter(thickness_mm: float, bend_radius_mm: float) -> float:
     """Corner relief hole (mm): FAA-H-8083-31 minimum by thickness, or 2 × bend radius if larger."""
-    minimum = (1 / 8 if thickness_mm <= 0.064 * IN + 1e-9 else 3 / 16) * IN
+    minimum = (1 / 8 if thickness_mm <= 0.064 * MM_PER_IN + 1e-9 else 3 / 16) * MM_PER_IN
     return max(minimum, 2 * bend_radius_mm)
 
 
@@ -59,7 +60,8 @@ def _tangent_point(piece: PieceGeometry, corner: Point, inset: float) -> Point:
     c = loop[index]
     d_in = _unit(c - loop[index - 1])
     d_out = _unit(loop[(index + 1) % len(loop)] - c)
-    # both tangent lines are offset `inset` to the left (inside); solve c + inset*n_in + a*d_in = c + inset*n_out + b*d_out
+    # both tangent lines are offset `inset` to the left (inside);
+    # solve c + inset*n_in + a*d_in = c + inset*n_out + b*d_out
     n_in, n_out = np.array([-d_in[1], d_in[0]]), np.array([-d_out[1], d_out[0]])
     matrix = np.column_stack([d_in, -d_out])
     a, _ = np.linalg.solve(matrix, inset * (n_out - n_in))
@@ -82,7 +84,7 @@ def develop_blank(piece: PieceGeometry, *, offset_mm: float, die_radius_mm: floa
     for run in piece.runs:  # a cut end (no flange) stops the blank at the die's end face
         if run.kind == "line" and not run.flanged:
             x_cut = max(p[0] for p in run.points)
-            minx, miny, maxx, maxy = blank.bounds
+            _minx, miny, maxx, maxy = blank.bounds
             blank = blank.difference(shapely.box(x_cut, miny - 1, maxx + 1, maxy + 1))
     relief_d = relief_hole_diameter(thickness_mm, die_radius_mm)
     reliefs = []
@@ -113,7 +115,7 @@ def develop_blank(piece: PieceGeometry, *, offset_mm: float, die_radius_mm: floa
 
 def notch_polygon(piece: PieceGeometry, s_mm: float, opening_mm: float, depth_mm: float, offset_mm: float) -> Polygon:
     """A V-notch in the blank flange at arc length ``s_mm`` along the die outline (mm)."""
-    ring = LineString(list(piece.outline) + [piece.outline[0]])
+    ring = LineString([*piece.outline, piece.outline[0]])
     s = s_mm % ring.length
     p = np.asarray(ring.interpolate(s).coords[0])
     q = np.asarray(ring.interpolate(min(s + 0.5, ring.length)).coords[0]) - np.asarray(

@@ -21,6 +21,26 @@ from typing import Final
 
 from diegen.errors import GeometryError
 
+__all__ = [
+    "CUT",
+    "DRILL",
+    "GRAIN_ARROW_LENGTH",
+    "LAYERS",
+    "NOTE",
+    "SCRIBE",
+    "TEXT_WIDTH_FACTOR",
+    "TITLE_TEXT_HEIGHT",
+    "BlankDrawing",
+    "Circle",
+    "LayerStyle",
+    "Note",
+    "Point",
+    "Polyline",
+    "Segment",
+    "TitleBlock",
+    "arrow_segments",
+]
+
 Point = tuple[float, float]
 """A point in the drawing plane, (x, y) in mm."""
 

@@ -5,3 +5,5 @@ to z = −height.  The outline given is the die's mold line (top plane ∩ exten
 :mod:`diegen.die.die_input`.  Everything here outside ``occ`` is pure 2D (numpy, shapely) and fast: the outline
 model with its flutes, the placement of holes, pins and marks, the lettering and the laminate layers.
 """
+
+__all__: list[str] = []

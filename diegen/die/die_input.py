@@ -21,12 +21,14 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Literal
 
+__all__ = ["RUN_KINDS", "DieBore", "DieFlute", "DieInput", "DiePin", "DieRun", "RunKind"]
+
 RunKind = Literal["curve", "line"]
 RUN_KINDS: tuple[RunKind, ...] = ("curve", "line")
 
 
 @dataclass(frozen=True)
-class OutlineRun:
+class DieRun:
     """A piece of the die's top-face outline (mold line), in mm.
 
     ``kind`` "curve" is a smooth contour (airfoil, joggle ramps), interpolated
@@ -41,7 +43,7 @@ class OutlineRun:
 
 
 @dataclass(frozen=True)
-class Flute:
+class DieFlute:
     """A relief groove in the die wall.
 
     ``s_mm`` is the arc length along the whole outline, measured from its first
@@ -55,7 +57,7 @@ class Flute:
 
 
 @dataclass(frozen=True)
-class Bore:
+class DieBore:
     """A through bore for a flanged lightening hole; ``d`` is the hole flange's outside diameter (mm)."""
 
     x: float
@@ -64,7 +66,7 @@ class Bore:
 
 
 @dataclass(frozen=True)
-class Pin:
+class DiePin:
     """A dowel (tooling pin) hole of diameter ``d`` drilled ``depth`` deep from the top face (mm)."""
 
     x: float
@@ -78,16 +80,16 @@ class DieInput:
     """Everything the die builder needs, in mm and degrees (see the module docstring)."""
 
     part_id: str
-    outline: tuple[OutlineRun, ...]
+    outline: tuple[DieRun, ...]
     height_mm: float  # stock thickness
     top_radius_mm: float  # springback-compensated die radius on the top edge
     undercut_deg: float  # side walls lean inward going down by this angle (over-bend)
     cutter_radius_mm: float  # no internal concave corner tighter than this
     # grooves in the wall, depth tapering from 0 at the top (bend line) to full at flange-edge depth
-    flutes: tuple[Flute, ...] = ()
+    flutes: tuple[DieFlute, ...] = ()
     flute_length_mm: float = 0.0  # how far down the wall the flute tapers (the flange height)
-    bores: tuple[Bore, ...] = ()
-    pins: tuple[Pin, ...] = ()
+    bores: tuple[DieBore, ...] = ()
+    pins: tuple[DiePin, ...] = ()
     engraving: tuple[str, ...] = ()  # lines engraved on the BOTTOM face, plus an orientation arrow
     bore_top_radius_mm: float | None = None  # defaults to top_radius_mm
 

@@ -9,7 +9,7 @@ from __future__ import annotations
 
 from typing import Any
 
-from diegen.die.die_input import Bore, DieInput, Flute, OutlineRun, Pin
+from diegen.die.die_input import DieBore, DieFlute, DieInput, DiePin, DieRun
 
 PIN_INTERFERENCE_MM = 0.03
 ENGRAVING_NOTE = "Marks on the bottom face: part id, sheet, and an arrow pointing to the leading edge."
@@ -26,15 +26,15 @@ def die_input(rib: Any, piece: Any) -> DieInput:
     height = piece.die_height_mm
     return DieInput(
         part_id=g.part_id,
-        outline=tuple(OutlineRun(run.kind, run.points) for run in g.runs),
+        outline=tuple(DieRun(run.kind, run.points) for run in g.runs),
         height_mm=height,
         top_radius_mm=piece.springback.die_radius_mm,
         undercut_deg=piece.springback.overbend_deg,
         cutter_radius_mm=shared.die.cutter_diameter_mm / 2,
-        flutes=tuple(Flute(f.s_mm, f.width_mm, f.depth_mm) for f in piece.flutes),
+        flutes=tuple(DieFlute(f.s_mm, f.width_mm, f.depth_mm) for f in piece.flutes),
         flute_length_mm=shared.flange.height_mm,
-        bores=tuple(Bore(h.x, h.y, h.d + 2.0 * shared.sheet.thickness_mm) for h in g.holes if h.flanged),
-        pins=tuple(Pin(p.x, p.y, p.d - PIN_INTERFERENCE_MM, pin_depth_mm(p.d, height)) for p in g.pins),
+        bores=tuple(DieBore(h.x, h.y, h.d + 2.0 * shared.sheet.thickness_mm) for h in g.holes if h.flanged),
+        pins=tuple(DiePin(p.x, p.y, p.d - PIN_INTERFERENCE_MM, pin_depth_mm(p.d, height)) for p in g.pins),
         engraving=(g.part_id, f"{shared.sheet.alloy} {shared.sheet.thickness_mm:.2f} mm"),
     )
 

@@ -16,11 +16,13 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from diegen.errors import GeometryError
-from diegen.geometry import die_wall
-from diegen.die.die_input import DieInput, OutlineRun
+from diegen.die.die_input import DieInput, DieRun
 from diegen.die.model import flute_scale, outline_model
 from diegen.die.outline import OffsetPiece, OutlineModel
+from diegen.errors import GeometryError
+from diegen.geometry import die_wall
+
+__all__ = ["LaminateLayer", "laminate_layers"]
 
 
 @dataclass(frozen=True)
@@ -30,8 +32,8 @@ class LaminateLayer:
     index: int
     z_top_mm: float
     z_bottom_mm: float
-    outline: tuple[OutlineRun, ...]
-    top_outline: tuple[OutlineRun, ...]
+    outline: tuple[DieRun, ...]
+    top_outline: tuple[DieRun, ...]
 
     @property
     def thickness_mm(self) -> float:
@@ -39,8 +41,8 @@ class LaminateLayer:
         return self.z_top_mm - self.z_bottom_mm
 
 
-def _runs(pieces: list[OffsetPiece]) -> tuple[OutlineRun, ...]:
-    return tuple(OutlineRun(p.kind, p.points) for p in pieces)
+def _runs(pieces: list[OffsetPiece]) -> tuple[DieRun, ...]:
+    return tuple(DieRun(p.kind, p.points) for p in pieces)
 
 
 def laminate_layers(die: DieInput, stock_thickness_mm: float, spacing_mm: float = 1.0) -> list[LaminateLayer]:

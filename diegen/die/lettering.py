@@ -112,5 +112,5 @@ def stroke_polygons(strokes: list[Stroke], width: float) -> list[Polygon]:
     return [p for p in parts if isinstance(p, Polygon) and not p.is_empty]
 
 
-__all__ = ["ADVANCE_UNITS", "CAP_UNITS", "GLYPHS", "STROKE_FRACTION", "WIDTH_UNITS", "engraved_text",
+__all__ = ["ADVANCE_UNITS", "CAP_UNITS", "GLYPHS", "STROKE_FRACTION", "WIDTH_UNITS", "Stroke", "engraved_text",
            "line_strokes", "line_width_units", "stroke_polygons"]

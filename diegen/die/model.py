@@ -62,7 +62,8 @@ def outline_model(die: DieInput, settings: BuildSettings = DEFAULT_SETTINGS) -> 
 
 
 def flute_scale(die: DieInput, depth_mm: float) -> float:
-    """Fraction of the flutes' full depth at ``depth_mm`` below the top face: 0 at the top, 1 from the flange edge down."""
+    """Fraction of the flutes' full depth at ``depth_mm`` below the top face: 0 at the top, 1 from the flange edge
+    down."""
     if not die.flutes:
         return 0.0
     return min(max(depth_mm, 0.0) / die.flute_length_mm, 1.0)

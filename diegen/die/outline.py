@@ -25,21 +25,32 @@ flute that is too deep for its width, on a straight edge, or crowding another.
 
 from __future__ import annotations
 
+import itertools
 import math
 from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
-from numpy.typing import NDArray
 from scipy.interpolate import BSpline, make_interp_spline
 from shapely.geometry import Polygon
 from shapely.validation import explain_validity
 
+from diegen.die.die_input import DieFlute, DieRun, RunKind
 from diegen.errors import GeometryError
 from diegen.forming.relief import flute_arc_radius
-from diegen.die.die_input import Flute, OutlineRun, RunKind
+from diegen.geometry.loops import FloatArray
 
-Array = NDArray[np.float64]
+__all__ = [
+    "CONCAVE_JUNCTION_DEG",
+    "GROOVE_SAMPLES",
+    "JOIN_TOL_MM",
+    "LIP_CLEARANCE_MM",
+    "MAX_EXTENSION_MM",
+    "MIN_GROOVE_GAP_MM",
+    "OffsetPiece",
+    "OutlineModel",
+    "pieces_to_polygon",
+]
 
 JOIN_TOL_MM = 1e-6  # consecutive runs must share end points to this distance
 CONCAVE_JUNCTION_DEG = 0.5  # a sharper concave turn at a run junction is a corner no cutter can make
@@ -49,7 +60,7 @@ MIN_GROOVE_GAP_MM = 0.2  # least land left between two flutes' lips (design choi
 LIP_CLEARANCE_MM = 0.5  # least wall between a flute's lip and a corner trim (design choice)
 
 
-def _rot90(v: Array) -> Array:
+def _rot90(v: FloatArray) -> FloatArray:
     """Rotate vectors by +90° (the inward normal of a counter-clockwise loop)."""
     return np.stack([-v[..., 1], v[..., 0]], axis=-1)
 
@@ -60,41 +71,42 @@ class _Segment:
     kind: RunKind
     length: float
 
-    def point(self, s: Array | float, inset: float) -> Array:  # pragma: no cover - interface
+    def point(self, s: FloatArray | float, inset: float) -> FloatArray:  # pragma: no cover - interface
         raise NotImplementedError
 
-    def deriv(self, s: Array | float, inset: float) -> Array:  # pragma: no cover - interface
+    def deriv(self, s: FloatArray | float, inset: float) -> FloatArray:  # pragma: no cover - interface
         raise NotImplementedError
 
 
 class _LineSegment(_Segment):
-    def __init__(self, a: Array, b: Array) -> None:
+    def __init__(self, a: FloatArray, b: FloatArray) -> None:
         self.kind = "line"
         self.a = a
         self.length = float(np.linalg.norm(b - a))
         self.t = (b - a) / self.length
         self.n = _rot90(self.t)
 
-    def point(self, s: Array | float, inset: float) -> Array:
+    def point(self, s: FloatArray | float, inset: float) -> FloatArray:
         s = np.asarray(s, dtype=float)
         return self.a + s[..., None] * self.t + inset * self.n
 
-    def deriv(self, s: Array | float, inset: float) -> Array:
+    def deriv(self, s: FloatArray | float, inset: float) -> FloatArray:
         s = np.asarray(s, dtype=float)
-        return np.broadcast_to(self.t, s.shape + (2,)).copy()
+        return np.broadcast_to(self.t, (*s.shape, 2)).copy()
 
-    def tangent(self, s: Array | float) -> Array:
+    def tangent(self, s: FloatArray | float) -> FloatArray:
         return self.deriv(s, 0.0)
 
 
 class _CurveSegment(_Segment):
-    def __init__(self, pts: Array, periodic: bool) -> None:
+    def __init__(self, pts: FloatArray, periodic: bool) -> None:
         self.kind = "curve"
         chord = np.linalg.norm(np.diff(pts, axis=0), axis=1)
         if np.any(chord < 1e-9):
             i = int(np.argmin(chord))
             raise GeometryError(
-                f"outline curve has two coincident points at ({pts[i, 0]:.3f}, {pts[i, 1]:.3f}) mm: remove the duplicate"
+                f"outline curve has two coincident points at ({pts[i, 0]:.3f}, {pts[i, 1]:.3f}) mm: "
+                "remove the duplicate"
             )
         u = np.concatenate([[0.0], np.cumsum(chord)])
         self.length = float(u[-1])
@@ -104,14 +116,14 @@ class _CurveSegment(_Segment):
         self.d1 = self.spline.derivative(1)
         self.d2 = self.spline.derivative(2) if k >= 2 else None
 
-    def base(self, s: Array | float) -> Array:
+    def base(self, s: FloatArray | float) -> FloatArray:
         return np.asarray(self.spline(s))
 
-    def tangent(self, s: Array | float) -> Array:
+    def tangent(self, s: FloatArray | float) -> FloatArray:
         d = np.asarray(self.d1(s))
         return d / np.linalg.norm(d, axis=-1, keepdims=True)
 
-    def curvature(self, s: Array | float) -> Array:
+    def curvature(self, s: FloatArray | float) -> FloatArray:
         """Signed curvature (1/mm), positive where the loop turns left (convex)."""
         d = np.asarray(self.d1(s))
         if self.d2 is None:
@@ -120,10 +132,10 @@ class _CurveSegment(_Segment):
         cross = d[..., 0] * dd[..., 1] - d[..., 1] * dd[..., 0]
         return cross / np.linalg.norm(d, axis=-1) ** 3
 
-    def point(self, s: Array | float, inset: float) -> Array:
+    def point(self, s: FloatArray | float, inset: float) -> FloatArray:
         return self.base(s) + inset * _rot90(self.tangent(s))
 
-    def deriv(self, s: Array | float, inset: float) -> Array:
+    def deriv(self, s: FloatArray | float, inset: float) -> FloatArray:
         d = np.asarray(self.d1(s))
         k = self.curvature(s)[..., None]
         return d * (1.0 - inset * k)
@@ -179,7 +191,7 @@ class _Span:
     kind: str  # "line", "curve" or "groove"
     s0: float
     s1: float
-    fractions: Array
+    fractions: FloatArray
     trim_start: bool = False
     trim_stop: bool = False
     groove: _Groove | None = None
@@ -196,8 +208,8 @@ class OutlineModel:
     corners and of the other flutes.
     """
 
-    def __init__(self, runs: tuple[OutlineRun, ...], cutter_radius_mm: float, max_inset_mm: float,
-                 sample_tol_mm: float = 0.001, max_spacing_mm: float = 6.0, flutes: Sequence[Flute] = ()) -> None:
+    def __init__(self, runs: tuple[DieRun, ...], cutter_radius_mm: float, max_inset_mm: float,
+                 sample_tol_mm: float = 0.001, max_spacing_mm: float = 6.0, flutes: Sequence[DieFlute] = ()) -> None:
         self.cutter_radius_mm = cutter_radius_mm
         self.max_inset_mm = max_inset_mm
         self.sample_tol_mm = sample_tol_mm
@@ -212,7 +224,7 @@ class OutlineModel:
         self.spans = self._plan_spans()
 
     # -- construction and checks ------------------------------------------------
-    def _build(self, runs: tuple[OutlineRun, ...]) -> None:
+    def _build(self, runs: tuple[DieRun, ...]) -> None:
         if not runs:
             raise GeometryError("die outline is empty: give at least one run")
         arrays = []
@@ -241,7 +253,7 @@ class OutlineModel:
             if run.kind == "curve":
                 self.segments.append(_CurveSegment(pts, periodic=False))
             else:
-                for a, b in zip(pts[:-1], pts[1:]):
+                for a, b in itertools.pairwise(pts):
                     if np.linalg.norm(b - a) < 1e-6:
                         raise GeometryError(f"outline line run has a zero-length edge at ({a[0]:.3f}, {a[1]:.3f}) mm")
                     self.segments.append(_LineSegment(a, b))
@@ -293,7 +305,7 @@ class OutlineModel:
                     "radius, lower the top radius, or start a new run at a true corner"
                 )
 
-    def _fractions(self, seg: _CurveSegment, s0: float, s1: float) -> Array:
+    def _fractions(self, seg: _CurveSegment, s0: float, s1: float) -> FloatArray:
         """Sample fractions of the stretch ``s0``–``s1`` of a curve segment, denser where it is curved.
 
         Spacing h from the cubic-interpolation error bound of a circle,
@@ -306,7 +318,7 @@ class OutlineModel:
         rho = 1.0 / np.maximum(np.abs(seg.curvature(s)), 1e-9)
         h = np.clip((384.0 * self.sample_tol_mm / 8.0 * rho**3) ** 0.25, 0.25, self.max_spacing_mm)
         density = np.concatenate([[0.0], np.cumsum(0.5 * (1 / h[1:] + 1 / h[:-1]) * np.diff(s))])
-        count = max(4, int(math.ceil(density[-1])) + 1)
+        count = max(4, math.ceil(density[-1]) + 1)
         targets = np.linspace(0.0, density[-1], count)
         return (np.interp(targets, density, s) - s0) / length
 
@@ -327,7 +339,7 @@ class OutlineModel:
             self._lip_ranges[index] = (lo + LIP_CLEARANCE_MM, hi - LIP_CLEARANCE_MM)
         return self._lip_ranges[index]
 
-    def _place_grooves(self, flutes: Sequence[Flute]) -> list[_Groove]:
+    def _place_grooves(self, flutes: Sequence[DieFlute]) -> list[_Groove]:
         """Flutes as grooves on their curve segments; raise :class:`GeometryError` for one that cannot be cut.
 
         A flute whose lip would reach into a corner trim is moved along the
@@ -435,13 +447,13 @@ class OutlineModel:
             remaining -= length
         raise AssertionError("unreachable")
 
-    def locate(self, s_mm: float) -> tuple[Array, Array]:
+    def locate(self, s_mm: float) -> tuple[FloatArray, FloatArray]:
         """Point and inward unit normal of the outline at arc length ``s_mm`` from its first point."""
         index, s = self._param_at(s_mm)
         seg = self.segments[index]
         return seg.point(s, 0.0), _rot90(seg.tangent(s))
 
-    def dense_base(self, spacing_mm: float = 0.5) -> Array:
+    def dense_base(self, spacing_mm: float = 0.5) -> FloatArray:
         """The outline as a dense closed polyline (first point not repeated), mm."""
         parts = []
         for seg in self.segments:
@@ -492,7 +504,7 @@ class OutlineModel:
         n = len(self.segments)
         starts = [0.0] * n
         stops = [seg.length for seg in self.segments]
-        corner: dict[int, Array] = {}
+        corner: dict[int, FloatArray] = {}
         if not self.periodic:
             for i in range(n):
                 sa, sb = self._junction(self.segments[i], self.segments[(i + 1) % n], inset)
@@ -533,8 +545,8 @@ class OutlineModel:
         return OffsetPiece("curve", _points(pts), tuple(map(float, span.fractions)))
 
     @staticmethod
-    def _even(length: float, spacing_mm: float) -> Array:
-        return np.linspace(0.0, 1.0, max(4, int(math.ceil(length / spacing_mm)) + 1))
+    def _even(length: float, spacing_mm: float) -> FloatArray:
+        return np.linspace(0.0, 1.0, max(4, math.ceil(length / spacing_mm) + 1))
 
     @staticmethod
     def _check_simple(pieces: list[OffsetPiece], inset: float) -> None:
@@ -542,11 +554,12 @@ class OutlineModel:
         if not poly.is_valid or poly.area <= 0.0:
             raise GeometryError(
                 f"the die outline offset inward by {inset:.3f} mm crosses itself ({explain_validity(poly)}): "
-                "the piece is too thin there for its wall; lower the top radius or the undercut, or end the piece sooner"
+                "the piece is too thin there for its wall; lower the top radius or the undercut, "
+                "or end the piece sooner"
             )
 
 
-def _points(pts: Array) -> tuple[tuple[float, float], ...]:
+def _points(pts: FloatArray) -> tuple[tuple[float, float], ...]:
     return tuple(map(tuple, pts.tolist()))
 
 

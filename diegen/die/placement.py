@@ -23,13 +23,15 @@ import shapely
 from shapely.geometry import Point, Polygon
 from shapely.ops import polylabel
 
-from diegen.errors import GeometryError, NoRoomForMarks
-from diegen.geometry import die_wall
 from diegen.die import lettering
 from diegen.die.die_input import DieInput
 from diegen.die.model import section
 from diegen.die.outline import OutlineModel, pieces_to_polygon
 from diegen.die.settings import BuildSettings
+from diegen.errors import GeometryError, NoRoomForMarks
+from diegen.geometry import die_wall
+
+__all__ = ["ARROW_LENGTH", "check_placement", "engraving_marks"]
 
 
 def _smallest_section(die: DieInput, model: OutlineModel) -> Polygon:

@@ -8,6 +8,8 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+__all__ = ["DEFAULT_SETTINGS", "KERNEL_TOL_MM", "VOLUME_EPS", "BuildSettings"]
+
 
 @dataclass(frozen=True)
 class BuildSettings:

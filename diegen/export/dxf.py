@@ -20,9 +20,22 @@ import os
 from dataclasses import dataclass
 from pathlib import Path
 
-from diegen.errors import OutputError
 from diegen.blank.drawing import CUT, DRILL, LAYERS, NOTE, SCRIBE, BlankDrawing, Circle, Polyline
+from diegen.errors import OutputError
 from diegen.fileio import write_with
+from diegen.geometry.loops import signed_area
+
+__all__ = [
+    "BEND_LINETYPE",
+    "DXF_VERSION",
+    "INSUNITS_MM",
+    "MEASUREMENT_METRIC",
+    "DxfOutline",
+    "build_dxf",
+    "read_dxf_outline",
+    "write_dxf",
+    "write_outlines_dxf",
+]
 
 DXF_VERSION = "R2010"
 INSUNITS_MM = 4  # DXF Reference, HEADER $INSUNITS: 4 = millimetres
@@ -40,7 +53,7 @@ def write_outlines_dxf(outlines: list[tuple[str, list[tuple[float, float]]]], pa
     for index, (layer, points) in enumerate(outlines):
         doc.layers.add(layer, color=1 + index % 6)
         msp.add_lwpolyline(points, close=True, dxfattribs={"layer": layer})
-    write_with(path, lambda tmp: doc.saveas(tmp))
+    write_with(path, doc.saveas)
 
 
 def build_dxf(drawing: BlankDrawing):  # -> ezdxf.document.Drawing (kept untyped so ezdxf loads lazily)
@@ -88,7 +101,7 @@ def write_dxf(drawing: BlankDrawing, path: str | os.PathLike[str]) -> Path:
     doc = build_dxf(drawing)
     target = Path(path)
     try:
-        write_with(target, lambda tmp: doc.saveas(tmp))
+        write_with(target, doc.saveas)
     except OSError as exc:
         raise OutputError(f"cannot write DXF {target}: {exc}") from exc
     return target
@@ -103,11 +116,6 @@ class DxfOutline:
     cut_circles: tuple[Circle, ...]
     drill_circles: tuple[Circle, ...]
     insunits: int
-
-
-def _shoelace(points: Polyline) -> float:
-    n = len(points)
-    return 0.5 * sum(points[i][0] * points[(i + 1) % n][1] - points[(i + 1) % n][0] * points[i][1] for i in range(n))
 
 
 def _closed_points(entity) -> Polyline:  # entity: ezdxf LWPolyline
@@ -140,7 +148,7 @@ def read_dxf_outline(path: str | os.PathLike[str]) -> DxfOutline:
     contours = [_closed_points(e) for e in msp.query(f'LWPOLYLINE[layer=="{CUT.name}"]') if e.closed]
     if not contours:
         raise OutputError(f"{path}: no closed polyline on layer {CUT.name}")
-    contours.sort(key=lambda c: abs(_shoelace(c)), reverse=True)
+    contours.sort(key=lambda c: abs(signed_area(c)), reverse=True)
 
     def circles(layer: str) -> tuple[Circle, ...]:
         found = msp.query(f'CIRCLE[layer=="{layer}"]')

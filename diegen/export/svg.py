@@ -15,9 +15,11 @@ import os
 from pathlib import Path
 from xml.sax.saxutils import escape
 
-from diegen.errors import OutputError
 from diegen.blank.drawing import CUT, DRILL, NOTE, SCRIBE, BlankDrawing, LayerStyle, Note, Polyline
+from diegen.errors import OutputError
 from diegen.fileio import write_text
+
+__all__ = ["STROKE_WIDTH", "SVG_MARGIN", "canvas", "fmt", "svg_text", "write_svg"]
 
 SVG_MARGIN = 5.0
 """Blank border round the drawing's extent, mm."""

@@ -1,0 +1,3 @@
+"""Forming models as pure functions: bend, springback, flange strain, relief, press."""
+
+__all__: list[str] = []

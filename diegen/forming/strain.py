@@ -25,8 +25,7 @@ from numpy.typing import ArrayLike, NDArray
 
 from diegen.errors import FormingError
 from diegen.forming.bend import flange_layout
-
-FloatArray = NDArray[np.float64]
+from diegen.geometry.loops import FloatArray
 
 #: Default sample spacing of :func:`strain_along`, as a fraction of the window.
 DEFAULT_STEP_FRACTION = 0.1

@@ -29,9 +29,9 @@ from dataclasses import dataclass
 from pathlib import Path
 
 import numpy as np
-from numpy.typing import NDArray
 
 from diegen.errors import AirfoilError
+from diegen.geometry.loops import FloatArray, IntArray
 from diegen.geometry.section import (
     MIN_POINTS,
     first_x_reversal,
@@ -40,7 +40,15 @@ from diegen.geometry.section import (
     validate,
 )
 
-FloatArray = NDArray[np.float64]
+__all__ = [
+    "MAX_ABS_COORDINATE",
+    "MAX_FILE_BYTES",
+    "MAX_POINTS",
+    "PERCENT_THRESHOLD",
+    "X_REVERSAL_TOL",
+    "parse_coordinates",
+    "read_coordinates",
+]
 
 MAX_FILE_BYTES = 5 * 1024 * 1024  # size guard: refuse larger files unread
 MAX_POINTS = 100_000  # size guard: refuse files with more coordinate rows
@@ -56,7 +64,7 @@ class _Rows:
     """Numeric rows of a file with their 1-based line numbers."""
 
     values: FloatArray  # shape (N, 2)
-    lines: NDArray[np.intp]  # shape (N,)
+    lines: IntArray  # shape (N,)
     last_line: int
 
 
@@ -114,12 +122,12 @@ def _is_count(v: float) -> bool:
     return 2.0 <= v <= MAX_POINTS and abs(v - round(v)) < 1e-9
 
 
-def _build_chain(rows: _Rows, name: str) -> tuple[FloatArray, NDArray[np.intp]]:
+def _build_chain(rows: _Rows, name: str) -> tuple[FloatArray, IntArray]:
     """Arrange the rows as one chain from one TE end to the other; keep line numbers."""
     data, lines = rows.values, rows.lines
     first = data[0]
     if _is_count(first[0]) and _is_count(first[1]):
-        n_upper, n_lower = int(round(first[0])), int(round(first[1]))
+        n_upper, n_lower = round(float(first[0])), round(float(first[1]))
         rest, rest_lines = data[1:], lines[1:]
         if n_upper + n_lower == len(rest):
             rest = rest / 100.0 if np.abs(rest).max() > PERCENT_THRESHOLD else rest

@@ -24,9 +24,19 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
+__all__ = [
+    "WallSection",
+    "fillet_end_depth_mm",
+    "fillet_point",
+    "fillet_sections",
+    "largest_inset_mm",
+    "top_setback_mm",
+    "wall_inset_mm",
+]
+
 
 @dataclass(frozen=True)
-class Section:
+class WallSection:
     """One section of the die loft: the outline offset inward by ``inset_mm`` at depth ``depth_mm``."""
 
     inset_mm: float
@@ -49,14 +59,14 @@ def wall_inset_mm(depth_mm: float, undercut_deg: float) -> float:
     return depth_mm * math.tan(math.radians(undercut_deg))
 
 
-def fillet_point(radius_mm: float, undercut_deg: float, theta_deg: float) -> Section:
+def fillet_point(radius_mm: float, undercut_deg: float, theta_deg: float) -> WallSection:
     """Point of the top-edge arc at arc angle ``theta_deg`` (0 = on the top face, 90 + α = on the wall)."""
     t = top_setback_mm(radius_mm, undercut_deg)
     th = math.radians(theta_deg)
-    return Section(t - radius_mm * math.sin(th), radius_mm * (1.0 - math.cos(th)))
+    return WallSection(t - radius_mm * math.sin(th), radius_mm * (1.0 - math.cos(th)))
 
 
-def fillet_sections(radius_mm: float, undercut_deg: float, count: int) -> tuple[Section, ...]:
+def fillet_sections(radius_mm: float, undercut_deg: float, count: int) -> tuple[WallSection, ...]:
     """``count`` (>= 2) sections evenly spaced in arc angle over the whole top-edge arc."""
     if count < 2:
         raise ValueError("at least two fillet sections are needed")

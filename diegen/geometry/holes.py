@@ -24,6 +24,16 @@ from diegen.geometry.polygon import QUAD_SEGS, vertical_extent
 from diegen.geometry.types import Hole
 from diegen.spec.model import HoleRules, HoleSpec
 
+__all__ = [
+    "MAX_AUTO_HOLES",
+    "MAX_DEPTH_FRACTION",
+    "ROUND_TO_MM",
+    "auto_holes",
+    "explicit_holes",
+    "hole_flange_height",
+    "usable_web",
+]
+
 MAX_DEPTH_FRACTION = 0.65
 MAX_AUTO_HOLES = 12
 ROUND_TO_MM = 1.0  # auto diameters are rounded down to a whole millimetre (hole saws and cutters come in steps)
@@ -75,7 +85,7 @@ def auto_holes(piece: Polygon, bend_radius: float, rules: HoleRules, stretch_lim
         holes.append(Hole(round(centre.x, 3), round(y, 3), d, flanged, height if flanged else 0.0))
         # one row of holes along the piece: the band the hole stands in is taken out whole
         band = d / 2 + rules.ligament_mm
-        minx, miny, maxx, maxy = room.bounds
+        _minx, miny, _maxx, maxy = room.bounds
         room = room.difference(shapely.box(centre.x - band, miny - 1, centre.x + band, maxy + 1))
     return tuple(sorted(holes, key=lambda h: h.x))
 

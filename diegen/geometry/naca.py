@@ -26,12 +26,23 @@ import re
 from dataclasses import dataclass
 
 import numpy as np
-from numpy.typing import ArrayLike, NDArray
+from numpy.typing import ArrayLike
 
 from diegen.errors import AirfoilError
+from diegen.geometry.loops import FloatArray
 from diegen.geometry.section import MIN_POINTS
 
-FloatArray = NDArray[np.float64]
+__all__ = [
+    "NacaParameters",
+    "cosine_stations",
+    "leading_edge_radius",
+    "naca4_camber",
+    "naca4_thickness",
+    "naca5_camber",
+    "naca_section",
+    "naca_surfaces",
+    "parse_designation",
+]
 
 # Thickness-distribution coefficients, NACA Report 824 / Theory of Wing Sections
 # ch. 6: yt = 5 t (0.29690 sqrt(x) - 0.12600 x - 0.35160 x^2 + 0.28430 x^3 - 0.10150 x^4).

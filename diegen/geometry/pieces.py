@@ -26,6 +26,23 @@ import numpy as np
 from diegen.errors import GeometryError
 from diegen.geometry.types import Joggle, Point, Points, Run
 
+__all__ = [
+    "JOGGLE_SAMPLE_MM",
+    "MIN_END_FACE_MM",
+    "MIN_POINT_GAP_MM",
+    "RAMP_BEND",
+    "SparCut",
+    "depth_at",
+    "joggles_for",
+    "monotone_surfaces",
+    "piece_runs",
+    "ramp_length",
+    "ramp_shape",
+    "relief_points",
+    "surface_y",
+    "tail_end",
+]
+
 JOGGLE_SAMPLE_MM = 0.5  # point spacing along a joggle ramp and zone
 RAMP_BEND = 10.0 / math.sqrt(3.0)  # the ramp's tightest radius is L²/(RAMP_BEND·d) (see ramp_shape)
 MIN_POINT_GAP_MM = 0.2  # closer outline points are merged
@@ -46,8 +63,9 @@ class SparCut:
         return self.x_front_mm + self.web_mm
 
 
-def split_surfaces(loop: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """Upper and lower surfaces of a CCW loop, each ordered from the leading edge (min x) aft."""
+def monotone_surfaces(loop: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Upper and lower surfaces of a CCW loop (mm), each from the leading edge (min x) aft; a point that does not
+    advance in x beyond the one before it is dropped, so that the surfaces can be interpolated in x."""
     le, te = int(np.argmin(loop[:, 0])), int(np.argmax(loop[:, 0]))
     rolled = np.roll(loop, -te, axis=0)
     le_r = (le - te) % len(loop)

@@ -20,15 +20,19 @@ from diegen.geometry.polygon import QUAD_SEGS, inscribed_diameter, vertical_exte
 from diegen.geometry.types import Hole, Pin
 from diegen.spec.model import PinSpot
 
+__all__ = ["LONG_PIECE_MM", "SCAN_LINES", "auto_pins", "explicit_pins", "pin_room", "pin_web_depth"]
+
 SCAN_LINES = 200  # candidate x positions across the piece
 LONG_PIECE_MM = 400.0  # pieces longer than this get a third pin (common practice, no source)
 
 
-def pin_room(piece: Polygon, bend_radius: float, margin: float, diameter: float, holes: Sequence[Hole]) -> shapely.Geometry:
+def pin_room(piece: Polygon, bend_radius: float, margin: float, diameter: float,
+             holes: Sequence[Hole]) -> shapely.Geometry:
     """Where a pin centre may go (mm)."""
     room = piece.buffer(-(bend_radius + margin + diameter / 2), quad_segs=QUAD_SEGS)
     for hole in holes:
-        room = room.difference(ShapelyPoint(hole.x, hole.y).buffer(hole.d / 2 + margin + diameter / 2, quad_segs=QUAD_SEGS))
+        keep_off = ShapelyPoint(hole.x, hole.y).buffer(hole.d / 2 + margin + diameter / 2, quad_segs=QUAD_SEGS)
+        room = room.difference(keep_off)
     return room
 
 
@@ -65,7 +69,8 @@ def auto_pins(piece: Polygon, bend_radius: float, margin: float, diameter: float
         why = (f"its web is only {deepest:.2f} mm deep at its deepest and a pin needs {need:.2f} mm"
                if deepest < need else "the lightening holes leave no such spot")
         raise GeometryError(f"the {piece_name} piece has no web left for tooling pins of {diameter:.2f} mm "
-                            f"(bend radius {bend_radius:.2f} mm + margin {margin:.2f} mm from the bend line and holes): "
+                            f"(bend radius {bend_radius:.2f} mm + margin {margin:.2f} mm from the bend line and "
+                            "holes): "
                             f"{why}")
     minx, _, maxx, _ = room.bounds
     inset = min(2.0, 0.1 * (maxx - minx))

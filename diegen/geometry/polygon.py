@@ -1,4 +1,4 @@
-"""Small helpers on closed point loops and shapely polygons (mm)."""
+"""Small helpers on shapely polygons (mm); a loop's area and length are in :mod:`diegen.geometry.loops`."""
 
 from __future__ import annotations
 
@@ -9,25 +9,21 @@ from shapely.geometry import Polygon
 from diegen.errors import GeometryError
 from diegen.geometry.types import Points
 
+__all__ = [
+    "QUAD_SEGS",
+    "as_points",
+    "inscribed_diameter",
+    "offset_inward",
+    "outline_deviation_mm",
+    "round_concave_corners",
+    "single_polygon",
+    "vertical_extent",
+    "vertical_extents",
+]
+
 # Segments per quarter circle for offsets: the chordal error of a round join of
 # radius r is r·(1 − cos(π/(4·QUAD_SEGS))), 0.0012·r at 16.
 QUAD_SEGS = 16
-
-
-def loop_array(points: Points) -> np.ndarray:
-    return np.asarray(points, dtype=float).reshape(-1, 2)
-
-
-def loop_length(points: Points) -> float:
-    """Perimeter of the closed loop, mm."""
-    p = loop_array(points)
-    return float(np.sum(np.hypot(*(np.roll(p, -1, axis=0) - p).T)))
-
-
-def loop_area(points: Points) -> float:
-    """Signed area of the loop (positive when counter-clockwise), mm²."""
-    x, y = loop_array(points).T
-    return float(0.5 * np.sum(x * np.roll(y, -1) - np.roll(x, -1) * y))
 
 
 def as_points(polygon: Polygon) -> Points:

@@ -14,10 +14,20 @@ from diegen.errors import GeometryError
 from diegen.findings import Finding
 from diegen.geometry import holes as hole_rules
 from diegen.geometry import pins as pin_rules
-from diegen.geometry.pieces import SparCut, depth_at, joggles_for, piece_runs, relief_points, split_surfaces, tail_end
+from diegen.geometry.pieces import (
+    SparCut,
+    depth_at,
+    joggles_for,
+    monotone_surfaces,
+    piece_runs,
+    relief_points,
+    tail_end,
+)
 from diegen.geometry.polygon import QUAD_SEGS, as_points, inscribed_diameter, offset_inward, vertical_extents
 from diegen.geometry.types import Hole, PieceGeometry, RibGeometry
 from diegen.spec.model import AirfoilSource, RibSpec
+
+__all__ = ["DEPTH_SAMPLES", "FAIR_MARGIN_MM", "load_section", "min_tail_depth", "raw_section", "rib_geometry"]
 
 DEPTH_SAMPLES = 64
 FAIR_MARGIN_MM = 0.5  # joggle ramps bend this much rounder than the die wall's inset (design choice: room for sampling)
@@ -29,7 +39,10 @@ def raw_section(source: AirfoilSource) -> np.ndarray:
     from diegen.geometry.coordfile import read_coordinates
     from diegen.geometry.naca import naca_section
 
-    raw = naca_section(source.naca, n_points=801, closed_te=source.closed_te) if source.naca else read_coordinates(source.file)
+    if source.naca:
+        raw = naca_section(source.naca, n_points=801, closed_te=source.closed_te)
+    else:
+        raw = read_coordinates(source.file)
     raw.setflags(write=False)
     return raw
 
@@ -50,13 +63,16 @@ def min_tail_depth(spec: RibSpec) -> float:
     return flange.min_tail_depth_mm if flange.min_tail_depth_mm is not None else 2 * flange.height_mm + 10.0
 
 
-def rib_geometry(spec: RibSpec, section: np.ndarray | None = None, die_inset_mm: float = 0.0) -> RibGeometry:
+def rib_geometry(spec: RibSpec, section: np.ndarray | None = None, die_inset_mm: float = 0.0, *,
+                 stretch_limit: float) -> RibGeometry:
     """Compute the rib's 2D geometry; ``section`` (unit chord) defaults to the spec's airfoil.
 
     ``die_inset_mm`` is the largest inset of the die's wall from its outline
     (top-edge setback or bottom inset, mm): the joggle ramps bend no tighter
     than it (plus ``FAIR_MARGIN_MM``) where they turn convex, so the die's
     offset sections stay smooth, and no tighter than the cutter radius.
+    ``stretch_limit`` is the sheet alloy's largest edge stretch (fraction): it
+    sizes the flanges of lightening holes placed automatically.
     """
     shared = spec.shared
     unit = load_section(spec.airfoil) if section is None else np.asarray(section, float)
@@ -67,13 +83,13 @@ def rib_geometry(spec: RibSpec, section: np.ndarray | None = None, die_inset_mm:
     skin, sheet_t = shared.skin_thickness_mm, shared.sheet.thickness_mm
     oml = offset_inward(airfoil, skin, f"offsetting the section inward by the skin ({skin:.3f} mm)")
     die = offset_inward(oml, sheet_t, f"offsetting the outer mold line inward by the rib sheet ({sheet_t:.3f} mm)")
-    upper, lower = split_surfaces(np.asarray(as_points(die)))
+    upper, lower = monotone_surfaces(np.asarray(as_points(die)))
     spars = [SparCut(s.at * spec.chord_mm, s.web_mm, s.cap_thickness_mm, s.cap_width_mm) for s in spec.spars]
     warnings: list[Finding] = []
     pieces = []
     fair_radius = max(shared.die.cutter_diameter_mm / 2, die_inset_mm + FAIR_MARGIN_MM if die_inset_mm > 0 else 0.0)
     for name, x0, x1, aft_flanged in _piece_ranges(spec, spars, upper, lower, warnings):
-        pieces.append(_piece(spec, name, x0, x1, aft_flanged, upper, lower, spars, fair_radius))
+        pieces.append(_piece(spec, name, x0, x1, aft_flanged, upper, lower, spars, fair_radius, stretch_limit))
     if not pieces:
         raise GeometryError(f"rib {spec.id} has no piece left to make: {'; '.join(w.message for w in warnings)}")
     return RibGeometry(spec.id, spec.chord_mm, _tuple(scaled), as_points(oml), as_points(die), tuple(pieces),
@@ -109,7 +125,7 @@ def _piece_ranges(spec: RibSpec, spars: list[SparCut], upper: np.ndarray, lower:
 
 
 def _piece(spec: RibSpec, name: str, x0: float | None, x1: float, aft_flanged: bool, upper: np.ndarray,
-           lower: np.ndarray, spars: list[SparCut], fair_radius: float) -> PieceGeometry:
+           lower: np.ndarray, spars: list[SparCut], fair_radius: float, stretch_limit: float) -> PieceGeometry:
     shared = spec.shared
     part_id = f"{spec.id}-{name}"
     lo = float(upper[0, 0]) if x0 is None else float(x0)
@@ -127,7 +143,8 @@ def _piece(spec: RibSpec, name: str, x0: float | None, x1: float, aft_flanged: b
     points = [p for run in runs for p in run.points[:-1]]
     polygon = Polygon(points)
     if not polygon.is_valid or polygon.area <= 0:
-        raise GeometryError(f"the {name} piece of rib {spec.id} is not a simple outline (joggles deeper than the section?)")
+        raise GeometryError(f"the {name} piece of rib {spec.id} is not a simple outline "
+                            "(joggles deeper than the section?)")
     radius = shared.flange.bend_radius_mm
     if polygon.buffer(-radius, quad_segs=QUAD_SEGS).is_empty:
         deepest = inscribed_diameter(polygon)
@@ -135,25 +152,23 @@ def _piece(spec: RibSpec, name: str, x0: float | None, x1: float, aft_flanged: b
             f"the {name} piece of rib {spec.id} has no flat web between its flange bends: its die outline is only "
             f"{deepest:.2f} mm deep at its deepest, and the bend radius of {radius:.2f} mm on each side needs more "
             f"than {2 * radius:.2f} mm (the flange bends would overlap)")
-    holes = _holes(spec, name, polygon, (lo, x1), radius)
+    holes = _holes(spec, name, polygon, (lo, x1), radius, stretch_limit)
     pins = _pins(spec, name, polygon, (lo, x1), radius, holes)
     plain = piece_runs(upper, lower, x0, x1, (), aft_flanged) if joggles else runs
     return PieceGeometry(name, part_id, (lo, x1), runs, tuple(joggles), holes, pins, relief_points(runs),
                          _depth_range(polygon, lo, x1, name), plain)
 
 
-def _holes(spec: RibSpec, name: str, polygon: Polygon, x_range: tuple[float, float], radius: float) -> tuple[Hole, ...]:
+def _holes(spec: RibSpec, name: str, polygon: Polygon, x_range: tuple[float, float], radius: float,
+           stretch_limit: float) -> tuple[Hole, ...]:
     holes = spec.shared.holes
     if holes.mode == "none":
         return ()
     if holes.mode == "list":
         return hole_rules.explicit_holes(polygon, x_range, radius, holes.rules, holes.explicit, name)
-    from diegen import materials
-
-    limit = materials.sheet_alloy(spec.shared.sheet.alloy).stretch_limit
     # a hole flange needs a straight leg beyond its bend: at least R + T + 1 mm high
     shortest = radius + spec.shared.sheet.thickness_mm + 1.0
-    return hole_rules.auto_holes(polygon, radius, holes.rules, limit, shortest)
+    return hole_rules.auto_holes(polygon, radius, holes.rules, stretch_limit, shortest)
 
 
 def _pins(spec: RibSpec, name: str, polygon: Polygon, x_range: tuple[float, float], radius: float,

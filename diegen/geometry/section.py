@@ -17,12 +17,28 @@ import re
 import numpy as np
 import shapely
 import shapely.validation
-from numpy.typing import ArrayLike, NDArray
+from numpy.typing import ArrayLike
 
 from diegen.errors import AirfoilError
+from diegen.geometry.loops import FloatArray, IntArray, is_counter_clockwise, signed_area
 
-FloatArray = NDArray[np.float64]
-IntArray = NDArray[np.intp]
+__all__ = [
+    "DUPLICATE_TOL",
+    "MAX_TE_GAP",
+    "MIN_POINTS",
+    "blend",
+    "cubic_spline",
+    "first_x_reversal",
+    "leading_edge_index",
+    "normalise",
+    "normalise_with_index",
+    "resample",
+    "self_intersection_index",
+    "split_surfaces",
+    "surface_fractions",
+    "thickness_at",
+    "validate",
+]
 
 MIN_POINTS = 10
 # Two points closer than this (fraction of the outline's size) are the same point.
@@ -42,13 +58,6 @@ MAX_TE_GAP = 0.1
 _TE_MERGE_TOL = 1e-9
 # Samples of the spline per input segment used to measure its arc length.
 _ARC_SAMPLES_PER_SEGMENT = 16
-
-
-def signed_area(points: ArrayLike) -> float:
-    """Shoelace area of the closed polygon through ``points``; > 0 if counter-clockwise."""
-    p = np.asarray(points, dtype=float)
-    x, y = p[:, 0], p[:, 1]
-    return 0.5 * float(np.dot(x, np.roll(y, -1)) - np.dot(y, np.roll(x, -1)))
 
 
 def _as_points(points: ArrayLike, name: str) -> FloatArray:
@@ -218,7 +227,7 @@ def validate(loop: ArrayLike, name: str = "<section>") -> None:
     i = self_intersection_index(p)
     if i is not None:
         raise AirfoilError(f"{name}: the outline crosses or touches itself near point {i} {tuple(p[i].round(6))}")
-    if signed_area(p) <= 0.0:
+    if not is_counter_clockwise(p):
         raise AirfoilError(f"{name}: the outline is not counter-clockwise (Selig order) or has no area")
 
 
@@ -313,7 +322,7 @@ def _resample_surfaces(loop: ArrayLike, n_points: int) -> tuple[FloatArray, Floa
 
     out = []
     for t_end, end_point, count in ((t[0], chain[0], n_upper), (t[-1], chain[-1], n_lower)):
-        n_fine = max(_ARC_SAMPLES_PER_SEGMENT * int(round(abs(t_end - t[i_le]) / np.mean(seg))), 200)
+        n_fine = max(_ARC_SAMPLES_PER_SEGMENT * round(float(abs(t_end - t[i_le]) / np.mean(seg))), 200)
         tf = np.linspace(t[i_le], t_end, n_fine)
         pts = spline(tf)
         arc = np.concatenate(([0.0], np.cumsum(np.linalg.norm(np.diff(pts, axis=0), axis=1))))

@@ -10,6 +10,9 @@ from dataclasses import dataclass
 from typing import Literal
 
 from diegen.findings import Finding
+from diegen.geometry.loops import loop_length, signed_area
+
+__all__ = ["Hole", "Joggle", "PieceGeometry", "Pin", "Point", "Points", "RibGeometry", "Run"]
 
 Point = tuple[float, float]
 Points = tuple[Point, ...]
@@ -88,15 +91,11 @@ class PieceGeometry:
 
     @property
     def length_mm(self) -> float:
-        from diegen.geometry.polygon import loop_length
-
         return loop_length(self.outline)
 
     @property
     def area_mm2(self) -> float:
-        from diegen.geometry.polygon import loop_area
-
-        return loop_area(self.outline)
+        return signed_area(self.outline)
 
 
 @dataclass(frozen=True)

@@ -24,11 +24,11 @@ from typing import Any
 
 import yaml
 
-from diegen.errors import DiegenError, FormingError
+from diegen.errors import DiegenError, FormingError, MaterialError
+from diegen.units import MM_PER_IN, MPA_PER_KSI, mm_to_in
 
 __all__ = [
     "DieMaterial",
-    "MaterialError",
     "MinRadius",
     "SheetAlloy",
     "bend_radius_tables",
@@ -40,19 +40,12 @@ __all__ = [
     "sheet_alloy_names",
 ]
 
-# Unit conversions, exact by definition: 1 in = 25.4 mm; 1 lbf = 4.4482216152605 N,
+# Unit conversions from diegen.units, exact by definition: 1 in = 25.4 mm; 1 lbf = 4.4482216152605 N,
 # so 1 ksi = 1000 lbf/in^2 = 4448.2216152605 N / 645.16 mm^2 = 6.894757... MPa.
-_MM_PER_UNIT: Mapping[str, float] = {"mm": 1.0, "in": 25.4}
-_MPA_PER_UNIT: Mapping[str, float] = {"MPa": 1.0, "GPa": 1000.0, "ksi": 4448.2216152605 / 645.16}
+_MM_PER_UNIT: Mapping[str, float] = {"mm": 1.0, "in": MM_PER_IN}
+_MPA_PER_UNIT: Mapping[str, float] = {"MPa": 1.0, "GPa": 1000.0, "ksi": MPA_PER_KSI}
 _FRACTION_PER_UNIT: Mapping[str, float] = {"fraction": 1.0, "percent": 0.01}
 _INDEFINITELY = "indefinitely"
-
-
-class MaterialError(DiegenError, KeyError):
-    """An alloy, die material or bend-radius table name that is not in the catalogue."""
-
-    def __str__(self) -> str:  # KeyError would quote the message
-        return str(self.args[0]) if self.args else ""
 
 
 @dataclass(frozen=True)
@@ -348,17 +341,17 @@ def min_bend_radius(alloy: str, thickness_mm: float, table: str = "aa") -> MinRa
     if index is None:
         raise FormingError(
             f"t = {t:g} mm is outside the {tab.name!r} bend-radius table, which covers "
-            f"{cols[0]:.3f} to {cols[-1]:.3f} mm ({cols[0] / 25.4:g} to {cols[-1] / 25.4:g} in)"
+            f"{cols[0]:.3f} to {cols[-1]:.3f} mm ({mm_to_in(cols[0]):g} to {mm_to_in(cols[-1]):g} in)"
         )
     column = cols[index]
     value = tab.rows[name][index]
     radius = value * t if tab.kind == "multiple_of_thickness" else value
     if abs(t - column) <= 1e-9 * column:
-        note = f"t = {t:g} mm is the {column / 25.4:g} in column"
+        note = f"t = {t:g} mm is the {mm_to_in(column):g} in column"
     elif t < column:
-        note = f"t = {t:g} mm read in the next thicker column, {column / 25.4:g} in (conservative)"
+        note = f"t = {t:g} mm read in the next thicker column, {mm_to_in(column):g} in (conservative)"
     else:
-        note = f"t = {t:g} mm read as the {column / 25.4:g} in gauge (within {tab.column_match:.0%})"
+        note = f"t = {t:g} mm read as the {mm_to_in(column):g} in gauge (within {tab.column_match:.0%})"
     if tab.kind == "multiple_of_thickness":
         note += f"; R = {value:g} t"
     return MinRadius(
@@ -418,9 +411,9 @@ def catalogue_text() -> str:
     for t in cat.tables.values():
         unit = "multiples of t" if t.kind == "multiple_of_thickness" else "inside radius, in"
         out.append(f"  {t.name}: {t.title} ({unit}) {ref(t.citation)}")
-        out.append(f"    {'t, in':<10}" + " ".join(f"{c / 25.4:>8.5g}" for c in t.columns_mm))
+        out.append(f"    {'t, in':<10}" + " ".join(f"{mm_to_in(c):>8.5g}" for c in t.columns_mm))
         for alloy, row in t.rows.items():
-            shown = row if t.kind == "multiple_of_thickness" else tuple(r / 25.4 for r in row)
+            shown = row if t.kind == "multiple_of_thickness" else tuple(mm_to_in(r) for r in row)
             out.append(f"    {alloy:<10}" + " ".join(f"{v:>8.5g}" for v in shown) + f"  {ref(t.row_sources[alloy])}")
         if t.note:
             out.append(f"    note: {t.note}")

@@ -10,6 +10,35 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from typing import Literal
 
+__all__ = [
+    "PIECE_NAMES",
+    "RELIEF_POLICIES",
+    "RIB_ORIENTATIONS",
+    "AirfoilSource",
+    "Die",
+    "Flange",
+    "HoleRules",
+    "HoleSpec",
+    "Holes",
+    "PieceName",
+    "PinSpot",
+    "Pins",
+    "Press",
+    "ReliefPolicy",
+    "RibOrientation",
+    "RibOverride",
+    "RibSpec",
+    "Rubber",
+    "Shared",
+    "Sheet",
+    "Spar",
+    "Spec",
+    "SpecPositions",
+    "Stations",
+    "WingSpar",
+    "WingSpec",
+]
+
 PieceName = Literal["nose", "center", "tail"]
 PIECE_NAMES: tuple[str, ...] = ("nose", "center", "tail")
 ReliefPolicy = Literal["flutes", "notches", "none"]
@@ -124,7 +153,7 @@ class Press:
     force_n: float
     box_mm: tuple[float, float]  # inside width and length of the rubber box
     rubber: Rubber
-    wall_clearance_mm: float = 25.4
+    wall_clearance_mm: float  # default: spec.schema.WALL_CLEARANCE
 
 
 @dataclass(frozen=True)

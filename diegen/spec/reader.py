@@ -16,6 +16,8 @@ from diegen import units
 from diegen.errors import Problem
 from diegen.spec.yamltree import YNode
 
+__all__ = ["MIN_LENGTH_MM", "Reader", "describe", "join", "suggest"]
+
 T = TypeVar("T")
 MIN_LENGTH_MM = 0.001
 
@@ -58,7 +60,8 @@ class Reader:
         self.problems.append(Problem(message, self.file, line, column, path))
 
     # -- mappings --------------------------------------------------------
-    def mapping(self, node: YNode | None, path: str, allowed: Iterable[str], required: Iterable[str] = ()) -> dict[str, YNode] | None:
+    def mapping(self, node: YNode | None, path: str, allowed: Iterable[str],
+                required: Iterable[str] = ()) -> dict[str, YNode] | None:
         """Check ``node`` is a mapping with only ``allowed`` keys and all ``required`` ones."""
         if node is None:
             return None
@@ -68,7 +71,8 @@ class Reader:
         allowed = list(allowed)
         for key in node.value:
             if key not in allowed:
-                self.problem(node, join(path, key), f"unknown key {key!r}{suggest(key, allowed)}; allowed: {', '.join(allowed)}",
+                self.problem(node, join(path, key),
+                             f"unknown key {key!r}{suggest(key, allowed)}; allowed: {', '.join(allowed)}",
                              at_key=node.keys[key])
         for key in required:
             if key not in node.value:

@@ -7,6 +7,7 @@ key of a section and keep the rest.
 
 from __future__ import annotations
 
+import itertools
 import re
 from dataclasses import replace
 from pathlib import Path
@@ -20,11 +21,11 @@ from diegen.spec.model import (
     AirfoilSource,
     Die,
     Flange,
-    Holes,
     HoleRules,
+    Holes,
     HoleSpec,
-    PinSpot,
     Pins,
+    PinSpot,
     Press,
     RibOverride,
     RibSpec,
@@ -38,6 +39,39 @@ from diegen.spec.model import (
 )
 from diegen.spec.reader import Reader, describe, join
 from diegen.spec.yamltree import YNode
+from diegen.units import in_to_mm
+
+__all__ = [
+    "HEADER_KEYS",
+    "ID_PATTERN",
+    "MAX_RIBS",
+    "NACA_PATTERN",
+    "RIB_KEYS",
+    "SHARED_KEYS",
+    "SPEC_VERSION",
+    "WALL_CLEARANCE",
+    "WING_KEYS",
+    "by_units",
+    "check_pieces",
+    "default_hole_rules",
+    "read_airfoil",
+    "read_die",
+    "read_flange",
+    "read_header",
+    "read_hole_rules",
+    "read_holes",
+    "read_overrides",
+    "read_pieces",
+    "read_pins",
+    "read_press",
+    "read_rib",
+    "read_shared",
+    "read_sheet",
+    "read_spar",
+    "read_spars",
+    "read_stations",
+    "read_wing",
+]
 
 SPEC_VERSION = 1
 MAX_RIBS = 200  # ribs of one wing spec, however the stations are given
@@ -48,13 +82,17 @@ NACA_PATTERN = re.compile(r"^(?:naca\s*)?(?:-\s*)?(\d{4,5})$", re.IGNORECASE)
 HEADER_KEYS = ("diegen", "kind", "id", "units", "title")
 SHARED_KEYS = ("skin_thickness", "sheet", "flange", "pieces", "lightening_holes", "hole_rules", "pins",
                "dowel_diameter", "relief", "die", "press", "joggle_runout")
-RIB_KEYS = HEADER_KEYS + ("airfoil", "chord", "spars") + SHARED_KEYS
-WING_KEYS = HEADER_KEYS + ("planform", "airfoil", "spars", "overrides") + SHARED_KEYS
+RIB_KEYS = (*HEADER_KEYS, "airfoil", "chord", "spars", *SHARED_KEYS)
+WING_KEYS = (*HEADER_KEYS, "planform", "airfoil", "spars", "overrides", *SHARED_KEYS)
+
+# Room wanted between the die and each wall of the rubber box when the spec gives none: a round number in the
+# spec's own units, 1 in or 25 mm (common practice, no source).  Read as ``by_units(units, *WALL_CLEARANCE)``.
+WALL_CLEARANCE = (1.0, 25.0)  # (in, mm)
 
 
 def by_units(units_name: str, inch_value: float, mm_value: float) -> float:
     """A default that is a round number in the spec's own units (returned in mm)."""
-    return inch_value * 25.4 if units_name == "in" else mm_value
+    return in_to_mm(inch_value) if units_name == "in" else mm_value
 
 
 def _get(node_map: dict[str, YNode] | None, key: str) -> YNode | None:
@@ -143,7 +181,7 @@ def read_sheet(r: Reader, node: YNode | None, path: str, base: Sheet | None = No
     if fields is None:
         return None
     alloy = r.choice(fields.get("alloy"), join(path, "alloy"), materials.sheet_alloy_names())
-    thickness = r.length(fields.get("thickness"), join(path, "thickness"), high=12.7)
+    thickness = r.length(fields.get("thickness"), join(path, "thickness"), high=in_to_mm(0.5))
     return Sheet(_or(alloy, base and base.alloy), _or(thickness, base and base.thickness_mm))
 
 
@@ -184,7 +222,7 @@ def read_trial(r: Reader, node: YNode | None, path: str) -> FlangeTrial | None:
 
 def read_spar(r: Reader, node: YNode, path: str, wing: bool) -> Spar | WingSpar | None:
     position_keys = ("at", "root_at", "tip_at") if wing else ("at",)
-    fields = r.mapping(node, path, position_keys + ("web", "cap_thickness", "cap_width"),
+    fields = r.mapping(node, path, (*position_keys, "web", "cap_thickness", "cap_width"),
                        ("web", "cap_thickness", "cap_width") + (() if wing else ("at",)))
     if fields is None:
         return None
@@ -196,7 +234,8 @@ def read_spar(r: Reader, node: YNode, path: str, wing: bool) -> Spar | WingSpar 
         return Spar(positions["at"], web, cap_t, cap_w)
     given = {k for k in position_keys if k in fields}
     if given not in ({"at"}, {"root_at", "tip_at"}):
-        r.problem(node, path, "expected either 'at' (constant chord fraction) or both 'root_at' and 'tip_at' (a straight spar line)")
+        r.problem(node, path, "expected either 'at' (constant chord fraction) or both 'root_at' and 'tip_at' "
+                              "(a straight spar line)")
         return None
     root_at = positions["at"] if "at" in given else positions["root_at"]
     tip_at = positions["at"] if "at" in given else positions["tip_at"]
@@ -334,7 +373,7 @@ def read_press(r: Reader, node: YNode | None, path: str, base: Press | None = No
                             r.length(rf.get("thickness"), join(rp, "thickness"), high=500.0))
     clearance = r.length(fields.get("wall_clearance"), join(path, "wall_clearance"), low_open=False)
     return Press(_or(force, base and base.force_n), _or(box, base and base.box_mm), rubber,
-                 _or(clearance, base.wall_clearance_mm if base else by_units(r.units, 1.0, 25.0)))
+                 _or(clearance, base.wall_clearance_mm if base else by_units(r.units, *WALL_CLEARANCE)))
 
 
 def read_shared(r: Reader, root: dict[str, YNode], base: Shared | None = None) -> Shared:
@@ -342,13 +381,16 @@ def read_shared(r: Reader, root: dict[str, YNode], base: Shared | None = None) -
     for key in ("skin_thickness", "sheet", "flange", "die", "press"):
         if base is None and key not in root:
             r.problem(None, key, f"missing required key {key!r}")
-    skin = r.length(root.get("skin_thickness"), "skin_thickness", high=12.7)
+    skin = r.length(root.get("skin_thickness"), "skin_thickness", high=in_to_mm(0.5))
     rules = read_hole_rules(r, root.get("hole_rules"), "hole_rules",
                             base.holes.rules if base else default_hole_rules(r.units))
-    dowel = r.length(root.get("dowel_diameter"), "dowel_diameter", high=25.4)
+    dowel = r.length(root.get("dowel_diameter"), "dowel_diameter", high=in_to_mm(1.0))
     dowel = _or(dowel, base.pins.diameter_mm if base else by_units(r.units, 0.125, 3.0))
     holes_node = root.get("lightening_holes")
-    holes = read_holes(r, holes_node, "lightening_holes", rules) if (holes_node or not base) else replace(base.holes, rules=rules)
+    if holes_node or not base:
+        holes = read_holes(r, holes_node, "lightening_holes", rules)
+    else:
+        holes = replace(base.holes, rules=rules)
     pins_node = root.get("pins")
     pins = read_pins(r, pins_node, "pins", dowel) if (pins_node or not base) else replace(base.pins, diameter_mm=dowel)
     relief = r.choice(root.get("relief"), "relief", RELIEF_POLICIES)
@@ -374,12 +416,14 @@ def check_pieces(r: Reader, root: dict[str, YNode], pieces: tuple[str, ...] | No
     needs = {"nose": 1, "tail": 1, "center": 2}
     for name in pieces:
         if spar_count < needs[name]:
-            r.problem(node, "pieces", f"piece {name!r} needs at least {needs[name]} spar(s) to bound it, found {spar_count}")
+            r.problem(node, "pieces",
+                      f"piece {name!r} needs at least {needs[name]} spar(s) to bound it, found {spar_count}")
 
 
 # -- rib and wing ----------------------------------------------------------
 def read_rib(r: Reader, root: dict[str, YNode], spec_dir: Path) -> RibSpec:
-    r.mapping(YNode(root, 1, 1, {k: (v.line, v.column) for k, v in root.items()}), "", RIB_KEYS, ("id", "airfoil", "chord"))
+    r.mapping(YNode(root, 1, 1, {k: (v.line, v.column) for k, v in root.items()}), "", RIB_KEYS,
+              ("id", "airfoil", "chord"))
     ident, title = read_header(r, root, "rib")
     airfoil = read_airfoil(r, root.get("airfoil"), "airfoil", spec_dir)
     chord = r.length(root.get("chord"), "chord", high=20_000.0)
@@ -397,7 +441,7 @@ def read_stations(r: Reader, node: YNode | None, path: str) -> Stations | None:
                      for i, item in enumerate(r.sequence(node, path, 2, MAX_RIBS) or ())]
         if None in positions:
             return None
-        if any(b <= a for a, b in zip(positions, positions[1:])):
+        if any(b <= a for a, b in itertools.pairwise(positions)):
             r.problem(node, path, "expected rib stations in increasing order from the root")
             return None
         return Stations(positions_mm=tuple(positions))  # type: ignore[arg-type]
@@ -427,7 +471,8 @@ def read_wing(r: Reader, root: dict[str, YNode], spec_dir: Path) -> WingSpec:
     sweep = _or(r.number(_get(plan, "sweep"), "planform.sweep", -60.0, 60.0), 0.0)
     sweep_line = _or(r.number(_get(plan, "sweep_line"), "planform.sweep_line", 0.0, 1.0), 0.25)
     stations = read_stations(r, _get(plan, "stations"), "planform.stations")
-    orientation = _or(r.choice(_get(plan, "rib_orientation"), "planform.rib_orientation", RIB_ORIENTATIONS), "streamwise")
+    orientation = _or(r.choice(_get(plan, "rib_orientation"), "planform.rib_orientation", RIB_ORIENTATIONS),
+                      "streamwise")
     if stations and span and stations.pitch_mm and span / stations.pitch_mm > MAX_RIBS - 1:
         r.problem(_get(plan, "stations"), "planform.stations",
                   f"expected a pitch giving at most {MAX_RIBS} ribs over the span ({span:g} mm), "
@@ -437,7 +482,9 @@ def read_wing(r: Reader, root: dict[str, YNode], spec_dir: Path) -> WingSpec:
                   f"expected stations within the span ({span:g} mm), found one at {stations.positions_mm[-1]:g} mm")
     airfoil_node = root.get("airfoil")
     root_af = tip_af = None
-    if airfoil_node is not None and airfoil_node.is_map and ("root" in airfoil_node.value or "tip" in airfoil_node.value):
+    blended = airfoil_node is not None and airfoil_node.is_map and (
+        "root" in airfoil_node.value or "tip" in airfoil_node.value)
+    if blended:
         fields = r.mapping(airfoil_node, "airfoil", ("root", "tip"), ("root", "tip"))
         root_af = read_airfoil(r, _get(fields, "root"), "airfoil.root", spec_dir)
         tip_af = read_airfoil(r, _get(fields, "tip"), "airfoil.tip", spec_dir)
@@ -457,11 +504,14 @@ def read_overrides(r: Reader, node: YNode | None, shared: Shared) -> tuple[RibOv
     result = []
     for i, item in enumerate(r.sequence(node, "overrides", 0, 200) or ()):
         path = join("overrides", i)
-        fields = r.mapping(item, path, ("ribs",) + SHARED_KEYS, ("ribs",))
+        fields = r.mapping(item, path, ("ribs", *SHARED_KEYS), ("ribs",))
         if fields is None or any(getattr(shared, name) is None for name in Shared.__dataclass_fields__):
             continue  # the wing's own sections have problems (already reported): nothing to override
         ribs_node = fields.get("ribs")
-        rib_items = [ribs_node] if ribs_node is not None and not ribs_node.is_list else (r.sequence(ribs_node, join(path, "ribs"), 1, 200) or [])
+        if ribs_node is not None and not ribs_node.is_list:
+            rib_items = [ribs_node]
+        else:
+            rib_items = r.sequence(ribs_node, join(path, "ribs"), 1, 200) or []
         ribs = [r.integer(n, join(path, "ribs"), 1, 200) for n in rib_items]
         sub = Reader(r.file, r.units)
         prefixed = {k: v for k, v in fields.items() if k != "ribs"}

@@ -16,6 +16,8 @@ import yaml
 
 from diegen.errors import Problem, SpecError
 
+__all__ = ["MAX_DEPTH", "MAX_FILE_BYTES", "MAX_NODES", "YNode", "load_file", "load_text"]
+
 # A spec is a few kB (a 200-rib wing with an override per rib is under 50 kB);
 # the pure-Python parser takes about a second per MB, so larger files are refused unread.
 MAX_FILE_BYTES = 256_000
@@ -211,7 +213,8 @@ def load_file(path: str | Path) -> YNode:
     try:
         size = path.stat().st_size
         if size > MAX_FILE_BYTES:
-            raise SpecError(Problem(f"file is {size} bytes: larger than {MAX_FILE_BYTES // 1000} kB, not a spec", str(path)))
+            raise SpecError(Problem(f"file is {size} bytes: larger than {MAX_FILE_BYTES // 1000} kB, not a spec",
+                                    str(path)))
         raw = path.read_bytes()
     except FileNotFoundError:
         raise SpecError(Problem("file not found", str(path))) from None

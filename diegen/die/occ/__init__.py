@@ -4,3 +4,5 @@ Form block (the die as one sewn shell), checked STEP / STL export, validation, p
 a piece's die files.  Importing this package does not import the kernel: the functions that need it import it
 when called.
 """
+
+__all__: list[str] = []

@@ -23,10 +23,10 @@ import math
 import os
 from typing import Any
 
-from diegen.errors import SolidError
-from diegen.fileio import atomic_path
 from diegen.die.occ.tiles import DieTile, tile_for_bed
 from diegen.die.occ.validate import step_file_problems, stl_problems
+from diegen.errors import SolidError
+from diegen.fileio import atomic_path
 
 STL_TOLERANCE_MM = 0.05
 STL_ANGULAR_TOLERANCE_DEG = 15.0
@@ -72,4 +72,4 @@ def write_stl(shape: Any, path: str | os.PathLike[str], tolerance_mm: float = ST
             raise SolidError(f"STL for {os.fspath(path)!r} is not printable: {'; '.join(problems)}")
 
 
-__all__ = ["DieTile", "STL_ANGULAR_TOLERANCE_DEG", "STL_TOLERANCE_MM", "tile_for_bed", "write_step", "write_stl"]
+__all__ = ["STL_ANGULAR_TOLERANCE_DEG", "STL_TOLERANCE_MM", "DieTile", "tile_for_bed", "write_step", "write_stl"]

@@ -34,10 +34,10 @@ from typing import TYPE_CHECKING, Any
 
 from diegen.die.die_input import DieInput
 from diegen.die.model import largest_inset_mm, outline_model, section
+from diegen.die.occ.validate import solid_problems
 from diegen.die.outline import OffsetPiece, OutlineModel
 from diegen.die.placement import check_placement, engraving_marks
 from diegen.die.settings import DEFAULT_SETTINGS, BuildSettings
-from diegen.die.occ.validate import solid_problems
 from diegen.errors import SolidError
 from diegen.geometry import die_wall
 
@@ -45,7 +45,7 @@ if TYPE_CHECKING:  # pragma: no cover
     import cadquery as cq
     from shapely.geometry import Polygon
 
-def _wire(pieces: list[OffsetPiece], z: float) -> "cq.Wire":
+def _wire(pieces: list[OffsetPiece], z: float) -> cq.Wire:
     import cadquery as cq
 
     edges = []
@@ -60,7 +60,7 @@ def _wire(pieces: list[OffsetPiece], z: float) -> "cq.Wire":
     return cq.Wire.assembleEdges(edges)
 
 
-def _loft_faces(wires: list["cq.Wire"], ruled: bool) -> Any:
+def _loft_faces(wires: list[cq.Wire], ruled: bool) -> Any:
     from OCP.BRepOffsetAPI import BRepOffsetAPI_ThruSections
 
     builder = BRepOffsetAPI_ThruSections(False, ruled, 1e-6)
@@ -141,7 +141,8 @@ def _hole_faces(die: DieInput) -> tuple[list[Any], list[Any], list[Any]]:
         r = pin.d / 2.0
         depth = min(pin.depth, h)
         top.append(_circle_wire(pin.x, pin.y, 0.0, r, clockwise=True))
-        faces.append(_surface_face(Geom_CylindricalSurface(axes(pin.x, pin.y, -depth), r), 0.0, 2 * math.pi, 0.0, depth))
+        wall = Geom_CylindricalSurface(axes(pin.x, pin.y, -depth), r)
+        faces.append(_surface_face(wall, 0.0, 2 * math.pi, 0.0, depth))
         if depth >= h - 1e-9:
             bottom.append(_circle_wire(pin.x, pin.y, -h, r, clockwise=True))
         else:
@@ -152,7 +153,8 @@ def _hole_faces(die: DieInput) -> tuple[list[Any], list[Any], list[Any]]:
         top.append(_circle_wire(bore.x, bore.y, 0.0, a + rho, clockwise=True))
         torus = Geom_ToroidalSurface(axes(bore.x, bore.y, -rho), a + rho, rho)
         faces.append(_surface_face(torus, 0.0, 2 * math.pi, math.pi / 2.0, math.pi))
-        faces.append(_surface_face(Geom_CylindricalSurface(axes(bore.x, bore.y, -h), a), 0.0, 2 * math.pi, 0.0, h - rho))
+        wall = Geom_CylindricalSurface(axes(bore.x, bore.y, -h), a)
+        faces.append(_surface_face(wall, 0.0, 2 * math.pi, 0.0, h - rho))
         bottom.append(_circle_wire(bore.x, bore.y, -h, a, clockwise=True))
     return top, bottom, faces
 
@@ -165,10 +167,10 @@ def _pocket_faces(marks: list[Polygon], z_bottom: float, depth: float) -> tuple[
     islands inside letters (with holes of their own for marks inside them).
     """
     from OCP.BRepPrimAPI import BRepPrimAPI_MakePrism
+    from OCP.gp import gp_Vec
     from OCP.TopAbs import TopAbs_FACE
     from OCP.TopExp import TopExp_Explorer
     from OCP.TopoDS import TopoDS
-    from OCP.gp import gp_Vec
     from shapely.geometry import Polygon as ShapelyPolygon
 
     outers = [_polygon_wire(mark.exterior, z_bottom, clockwise=True) for mark in marks]  # holes in their face
@@ -216,7 +218,7 @@ def _faces_out(shell: Any) -> bool:
 
 
 def build_body(die: DieInput, model: OutlineModel, settings: BuildSettings = DEFAULT_SETTINGS,
-               marks: list[Polygon] | None = None) -> "cq.Solid":
+               marks: list[Polygon] | None = None) -> cq.Solid:
     """The die body: outline, top-edge arc, undercut wall with its flutes, and the engraving ``marks``.
 
     ``marks`` are the engraving's polygons on the bottom face (see
@@ -262,7 +264,7 @@ def build_body(die: DieInput, model: OutlineModel, settings: BuildSettings = DEF
     return solid
 
 
-def build_die(die: DieInput, settings: BuildSettings = DEFAULT_SETTINGS) -> "cq.Solid":
+def build_die(die: DieInput, settings: BuildSettings = DEFAULT_SETTINGS) -> cq.Solid:
     """The finished die solid (cadquery ``Solid``), checked valid.
 
     Raises :class:`GeometryError` for input the die cannot follow and

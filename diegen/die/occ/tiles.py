@@ -17,9 +17,11 @@ from typing import Any
 
 import numpy as np
 
-from diegen.errors import SolidError
 from diegen.die.die_input import DieInput
 from diegen.die.occ.validate import check_solid
+from diegen.errors import SolidError
+
+__all__ = ["DieTile", "tile_for_bed"]
 
 
 @dataclass(frozen=True, eq=False)
@@ -71,7 +73,8 @@ def _dowel_spots(shape: Any, x: float, z: float, d: float, depth: float, wall: f
     reach = d / 2 + wall
 
     def clear(y: float) -> bool:
-        ring = [(y + reach * math.cos(a), z + reach * math.sin(a)) for a in np.linspace(0, 2 * math.pi, 16, endpoint=False)]
+        ring = [(y + reach * math.cos(a), z + reach * math.sin(a))
+                for a in np.linspace(0, 2 * math.pi, 16, endpoint=False)]
         if not all(_inside(shape, [(x, yy, zz) for yy, zz in ring])):
             return False
         for yy, zz in ring:  # no face (bore, pin, wall) within the dowel's length
@@ -142,17 +145,17 @@ def tile_for_bed(shape_or_die: Any, bed_xy_mm: tuple[float, float], dowel_d_mm: 
                                                 cq.Vector(x - dowel_depth_mm, y, z), cq.Vector(1, 0, 0)))
     try:
         drilled = shape.cut(*dowels)
-    except Exception as exc:  # noqa: BLE001 - OCP's Standard_Failure family
+    except Exception as exc:  # OCP's Standard_Failure family
         raise SolidError(f"the kernel failed drilling the tile dowel holes ({exc}); give a smaller dowel") from exc
     check_solid(drilled, "die with tile dowel holes", "give a smaller dowel or a shorter dowel depth")
-    edges = [bb.xmin - 1.0] + cuts + [bb.xmax + 1.0]
+    edges = [bb.xmin - 1.0, *cuts, bb.xmax + 1.0]
     tiles = []
     for k in range(count):
         cutter = cq.Solid.makeBox(edges[k + 1] - edges[k], bb.ylen + 2, bb.zlen + 2,
                                   cq.Vector(edges[k], bb.ymin - 1, bb.zmin - 1))
         try:
             piece = drilled.intersect(cutter)
-        except Exception as exc:  # noqa: BLE001
+        except Exception as exc:  # OCP's Standard_Failure family
             raise SolidError(f"the kernel failed cutting tile {k + 1} of {count} ({exc})") from exc
         solids = piece.Solids()
         if len(solids) != 1:

@@ -13,8 +13,21 @@ from typing import Any
 
 import numpy as np
 
-from diegen.errors import SolidError
 from diegen.die.settings import VOLUME_EPS
+from diegen.errors import SolidError
+
+__all__ = [
+    "check_solid",
+    "check_step_file",
+    "check_stl_file",
+    "quick_volume_mm3",
+    "read_step",
+    "read_stl_triangles",
+    "solid_problems",
+    "step_file_problems",
+    "stl_problems",
+    "volume_mm3",
+]
 
 
 def volume_mm3(shape: Any) -> float:
@@ -115,7 +128,8 @@ def check_step_file(path: str | os.PathLike[str], expected_volume_mm3: float | N
 
 def read_stl_triangles(path: str | os.PathLike[str]) -> np.ndarray:
     """Triangles of an STL file (binary or ASCII) as an (n, 3, 3) float32 array (file units)."""
-    data = open(path, "rb").read()
+    with open(path, "rb") as file:
+        data = file.read()
     if len(data) >= 84:
         count = int.from_bytes(data[80:84], "little")
         if len(data) == 84 + 50 * count:

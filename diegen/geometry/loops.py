@@ -1,0 +1,39 @@
+"""Closed point loops as numpy arrays: the one place for a loop's area, length and orientation.
+
+A loop is a sequence of ``(x, y)`` points whose closing segment (last point to
+first) is implicit; no point repeats.  Any unit: results are in the loop's
+units (mm, mm², or fractions of the chord).  Pure numpy; imports nothing else
+of the package.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+from numpy.typing import ArrayLike, NDArray
+
+__all__ = ["FloatArray", "IntArray", "is_counter_clockwise", "loop_array", "loop_length", "signed_area"]
+
+FloatArray = NDArray[np.float64]
+IntArray = NDArray[np.intp]
+
+
+def loop_array(points: ArrayLike) -> FloatArray:
+    """``points`` as a float array of shape (N, 2)."""
+    return np.asarray(points, dtype=float).reshape(-1, 2)
+
+
+def loop_length(points: ArrayLike) -> float:
+    """Perimeter of the closed loop, closing segment included."""
+    p = loop_array(points)
+    return float(np.sum(np.hypot(*(np.roll(p, -1, axis=0) - p).T)))
+
+
+def signed_area(points: ArrayLike) -> float:
+    """Shoelace area of the closed loop: positive when counter-clockwise (X right, Y up), negative when clockwise."""
+    x, y = loop_array(points).T
+    return float(0.5 * np.sum(x * np.roll(y, -1) - np.roll(x, -1) * y))
+
+
+def is_counter_clockwise(points: ArrayLike) -> bool:
+    """True when the loop runs counter-clockwise and encloses some area."""
+    return signed_area(points) > 0.0
