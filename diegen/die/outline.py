@@ -47,6 +47,7 @@ MAX_EXTENSION_MM = 0.05  # how far a segment may be extended past its end to mee
 GROOVE_SAMPLES = 25  # samples across a flute: the spline then follows its arc within 1e-5 mm (h⁴/384r³)
 MIN_GROOVE_GAP_MM = 0.2  # least land left between two flutes' lips (design choice: a thinner fin will not sew)
 LIP_CLEARANCE_MM = 0.5  # least wall between a flute's lip and a corner trim (design choice)
+RADIUS_TOL_MM = 1e-3  # a curve this much tighter than the tool's radius is the same curve (a micrometre is no shape)
 
 
 def _rot90(v: Array) -> Array:
@@ -278,7 +279,7 @@ class OutlineModel:
             s = np.linspace(0.0, seg.length, max(16, int(seg.length / 0.2) + 1))
             k = seg.curvature(s)
             i = int(np.argmin(k))
-            if k[i] < 0 and 1.0 / -k[i] < self.cutter_radius_mm * (1.0 - 1e-3):
+            if k[i] < 0 and 1.0 / -k[i] < self.cutter_radius_mm - RADIUS_TOL_MM:
                 p = seg.base(s[i])
                 raise GeometryError(
                     f"inside curve of radius {1.0 / -k[i]:.2f} mm in the die outline at ({p[0]:.2f}, {p[1]:.2f}) mm "
