@@ -15,6 +15,7 @@ from diegen.findings import Finding
 from diegen.geometry import holes as hole_rules
 from diegen.geometry import pins as pin_rules
 from diegen.geometry.pieces import SparCut, depth_at, joggles_for, piece_runs, relief_points, split_surfaces, tail_end
+from diegen.geometry.tooling import tooling
 from diegen.geometry.polygon import QUAD_SEGS, as_points, inscribed_diameter, offset_inward, vertical_extents
 from diegen.geometry.types import Hole, PieceGeometry, RibGeometry
 from diegen.spec.model import AirfoilSource, RibSpec
@@ -56,7 +57,8 @@ def rib_geometry(spec: RibSpec, section: np.ndarray | None = None, die_inset_mm:
     ``die_inset_mm`` is the largest inset of the die's wall from its outline
     (top-edge setback or bottom inset, mm): the joggle ramps bend no tighter
     than it (plus ``FAIR_MARGIN_MM``) where they turn convex, so the die's
-    offset sections stay smooth, and no tighter than the cutter radius.
+    offset sections stay smooth, and no tighter than the cutter radius (for a
+    printed die, the printer's smallest inside radius).
     """
     shared = spec.shared
     unit = load_section(spec.airfoil) if section is None else np.asarray(section, float)
@@ -71,7 +73,8 @@ def rib_geometry(spec: RibSpec, section: np.ndarray | None = None, die_inset_mm:
     spars = [SparCut(s.at * spec.chord_mm, s.web_mm, s.cap_thickness_mm, s.cap_width_mm) for s in spec.spars]
     warnings: list[Finding] = []
     pieces = []
-    fair_radius = max(shared.die.cutter_diameter_mm / 2, die_inset_mm + FAIR_MARGIN_MM if die_inset_mm > 0 else 0.0)
+    inside = tooling(shared.die.material, shared.die.cutter_diameter_mm).inside_radius_mm
+    fair_radius = max(inside, die_inset_mm + FAIR_MARGIN_MM if die_inset_mm > 0 else 0.0)
     for name, x0, x1, aft_flanged in _piece_ranges(spec, spars, upper, lower, warnings):
         pieces.append(_piece(spec, name, x0, x1, aft_flanged, upper, lower, spars, fair_radius))
     if not pieces:
