@@ -35,7 +35,7 @@ from diegen.spec.model import (
     WingSpar,
     WingSpec,
 )
-from diegen.spec.reader import Reader, describe, join
+from diegen.spec.reader import Reader, describe, join, suggest
 from diegen.spec.yamltree import YNode
 
 SPEC_VERSION = 1
@@ -282,7 +282,7 @@ def read_die(r: Reader, node: YNode | None, path: str, base: Die | None = None) 
                        () if base else ("material", "stock_thickness", "cutter_diameter"))
     if fields is None:
         return None
-    material = r.choice(fields.get("material"), join(path, "material"), materials.die_material_names())
+    material = _die_material(r, fields.get("material"), join(path, "material"))
     stock = r.length(fields.get("stock_thickness"), join(path, "stock_thickness"), high=300.0)
     cutter = r.length(fields.get("cutter_diameter"), join(path, "cutter_diameter"), high=50.0)
     bed = None
@@ -295,6 +295,21 @@ def read_die(r: Reader, node: YNode | None, path: str, base: Die | None = None) 
     return Die(_or(material, base and base.material), _or(stock, base and base.stock_thickness_mm),
                _or(cutter, base and base.cutter_diameter_mm), _or(bed, base and base.print_bed_mm),
                _or(tolerance, base.stl_tolerance_mm if base else 0.05))
+
+
+def _die_material(r: Reader, node: YNode | None, path: str) -> str | None:
+    """A die material by its name or an alias (``mdf`` for fibreboard), as its catalogue name."""
+    from diegen import materials
+
+    if node is None:
+        return None
+    aliases = materials.die_material_aliases()
+    if isinstance(node.value, str) and node.value.strip().lower() in aliases:
+        return aliases[node.value.strip().lower()]
+    names = materials.die_material_names()
+    hint = suggest(node.value.strip().lower(), list(aliases)) if isinstance(node.value, str) else ""
+    r.problem(node, path, f"expected one of {', '.join(names)}, found {describe(node)}{hint}")
+    return None
 
 
 def read_press(r: Reader, node: YNode | None, path: str, base: Press | None = None) -> Press | None:
