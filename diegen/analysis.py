@@ -15,6 +15,7 @@ from diegen import materials
 from diegen.blank.develop import develop_blank, notch_polygon
 from diegen.errors import FormingError
 from diegen.blank.drawing import BlankDrawing
+from diegen.die.rules import DiePlan, with_die_plan
 from diegen.findings import Finding
 from diegen.forming import press as press_model
 from diegen.forming import relief as relief_model
@@ -80,6 +81,7 @@ class PieceAnalysis:
     die_height_mm: float
     die_layers: int
     warnings: tuple[Finding, ...]
+    die: DiePlan | None = None  # the die the builder will make, or why it cannot (diegen.die.rules)
 
     @property
     def max_shrink(self) -> float:
@@ -135,6 +137,7 @@ def analyse_rib(spec: RibSpec, section: np.ndarray | None = None) -> RibAnalysis
     geometry = rib_geometry(spec, section, die_inset_mm=die_inset_mm(spec, springback))
     layout = flange_layout(flange.height_mm, flange.bend_radius_mm, t, alloy.k_factor)
     pieces = tuple(_analyse_piece(spec, piece, alloy, minimum, springback, layout) for piece in geometry.pieces)
+    pieces = tuple(with_die_plan(spec, piece) for piece in pieces)
     return RibAnalysis(spec, geometry, pieces)
 
 

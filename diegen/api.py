@@ -47,10 +47,19 @@ def report_json(analysis: Analysis) -> dict[str, Any]:
 
 
 def report_text(analysis: Analysis) -> str:
-    """The readable forming report."""
-    from diegen.reports.text import footer_text, rib_text
+    """The readable forming report, ending with the pieces whose die ``build`` would refuse."""
+    from diegen.reports.text import footer_text, refusals_text, rib_text
 
-    return "\n\n".join([rib_text(r, footer=False) for r in rib_analyses(analysis)] + [footer_text()])
+    refused = refused_pieces(analysis)
+    parts = [rib_text(r, footer=False) for r in rib_analyses(analysis)]
+    return "\n\n".join(parts + ([refusals_text(refused, sum(len(r.pieces) for r in rib_analyses(analysis)))]
+                                if refused else []) + [footer_text()])
+
+
+def refused_pieces(analysis: Analysis) -> list[tuple[str, str]]:
+    """``(part id, reason with its remedy)`` of every piece whose die ``build`` would refuse."""
+    return [(p.piece.part_id, p.die.refusal) for r in rib_analyses(analysis) for p in r.pieces
+            if p.die is not None and p.die.refusal]
 
 
 def write_plots(analysis: Analysis, out_dir: str | Path) -> list[Path]:
@@ -103,5 +112,5 @@ def diff_text(old: Spec, new: Spec) -> str:
     return diff_specs(old, new)
 
 
-__all__ = ["Analysis", "RibJob", "WingAnalysis", "analyse", "build", "diff_text", "load", "report_json",
+__all__ = ["Analysis", "RibJob", "WingAnalysis", "analyse", "build", "diff_text", "load", "refused_pieces", "report_json",
            "report_text", "rib_jobs", "write_plots", "write_starter"]

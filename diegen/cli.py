@@ -1,6 +1,7 @@
 """Command line: parse arguments, call :mod:`diegen.api`, print, set the exit code.
 
-Exit codes: 0 success, 1 a build finished but some pieces failed, 2 bad input
+Exit codes: 0 success, 1 a build finished but some pieces failed (``check``: some pieces' dies would be
+refused), 2 bad input
 (spec, airfoil, impossible geometry), 3 an internal error (a bug: please report).
 """
 
@@ -87,7 +88,7 @@ def _run(args: argparse.Namespace) -> int:
         if args.plot:
             for path in api.write_plots(analysis, args.out):
                 print(f"plot: {path}")
-        return EXIT_OK
+        return EXIT_FAILED_PIECES if api.refused_pieces(analysis) else EXIT_OK
     if args.command == "diff":
         print(api.diff_text(api.load(args.old), api.load(args.new)))
         return EXIT_OK

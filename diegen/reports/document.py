@@ -79,6 +79,8 @@ def piece_json(rib: RibAnalysis, p: PieceAnalysis) -> dict[str, Any]:
             "height_mm": _r(p.die_height_mm),
             "layers": p.die_layers,
             "material": rib.spec.shared.die.material,
+            "buildable": p.die is None or p.die.buildable,
+            "refusal": None if p.die is None else p.die.refusal,
             "joggles": [{"spar": j.spar, "surface": j.surface, "x_start_mm": _r(j.x_start_mm), "x_end_mm": _r(j.x_end_mm),
                          "depth_mm": _r(j.depth_mm), "ramp_mm": _r(j.ramp_mm)} for j in g.joggles],
         },

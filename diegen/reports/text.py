@@ -25,6 +25,7 @@ def piece_text(rib: RibAnalysis, p: PieceAnalysis) -> str:
         f"== {g.part_id} ({g.name} piece)  x {g.x_range_mm[0]:.1f}–{g.x_range_mm[1]:.1f} mm of {rib.geometry.chord_mm:.1f} mm chord",
         f"  die outline   length {_len(g.length_mm, u)}, area {g.area_mm2:.0f} mm², depth {g.depth_range_mm[0]:.1f}–"
         f"{g.depth_range_mm[1]:.1f} mm, height {_len(p.die_height_mm, u)} ({p.die_layers} layer(s) of stock)",
+        *([f"  DIE REFUSED   {p.die.refusal}"] if p.die is not None and p.die.refusal else []),
         f"  bend          part R {p.springback.part_radius_mm:.3f} mm (min {p.min_radius.radius_mm:.3f} mm, "
         f"{p.min_radius.table} table); die R {p.springback.die_radius_mm:.3f} mm; die angle "
         f"{p.springback.die_angle_deg:.2f}° → over-bend {p.springback.overbend_deg:.2f}°",
@@ -59,6 +60,13 @@ def piece_text(rib: RibAnalysis, p: PieceAnalysis) -> str:
     return "\n".join(lines)
 
 
+def refusals_text(refused: list[tuple[str, str]], total: int) -> str:
+    """The pieces whose die ``build`` would refuse, each with the reason and its remedy."""
+    lines = [f"{len(refused)} of {total} piece(s) cannot be built as specified (build would fail them, nothing is "
+             "written for them):"]
+    return "\n".join(lines + [f"  {part}: {reason}" for part, reason in refused])
+
+
 def footer_text() -> str:
     """Which model each number comes from, and the safety cautions."""
     models = ["Models behind the numbers:"] + [f"  {name.replace('_', ' ')}: {text}" for name, text in MODELS.items()]
@@ -73,4 +81,4 @@ def rib_text(rib: RibAnalysis, footer: bool = True) -> str:
     return "\n".join(head + [piece_text(rib, p) for p in rib.pieces] + (["", footer_text()] if footer else []))
 
 
-__all__ = ["die_life_text", "footer_text", "piece_text", "rib_text"]
+__all__ = ["die_life_text", "footer_text", "piece_text", "refusals_text", "rib_text"]
