@@ -91,6 +91,7 @@ def piece_json(rib: RibAnalysis, p: PieceAnalysis) -> dict[str, Any]:
         "pins": [{"x_mm": _r(q.x), "y_mm": _r(q.y), "d_mm": _r(q.d)} for q in g.pins],
         "press": {
             "force_n": _r(rib.spec.shared.press.force_n, 1),
+            "force_read_as": rib.spec.shared.press.force_read,
             "box_area_mm2": _r(rib.spec.shared.press.box_mm[0] * rib.spec.shared.press.box_mm[1], 1),
             "pressure_mpa": _r(p.press.pressure_mpa, 4),
             "die_contact_pressure_mpa": _r(p.press.die_contact_pressure_mpa, 4),

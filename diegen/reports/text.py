@@ -49,6 +49,7 @@ def piece_text(rib: RibAnalysis, p: PieceAnalysis) -> str:
     lines.append("  pins          " + ", ".join(f"Ø{q.d:.2f} at ({q.x:.1f}, {q.y:.1f})" for q in g.pins))
     pr = p.press
     lines += [
+        f"  press force   {rib.spec.shared.press.force_read}",
         f"  press         {pr.pressure_mpa:.2f} MPa ({mpa_to_psi(pr.pressure_mpa):.0f} psi) over the box; "
         f"{pr.die_contact_pressure_mpa:.2f} MPa on the die early in the stroke; flanges need up to "
         f"{pr.needed_mpa:.2f} MPa ({mpa_to_psi(pr.needed_mpa):.0f} psi) → {pr.verdict.upper()}",
@@ -73,11 +74,19 @@ def footer_text() -> str:
     return "\n".join(models + ["", "Safety: " + SAFETY])
 
 
-def rib_text(rib: RibAnalysis, footer: bool = True) -> str:
+def rib_text(rib: RibAnalysis, footer: bool = True, shown: set[tuple] | None = None) -> str:
+    """The report of one rib; ``shown`` collects the findings about the spec file already printed (a wing's
+    ribs share them), so each is printed once."""
     head = [f"diegen {__version__} — rib {rib.spec.id}" + (f": {rib.spec.title}" if rib.spec.title else ""),
             f"  {rib.spec.airfoil.label}, chord {_len(rib.spec.chord_mm, rib.spec.units)}, "
             f"{rib.spec.shared.sheet.alloy} {_len(rib.spec.shared.sheet.thickness_mm, rib.spec.units)}"]
-    head += [f"  warning: {w}" for w in rib.geometry.warnings]
+    shown = set() if shown is None else shown
+    for w in rib.geometry.warnings:
+        key = (w.code, w.key, w.line, w.column, w.message)
+        if w.code == "units-suspect" and key in shown:
+            continue
+        shown.add(key)
+        head.append(f"  warning: {w.located() if w.code == 'units-suspect' else w}")
     return "\n".join(head + [piece_text(rib, p) for p in rib.pieces] + (["", footer_text()] if footer else []))
 
 

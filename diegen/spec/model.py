@@ -10,6 +10,8 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from typing import Literal
 
+from diegen.errors import Problem
+
 PieceName = Literal["nose", "center", "tail"]
 PIECE_NAMES: tuple[str, ...] = ("nose", "center", "tail")
 ReliefPolicy = Literal["flutes", "notches", "none"]
@@ -113,6 +115,7 @@ class Press:
     box_mm: tuple[float, float]  # inside width and length of the rubber box
     rubber: Rubber
     wall_clearance_mm: float = 25.4
+    force_read: str = ""  # how the force was read, e.g. "20 t: 20 metric tonnes-force (1,000 kgf) = 196.1 kN"
 
 
 @dataclass(frozen=True)
@@ -167,6 +170,7 @@ class RibSpec:
     file: str = ""
     title: str = ""
     positions: SpecPositions = field(default=SpecPositions(), compare=False, repr=False)
+    unit_warnings: tuple[Problem, ...] = field(default=(), compare=False, repr=False)  # see diegen.spec.plausible
 
 
 @dataclass(frozen=True)
@@ -212,6 +216,7 @@ class WingSpec:
     file: str = ""
     title: str = ""
     positions: SpecPositions = field(default=SpecPositions(), compare=False, repr=False)
+    unit_warnings: tuple[Problem, ...] = field(default=(), compare=False, repr=False)  # see diegen.spec.plausible
 
 
 Spec = RibSpec | WingSpec

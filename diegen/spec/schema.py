@@ -12,6 +12,7 @@ from dataclasses import replace
 from pathlib import Path
 from typing import Any
 
+from diegen import units
 from diegen.spec.model import (
     PIECE_NAMES,
     RELIEF_POLICIES,
@@ -327,8 +328,9 @@ def read_press(r: Reader, node: YNode | None, path: str, base: Press | None = No
             rubber = Rubber(r.number(rf.get("durometer"), join(rp, "durometer"), 20, 95),
                             r.length(rf.get("thickness"), join(rp, "thickness"), high=500.0))
     clearance = r.length(fields.get("wall_clearance"), join(path, "wall_clearance"), low_open=False)
+    read = units.force_reading(fields["force"].value) if force is not None else (base.force_read if base else "")
     return Press(_or(force, base and base.force_n), _or(box, base and base.box_mm), rubber,
-                 _or(clearance, base.wall_clearance_mm if base else by_units(r.units, 1.0, 25.0)))
+                 _or(clearance, base.wall_clearance_mm if base else by_units(r.units, 1.0, 25.0)), read)
 
 
 def read_shared(r: Reader, root: dict[str, YNode], base: Shared | None = None) -> Shared:
