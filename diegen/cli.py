@@ -20,6 +20,18 @@ from diegen.errors import DiegenError, SpecError
 EXIT_OK, EXIT_FAILED_PIECES, EXIT_BAD_INPUT, EXIT_INTERNAL = 0, 1, 2, 3
 
 
+def _jobs(text: str) -> int:
+    """A worker count: a whole number of at least 1."""
+    try:
+        value = int(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"expected a whole number of worker processes (1 or more), found {text!r}")
+    if value < 1:
+        raise argparse.ArgumentTypeError(f"expected 1 or more worker processes, found {value}; leave -j out to use "
+                                         "one per core")
+    return value
+
+
 def _parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="diegen",
@@ -40,7 +52,7 @@ def _parser() -> argparse.ArgumentParser:
     build.add_argument("spec", type=Path, help="rib or wing spec (YAML)")
     build.add_argument("-o", "--out", type=Path, default=Path("out"), help="output folder (default: out)")
     build.add_argument("--force", action="store_true", help="rebuild pieces whose inputs did not change")
-    build.add_argument("-j", "--jobs", type=int, default=None, help="parallel worker processes (default: cores)")
+    build.add_argument("-j", "--jobs", type=_jobs, default=None, help="parallel worker processes (default: cores)")
     build.add_argument("-q", "--quiet", action="store_true", help="no progress bar")
 
     diff = sub.add_parser("diff", help="say which pieces two specs would change, without building")
