@@ -42,7 +42,7 @@ def report_json(analysis: Analysis) -> dict[str, Any]:
     from diegen import __version__
 
     return {"diegen_version": __version__, "spec": analysis.spec.id, "kind": "wing", "models": MODELS,
-            "safety": SAFETY, "warnings": [w.as_json() for r in analysis.ribs for w in r.geometry.warnings],
+            "safety": SAFETY, "warnings": [w.as_json() for w in _once(w for r in analysis.ribs for w in r.geometry.warnings)],
             "parts": [piece_json(r, p) for r in analysis.ribs for p in r.pieces]}
 
 
@@ -51,9 +51,23 @@ def report_text(analysis: Analysis) -> str:
     from diegen.reports.text import footer_text, refusals_text, rib_text
 
     refused = refused_pieces(analysis)
-    parts = [rib_text(r, footer=False) for r in rib_analyses(analysis)]
+    shown: set[tuple] = set()
+    parts = [rib_text(r, footer=False, shown=shown) for r in rib_analyses(analysis)]
     return "\n\n".join(parts + ([refusals_text(refused, sum(len(r.pieces) for r in rib_analyses(analysis)))]
                                 if refused else []) + [footer_text()])
+
+
+def _once(findings: Any) -> list[Any]:
+    """Findings about the spec file itself once, though every rib of a wing reports them (other findings all)."""
+    seen: set[tuple] = set()
+    out = []
+    for finding in findings:
+        key = (finding.code, finding.key, finding.line, finding.column, finding.message)
+        if finding.code == "units-suspect" and key in seen:
+            continue
+        seen.add(key)
+        out.append(finding)
+    return out
 
 
 def refused_pieces(analysis: Analysis) -> list[tuple[str, str]]:

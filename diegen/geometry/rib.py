@@ -71,7 +71,8 @@ def rib_geometry(spec: RibSpec, section: np.ndarray | None = None, die_inset_mm:
     die = offset_inward(oml, sheet_t, f"offsetting the outer mold line inward by the rib sheet ({sheet_t:.3f} mm)")
     upper, lower = split_surfaces(np.asarray(as_points(die)))
     spars = [SparCut(s.at * spec.chord_mm, s.web_mm, s.cap_thickness_mm, s.cap_width_mm) for s in spec.spars]
-    warnings: list[Finding] = []
+    warnings: list[Finding] = [Finding("units-suspect", w.message, spec.id, w.key, w.file, w.line, w.column)
+                               for w in spec.unit_warnings]
     pieces = []
     inside = tooling(shared.die.material, shared.die.cutter_diameter_mm).inside_radius_mm
     fair_radius = max(inside, die_inset_mm + FAIR_MARGIN_MM if die_inset_mm > 0 else 0.0)
