@@ -50,7 +50,7 @@ def asked_die_input(spec: Any, piece: Any) -> DieInput:
         engraving=(g.part_id, f"{shared.sheet.alloy} {shared.sheet.thickness_mm:.2f} mm"),
         printed=tool.printed,
         min_land_mm=tool.thinnest_wall_mm,
-        layer_mm=shared.die.stock_thickness_mm if piece.die_layers > 1 else None,
+        layer_mm=shared.die.stock_thickness_mm if piece.die_layers > 1 and not tool.printed else None,
         print_bed_mm=shared.die.print_bed_mm,
     )
 

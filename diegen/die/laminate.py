@@ -23,6 +23,9 @@ from diegen.die.model import flute_scale, outline_model
 from diegen.die.outline import OffsetPiece, OutlineModel
 
 
+MAX_LAYERS = 40  # project limit: more glued layers than this is not a die a shop would make
+
+
 @dataclass(frozen=True)
 class LaminateLayer:
     """One sheet of a laminated die: its z range (mm) and outlines (mm, counter-clockwise)."""
@@ -54,6 +57,10 @@ def layer_outlines(die: DieInput, model: OutlineModel, stock_thickness_mm: float
     if not stock_thickness_mm > 0:
         raise GeometryError(f"stock thickness {stock_thickness_mm} mm must be positive")
     count = max(1, math.ceil(die.height_mm / stock_thickness_mm - 1e-9))
+    if count > MAX_LAYERS:
+        raise GeometryError(
+            f"die {die.part_id}: a {die.height_mm:g} mm die from {stock_thickness_mm:g} mm stock is {count} layers, "
+            f"more than the {MAX_LAYERS} a die can sensibly be glued from: use thicker stock (die.stock_thickness)")
     layers = []
     for i in range(count):
         z_top = -i * stock_thickness_mm
