@@ -15,7 +15,7 @@ from collections.abc import Sequence
 from pathlib import Path
 
 from diegen import __version__
-from diegen.errors import DiegenError, SpecError
+from diegen.errors import DiegenError, OutputError, SpecError
 
 EXIT_OK, EXIT_FAILED_PIECES, EXIT_BAD_INPUT, EXIT_INTERNAL = 0, 1, 2, 3
 
@@ -76,6 +76,8 @@ def _print_problems(error: DiegenError) -> None:
         print(f"diegen: {count} problem{'s' if count != 1 else ''} in the spec; nothing was written", file=sys.stderr)
     else:
         print(f"error: {error}", file=sys.stderr)
+        if not isinstance(error, OutputError):
+            print("diegen: the spec cannot be made as it stands; nothing was written", file=sys.stderr)
 
 
 def _run(args: argparse.Namespace) -> int:

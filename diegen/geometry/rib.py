@@ -5,12 +5,13 @@ Pure numpy/shapely: nothing here imports the solid kernel (``diegen check`` runs
 
 from __future__ import annotations
 
+import re
 from functools import lru_cache
 
 import numpy as np
 from shapely.geometry import Polygon
 
-from diegen.errors import GeometryError
+from diegen.errors import GeometryError, keyed
 from diegen.findings import Finding
 from diegen.geometry import holes as hole_rules
 from diegen.geometry import pins as pin_rules
@@ -65,10 +66,13 @@ def rib_geometry(spec: RibSpec, section: np.ndarray | None = None, die_inset_mm:
     scaled = unit * spec.chord_mm
     airfoil = Polygon(scaled)
     if not airfoil.is_valid:
-        raise GeometryError(f"the {spec.airfoil.label} section is not a simple outline at {spec.chord_mm:.0f} mm chord")
+        raise GeometryError(f"the {spec.airfoil.label} section is not a simple outline at {spec.chord_mm:.0f} mm chord "
+                            "(it crosses or touches itself): check the airfoil's coordinates", key="airfoil")
     skin, sheet_t = shared.skin_thickness_mm, shared.sheet.thickness_mm
-    oml = offset_inward(airfoil, skin, f"offsetting the section inward by the skin ({skin:.3f} mm)")
-    die = offset_inward(oml, sheet_t, f"offsetting the outer mold line inward by the rib sheet ({sheet_t:.3f} mm)")
+    with keyed("skin_thickness"):
+        oml = offset_inward(airfoil, skin, f"offsetting the section inward by the skin ({skin:.3f} mm)")
+    with keyed("sheet.thickness"):
+        die = offset_inward(oml, sheet_t, f"offsetting the outer mold line inward by the rib sheet ({sheet_t:.3f} mm)")
     upper, lower = split_surfaces(np.asarray(as_points(die)))
     spars = [SparCut(s.at * spec.chord_mm, s.web_mm, s.cap_thickness_mm, s.cap_width_mm) for s in spec.spars]
     warnings: list[Finding] = [Finding("units-suspect", w.message, spec.id, w.key, w.file, w.line, w.column)
@@ -79,7 +83,9 @@ def rib_geometry(spec: RibSpec, section: np.ndarray | None = None, die_inset_mm:
     for name, x0, x1, aft_flanged in _piece_ranges(spec, spars, upper, lower, warnings):
         pieces.append(_piece(spec, name, x0, x1, aft_flanged, upper, lower, spars, fair_radius))
     if not pieces:
-        raise GeometryError(f"rib {spec.id} has no piece left to make: {'; '.join(w.message for w in warnings)}")
+        raise GeometryError(f"rib {spec.id} has no piece left to make: "
+                            f"{'; '.join(w.message for w in warnings if w.code == 'tail-piece-dropped')}",
+                            key="flange.min_tail_depth")
     return RibGeometry(spec.id, spec.chord_mm, _tuple(scaled), as_points(oml), as_points(die), tuple(pieces),
                        tuple(warnings))
 
@@ -122,25 +128,34 @@ def _piece(spec: RibSpec, name: str, x0: float | None, x1: float, aft_flanged: b
         why = (f"; the skin and sheet offsets put the die's leading edge at x = {lo:.1f} mm, behind the spar"
                if x0 is None else "")
         raise GeometryError(f"the {name} piece of rib {spec.id} has no length (from x = {lo:.1f} to {x1:.1f} mm; "
-                            f"at least 1.0 mm needed){why}")
+                            f"at least 1.0 mm needed){why}: move the spar aft, use a thinner skin, or leave the piece "
+                            "out (pieces)", key="skin_thickness" if x0 is None else "spars[1].at")
     joggles = joggles_for(lo, x1, spars, shared.joggle_runout, fair_radius)
     try:
         runs = piece_runs(upper, lower, x0, x1, joggles, aft_flanged)
     except GeometryError as error:
-        raise GeometryError(f"the {name} piece of rib {spec.id}: {error}") from None
+        face = re.search(r"x = ([-0-9.]+) mm", str(error))
+        at = float(face[1]) if face else x1
+        nearest = min(range(len(spars)), key=lambda i: min(abs(spars[i].x_front_mm - at), abs(spars[i].x_aft_mm - at)))
+        raise GeometryError(f"the {name} piece of rib {spec.id}: {error}: move the spar where the section is deeper, "
+                            "or leave the piece out (pieces)", key=f"spars[{nearest}].at") from None
     points = [p for run in runs for p in run.points[:-1]]
     polygon = Polygon(points)
     if not polygon.is_valid or polygon.area <= 0:
-        raise GeometryError(f"the {name} piece of rib {spec.id} is not a simple outline (joggles deeper than the section?)")
+        raise GeometryError(f"the {name} piece of rib {spec.id} is not a simple outline (joggles deeper than the "
+                            "section?): use thinner spar caps or move the spars", key="spars")
     radius = shared.flange.bend_radius_mm
     if polygon.buffer(-radius, quad_segs=QUAD_SEGS).is_empty:
         deepest = inscribed_diameter(polygon)
         raise GeometryError(
             f"the {name} piece of rib {spec.id} has no flat web between its flange bends: its die outline is only "
             f"{deepest:.2f} mm deep at its deepest, and the bend radius of {radius:.2f} mm on each side needs more "
-            f"than {2 * radius:.2f} mm (the flange bends would overlap)")
-    holes = _holes(spec, name, polygon, (lo, x1), radius)
-    pins = _pins(spec, name, polygon, (lo, x1), radius, holes)
+            f"than {2 * radius:.2f} mm (the flange bends would overlap): use a smaller bend radius or leave the "
+            "piece out (pieces)", key="flange.bend_radius")
+    with keyed("lightening_holes"):
+        holes = _holes(spec, name, polygon, (lo, x1), radius)
+    with keyed("pins"):
+        pins = _pins(spec, name, polygon, (lo, x1), radius, holes)
     plain = piece_runs(upper, lower, x0, x1, (), aft_flanged) if joggles else runs
     return PieceGeometry(name, part_id, (lo, x1), runs, tuple(joggles), holes, pins, relief_points(runs),
                          _depth_range(polygon, lo, x1, name), plain)

@@ -9,6 +9,7 @@ from pathlib import Path
 from diegen.analysis import RibAnalysis
 from diegen.findings import Finding
 from diegen.geometry.polygon import outline_deviation_mm
+from diegen.locate import refusals_located
 from diegen.pipeline.hashing import piece_hash, rib_input_hash
 from diegen.pipeline.jobs import Spec, rib_jobs
 from diegen.pipeline.lock import BuildLock, remove_stale_temporaries
@@ -90,7 +91,8 @@ def build_spec(spec: Spec, out: Path, die_writer: DieWriter, warm_up: Callable[[
         refused: list[PieceTask] = []
         warnings: list[Finding] = []
         analyses: list[RibAnalysis] = []
-        jobs_of_spec = list(rib_jobs(spec))
+        with refusals_located(spec):
+            jobs_of_spec = list(rib_jobs(spec))
         for job in jobs_of_spec:
             key = rib_input_hash(job.rib, job.section)
             rib_entry = manifest.ribs.get(job.rib.id)
