@@ -81,7 +81,7 @@ def rib_geometry(spec: RibSpec, section: np.ndarray | None = None, die_inset_mm:
     inside = tooling(shared.die.material, shared.die.cutter_diameter_mm).inside_radius_mm
     fair_radius = max(inside, die_inset_mm + FAIR_MARGIN_MM if die_inset_mm > 0 else 0.0)
     for name, x0, x1, aft_flanged in _piece_ranges(spec, spars, upper, lower, warnings):
-        pieces.append(_piece(spec, name, x0, x1, aft_flanged, upper, lower, spars, fair_radius))
+        pieces.append(_piece(spec, name, x0, x1, aft_flanged, upper, lower, spars, fair_radius, warnings))
     if not pieces:
         raise GeometryError(f"rib {spec.id} has no piece left to make: "
                             f"{'; '.join(w.message for w in warnings if w.code == 'tail-piece-dropped')}",
@@ -119,7 +119,7 @@ def _piece_ranges(spec: RibSpec, spars: list[SparCut], upper: np.ndarray, lower:
 
 
 def _piece(spec: RibSpec, name: str, x0: float | None, x1: float, aft_flanged: bool, upper: np.ndarray,
-           lower: np.ndarray, spars: list[SparCut], fair_radius: float) -> PieceGeometry:
+           lower: np.ndarray, spars: list[SparCut], fair_radius: float, warnings: list[Finding]) -> PieceGeometry:
     shared = spec.shared
     part_id = f"{spec.id}-{name}"
     lo = float(upper[0, 0]) if x0 is None else float(x0)
@@ -155,7 +155,7 @@ def _piece(spec: RibSpec, name: str, x0: float | None, x1: float, aft_flanged: b
     with keyed("lightening_holes"):
         holes = _holes(spec, name, polygon, (lo, x1), radius)
     with keyed("pins"):
-        pins = _pins(spec, name, polygon, (lo, x1), radius, holes)
+        holes, pins = _pins_and_holes(spec, name, polygon, (lo, x1), radius, holes, warnings)
     plain = piece_runs(upper, lower, x0, x1, (), aft_flanged) if joggles else runs
     return PieceGeometry(name, part_id, (lo, x1), runs, tuple(joggles), holes, pins, relief_points(runs),
                          _depth_range(polygon, lo, x1, name), plain)
@@ -173,6 +173,31 @@ def _holes(spec: RibSpec, name: str, polygon: Polygon, x_range: tuple[float, flo
     # a hole flange needs a straight leg beyond its bend: at least R + T + 1 mm high
     shortest = radius + spec.shared.sheet.thickness_mm + 1.0
     return hole_rules.auto_holes(polygon, radius, holes.rules, limit, shortest)
+
+
+def _pins_and_holes(spec: RibSpec, name: str, polygon: Polygon, x_range: tuple[float, float], radius: float,
+                    holes: tuple[Hole, ...], warnings: list[Finding]) -> tuple[tuple[Hole, ...], tuple]:
+    """The piece's holes and pins: where automatic holes leave no web for automatic pins, the holes nearest the
+    piece's ends are left out, one at a time, until the pins fit (a finding says which)."""
+    try:
+        return holes, _pins(spec, name, polygon, x_range, radius, holes)
+    except GeometryError:
+        if not (spec.shared.holes.mode == "auto" and spec.shared.pins.mode == "auto" and holes):
+            raise
+    kept = list(holes)
+    for hole in sorted(holes, key=lambda h: min(h.x - x_range[0], x_range[1] - h.x)):
+        kept.remove(hole)
+        try:
+            pins = _pins(spec, name, polygon, x_range, radius, tuple(kept))
+        except GeometryError:
+            continue
+        dropped = [h for h in holes if h not in kept]
+        warnings.append(Finding(
+            "holes-left-out-for-pins", f"the {name} piece: {len(dropped)} automatic lightening hole(s) left out "
+            f"(at x = {', '.join(f'{h.x:.0f}' for h in dropped)} mm) so the tooling pins have web to stand in",
+            key="lightening_holes").about(spec.id, spec.positions))
+        return tuple(kept), pins
+    return holes, _pins(spec, name, polygon, x_range, radius, holes)  # no hole left out helps: say why
 
 
 def _pins(spec: RibSpec, name: str, polygon: Polygon, x_range: tuple[float, float], radius: float,
