@@ -15,6 +15,7 @@ from diegen import materials
 from diegen.blank.develop import develop_blank, notch_polygon
 from diegen.errors import FormingError
 from diegen.blank.drawing import BlankDrawing
+from diegen.die.plan import DiePlan, with_die_plan
 from diegen.findings import Finding
 from diegen.forming import press as press_model
 from diegen.forming import relief as relief_model
@@ -105,6 +106,7 @@ class PieceAnalysis:
     die_height_mm: float
     die_layers: int
     warnings: tuple[Finding, ...]
+    die: DiePlan | None = None  # the die the builder will make, or why it cannot (diegen.die.plan)
 
     @property
     def max_shrink(self) -> float:
@@ -164,13 +166,11 @@ def check_radius(spec: RibSpec, springback: Springback) -> materials.MinRadius:
     minimum = materials.min_bend_radius(sheet.alloy, sheet.thickness_mm, flange.radius_table)
     if springback.die_radius_mm < minimum.radius_mm - 1e-9:
         wanted = _part_radius_for_die(spec, minimum.radius_mm)
-        file, line, column = spec.positions.where("flange.bend_radius")
-        where = ":".join(str(v) for v in (file or spec.file or spec.id, line, column) if v not in ("", None))
         raise FormingError(
-            f"{where}: flange.bend_radius: rib {spec.id}: the die bends the metal to {springback.die_radius_mm:.3f} mm "
+            f"rib {spec.id}: the die bends the metal to {springback.die_radius_mm:.3f} mm "
             f"(to spring back to the part's {flange.bend_radius_mm:.3f} mm), below the {minimum.radius_mm:.3f} mm "
             f"minimum for {sheet.thickness_mm:.3f} mm {sheet.alloy} ({minimum.table} table: {minimum.citation}); "
-            f"use a part radius of at least {wanted:.3f} mm, or a softer temper"
+            f"use a part radius of at least {wanted:.3f} mm, or a softer temper", key="flange.bend_radius"
         )
     return minimum
 
@@ -201,6 +201,7 @@ def analyse_rib(spec: RibSpec, section: np.ndarray | None = None) -> RibAnalysis
                             stretch_limit=alloy.stretch_limit)
     layout = flange_layout(flange.height_mm, flange.bend_radius_mm, t, alloy.k_factor)
     pieces = tuple(_analyse_piece(spec, piece, alloy, minimum, springback, layout) for piece in geometry.pieces)
+    pieces = tuple(with_die_plan(spec, piece) for piece in pieces)
     return RibAnalysis(spec, geometry, pieces)
 
 

@@ -42,15 +42,38 @@ def report_json(analysis: Analysis) -> dict[str, Any]:
     from diegen import __version__
 
     return {"diegen_version": __version__, "spec": analysis.spec.id, "kind": "wing", "models": MODELS,
-            "safety": SAFETY, "warnings": [w.as_json() for r in analysis.ribs for w in r.geometry.warnings],
+            "safety": SAFETY, "warnings": [w.as_json() for w in _once(w for r in analysis.ribs for w in r.geometry.warnings)],
             "parts": [piece_json(r, p) for r in analysis.ribs for p in r.pieces]}
 
 
 def report_text(analysis: Analysis) -> str:
-    """The readable forming report."""
-    from diegen.reports.text import footer_text, rib_text
+    """The readable forming report, ending with the pieces whose die ``build`` would refuse."""
+    from diegen.reports.text import footer_text, refusals_text, rib_text
 
-    return "\n\n".join([rib_text(r, footer=False) for r in rib_analyses(analysis)] + [footer_text()])
+    refused = refused_pieces(analysis)
+    shown: set[tuple] = set()
+    parts = [rib_text(r, footer=False, shown=shown) for r in rib_analyses(analysis)]
+    return "\n\n".join(parts + ([refusals_text(refused, sum(len(r.pieces) for r in rib_analyses(analysis)))]
+                                if refused else []) + [footer_text()])
+
+
+def _once(findings: Any) -> list[Any]:
+    """Findings about the spec file itself once, though every rib of a wing reports them (other findings all)."""
+    seen: set[tuple] = set()
+    out = []
+    for finding in findings:
+        key = (finding.code, finding.key, finding.line, finding.column, finding.message)
+        if finding.code == "units-suspect" and key in seen:
+            continue
+        seen.add(key)
+        out.append(finding)
+    return out
+
+
+def refused_pieces(analysis: Analysis) -> list[tuple[str, str]]:
+    """``(part id, reason with its remedy)`` of every piece whose die ``build`` would refuse."""
+    return [(p.piece.part_id, p.die.refusal) for r in rib_analyses(analysis) for p in r.pieces
+            if p.die is not None and p.die.refusal]
 
 
 def write_plots(analysis: Analysis, out_dir: str | Path) -> list[Path]:
@@ -103,5 +126,5 @@ def diff_text(old: Spec, new: Spec) -> str:
     return diff_specs(old, new)
 
 
-__all__ = ["Analysis", "RibJob", "WingAnalysis", "analyse", "build", "diff_text", "load", "report_json",
+__all__ = ["Analysis", "RibJob", "WingAnalysis", "analyse", "build", "diff_text", "load", "refused_pieces", "report_json",
            "report_text", "rib_jobs", "write_plots", "write_starter"]

@@ -1,6 +1,7 @@
 """Command line: parse arguments, call :mod:`diegen.api`, print, set the exit code.
 
-Exit codes: 0 success, 1 a build finished but some pieces failed, 2 bad input
+Exit codes: 0 success, 1 a build finished but some pieces failed (``check``: some pieces' dies would be
+refused), 2 bad input
 (spec, airfoil, impossible geometry), 3 an internal error (a bug: please report).
 """
 
@@ -14,9 +15,21 @@ from collections.abc import Sequence
 from pathlib import Path
 
 from diegen import __version__
-from diegen.errors import DiegenError, SpecError
+from diegen.errors import DiegenError, OutputError, SpecError
 
 EXIT_OK, EXIT_FAILED_PIECES, EXIT_BAD_INPUT, EXIT_INTERNAL = 0, 1, 2, 3
+
+
+def _jobs(text: str) -> int:
+    """A worker count: a whole number of at least 1."""
+    try:
+        value = int(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"expected a whole number of worker processes (1 or more), found {text!r}")
+    if value < 1:
+        raise argparse.ArgumentTypeError(f"expected 1 or more worker processes, found {value}; leave -j out to use "
+                                         "one per core")
+    return value
 
 
 def _parser() -> argparse.ArgumentParser:
@@ -39,7 +52,7 @@ def _parser() -> argparse.ArgumentParser:
     build.add_argument("spec", type=Path, help="rib or wing spec (YAML)")
     build.add_argument("-o", "--out", type=Path, default=Path("out"), help="output folder (default: out)")
     build.add_argument("--force", action="store_true", help="rebuild pieces whose inputs did not change")
-    build.add_argument("-j", "--jobs", type=int, default=None, help="parallel worker processes (default: cores)")
+    build.add_argument("-j", "--jobs", type=_jobs, default=None, help="parallel worker processes (default: cores)")
     build.add_argument("-q", "--quiet", action="store_true", help="no progress bar")
 
     diff = sub.add_parser("diff", help="say which pieces two specs would change, without building")
@@ -63,6 +76,8 @@ def _print_problems(error: DiegenError) -> None:
         print(f"diegen: {count} problem{'s' if count != 1 else ''} in the spec; nothing was written", file=sys.stderr)
     else:
         print(f"error: {error}", file=sys.stderr)
+        if not isinstance(error, OutputError):
+            print("diegen: the spec cannot be made as it stands; nothing was written", file=sys.stderr)
 
 
 def _run(args: argparse.Namespace) -> int:
@@ -87,7 +102,7 @@ def _run(args: argparse.Namespace) -> int:
         if args.plot:
             for path in api.write_plots(analysis, args.out):
                 print(f"plot: {path}")
-        return EXIT_OK
+        return EXIT_FAILED_PIECES if api.refused_pieces(analysis) else EXIT_OK
     if args.command == "diff":
         print(api.diff_text(api.load(args.old), api.load(args.new)))
         return EXIT_OK

@@ -7,6 +7,10 @@ matching built-in, so callers may catch either.  The CLI turns any
 
 from __future__ import annotations
 
+import re
+
+from collections.abc import Iterator
+from contextlib import contextmanager
 from dataclasses import dataclass
 
 __all__ = [
@@ -44,7 +48,15 @@ class Problem:
 
 
 class DiegenError(Exception):
-    """Root of every error diegen raises on purpose."""
+    """Root of every error diegen raises on purpose.
+
+    ``key``: the spec key at fault where the raiser knows it (``flange.bend_radius``); a refusal found after the
+    schema is located in the spec file by it (see :mod:`diegen.locate`).
+    """
+
+    def __init__(self, *args: object, key: str = "") -> None:
+        super().__init__(*args)
+        self.key = key
 
 
 class SpecError(DiegenError, ValueError):
@@ -84,3 +96,19 @@ class SolidError(DiegenError, RuntimeError):
 
 class OutputError(DiegenError, OSError):
     """An output that must not or cannot be written."""
+
+
+_INDEXED_KEY = re.compile(r"^([a-z_]+\[\d+\])[ :(]")
+
+
+@contextmanager
+def keyed(key: str) -> Iterator[None]:
+    """Errors raised inside without a spec key get ``key`` (or the indexed key their message starts with, such as
+    ``lightening_holes[1]``)."""
+    try:
+        yield
+    except DiegenError as error:
+        if not error.key and not isinstance(error, SpecError):
+            found = _INDEXED_KEY.match(str(error))
+            error.key = found[1] if found and found[1].startswith(key) else key
+        raise

@@ -62,9 +62,23 @@ FORCE_UNITS: dict[str, float] = {
     "ton": N_PER_SHORT_TON,  # short ton-force, the rating of shop presses
     "tons": N_PER_SHORT_TON,
     "short ton": N_PER_SHORT_TON,
+    "t": 1000.0 * 9.80665,  # the metric tonne's symbol: a press rated "20 t" is rated in tonnes-force
     "tonne": 1000.0 * 9.80665,  # metric ton-force, standard gravity (NIST SP 811)
     "tonnes": 1000.0 * 9.80665,
     "kgf": 9.80665,
+}
+FORCE_UNIT_NAMES: dict[str, str] = {
+    "n": "newtons",
+    "kn": "kilonewtons",
+    "lbf": "pounds-force",
+    "lb": "pounds-force",
+    "ton": "short tons-force (2,000 lbf)",
+    "tons": "short tons-force (2,000 lbf)",
+    "short ton": "short tons-force (2,000 lbf)",
+    "t": "metric tonnes-force (1,000 kgf)",
+    "tonne": "metric tonnes-force (1,000 kgf)",
+    "tonnes": "metric tonnes-force (1,000 kgf)",
+    "kgf": "kilograms-force",
 }
 SPEC_UNITS = ("in", "mm")
 
@@ -148,5 +162,15 @@ def length_mm(value: object, spec_units: str) -> float:
 
 
 def force_n(value: object) -> float:
-    """A force from a spec value (``"20 ton"`` short tons, ``"178 kN"``, ``"40000 lbf"``); returns N."""
-    return _parse(value, FORCE_UNITS, None, "force", '"20 ton", "178 kN" or "40000 lbf"')
+    """A force from a spec value (``"20 ton"`` short tons, ``"20 t"`` metric tonnes, ``"178 kN"``,
+    ``"40000 lbf"``); returns N."""
+    return _parse(value, FORCE_UNITS, None, "force", '"20 ton", "20 t", "178 kN" or "40000 lbf"')
+
+
+def force_reading(value: object) -> str:
+    """How a force value was read, for the report: ``'20 t: 20 metric tonnes-force (1,000 kgf) = 196.1 kN'``."""
+    newtons = force_n(value)
+    match = _QUANTITY.match(str(value))
+    unit = (match["unit"] or "").strip().lower() if match else ""
+    number = _number(match["num"]) if match else newtons
+    return f"{str(value).strip()}: {number:g} {FORCE_UNIT_NAMES.get(unit, unit)} = {newtons / 1000.0:.1f} kN"

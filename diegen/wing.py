@@ -94,9 +94,12 @@ def rib_spec(spec: WingSpec, station: RibStation) -> RibSpec:
         spars.append(Spar(fraction, spar.web_mm, spar.cap_thickness_mm, spar.cap_width_mm))
     applied = [f"overrides[{i}]." for i, o in enumerate(spec.overrides) if station.number in o.ribs]
     positions = replace(spec.positions, prefixes=(*reversed(applied), ""))  # the last override wins
+    warnings = tuple(w for w in spec.unit_warnings
+                     if not w.key.startswith("overrides[") or any(w.key.startswith(a) for a in applied))
     return RibSpec(id=f"{spec.id}-R{station.number:02d}", units=spec.units, airfoil=spec.root_airfoil,
                    chord_mm=station.chord_mm * stretch, spars=tuple(spars), shared=shared, file=spec.file,
-                   title=f"rib {station.number} at {station.y_mm:.0f} mm from the root", positions=positions)
+                   title=f"rib {station.number} at {station.y_mm:.0f} mm from the root", positions=positions,
+                   unit_warnings=warnings)
 
 
 def section_at(spec: WingSpec, station: RibStation) -> np.ndarray:

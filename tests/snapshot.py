@@ -20,10 +20,17 @@ from pathlib import Path
 import numpy as np
 
 STORED = Path(__file__).resolve().parent / "data" / "golden" / "demo-outputs.json"
+ROOT = Path(__file__).resolve().parents[1]
 
 
 def _digest(text: str | bytes) -> str:
     return hashlib.sha256(text if isinstance(text, bytes) else text.encode()).hexdigest()[:20]
+
+
+def _here_free(text: str) -> str:
+    """``text`` with the checkout's own folder written as ``<root>``: reports name the spec file, and the
+    fingerprint must not depend on where the project is checked out."""
+    return text.replace(str(ROOT), "<root>")
 
 
 def _dxf_entities(path: Path) -> str:
@@ -65,9 +72,9 @@ def snapshot(folder: Path) -> dict[str, dict[str, object]]:
         for path in sorted(part.iterdir()):
             kind = path.name[len(part.name) + 1 :]
             if path.suffix == ".json":
-                entry[kind] = _digest(json.dumps(json.loads(path.read_text()), sort_keys=True))
+                entry[kind] = _digest(_here_free(json.dumps(json.loads(path.read_text()), sort_keys=True)))
             elif path.suffix in (".md", ".svg"):
-                entry[kind] = _digest(path.read_text())
+                entry[kind] = _digest(_here_free(path.read_text()))
             elif path.suffix == ".dxf":
                 entry[kind] = _dxf_entities(path)
             elif path.suffix == ".stl":
@@ -80,8 +87,8 @@ def check_digests() -> dict[str, str]:
     """Digest of ``check --json`` (the API's report document) for each demo spec."""
     from diegen import api
 
-    specs = Path(__file__).resolve().parents[1] / "specs"
-    return {name: _digest(json.dumps(api.report_json(api.analyse(api.load(specs / name))), sort_keys=True))
+    specs = ROOT / "specs"
+    return {name: _digest(_here_free(json.dumps(api.report_json(api.analyse(api.load(specs / name))), sort_keys=True)))
             for name in ("demo-rib.yaml", "demo-wing.yaml")}
 
 

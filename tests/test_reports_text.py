@@ -240,7 +240,7 @@ def test_press_die_life_and_blank(rib, blocks, name: str) -> None:
     perimeter measured with shapely."""
     p = rib.pieces[PIECES.index(name)]
     block = blocks[name]
-    press = field(block, "press")
+    press = field(block, "press  ")
     psi = float(RAW["press"]["force"].split()[0]) * 2000.0 / (RAW["press"]["box"][0] * RAW["press"]["box"][1])
     mpa = psi * N_PER_LBF / MM_PER_IN**2
     assert RAW["sheet"]["alloy"] == "2024-T3"

@@ -510,12 +510,15 @@ def test_kernel_failure_becomes_solid_error(bare_input, monkeypatch):
 
 
 # ---------------------------------------------------------------- tiles and laminates
-def test_tiles_fit_the_bed_and_keep_the_volume(bare_die):
+def test_tiles_fit_the_bed_and_keep_the_volume(bare_die, bare_input):
+    from diegen.die.model import outline_model
     from diegen.die.occ.tiles import tile_for_bed
+    from diegen.die.tiling import plan_tiles
 
     bed = (150.0, 200.0)
-    tiles = tile_for_bed(bare_die, bed, dowel_d_mm=5.0, dowel_depth_mm=10.0)
-    assert len(tiles) == 2
+    plan = plan_tiles(bare_input, outline_model(bare_input), bed, dowel_d_mm=5.0, dowel_depth_mm=10.0)
+    tiles = tile_for_bed(bare_die, plan)
+    assert len(tiles) == plan.count == 2
     for t in tiles:
         bb = t.shape.BoundingBox()
         length, width = (bb.xlen, bb.ylen)
@@ -523,15 +526,16 @@ def test_tiles_fit_the_bed_and_keep_the_volume(bare_die):
         assert length <= bx - 4 + 1e-6 and width <= by - 4 + 1e-6
     total = sum(volume(t.shape) for t in tiles)
     n_dowels = round((volume(bare_die) - total) / (math.pi * 2.5**2 * 20.0))
-    assert n_dowels in (1, 2)
+    assert n_dowels == len(plan.dowels) and n_dowels in (1, 2)
     assert volume(bare_die) - total == pytest.approx(n_dowels * math.pi * 2.5**2 * 20.0, rel=1e-4)
 
 
-def test_bed_too_small(bare_die):
-    from diegen.die.occ.tiles import tile_for_bed
+def test_bed_too_small(bare_input):
+    from diegen.die.model import outline_model
+    from diegen.die.tiling import plan_tiles
 
-    with pytest.raises(SolidError, match="cannot take a tile"):
-        tile_for_bed(bare_die, (100.0, 100.0))
+    with pytest.raises(GeometryError, match="cannot take a tile"):
+        plan_tiles(bare_input, outline_model(bare_input), (100.0, 100.0))
 
 
 def test_laminate_layers(bare_input, outline):

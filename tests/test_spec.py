@@ -90,7 +90,7 @@ BAD_SPECS = [
     ("bad-kind", _edit("kind: rib", "kind: aileron"), 2, ["kind", "rib, wing"]),
     ("bad-id", _edit("id: T1", "id: ../../x"), 3, ["id", "no spaces or slashes"]),
     ("duplicate-key", _edit("chord: 40", "chord: 40\nchord: 41"), 7, ["duplicate key 'chord'"]),
-    ("bad-box", _edit("box: [12, 10]", "box: [12]"), 18, ["press.box", "2 to 2 items"]),
+    ("bad-box", _edit("box: [12, 10]", "box: [12]"), 18, ["press.box", "exactly 2 items, found 1 item"]),
     ("center-needs-two-spars", _edit("  - {at: 0.70, web: 0.050, cap_thickness: 0.050, cap_width: 0.625}\n", ""), 12,
      ["pieces", "'center' needs at least 2 spar"]),
     ("bad-version", _edit("diegen: 1", "diegen: 7"), 1, ["version 1", "7"]),

@@ -196,7 +196,7 @@ def test_sequences_and_pairs() -> None:
     assert r.length_pair(n["odd"], "odd") is None
     assert r.sequence(n["not"], "not") is None
     problems = {p.key: p for p in r.problems}
-    assert problems["short"].message == "expected a list of 2 to 2 items, found 1 items"
+    assert problems["short"].message == "expected a list of exactly 2 items, found 1 item"
     assert "odd[1]" in problems and (problems["odd[1]"].line, problems["odd[1]"].column) == at(text, "ten")
     assert problems["not"].message == "expected a list, found int 12"
 

@@ -84,7 +84,7 @@ class DieInput:
     height_mm: float  # stock thickness
     top_radius_mm: float  # springback-compensated die radius on the top edge
     undercut_deg: float  # side walls lean inward going down by this angle (over-bend)
-    cutter_radius_mm: float  # no internal concave corner tighter than this
+    cutter_radius_mm: float  # no internal concave corner tighter than this (a printed die: the printer's limit)
     # grooves in the wall, depth tapering from 0 at the top (bend line) to full at flange-edge depth
     flutes: tuple[DieFlute, ...] = ()
     flute_length_mm: float = 0.0  # how far down the wall the flute tapers (the flange height)
@@ -92,6 +92,17 @@ class DieInput:
     pins: tuple[DiePin, ...] = ()
     engraving: tuple[str, ...] = ()  # lines engraved on the BOTTOM face, plus an orientation arrow
     bore_top_radius_mm: float | None = None  # defaults to top_radius_mm
+    printed: bool = False  # printed, not routed: ``cutter_radius_mm`` is the printer's smallest inside radius
+    min_land_mm: float = 0.0  # least wall between two flutes beyond the outline model's own rule (a printed line)
+    layer_mm: float | None = None  # laminated from stock this thick (None: one block)
+    print_bed_mm: tuple[float, float] | None = None  # printed in tiles that fit this bed (None: in one piece)
+
+    @property
+    def inside_limit_text(self) -> str:
+        """What limits the die's inside curves, as messages name it."""
+        if self.printed:
+            return f"the printer's smallest inside radius {self.cutter_radius_mm:g} mm"
+        return f"the router cutter radius {self.cutter_radius_mm:g} mm"
 
     @property
     def bore_radius_mm(self) -> float:

@@ -10,6 +10,7 @@ from __future__ import annotations
 from typing import Any
 
 from diegen.die.die_input import DieBore, DieFlute, DieInput, DiePin, DieRun
+from diegen.geometry.tooling import tooling
 
 PIN_INTERFERENCE_MM = 0.03
 ENGRAVING_NOTE = "Marks on the bottom face: part id, sheet, and an arrow pointing to the leading edge."
@@ -21,21 +22,36 @@ def pin_depth_mm(dowel_d_mm: float, die_height_mm: float) -> float:
 
 
 def die_input(rib: Any, piece: Any) -> DieInput:
-    """The die builder's input for one analysed piece (``rib``: RibAnalysis, ``piece``: PieceAnalysis)."""
-    g, shared = piece.piece, rib.spec.shared
+    """The die builder's input for one analysed piece (``rib``: RibAnalysis, ``piece``: PieceAnalysis).
+
+    That is the die the analysis planned (:mod:`diegen.die.rules`: flutes and wall fitted to the piece), or, for a
+    piece analysed without a plan, the die as the piece's numbers ask for it.
+    """
+    plan = getattr(piece, "die", None)
+    return plan.die if plan is not None else asked_die_input(rib.spec, piece)
+
+
+def asked_die_input(spec: Any, piece: Any) -> DieInput:
+    """The die as an analysed piece asks for it, before any fitting (``spec``: RibSpec, ``piece``: PieceAnalysis)."""
+    g, shared = piece.piece, spec.shared
     height = piece.die_height_mm
+    tool = tooling(shared.die.material, shared.die.cutter_diameter_mm)
     return DieInput(
         part_id=g.part_id,
         outline=tuple(DieRun(run.kind, run.points) for run in g.runs),
         height_mm=height,
         top_radius_mm=piece.springback.die_radius_mm,
         undercut_deg=piece.springback.overbend_deg,
-        cutter_radius_mm=shared.die.cutter_diameter_mm / 2,
+        cutter_radius_mm=tool.inside_radius_mm,
         flutes=tuple(DieFlute(f.s_mm, f.width_mm, f.depth_mm) for f in piece.flutes),
         flute_length_mm=shared.flange.height_mm,
         bores=tuple(DieBore(h.x, h.y, h.d + 2.0 * shared.sheet.thickness_mm) for h in g.holes if h.flanged),
         pins=tuple(DiePin(p.x, p.y, p.d - PIN_INTERFERENCE_MM, pin_depth_mm(p.d, height)) for p in g.pins),
         engraving=(g.part_id, f"{shared.sheet.alloy} {shared.sheet.thickness_mm:.2f} mm"),
+        printed=tool.printed,
+        min_land_mm=tool.thinnest_wall_mm,
+        layer_mm=shared.die.stock_thickness_mm if piece.die_layers > 1 and not tool.printed else None,
+        print_bed_mm=shared.die.print_bed_mm,
     )
 
 
@@ -58,4 +74,4 @@ def pin_note(die: DieInput) -> str | None:
             f"press fit), {pin.depth:.1f} mm deep from the top face.")
 
 
-__all__ = ["ENGRAVING_NOTE", "PIN_INTERFERENCE_MM", "die_input", "marks_note", "pin_depth_mm", "pin_note"]
+__all__ = ["ENGRAVING_NOTE", "PIN_INTERFERENCE_MM", "asked_die_input", "die_input", "marks_note", "pin_depth_mm", "pin_note"]

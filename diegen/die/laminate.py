@@ -25,6 +25,9 @@ from diegen.geometry import die_wall
 __all__ = ["LaminateLayer", "laminate_layers"]
 
 
+MAX_LAYERS = 40  # project limit: more glued layers than this is not a die a shop would make
+
+
 @dataclass(frozen=True)
 class LaminateLayer:
     """One sheet of a laminated die: its z range (mm) and outlines (mm, counter-clockwise)."""
@@ -47,18 +50,29 @@ def _runs(pieces: list[OffsetPiece]) -> tuple[DieRun, ...]:
 
 def laminate_layers(die: DieInput, stock_thickness_mm: float, spacing_mm: float = 1.0) -> list[LaminateLayer]:
     """The layers of ``die`` laminated from stock ``stock_thickness_mm`` thick; curves sampled every ``spacing_mm``."""
+    return layer_outlines(die, outline_model(die), stock_thickness_mm, spacing_mm)
+
+
+def layer_outlines(die: DieInput, model: OutlineModel, stock_thickness_mm: float,
+                   spacing_mm: float = 1.0) -> list[LaminateLayer]:
+    """:func:`laminate_layers` from the die's checked outline model."""
     if not stock_thickness_mm > 0:
         raise GeometryError(f"stock thickness {stock_thickness_mm} mm must be positive")
-
-    model: OutlineModel = outline_model(die)
     count = max(1, math.ceil(die.height_mm / stock_thickness_mm - 1e-9))
+    if count > MAX_LAYERS:
+        raise GeometryError(
+            f"die {die.part_id}: a {die.height_mm:g} mm die from {stock_thickness_mm:g} mm stock is {count} layers, "
+            f"more than the {MAX_LAYERS} a die can sensibly be glued from: use thicker stock (die.stock_thickness)")
     layers = []
     for i in range(count):
         z_top = -i * stock_thickness_mm
         z_bottom = max(-(i + 1) * stock_thickness_mm, -die.height_mm)
-        bottom = model.offset(die_wall.wall_inset_mm(-z_bottom, die.undercut_deg), spacing_mm=spacing_mm,
-                              flute_scale=flute_scale(die, -z_bottom))
-        top = model.offset(die_wall.wall_inset_mm(-z_top, die.undercut_deg), spacing_mm=spacing_mm,
-                           flute_scale=flute_scale(die, -z_top))
+        try:
+            bottom = model.offset(die_wall.wall_inset_mm(-z_bottom, die.undercut_deg), spacing_mm=spacing_mm,
+                                  flute_scale=flute_scale(die, -z_bottom))
+            top = model.offset(die_wall.wall_inset_mm(-z_top, die.undercut_deg), spacing_mm=spacing_mm,
+                               flute_scale=flute_scale(die, -z_top))
+        except GeometryError as exc:
+            raise GeometryError(f"die {die.part_id}: layer {i + 1} of {count}: {exc}") from None
         layers.append(LaminateLayer(i, z_top, z_bottom, _runs(bottom), _runs(top)))
     return layers

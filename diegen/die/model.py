@@ -29,7 +29,7 @@ def check_die_numbers(die: DieInput) -> None:
             f"die {die.part_id}: undercut {die.undercut_deg}° must lie between 0 and {MAX_UNDERCUT_DEG:g}°"
         )
     if not die.cutter_radius_mm > 0:
-        raise GeometryError(f"die {die.part_id}: cutter radius {die.cutter_radius_mm} mm must be positive")
+        raise GeometryError(f"die {die.part_id}: {die.inside_limit_text} must be positive")
     arc_depth = die_wall.fillet_end_depth_mm(die.top_radius_mm, die.undercut_deg)
     if arc_depth >= die.height_mm - 0.05:
         raise GeometryError(
@@ -56,7 +56,7 @@ def outline_model(die: DieInput, settings: BuildSettings = DEFAULT_SETTINGS) -> 
     try:
         return OutlineModel(die.outline, die.cutter_radius_mm, largest_inset_mm(die),
                             sample_tol_mm=settings.outline_tol_mm, max_spacing_mm=settings.max_spacing_mm,
-                            flutes=die.flutes)
+                            flutes=die.flutes, limit_text=die.inside_limit_text, min_land_mm=die.min_land_mm)
     except GeometryError as exc:
         raise GeometryError(f"die {die.part_id}: {exc}") from exc
 
@@ -71,7 +71,26 @@ def flute_scale(die: DieInput, depth_mm: float) -> float:
 
 def section(die: DieInput, model: OutlineModel, inset_mm: float, depth_mm: float) -> list[OffsetPiece]:
     """The die's horizontal section at ``depth_mm`` below the top face, for a wall inset ``inset_mm`` (mm)."""
-    return model.offset(inset_mm, flute_scale=flute_scale(die, depth_mm))
+    try:
+        return model.offset(inset_mm, flute_scale=flute_scale(die, depth_mm))
+    except GeometryError as exc:
+        raise GeometryError(f"die {die.part_id}: {exc}") from None
+
+
+def loft_sections(die: DieInput, settings: BuildSettings = DEFAULT_SETTINGS
+                  ) -> tuple[tuple[die_wall.WallSection, ...], tuple[die_wall.WallSection, ...]]:
+    """The sections the kernel lofts the wall through: across the top-edge arc, and down the straight wall.
+
+    The arc's sections are evenly spaced in arc angle; the wall's run from the arc's end to the bottom face, with
+    one more where the flutes reach full depth (the ruled loft needs it there).
+    """
+    arc = die_wall.fillet_sections(die.top_radius_mm, die.undercut_deg, settings.fillet_sections)
+    depths = [arc[-1].depth_mm]
+    if die.flutes and arc[-1].depth_mm + 0.05 < die.flute_length_mm < die.height_mm - 0.05:
+        depths.append(die.flute_length_mm)  # the flutes' taper ends here: the ruled wall needs a section
+    depths.append(die.height_mm)
+    wall = (arc[-1],) + tuple(die_wall.WallSection(die_wall.wall_inset_mm(d, die.undercut_deg), d) for d in depths[1:])
+    return arc, wall
 
 
 
@@ -86,4 +105,4 @@ def bottom_inset_mm(die: DieInput) -> float:
 
 
 __all__ = ["MAX_UNDERCUT_DEG", "bottom_inset_mm", "check_die_numbers", "flute_scale", "largest_inset_mm",
-           "outline_model", "section", "top_face_inset_mm"]
+           "loft_sections", "outline_model", "section", "top_face_inset_mm"]

@@ -31,7 +31,6 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.interpolate import BSpline, make_interp_spline
 from shapely.geometry import Polygon
 from shapely.validation import explain_validity
 
@@ -39,6 +38,7 @@ from diegen.die.die_input import DieFlute, DieRun, RunKind
 from diegen.errors import GeometryError
 from diegen.forming.relief import flute_arc_radius
 from diegen.geometry.loops import FloatArray
+from diegen.geometry.section import Cubic
 
 __all__ = [
     "CONCAVE_JUNCTION_DEG",
@@ -47,6 +47,7 @@ __all__ = [
     "LIP_CLEARANCE_MM",
     "MAX_EXTENSION_MM",
     "MIN_GROOVE_GAP_MM",
+    "CurveSegment",
     "OffsetPiece",
     "OutlineModel",
     "pieces_to_polygon",
@@ -58,6 +59,7 @@ MAX_EXTENSION_MM = 0.05  # how far a segment may be extended past its end to mee
 GROOVE_SAMPLES = 25  # samples across a flute: the spline then follows its arc within 1e-5 mm (h⁴/384r³)
 MIN_GROOVE_GAP_MM = 0.2  # least land left between two flutes' lips (design choice: a thinner fin will not sew)
 LIP_CLEARANCE_MM = 0.5  # least wall between a flute's lip and a corner trim (design choice)
+RADIUS_TOL_MM = 1e-3  # a curve this much tighter than the tool's radius is the same curve (a micrometre is no shape)
 
 
 def _rot90(v: FloatArray) -> FloatArray:
@@ -98,7 +100,7 @@ class _LineSegment(_Segment):
         return self.deriv(s, 0.0)
 
 
-class _CurveSegment(_Segment):
+class CurveSegment(_Segment):
     def __init__(self, pts: FloatArray, periodic: bool) -> None:
         self.kind = "curve"
         chord = np.linalg.norm(np.diff(pts, axis=0), axis=1)
@@ -110,11 +112,13 @@ class _CurveSegment(_Segment):
             )
         u = np.concatenate([[0.0], np.cumsum(chord)])
         self.length = float(u[-1])
-        k = min(3, len(pts) - 1)
-        bc = "periodic" if periodic else None
-        self.spline: BSpline = make_interp_spline(u, pts, k=k, bc_type=bc)
-        self.d1 = self.spline.derivative(1)
-        self.d2 = self.spline.derivative(2) if k >= 2 else None
+        self.spline = Cubic(u, pts, periodic=periodic)  # not-a-knot (or periodic) cubic through the points
+
+    def d1(self, s: FloatArray | float) -> FloatArray:
+        return self.spline(s, 1)
+
+    def d2(self, s: FloatArray | float) -> FloatArray:
+        return self.spline(s, 2)
 
     def base(self, s: FloatArray | float) -> FloatArray:
         return np.asarray(self.spline(s))
@@ -126,8 +130,6 @@ class _CurveSegment(_Segment):
     def curvature(self, s: FloatArray | float) -> FloatArray:
         """Signed curvature (1/mm), positive where the loop turns left (convex)."""
         d = np.asarray(self.d1(s))
-        if self.d2 is None:
-            return np.zeros(d.shape[:-1])
         dd = np.asarray(self.d2(s))
         cross = d[..., 0] * dd[..., 1] - d[..., 1] * dd[..., 0]
         return cross / np.linalg.norm(d, axis=-1) ** 3
@@ -209,8 +211,11 @@ class OutlineModel:
     """
 
     def __init__(self, runs: tuple[DieRun, ...], cutter_radius_mm: float, max_inset_mm: float,
-                 sample_tol_mm: float = 0.001, max_spacing_mm: float = 6.0, flutes: Sequence[DieFlute] = ()) -> None:
+                 sample_tol_mm: float = 0.001, max_spacing_mm: float = 6.0, flutes: Sequence[DieFlute] = (),
+                 limit_text: str | None = None, min_land_mm: float = MIN_GROOVE_GAP_MM) -> None:
         self.cutter_radius_mm = cutter_radius_mm
+        self.limit_text = limit_text or f"the router cutter radius {cutter_radius_mm:g} mm"
+        self.min_land_mm = max(min_land_mm, MIN_GROOVE_GAP_MM)
         self.max_inset_mm = max_inset_mm
         self.sample_tol_mm = sample_tol_mm
         self.max_spacing_mm = max_spacing_mm
@@ -247,11 +252,11 @@ class OutlineModel:
                 )
         if len(runs) == 1 and runs[0].kind == "curve":
             self.periodic = True
-            self.segments.append(_CurveSegment(arrays[0], periodic=True))
+            self.segments.append(CurveSegment(arrays[0], periodic=True))
             return
         for run, pts in zip(runs, arrays):
             if run.kind == "curve":
-                self.segments.append(_CurveSegment(pts, periodic=False))
+                self.segments.append(CurveSegment(pts, periodic=False))
             else:
                 for a, b in itertools.pairwise(pts):
                     if np.linalg.norm(b - a) < 1e-6:
@@ -279,22 +284,21 @@ class OutlineModel:
                 p = a.point(a.length, 0.0)
                 raise GeometryError(
                     f"sharp inside corner ({-turn:.1f}°) in the die outline at ({p[0]:.2f}, {p[1]:.2f}) mm: "
-                    f"a router cutter of radius {self.cutter_radius_mm:g} mm cannot make it; round it to at least "
-                    "that radius"
+                    f"{self.limit_text} cannot make it; round it to at least that radius"
                 )
 
     def _check_curvature(self) -> None:
         for seg in self.segments:
-            if not isinstance(seg, _CurveSegment):
+            if not isinstance(seg, CurveSegment):
                 continue
             s = np.linspace(0.0, seg.length, max(16, int(seg.length / 0.2) + 1))
             k = seg.curvature(s)
             i = int(np.argmin(k))
-            if k[i] < 0 and 1.0 / -k[i] < self.cutter_radius_mm * (1.0 - 1e-3):
+            if k[i] < 0 and 1.0 / -k[i] < self.cutter_radius_mm - RADIUS_TOL_MM:
                 p = seg.base(s[i])
                 raise GeometryError(
-                    f"inside curve of radius {1.0 / -k[i]:.2f} mm in the die outline at ({p[0]:.2f}, {p[1]:.2f}) mm "
-                    f"is tighter than the router cutter radius {self.cutter_radius_mm:g} mm: round it to at least that"
+                    f"inside curve of radius {1.0 / -k[i]:.3f} mm in the die outline at ({p[0]:.2f}, {p[1]:.2f}) mm "
+                    f"is tighter than {self.limit_text}: round it to at least that, or use a smaller cutter"
                 )
             i = int(np.argmax(k))
             if k[i] > 0 and 1.0 / k[i] < self.max_inset_mm + 0.05:
@@ -305,7 +309,7 @@ class OutlineModel:
                     "radius, lower the top radius, or start a new run at a true corner"
                 )
 
-    def _fractions(self, seg: _CurveSegment, s0: float, s1: float) -> FloatArray:
+    def _fractions(self, seg: CurveSegment, s0: float, s1: float) -> FloatArray:
         """Sample fractions of the stretch ``s0``–``s1`` of a curve segment, denser where it is curved.
 
         Spacing h from the cubic-interpolation error bound of a circle,
@@ -359,7 +363,7 @@ class OutlineModel:
             index, s_mid = self._param_at(flute.s_mm)
             seg = self.segments[index]
             where = seg.point(s_mid, 0.0)
-            if not isinstance(seg, _CurveSegment):
+            if not isinstance(seg, CurveSegment):
                 raise GeometryError(
                     f"{name} at ({where[0]:.1f}, {where[1]:.1f}) mm lies on a straight end face: flutes go on the "
                     "curved flange")
@@ -379,11 +383,11 @@ class OutlineModel:
             if a.segment != b.segment or (a is b):
                 continue
             gap = (b.s_mid - a.s_mid) % self.segments[a.segment].length - a.half_width - b.half_width
-            if gap < MIN_GROOVE_GAP_MM:
+            if gap < self.min_land_mm - 1e-9:
                 where = self.segments[a.segment].point(a.s_mid, 0.0)
                 raise GeometryError(
                     f"two flutes near ({where[0]:.1f}, {where[1]:.1f}) mm leave {gap:.2f} mm of wall between them "
-                    f"(at least {MIN_GROOVE_GAP_MM:g} mm): space them further apart or make them narrower")
+                    f"(at least {self.min_land_mm:g} mm): space them further apart or make them narrower")
         return grooves
 
     def _plan_spans(self) -> list[_Span]:
@@ -393,7 +397,7 @@ class OutlineModel:
             if isinstance(seg, _LineSegment):
                 spans.append(_Span(index, "line", 0.0, seg.length, np.array([0.0, 1.0]), True, True))
                 continue
-            assert isinstance(seg, _CurveSegment)
+            assert isinstance(seg, CurveSegment)
             own = [g for g in self.grooves if g.segment == index]
             if self.periodic and own:
                 # the loop starts at the first groove; the stretch after the last groove runs past the curve's start
@@ -424,27 +428,31 @@ class OutlineModel:
     @property
     def perimeter_mm(self) -> float:
         """Length of the outline (mm), along the smooth model."""
-        return float(sum(self._arc_length(seg) for seg in self.segments))
+        return float(sum(self._arc_table(i)[1][-1] for i in range(len(self.segments))))
 
-    @staticmethod
-    def _arc_length(seg: _Segment) -> float:
-        if isinstance(seg, _LineSegment):
-            return seg.length
-        s = np.linspace(0.0, seg.length, max(8, int(seg.length / 0.1) + 1))
-        return float(np.sum(np.linalg.norm(np.diff(seg.point(s, 0.0), axis=0), axis=1)))
+    def _arc_table(self, index: int) -> tuple[FloatArray, FloatArray]:
+        """Parameters of segment ``index`` every 0.1 mm or so, and the arc length (mm) at each (computed once)."""
+        cache: dict[int, tuple[FloatArray, FloatArray]] = self.__dict__.setdefault("_arcs", {})
+        if index not in cache:
+            seg = self.segments[index]
+            if isinstance(seg, _LineSegment):
+                cache[index] = (np.array([0.0, seg.length]), np.array([0.0, seg.length]))
+            else:
+                grid = np.linspace(0.0, seg.length, max(8, int(seg.length / 0.1) + 1))
+                arc = np.concatenate([[0.0], np.cumsum(np.linalg.norm(np.diff(seg.point(grid, 0.0), axis=0), axis=1))])
+                cache[index] = (grid, arc)
+        return cache[index]
 
     def _param_at(self, s_mm: float) -> tuple[int, float]:
         """Segment index and parameter (mm) at arc length ``s_mm`` from the outline's first point."""
         remaining = s_mm % self.perimeter_mm
         for index, seg in enumerate(self.segments):
-            length = self._arc_length(seg)
-            if remaining <= length or index == len(self.segments) - 1:
+            grid, arc = self._arc_table(index)
+            if remaining <= arc[-1] or index == len(self.segments) - 1:
                 if isinstance(seg, _LineSegment):
                     return index, min(remaining, seg.length)
-                grid = np.linspace(0.0, seg.length, max(8, int(seg.length / 0.1) + 1))
-                arc = np.concatenate([[0.0], np.cumsum(np.linalg.norm(np.diff(seg.point(grid, 0.0), axis=0), axis=1))])
                 return index, float(np.interp(remaining, arc, grid))
-            remaining -= length
+            remaining -= arc[-1]
         raise AssertionError("unreachable")
 
     def locate(self, s_mm: float) -> tuple[FloatArray, FloatArray]:

@@ -144,6 +144,30 @@ def _build_chain(rows: _Rows, name: str) -> tuple[FloatArray, IntArray]:
     return chain, lines
 
 
+def offending_point(loop: FloatArray, point_lines: NDArray[np.intp], near: int) -> int:
+    """The point (loop index) to blame for a loop that crosses itself: of the points on the crossing edges, the
+    one written first in the file whose removal leaves the outline simple; else the point ``near`` the crossing.
+
+    A mistyped coordinate moves one point across the other surface: both edges to it cross that surface, and
+    leaving it out mends the outline, so it is the one named (not the far surface's points it crosses).
+    """
+    import shapely
+
+    n = len(loop)
+    edges = shapely.linestrings(np.stack([loop, np.roll(loop, -1, axis=0)], axis=1))
+    tree = shapely.STRtree(edges)
+    pairs = tree.query(edges, predicate="intersects")
+    candidates: set[int] = set()
+    for a, b in zip(*pairs):
+        if a < b and (b - a) % n not in (1, n - 1):  # neighbouring edges always meet at their shared point
+            candidates.update({int(a), (int(a) + 1) % n, int(b), (int(b) + 1) % n})
+    for i in sorted(candidates, key=lambda k: point_lines[k]):
+        rest = np.delete(loop, i, axis=0)
+        if len(rest) >= 3 and shapely.Polygon(rest).is_valid:
+            return i
+    return min(candidates, key=lambda k: point_lines[k]) if candidates else near
+
+
 def parse_coordinates(text: str, name: str = "<text>") -> FloatArray:
     """Parse the text of an airfoil coordinate file into a normalised loop (N, 2).
 
@@ -166,7 +190,9 @@ def parse_coordinates(text: str, name: str = "<text>") -> FloatArray:
         )
     i = self_intersection_index(loop)
     if i is not None:
-        raise AirfoilError(f"{name}:{point_lines[i]}: the outline crosses or touches itself near this point")
+        i = offending_point(loop, point_lines, i)
+        raise AirfoilError(f"{name}:{point_lines[i]}: the outline crosses or touches itself at this point "
+                           f"({loop[i, 0]:.6g}, {loop[i, 1]:.6g}): check its coordinates")
     i = first_x_reversal(loop, X_REVERSAL_TOL)
     if i is not None:
         raise AirfoilError(

@@ -5,12 +5,13 @@ Pure numpy/shapely: nothing here imports the solid kernel (``diegen check`` runs
 
 from __future__ import annotations
 
+import re
 from functools import lru_cache
 
 import numpy as np
 from shapely.geometry import Polygon
 
-from diegen.errors import GeometryError
+from diegen.errors import GeometryError, keyed
 from diegen.findings import Finding
 from diegen.geometry import holes as hole_rules
 from diegen.geometry import pins as pin_rules
@@ -23,6 +24,7 @@ from diegen.geometry.pieces import (
     relief_points,
     tail_end,
 )
+from diegen.geometry.tooling import tooling
 from diegen.geometry.polygon import QUAD_SEGS, as_points, inscribed_diameter, offset_inward, vertical_extents
 from diegen.geometry.types import Hole, PieceGeometry, RibGeometry
 from diegen.spec.model import AirfoilSource, RibSpec
@@ -70,7 +72,8 @@ def rib_geometry(spec: RibSpec, section: np.ndarray | None = None, die_inset_mm:
     ``die_inset_mm`` is the largest inset of the die's wall from its outline
     (top-edge setback or bottom inset, mm): the joggle ramps bend no tighter
     than it (plus ``FAIR_MARGIN_MM``) where they turn convex, so the die's
-    offset sections stay smooth, and no tighter than the cutter radius.
+    offset sections stay smooth, and no tighter than the cutter radius (for a
+    printed die, the printer's smallest inside radius).
     ``stretch_limit`` is the sheet alloy's largest edge stretch (fraction): it
     sizes the flanges of lightening holes placed automatically.
     """
@@ -79,19 +82,27 @@ def rib_geometry(spec: RibSpec, section: np.ndarray | None = None, die_inset_mm:
     scaled = unit * spec.chord_mm
     airfoil = Polygon(scaled)
     if not airfoil.is_valid:
-        raise GeometryError(f"the {spec.airfoil.label} section is not a simple outline at {spec.chord_mm:.0f} mm chord")
+        raise GeometryError(f"the {spec.airfoil.label} section is not a simple outline at {spec.chord_mm:.0f} mm chord "
+                            "(it crosses or touches itself): check the airfoil's coordinates", key="airfoil")
     skin, sheet_t = shared.skin_thickness_mm, shared.sheet.thickness_mm
-    oml = offset_inward(airfoil, skin, f"offsetting the section inward by the skin ({skin:.3f} mm)")
-    die = offset_inward(oml, sheet_t, f"offsetting the outer mold line inward by the rib sheet ({sheet_t:.3f} mm)")
+    with keyed("skin_thickness"):
+        oml = offset_inward(airfoil, skin, f"offsetting the section inward by the skin ({skin:.3f} mm)")
+    with keyed("sheet.thickness"):
+        die = offset_inward(oml, sheet_t, f"offsetting the outer mold line inward by the rib sheet ({sheet_t:.3f} mm)")
     upper, lower = monotone_surfaces(np.asarray(as_points(die)))
     spars = [SparCut(s.at * spec.chord_mm, s.web_mm, s.cap_thickness_mm, s.cap_width_mm) for s in spec.spars]
-    warnings: list[Finding] = []
+    warnings: list[Finding] = [Finding("units-suspect", w.message, spec.id, w.key, w.file, w.line, w.column)
+                               for w in spec.unit_warnings]
     pieces = []
-    fair_radius = max(shared.die.cutter_diameter_mm / 2, die_inset_mm + FAIR_MARGIN_MM if die_inset_mm > 0 else 0.0)
+    inside = tooling(shared.die.material, shared.die.cutter_diameter_mm).inside_radius_mm
+    fair_radius = max(inside, die_inset_mm + FAIR_MARGIN_MM if die_inset_mm > 0 else 0.0)
     for name, x0, x1, aft_flanged in _piece_ranges(spec, spars, upper, lower, warnings):
-        pieces.append(_piece(spec, name, x0, x1, aft_flanged, upper, lower, spars, fair_radius, stretch_limit))
+        pieces.append(_piece(spec, name, x0, x1, aft_flanged, upper, lower, spars, fair_radius, stretch_limit,
+                             warnings))
     if not pieces:
-        raise GeometryError(f"rib {spec.id} has no piece left to make: {'; '.join(w.message for w in warnings)}")
+        raise GeometryError(f"rib {spec.id} has no piece left to make: "
+                            f"{'; '.join(w.message for w in warnings if w.code == 'tail-piece-dropped')}",
+                            key="flange.min_tail_depth")
     return RibGeometry(spec.id, spec.chord_mm, _tuple(scaled), as_points(oml), as_points(die), tuple(pieces),
                        tuple(warnings))
 
@@ -125,7 +136,8 @@ def _piece_ranges(spec: RibSpec, spars: list[SparCut], upper: np.ndarray, lower:
 
 
 def _piece(spec: RibSpec, name: str, x0: float | None, x1: float, aft_flanged: bool, upper: np.ndarray,
-           lower: np.ndarray, spars: list[SparCut], fair_radius: float, stretch_limit: float) -> PieceGeometry:
+           lower: np.ndarray, spars: list[SparCut], fair_radius: float, stretch_limit: float,
+           warnings: list[Finding]) -> PieceGeometry:
     shared = spec.shared
     part_id = f"{spec.id}-{name}"
     lo = float(upper[0, 0]) if x0 is None else float(x0)
@@ -134,26 +146,34 @@ def _piece(spec: RibSpec, name: str, x0: float | None, x1: float, aft_flanged: b
         why = (f"; the skin and sheet offsets put the die's leading edge at x = {lo:.1f} mm, behind the spar"
                if x0 is None else "")
         raise GeometryError(f"the {name} piece of rib {spec.id} has no length (from x = {lo:.1f} to {x1:.1f} mm; "
-                            f"at least 1.0 mm needed){why}")
+                            f"at least 1.0 mm needed){why}: move the spar aft, use a thinner skin, or leave the piece "
+                            "out (pieces)", key="skin_thickness" if x0 is None else "spars[1].at")
     joggles = joggles_for(lo, x1, spars, shared.joggle_runout, fair_radius)
     try:
         runs = piece_runs(upper, lower, x0, x1, joggles, aft_flanged)
     except GeometryError as error:
-        raise GeometryError(f"the {name} piece of rib {spec.id}: {error}") from None
+        face = re.search(r"x = ([-0-9.]+) mm", str(error))
+        at = float(face[1]) if face else x1
+        nearest = min(range(len(spars)), key=lambda i: min(abs(spars[i].x_front_mm - at), abs(spars[i].x_aft_mm - at)))
+        raise GeometryError(f"the {name} piece of rib {spec.id}: {error}: move the spar where the section is deeper, "
+                            "or leave the piece out (pieces)", key=f"spars[{nearest}].at") from None
     points = [p for run in runs for p in run.points[:-1]]
     polygon = Polygon(points)
     if not polygon.is_valid or polygon.area <= 0:
-        raise GeometryError(f"the {name} piece of rib {spec.id} is not a simple outline "
-                            "(joggles deeper than the section?)")
+        raise GeometryError(f"the {name} piece of rib {spec.id} is not a simple outline (joggles deeper than the "
+                            "section?): use thinner spar caps or move the spars", key="spars")
     radius = shared.flange.bend_radius_mm
     if polygon.buffer(-radius, quad_segs=QUAD_SEGS).is_empty:
         deepest = inscribed_diameter(polygon)
         raise GeometryError(
             f"the {name} piece of rib {spec.id} has no flat web between its flange bends: its die outline is only "
             f"{deepest:.2f} mm deep at its deepest, and the bend radius of {radius:.2f} mm on each side needs more "
-            f"than {2 * radius:.2f} mm (the flange bends would overlap)")
-    holes = _holes(spec, name, polygon, (lo, x1), radius, stretch_limit)
-    pins = _pins(spec, name, polygon, (lo, x1), radius, holes)
+            f"than {2 * radius:.2f} mm (the flange bends would overlap): use a smaller bend radius or leave the "
+            "piece out (pieces)", key="flange.bend_radius")
+    with keyed("lightening_holes"):
+        holes = _holes(spec, name, polygon, (lo, x1), radius, stretch_limit)
+    with keyed("pins"):
+        holes, pins = _pins_and_holes(spec, name, polygon, (lo, x1), radius, holes, warnings)
     plain = piece_runs(upper, lower, x0, x1, (), aft_flanged) if joggles else runs
     return PieceGeometry(name, part_id, (lo, x1), runs, tuple(joggles), holes, pins, relief_points(runs),
                          _depth_range(polygon, lo, x1, name), plain)
@@ -169,6 +189,31 @@ def _holes(spec: RibSpec, name: str, polygon: Polygon, x_range: tuple[float, flo
     # a hole flange needs a straight leg beyond its bend: at least R + T + 1 mm high
     shortest = radius + spec.shared.sheet.thickness_mm + 1.0
     return hole_rules.auto_holes(polygon, radius, holes.rules, stretch_limit, shortest)
+
+
+def _pins_and_holes(spec: RibSpec, name: str, polygon: Polygon, x_range: tuple[float, float], radius: float,
+                    holes: tuple[Hole, ...], warnings: list[Finding]) -> tuple[tuple[Hole, ...], tuple]:
+    """The piece's holes and pins: where automatic holes leave no web for automatic pins, the holes nearest the
+    piece's ends are left out, one at a time, until the pins fit (a finding says which)."""
+    try:
+        return holes, _pins(spec, name, polygon, x_range, radius, holes)
+    except GeometryError:
+        if not (spec.shared.holes.mode == "auto" and spec.shared.pins.mode == "auto" and holes):
+            raise
+    kept = list(holes)
+    for hole in sorted(holes, key=lambda h: min(h.x - x_range[0], x_range[1] - h.x)):
+        kept.remove(hole)
+        try:
+            pins = _pins(spec, name, polygon, x_range, radius, tuple(kept))
+        except GeometryError:
+            continue
+        dropped = [h for h in holes if h not in kept]
+        warnings.append(Finding(
+            "holes-left-out-for-pins", f"the {name} piece: {len(dropped)} automatic lightening hole(s) left out "
+            f"(at x = {', '.join(f'{h.x:.0f}' for h in dropped)} mm) so the tooling pins have web to stand in",
+            key="lightening_holes").about(spec.id, spec.positions))
+        return tuple(kept), pins
+    return holes, _pins(spec, name, polygon, x_range, radius, holes)  # no hole left out helps: say why
 
 
 def _pins(spec: RibSpec, name: str, polygon: Polygon, x_range: tuple[float, float], radius: float,

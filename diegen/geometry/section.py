@@ -255,49 +255,102 @@ def surface_fractions(n: int) -> FloatArray:
 def cubic_spline(x: ArrayLike, y: ArrayLike):
     """Not-a-knot interpolating cubic spline through ``y`` (N, d) at increasing ``x``; returns f(x).
 
-    The classical slope formulation (C. de Boor, *A Practical Guide to Splines*,
-    ch. IV: one tridiagonal system for the knot slopes, the first and last rows
-    imposing a continuous third derivative at the second and last-but-one knots),
-    solved by the Thomas algorithm; each interval is then a cubic Hermite
-    polynomial.  Plain numpy, so reading a section needs no interpolation library.
+    See :class:`Cubic`; plain numpy, so reading a section needs no interpolation library.
     """
-    x = np.asarray(x, dtype=float)
-    y = np.asarray(y, dtype=float)
-    n = len(x)
-    if n < 4:
-        raise AirfoilError(f"a not-a-knot spline needs at least 4 points, got {n}")
-    h = np.diff(x)
-    delta = np.diff(y, axis=0) / h[:, None]
-    sub, diag, sup = np.zeros(n), np.zeros(n), np.zeros(n)
-    rhs = np.zeros_like(y)
-    diag[1:-1] = 2.0 * (h[:-1] + h[1:])
-    sub[1:-1], sup[1:-1] = h[1:], h[:-1]
-    rhs[1:-1] = 3.0 * (h[1:, None] * delta[:-1] + h[:-1, None] * delta[1:])
-    d0, d1 = x[2] - x[0], x[-1] - x[-3]
-    diag[0], sup[0] = h[1], d0
-    rhs[0] = ((h[0] + 2.0 * d0) * h[1] * delta[0] + h[0] ** 2 * delta[1]) / d0
-    diag[-1], sub[-1] = h[-2], d1
-    rhs[-1] = (h[-1] ** 2 * delta[-2] + (2.0 * d1 + h[-1]) * h[-2] * delta[-1]) / d1
-    c, d = np.zeros(n), np.zeros_like(y)
-    c[0], d[0] = sup[0] / diag[0], rhs[0] / diag[0]
-    for i in range(1, n):
-        pivot = diag[i] - sub[i] * c[i - 1]
-        c[i] = sup[i] / pivot
-        d[i] = (rhs[i] - sub[i] * d[i - 1]) / pivot
-    slopes = np.empty_like(y)
-    slopes[-1] = d[-1]
-    for i in range(n - 2, -1, -1):
-        slopes[i] = d[i] - c[i] * slopes[i + 1]
-    c2 = (3.0 * delta - 2.0 * slopes[:-1] - slopes[1:]) / h[:, None]
-    c3 = (slopes[:-1] + slopes[1:] - 2.0 * delta) / h[:, None] ** 2
+    spline = Cubic(x, y)
+    return spline.__call__
 
-    def evaluate(at: ArrayLike) -> FloatArray:
+
+class Cubic:
+    """Interpolating cubic spline through ``y`` (N, d) at increasing ``x``, with its first two derivatives.
+
+    The classical slope formulation (C. de Boor, *A Practical Guide to Splines*, ch. IV): one tridiagonal system
+    for the knot slopes, solved by the Thomas algorithm; each interval is then a cubic Hermite polynomial.  End
+    conditions: not-a-knot (the first and last rows impose a continuous third derivative at the second and
+    last-but-one knots), or ``periodic`` (``y`` closes on itself: slope and curvature continuous across the
+    ends; the cyclic system is solved directly).  Three points give their parabola and two their line, as the
+    not-a-knot spline of so few points is.  Plain numpy.
+    """
+
+    def __init__(self, x: ArrayLike, y: ArrayLike, periodic: bool = False) -> None:
+        x = np.asarray(x, dtype=float)
+        y = np.asarray(y, dtype=float)
+        if y.ndim == 1:
+            y = y[:, None]
+        n = len(x)
+        if n < 2 or (periodic and n < 4):
+            raise AirfoilError(f"a cubic spline needs at least {4 if periodic else 2} points, got {n}")
+        h = np.diff(x)
+        delta = np.diff(y, axis=0) / h[:, None]
+        if periodic:
+            slopes = self._periodic_slopes(h, delta)
+        elif n == 2:
+            slopes = np.vstack([delta, delta])
+        elif n == 3:  # the parabola through the three points
+            curve = (delta[1] - delta[0]) / (x[2] - x[0])
+            slopes = np.vstack([delta[0] - curve * h[0], delta[0] + curve * h[0], delta[1] + curve * h[1]])
+        else:
+            slopes = self._not_a_knot_slopes(x, h, delta)
+        self.x, self.y, self.n, self.periodic = x, y, n, periodic
+        self.slopes = slopes
+        self.c2 = (3.0 * delta - 2.0 * slopes[:-1] - slopes[1:]) / h[:, None]
+        self.c3 = (slopes[:-1] + slopes[1:] - 2.0 * delta) / h[:, None] ** 2
+
+    @staticmethod
+    def _not_a_knot_slopes(x: FloatArray, h: FloatArray, delta: FloatArray) -> FloatArray:
+        n = len(x)
+        sub, diag, sup = np.zeros(n), np.zeros(n), np.zeros(n)
+        rhs = np.zeros((n, delta.shape[1]))
+        diag[1:-1] = 2.0 * (h[:-1] + h[1:])
+        sub[1:-1], sup[1:-1] = h[1:], h[:-1]
+        rhs[1:-1] = 3.0 * (h[1:, None] * delta[:-1] + h[:-1, None] * delta[1:])
+        d0, d1 = x[2] - x[0], x[-1] - x[-3]
+        diag[0], sup[0] = h[1], d0
+        rhs[0] = ((h[0] + 2.0 * d0) * h[1] * delta[0] + h[0] ** 2 * delta[1]) / d0
+        diag[-1], sub[-1] = h[-2], d1
+        rhs[-1] = (h[-1] ** 2 * delta[-2] + (2.0 * d1 + h[-1]) * h[-2] * delta[-1]) / d1
+        c, d = np.zeros(n), np.zeros_like(rhs)
+        c[0], d[0] = sup[0] / diag[0], rhs[0] / diag[0]
+        for i in range(1, n):
+            pivot = diag[i] - sub[i] * c[i - 1]
+            c[i] = sup[i] / pivot
+            d[i] = (rhs[i] - sub[i] * d[i - 1]) / pivot
+        slopes = np.empty_like(rhs)
+        slopes[-1] = d[-1]
+        for i in range(n - 2, -1, -1):
+            slopes[i] = d[i] - c[i] * slopes[i + 1]
+        return slopes
+
+    @staticmethod
+    def _periodic_slopes(h: FloatArray, delta: FloatArray) -> FloatArray:
+        m = len(h)  # distinct knots; knot m is knot 0 again
+        a = np.zeros((m, m))
+        rhs = np.zeros((m, delta.shape[1]))
+        for i in range(m):
+            before, after = h[i - 1], h[i]  # intervals ending and starting at knot i (cyclic)
+            a[i, i - 1] += after
+            a[i, i] += 2.0 * (before + after)
+            a[i, (i + 1) % m] += before
+            rhs[i] = 3.0 * (after * delta[i - 1] + before * delta[i])
+        slopes = np.linalg.solve(a, rhs)
+        return np.vstack([slopes, slopes[:1]])
+
+    def __call__(self, at: ArrayLike, nu: int = 0) -> FloatArray:
+        """Values (``nu`` = 0), first or second derivatives at ``at``; a periodic spline wraps ``at`` round."""
         at = np.asarray(at, dtype=float)
-        i = np.clip(np.searchsorted(x, at, side="right") - 1, 0, n - 2)
+        x = self.x
+        if self.periodic:
+            at = x[0] + np.mod(at - x[0], x[-1] - x[0])
+        i = np.clip(np.searchsorted(x, at, side="right") - 1, 0, self.n - 2)
         u = (at - x[i])[..., None]
-        return y[i] + u * (slopes[i] + u * (c2[i] + u * c3[i]))
-
-    return evaluate
+        b, c2, c3 = self.slopes[i], self.c2[i], self.c3[i]
+        if nu == 0:
+            return self.y[i] + u * (b + u * (c2 + u * c3))
+        if nu == 1:
+            return b + u * (2.0 * c2 + 3.0 * u * c3)
+        if nu == 2:
+            return 2.0 * c2 + 6.0 * u * c3
+        raise ValueError(f"derivative order {nu} is not 0, 1 or 2")
 
 
 def _resample_surfaces(loop: ArrayLike, n_points: int) -> tuple[FloatArray, FloatArray]:

@@ -293,6 +293,11 @@ def die_material_names() -> tuple[str, ...]:
     return tuple(_catalogue().dies)
 
 
+def die_material_aliases() -> Mapping[str, str]:
+    """Every lower-case name a die material may be given by (its own and its aliases, such as ``mdf``) → its name."""
+    return _catalogue().die_aliases
+
+
 def bend_radius_tables() -> tuple[str, ...]:
     """Names of the selectable minimum-bend-radius tables: ``("aa", "aerospace")``."""
     return tuple(_catalogue().tables)

@@ -9,6 +9,7 @@ from pathlib import Path
 from diegen.analysis import RibAnalysis
 from diegen.findings import Finding
 from diegen.geometry.polygon import outline_deviation_mm
+from diegen.locate import refusals_located
 from diegen.pipeline.hashing import piece_hash, rib_input_hash
 from diegen.pipeline.jobs import Spec, rib_jobs
 from diegen.pipeline.lock import BuildLock, remove_stale_temporaries
@@ -87,9 +88,11 @@ def build_spec(spec: Spec, out: Path, die_writer: DieWriter, warm_up: Callable[[
         manifest.spec, manifest.kind = spec.id, "wing" if isinstance(spec, WingSpec) else "rib"
         outcomes: list[PieceOutcome] = []
         tasks: list[PieceTask] = []
+        refused: list[PieceTask] = []
         warnings: list[Finding] = []
         analyses: list[RibAnalysis] = []
-        jobs_of_spec = list(rib_jobs(spec))
+        with refusals_located(spec):
+            jobs_of_spec = list(rib_jobs(spec))
         for job in jobs_of_spec:
             key = rib_input_hash(job.rib, job.section)
             rib_entry = manifest.ribs.get(job.rib.id)
@@ -109,7 +112,14 @@ def build_spec(spec: Spec, out: Path, die_writer: DieWriter, warm_up: Callable[[
                 if not force and entry and entry.hash == digest and manifest.files_ok(folder, part):
                     outcomes.append(PieceOutcome(part, "unchanged"))
                     continue
-                tasks.append(PieceTask(rib, job.section, index, digest))
+                task = PieceTask(rib, job.section, index, digest)
+                if piece.die is not None and not piece.die.buildable:  # check refused it: no kernel call
+                    refused.append(task)
+                else:
+                    tasks.append(task)
+        for task in refused:
+            plan = task.rib.pieces[task.index].die
+            outcomes.append(_record(manifest, task, TaskResult(task.part_id, (), plan.refusal or "", 0.0)))
         _build_tasks(tasks, folder, manifest, outcomes, die_writer, warm_up, jobs, progress)
         for rib in analyses:
             entry = manifest.ribs[rib.spec.id]
@@ -117,7 +127,7 @@ def build_spec(spec: Spec, out: Path, die_writer: DieWriter, warm_up: Callable[[
             if not entry.complete:
                 entry.input_hash = ""  # re-analyse next time
         manifest.save()
-        if isinstance(spec, WingSpec) and (tasks or not (folder / "summary.csv").is_file()):
+        if isinstance(spec, WingSpec) and (tasks or refused or not (folder / "summary.csv").is_file()):
             from diegen.reports.summary import write_wing_summary
 
             write_wing_summary(spec, [analysed(job.rib, job.section) for job in jobs_of_spec], folder)

@@ -7,7 +7,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from diegen.analysis import RibAnalysis, analyse_rib
+from diegen.analysis import RibAnalysis
+from diegen.locate import analyse_located, refusals_located
 from diegen.spec.model import RibSpec, WingSpec
 from diegen.wing import RibStation, rib_spec, section_at, stations
 
@@ -44,10 +45,11 @@ def rib_jobs(spec: Spec) -> Iterator[RibJob]:
 
 
 def analyse_spec(spec: Spec) -> Analysis:
-    """Geometry and forming analysis of every piece of every rib."""
-    if isinstance(spec, RibSpec):
-        return analyse_rib(spec)
-    return WingAnalysis(spec, tuple(analyse_rib(job.rib, job.section) for job in rib_jobs(spec)))
+    """Geometry and forming analysis of every piece of every rib (refusals located in the spec file)."""
+    with refusals_located(spec):
+        if isinstance(spec, RibSpec):
+            return analyse_located(spec)
+        return WingAnalysis(spec, tuple(analyse_located(job.rib, job.section) for job in rib_jobs(spec)))
 
 
 def rib_analyses(analysis: Analysis) -> tuple[RibAnalysis, ...]:

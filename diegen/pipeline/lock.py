@@ -16,10 +16,15 @@ class BuildLock:
     def __init__(self, folder: Path):
         self.path = folder / LOCK
         self.handle: IO[str] | None = None
+        self.created: list[Path] = []  # folders this build made, outermost last
 
     def __enter__(self) -> BuildLock:
         import fcntl
 
+        folder = self.path.parent
+        while not folder.exists():
+            self.created.append(folder)
+            folder = folder.parent
         self.path.parent.mkdir(parents=True, exist_ok=True)
         self.handle = open(self.path, "a+")
         try:
@@ -36,6 +41,9 @@ class BuildLock:
         if [p.name for p in folder.iterdir()] == [LOCK]:  # nothing was built: leave no empty folder behind
             self.path.unlink(missing_ok=True)
             folder.rmdir()
+            for parent in self.created[1:]:  # nor the output folders made for it
+                if parent.is_dir() and not any(parent.iterdir()):
+                    parent.rmdir()
 
 
 def remove_stale_temporaries(folder: Path) -> None:

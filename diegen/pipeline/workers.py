@@ -16,7 +16,8 @@ from pathlib import Path
 
 import numpy as np
 
-from diegen.analysis import RibAnalysis, analyse_rib
+from diegen.analysis import RibAnalysis
+from diegen.locate import analyse_located
 from diegen.errors import DiegenError
 from diegen.pipeline.hashing import rib_input_hash
 from diegen.pipeline.outputs import DieWriter, write_piece
@@ -31,7 +32,7 @@ def analysed(rib_spec: RibSpec, section: np.ndarray | None) -> RibAnalysis:
     if key not in _ANALYSIS_CACHE:
         if len(_ANALYSIS_CACHE) >= 256:
             _ANALYSIS_CACHE.clear()
-        _ANALYSIS_CACHE[key] = analyse_rib(rib_spec, section)
+        _ANALYSIS_CACHE[key] = analyse_located(rib_spec, section)
     return _ANALYSIS_CACHE[key]
 
 

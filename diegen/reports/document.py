@@ -85,6 +85,8 @@ def piece_json(rib: RibAnalysis, p: PieceAnalysis) -> dict[str, Any]:
             "height_mm": _r(p.die_height_mm),
             "layers": p.die_layers,
             "material": rib.spec.shared.die.material,
+            "buildable": p.die is None or p.die.buildable,
+            "refusal": None if p.die is None else p.die.refusal,
             "joggles": [{"spar": j.spar, "surface": j.surface, "x_start_mm": _r(j.x_start_mm), "x_end_mm": _r(j.x_end_mm),
                          "depth_mm": _r(j.depth_mm), "ramp_mm": _r(j.ramp_mm)} for j in g.joggles],
         },
@@ -96,6 +98,7 @@ def piece_json(rib: RibAnalysis, p: PieceAnalysis) -> dict[str, Any]:
         "pins": [{"x_mm": _r(q.x), "y_mm": _r(q.y), "d_mm": _r(q.d)} for q in g.pins],
         "press": {
             "force_n": _r(rib.spec.shared.press.force_n, 1),
+            "force_read_as": rib.spec.shared.press.force_read,
             "box_area_mm2": _r(rib.spec.shared.press.box_mm[0] * rib.spec.shared.press.box_mm[1], 1),
             "pressure_mpa": _r(p.press.pressure_mpa, 4),
             "die_top_pressure_mpa": _r(p.press.die_top_pressure_mpa, 4),

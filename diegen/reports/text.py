@@ -25,6 +25,7 @@ def piece_text(rib: RibAnalysis, p: PieceAnalysis) -> str:
         f"== {g.part_id} ({g.name} piece)  x {g.x_range_mm[0]:.1f}–{g.x_range_mm[1]:.1f} mm of {rib.geometry.chord_mm:.1f} mm chord",
         f"  die outline   length {_len(g.length_mm, u)}, area {g.area_mm2:.0f} mm², depth {g.depth_range_mm[0]:.1f}–"
         f"{g.depth_range_mm[1]:.1f} mm, height {_len(p.die_height_mm, u)} ({p.die_layers} layer(s) of stock)",
+        *([f"  DIE REFUSED   {p.die.refusal}"] if p.die is not None and p.die.refusal else []),
         f"  bend          part R {p.springback.part_radius_mm:.3f} mm (min {p.min_radius.radius_mm:.3f} mm, "
         f"{p.min_radius.table} table); die R {p.springback.die_radius_mm:.3f} mm; die angle "
         f"{p.springback.die_angle_deg:.2f}° → over-bend {p.springback.overbend_deg:.2f}°",
@@ -53,6 +54,7 @@ def piece_text(rib: RibAnalysis, p: PieceAnalysis) -> str:
     lines.append("  pins          " + ", ".join(f"Ø{q.d:.2f} at ({q.x:.1f}, {q.y:.1f})" for q in g.pins))
     pr = p.press
     lines += [
+        f"  press force   {rib.spec.shared.press.force_read}",
         f"  press         {pr.pressure_mpa:.2f} MPa ({mpa_to_psi(pr.pressure_mpa):.0f} psi) over the box; "
         f"{pr.die_top_pressure_mpa:.2f} MPa on the die top; setting the flanges on the die radius needs "
         f"{pr.needed_mpa:.2f} MPa ({mpa_to_psi(pr.needed_mpa):.0f} psi); the perimeter flange reaches about "
@@ -65,18 +67,33 @@ def piece_text(rib: RibAnalysis, p: PieceAnalysis) -> str:
     return "\n".join(lines)
 
 
+def refusals_text(refused: list[tuple[str, str]], total: int) -> str:
+    """The pieces whose die ``build`` would refuse, each with the reason and its remedy."""
+    lines = [f"{len(refused)} of {total} piece(s) cannot be built as specified (build would fail them, nothing is "
+             "written for them):"]
+    return "\n".join(lines + [f"  {part}: {reason}" for part, reason in refused])
+
+
 def footer_text() -> str:
     """Which model each number comes from, and the safety cautions."""
     models = ["Models behind the numbers:"] + [f"  {name.replace('_', ' ')}: {text}" for name, text in MODELS.items()]
     return "\n".join(models + ["", "Safety: " + SAFETY])
 
 
-def rib_text(rib: RibAnalysis, footer: bool = True) -> str:
+def rib_text(rib: RibAnalysis, footer: bool = True, shown: set[tuple] | None = None) -> str:
+    """The report of one rib; ``shown`` collects the findings about the spec file already printed (a wing's
+    ribs share them), so each is printed once."""
     head = [f"diegen {__version__} — rib {rib.spec.id}" + (f": {rib.spec.title}" if rib.spec.title else ""),
             f"  {rib.spec.airfoil.label}, chord {_len(rib.spec.chord_mm, rib.spec.units)}, "
             f"{rib.spec.shared.sheet.alloy} {_len(rib.spec.shared.sheet.thickness_mm, rib.spec.units)}"]
-    head += [f"  warning: {w}" for w in rib.geometry.warnings]
+    shown = set() if shown is None else shown
+    for w in rib.geometry.warnings:
+        key = (w.code, w.key, w.line, w.column, w.message)
+        if w.code == "units-suspect" and key in shown:
+            continue
+        shown.add(key)
+        head.append(f"  warning: {w.located() if w.code == 'units-suspect' else w}")
     return "\n".join(head + [piece_text(rib, p) for p in rib.pieces] + (["", footer_text()] if footer else []))
 
 
-__all__ = ["die_life_text", "footer_text", "piece_text", "rib_text"]
+__all__ = ["die_life_text", "footer_text", "piece_text", "refusals_text", "rib_text"]

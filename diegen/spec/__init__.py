@@ -8,6 +8,7 @@ from pathlib import Path
 
 from diegen.errors import Problem, SpecError
 from diegen.spec.model import RibSpec, Spec, SpecPositions, WingSpec
+from diegen.spec.plausible import unit_warnings
 from diegen.spec.reader import Reader
 from diegen.spec.schema import read_rib, read_wing
 from diegen.spec.yamltree import YNode, load_file, load_text
@@ -33,7 +34,8 @@ def _validate(tree: YNode, file: str, spec_dir: Path) -> Spec:
     spec = read_rib(reader, root, spec_dir) if kind == "rib" else read_wing(reader, root, spec_dir)
     if reader.problems:
         raise SpecError(sorted(reader.problems, key=lambda p: (p.line or 0, p.column or 0)))
-    return replace(spec, positions=SpecPositions(file, tuple(_key_positions(tree, ""))))
+    return replace(spec, positions=SpecPositions(file, tuple(_key_positions(tree, ""))),
+                   unit_warnings=tuple(unit_warnings(tree, reader.units, file)))
 
 
 def _key_positions(node: YNode, path: str) -> Iterator[tuple[str, int, int]]:

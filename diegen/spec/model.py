@@ -10,6 +10,8 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from typing import Literal
 
+from diegen.errors import Problem
+
 __all__ = [
     "PIECE_NAMES",
     "RELIEF_POLICIES",
@@ -154,6 +156,7 @@ class Press:
     box_mm: tuple[float, float]  # inside width and length of the rubber box
     rubber: Rubber
     wall_clearance_mm: float  # default: spec.schema.WALL_CLEARANCE
+    force_read: str = ""  # how the force was read, e.g. "20 t: 20 metric tonnes-force (1,000 kgf) = 196.1 kN"
 
 
 @dataclass(frozen=True)
@@ -208,6 +211,7 @@ class RibSpec:
     file: str = ""
     title: str = ""
     positions: SpecPositions = field(default=SpecPositions(), compare=False, repr=False)
+    unit_warnings: tuple[Problem, ...] = field(default=(), compare=False, repr=False)  # see diegen.spec.plausible
 
 
 @dataclass(frozen=True)
@@ -253,6 +257,7 @@ class WingSpec:
     file: str = ""
     title: str = ""
     positions: SpecPositions = field(default=SpecPositions(), compare=False, repr=False)
+    unit_warnings: tuple[Problem, ...] = field(default=(), compare=False, repr=False)  # see diegen.spec.plausible
 
 
 Spec = RibSpec | WingSpec

@@ -196,7 +196,8 @@ class Reader:
             self.problem(node, path, f"expected a list, found {describe(node)}")
             return None
         if not min_len <= len(node.value) <= max_len:
-            self.problem(node, path, f"expected a list of {min_len} to {max_len} items, found {len(node.value)} items")
+            self.problem(node, path, f"expected a list of {_how_many(min_len, max_len)}, found "
+                                     f"{_items(len(node.value))}")
             return None
         return node.value
 
@@ -207,6 +208,21 @@ class Reader:
             return None
         a, b = (self.length(item, f"{path}[{i}]") for i, item in enumerate(items))
         return None if a is None or b is None else (a, b)
+
+
+def _items(count: int) -> str:
+    return f"{count} item" + ("" if count == 1 else "s")
+
+
+def _how_many(low: int, high: int) -> str:
+    """'exactly 2 items', 'at most 4 items', 'at least 2 items' or '1 to 3 items'."""
+    if low == high:
+        return f"exactly {_items(low)}"
+    if low == 0:
+        return f"at most {_items(high)}"
+    if high >= 1000:
+        return f"at least {_items(low)}"
+    return f"{low} to {_items(high)}"
 
 
 def _as_float(value: int | float) -> float:

@@ -13,6 +13,7 @@ from dataclasses import replace
 from pathlib import Path
 from typing import Any
 
+from diegen import units
 from diegen.spec.model import (
     FlangeTrial,
     PIECE_NAMES,
@@ -37,7 +38,7 @@ from diegen.spec.model import (
     WingSpar,
     WingSpec,
 )
-from diegen.spec.reader import Reader, describe, join
+from diegen.spec.reader import Reader, describe, join, suggest
 from diegen.spec.yamltree import YNode
 from diegen.units import in_to_mm
 
@@ -342,7 +343,7 @@ def read_die(r: Reader, node: YNode | None, path: str, base: Die | None = None) 
                        () if base else ("material", "stock_thickness", "cutter_diameter"))
     if fields is None:
         return None
-    material = r.choice(fields.get("material"), join(path, "material"), materials.die_material_names())
+    material = _die_material(r, fields.get("material"), join(path, "material"))
     stock = r.length(fields.get("stock_thickness"), join(path, "stock_thickness"), high=300.0)
     cutter = r.length(fields.get("cutter_diameter"), join(path, "cutter_diameter"), high=50.0)
     bed = None
@@ -355,6 +356,21 @@ def read_die(r: Reader, node: YNode | None, path: str, base: Die | None = None) 
     return Die(_or(material, base and base.material), _or(stock, base and base.stock_thickness_mm),
                _or(cutter, base and base.cutter_diameter_mm), _or(bed, base and base.print_bed_mm),
                _or(tolerance, base.stl_tolerance_mm if base else 0.05))
+
+
+def _die_material(r: Reader, node: YNode | None, path: str) -> str | None:
+    """A die material by its name or an alias (``mdf`` for fibreboard), as its catalogue name."""
+    from diegen import materials
+
+    if node is None:
+        return None
+    aliases = materials.die_material_aliases()
+    if isinstance(node.value, str) and node.value.strip().lower() in aliases:
+        return aliases[node.value.strip().lower()]
+    names = materials.die_material_names()
+    hint = suggest(node.value.strip().lower(), list(aliases)) if isinstance(node.value, str) else ""
+    r.problem(node, path, f"expected one of {', '.join(names)}, found {describe(node)}{hint}")
+    return None
 
 
 def read_press(r: Reader, node: YNode | None, path: str, base: Press | None = None) -> Press | None:
@@ -372,8 +388,9 @@ def read_press(r: Reader, node: YNode | None, path: str, base: Press | None = No
             rubber = Rubber(r.number(rf.get("durometer"), join(rp, "durometer"), 20, 95),
                             r.length(rf.get("thickness"), join(rp, "thickness"), high=500.0))
     clearance = r.length(fields.get("wall_clearance"), join(path, "wall_clearance"), low_open=False)
+    read = units.force_reading(fields["force"].value) if force is not None else (base.force_read if base else "")
     return Press(_or(force, base and base.force_n), _or(box, base and base.box_mm), rubber,
-                 _or(clearance, base.wall_clearance_mm if base else by_units(r.units, *WALL_CLEARANCE)))
+                 _or(clearance, base.wall_clearance_mm if base else by_units(r.units, *WALL_CLEARANCE)), read)
 
 
 def read_shared(r: Reader, root: dict[str, YNode], base: Shared | None = None) -> Shared:

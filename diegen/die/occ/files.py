@@ -12,13 +12,21 @@ from diegen.die.laminate import laminate_layers
 from diegen.die.occ.export import write_step, write_stl
 from diegen.die.occ.form_block import build_die
 from diegen.die.occ.tiles import tile_for_bed
-from diegen.errors import NoRoomForMarks
+from diegen.die.rules import tile_plan
+from diegen.die.tiling import TilePlan
+from diegen.errors import GeometryError, NoRoomForMarks
 from diegen.export.dxf import write_outlines_dxf
 from diegen.fileio import refuse_foreign
 
 
 def write_die_files(rib: Any, piece: Any, folder: Path, claimed: bool = False) -> tuple[list[str], list[str]]:
-    """Build the die and write its files into ``folder``; return (file names, notes for the shop sheet)."""
+    """Build the die and write its files into ``folder``; return (file names, notes for the shop sheet).
+
+    A die the analysis refused (``piece.die.refusal``) is refused here with the same message, before the kernel.
+    """
+    plan = getattr(piece, "die", None)
+    if plan is not None and plan.refusal is not None:
+        raise GeometryError(plan.refusal)
     die = die_input(rib, piece)
     part = die.part_id
     shared = rib.spec.shared
@@ -31,16 +39,17 @@ def write_die_files(rib: Any, piece: Any, folder: Path, claimed: bool = False) -
     notes = [marks_note(die.engraving, marked)]
     if pin_note(die):
         notes.insert(0, pin_note(die))
-    if piece.die_layers > 1:
-        names.append(_write_layers(die, shared.die.stock_thickness_mm, folder, claimed))
+    if die.layer_mm:
+        names.append(_write_layers(die, die.layer_mm, folder, claimed))
         notes.append(f"Laminated die: {piece.die_layers} layers; each layer's cut outline is in {names[-1]} "
                      "(layer LAYER1 on top).")
-    if shared.die.print_bed_mm:
-        tile_names = _write_tiles(solid, shared.die.print_bed_mm, part, folder, claimed, tolerance)
+    plan_of_tiles = tile_plan(die)
+    if plan_of_tiles is not None and die.print_bed_mm:
+        tile_names = _write_tiles(solid, plan_of_tiles, part, folder, claimed, tolerance)
         names.extend(tile_names)
         if len(tile_names) > 2:
-            notes.append(f"Printed die in {len(tile_names) // 2} tiles for a {shared.die.print_bed_mm[0]:.0f} × "
-                         f"{shared.die.print_bed_mm[1]:.0f} mm bed, with alignment dowel holes across each joint.")
+            notes.append(f"Printed die in {len(tile_names) // 2} tiles for a {die.print_bed_mm[0]:.0f} × "
+                         f"{die.print_bed_mm[1]:.0f} mm bed, with alignment dowel holes across each joint.")
     return names, notes
 
 
@@ -54,9 +63,8 @@ def _build_with_marks(die: DieInput) -> tuple[Any, tuple[str, ...]]:
     raise AssertionError("a die without marks needs no room for them")
 
 
-def _write_tiles(solid: Any, bed: tuple[float, float], part: str, folder: Path, claimed: bool,
-                 tolerance: float) -> list[str]:
-    tiles = tile_for_bed(solid, bed)
+def _write_tiles(solid: Any, plan: TilePlan, part: str, folder: Path, claimed: bool, tolerance: float) -> list[str]:
+    tiles = tile_for_bed(solid, plan)
     if len(tiles) == 1:
         return []
     names = []

@@ -33,13 +33,13 @@ from dataclasses import replace
 from typing import TYPE_CHECKING, Any
 
 from diegen.die.die_input import DieInput
-from diegen.die.model import largest_inset_mm, outline_model, section
+from diegen.die.model import largest_inset_mm, loft_sections, section
 from diegen.die.occ.validate import solid_problems
 from diegen.die.outline import OffsetPiece, OutlineModel
-from diegen.die.placement import check_placement, engraving_marks
+from diegen.die.placement import engraving_marks
+from diegen.die.rules import check_die
 from diegen.die.settings import DEFAULT_SETTINGS, BuildSettings
 from diegen.errors import SolidError
-from diegen.geometry import die_wall
 
 if TYPE_CHECKING:  # pragma: no cover
     import cadquery as cq
@@ -231,14 +231,9 @@ def build_body(die: DieInput, model: OutlineModel, settings: BuildSettings = DEF
     from OCP.TopExp import TopExp_Explorer
     from OCP.TopoDS import TopoDS
 
-    arc = die_wall.fillet_sections(die.top_radius_mm, die.undercut_deg, settings.fillet_sections)
-    wall = [arc[-1].depth_mm]
-    if die.flutes and arc[-1].depth_mm + 0.05 < die.flute_length_mm < die.height_mm - 0.05:
-        wall.append(die.flute_length_mm)  # the flutes' taper ends here: the ruled wall needs a section
-    wall.append(die.height_mm)
+    arc, wall = loft_sections(die, settings)
     arc_wires = [_wire(section(die, model, s.inset_mm, s.depth_mm), -s.depth_mm) for s in arc]
-    wall_wires = arc_wires[-1:] + [_wire(section(die, model, die_wall.wall_inset_mm(d, die.undercut_deg), d), -d)
-                                   for d in wall[1:]]
+    wall_wires = arc_wires[-1:] + [_wire(section(die, model, s.inset_mm, s.depth_mm), -s.depth_mm) for s in wall[1:]]
     hint = ("check the outline for a spot where the piece is thinner than twice the wall inset "
             f"({2 * largest_inset_mm(die):.2f} mm) or lower the top radius")
     try:
@@ -267,13 +262,14 @@ def build_body(die: DieInput, model: OutlineModel, settings: BuildSettings = DEF
 def build_die(die: DieInput, settings: BuildSettings = DEFAULT_SETTINGS) -> cq.Solid:
     """The finished die solid (cadquery ``Solid``), checked valid.
 
-    Raises :class:`GeometryError` for input the die cannot follow and
-    :class:`SolidError` when the kernel fails or returns an invalid solid;
+    Raises :class:`GeometryError` for input the die cannot follow (the
+    checks of :func:`diegen.die.rules.check_die`, the same ones ``diegen
+    check`` makes) and :class:`SolidError` when the kernel fails or returns an
+    invalid solid (a fault of the kernel step, not of the input);
     then the die is rebuilt without the engraving, and without the holes, to
     name the part at fault.
     """
-    model = outline_model(die, settings)
-    check_placement(die, model, settings)
+    model = check_die(die, settings)  # every refusal is the analysis's own (diegen.die.rules)
     marks = engraving_marks(die, model, settings)
     solid = build_body(die, model, settings, marks)
     problems = solid_problems(solid)

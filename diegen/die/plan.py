@@ -1,0 +1,52 @@
+"""The die an analysed piece gets: fitted to the piece (:mod:`~diegen.die.fitting`), then checked by the same
+rules the kernel step obeys (:mod:`~diegen.die.rules`), so ``check`` says exactly what ``build`` will make."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, replace
+from typing import Any
+
+from diegen.die.fitting import fit_die
+from diegen.die.from_analysis import asked_die_input
+from diegen.die.die_input import DieInput
+from diegen.die.rules import die_refusal
+from diegen.die.settings import DEFAULT_SETTINGS, BuildSettings
+from diegen.findings import Finding
+from diegen.forming.relief import Flute as ReliefFlute
+from diegen.forming.relief import flute_gather
+
+
+@dataclass(frozen=True)
+class DiePlan:
+    """The die an analysed piece gets: what the builder will make, or why it cannot."""
+
+    die: DieInput  # after fitting: what ``build`` makes
+    refusal: str | None = None  # what ``build`` would refuse, with the remedy (None: buildable)
+    findings: tuple[Finding, ...] = ()  # what fitting changed, and what that costs
+
+    @property
+    def buildable(self) -> bool:
+        return self.refusal is None
+
+
+def plan_die(spec: Any, piece: Any, settings: BuildSettings = DEFAULT_SETTINGS) -> DiePlan:
+    """The die of one analysed piece (``spec``: RibSpec, ``piece``: PieceAnalysis), fitted and checked."""
+    asked = asked_die_input(spec, piece)
+    fitted = fit_die(asked, piece, spec, settings)
+    return DiePlan(fitted.die, die_refusal(fitted.die, settings) if fitted.refusal is None else fitted.refusal,
+                   fitted.findings)
+
+
+def with_die_plan(spec: Any, piece: Any, settings: BuildSettings = DEFAULT_SETTINGS) -> Any:
+    """``piece`` (a PieceAnalysis) with its die plan, the flutes the die really carries, and the plan's findings."""
+    plan = plan_die(spec, piece, settings)
+    findings = tuple(f.about(piece.piece.part_id, spec.positions) for f in plan.findings)
+    changes: dict[str, Any] = {"die": plan, "warnings": piece.warnings + findings}
+    if [(f.s_mm, f.width_mm, f.depth_mm) for f in plan.die.flutes] != \
+            [(f.s_mm, f.width_mm, f.depth_mm) for f in piece.flutes]:
+        changes["flutes"] = tuple(ReliefFlute(f.s_mm, f.width_mm, f.depth_mm, flute_gather(f.width_mm, f.depth_mm))
+                                  for f in plan.die.flutes)
+    return replace(piece, **changes)
+
+
+__all__ = ["DiePlan", "plan_die", "with_die_plan"]
