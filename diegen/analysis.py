@@ -106,10 +106,23 @@ def die_layers(stock_mm: float, flange_height_mm: float) -> int:
     return max(1, math.ceil((flange_height_mm + STOCK_CLEARANCE_MM) / stock_mm - 1e-9))
 
 
+def die_build_up(spec: RibSpec) -> tuple[int, float]:
+    """(layers of stock, die height in mm) of the spec's die.
+
+    A routed or machined die is stacked from whole layers of stock, enough for the flange plus clearance.  A
+    printed die is one piece, printed to ``die.stock_thickness`` high, or to the flange height plus clearance
+    (rounded up to a whole millimetre) where that is more.
+    """
+    die, flange = spec.shared.die, spec.shared.flange.height_mm
+    if materials.die_making(die.material, die.print_bed_mm) == "printed":
+        return 1, max(die.stock_thickness_mm, float(math.ceil(flange + STOCK_CLEARANCE_MM - 1e-9)))
+    layers = die_layers(die.stock_thickness_mm, flange)
+    return layers, layers * die.stock_thickness_mm
+
+
 def die_inset_mm(spec: RibSpec, springback: Springback) -> float:
     """The largest inset of the die's wall from its outline (mm): the top-edge setback or the bottom inset."""
-    die = spec.shared.die
-    height = die_layers(die.stock_thickness_mm, spec.shared.flange.height_mm) * die.stock_thickness_mm
+    height = die_build_up(spec)[1]
     return die_wall.largest_inset_mm(springback.die_radius_mm, springback.overbend_deg, height)
 
 
@@ -191,14 +204,14 @@ def _analyse_piece(spec: RibSpec, piece: PieceGeometry, alloy: materials.SheetAl
                                     f"above the limit {alloy.stretch_limit:.3f}", key="lightening_holes"))
         holes.append(HoleCheck(strain, pilot, ok))
     die = materials.die_material(shared.die.material)
-    layers = die_layers(shared.die.stock_thickness_mm, shared.flange.height_mm)
+    layers, height = die_build_up(spec)
     minx, miny, maxx, maxy = _bounds(piece)
     flanged_holes = [h for h in piece.holes if h.flanged]
     legs = [shared.flange.height_mm] * len(runs) + [h.flange_height for h in flanged_holes]
     leg_names = ["perimeter flange"] * len(runs) + [f"hole flange at x = {h.x:.0f} mm" for h in flanged_holes]
     press = press_model.press_check(
         shared.press.force_n, *shared.press.box_mm, maxx - minx, maxy - miny, piece.area_mm2,
-        layers * shared.die.stock_thickness_mm,
+        height,
         legs, t, alloy.yield_mpa, shared.press.rubber.thickness_mm, shared.press.rubber.durometer,
         die.compressive_strength_mpa, die.life_parts if die.life_parts is not None else 10**9,
         wall_clearance_mm=shared.press.wall_clearance_mm)
@@ -209,6 +222,11 @@ def _analyse_piece(spec: RibSpec, piece: PieceGeometry, alloy: materials.SheetAl
             "press-folds-part-way", f"the press gives {press.pressure_mpa:.2f} MPa but {', '.join(names)} need(s) up "
             f"to {press.needed_mpa:.2f} MPa to fold (plastic-hinge estimate): form what the press can, then finish "
             "these by hand over the die", key="press.force"))
+    if height > shared.die.stock_thickness_mm + 1e-9 and layers == 1:
+        warnings.append(Finding(
+            "print-height-raised", f"die.stock_thickness {shared.die.stock_thickness_mm:.1f} mm is lower than the "
+            f"flange height {shared.flange.height_mm:.1f} mm + {STOCK_CLEARANCE_MM:.0f} mm clearance: the die is "
+            f"printed {height:.0f} mm high", key="die.stock_thickness"))
     if layers > 1:
         warnings.append(Finding(
             "die-laminated", f"die stock {shared.die.stock_thickness_mm:.1f} mm is thinner than the flange height "
@@ -223,7 +241,7 @@ def _analyse_piece(spec: RibSpec, piece: PieceGeometry, alloy: materials.SheetAl
                           notch_cuts=cuts)
     blank = replace(blank, grain_angle_deg=GRAIN_ANGLE_DEG)
     return PieceAnalysis(piece, alloy, minimum, springback, layout, tuple(runs), tuple(leg_names), flutes, notches, notes,
-                         tuple(holes), press, blank, layers * shared.die.stock_thickness_mm, layers,
+                         tuple(holes), press, blank, height, layers,
                          tuple(w.about(piece.part_id, spec.positions) for w in warnings))
 
 

@@ -89,6 +89,8 @@ class DieInput:
     bores: tuple[Bore, ...] = ()
     pins: tuple[Pin, ...] = ()
     engraving: tuple[str, ...] = ()  # lines engraved on the BOTTOM face, plus an orientation arrow
+    # x of the joints of a die printed in tiles: the marks keep clear of them and each tile is numbered
+    tile_joints_x_mm: tuple[float, ...] = ()
     bore_top_radius_mm: float | None = None  # defaults to top_radius_mm
 
     @property

@@ -7,9 +7,11 @@ dowel in plastics and solid-surface stock) and ``pin_depth_mm`` deep.
 
 from __future__ import annotations
 
+from dataclasses import replace
 from typing import Any
 
 from diegen.die.die_input import Bore, DieInput, Flute, OutlineRun, Pin
+from diegen.die.tiles import TileLayout, die_tile_layout
 
 PIN_INTERFERENCE_MM = 0.03
 ENGRAVING_NOTE = "Marks on the bottom face: part id, sheet, and an arrow pointing to the leading edge."
@@ -20,8 +22,40 @@ def pin_depth_mm(dowel_d_mm: float, die_height_mm: float) -> float:
     return min(die_height_mm - 3.0, max(3.0 * dowel_d_mm, 10.0))
 
 
+def die_making(die_spec: Any) -> str:
+    """How the die of a spec's ``die`` section is made: ``printed``, ``machined`` or ``routed``."""
+    from diegen import materials
+
+    return materials.die_making(die_spec.material, die_spec.print_bed_mm)
+
+
 def die_input(rib: Any, piece: Any) -> DieInput:
-    """The die builder's input for one analysed piece (``rib``: RibAnalysis, ``piece``: PieceAnalysis)."""
+    """The die builder's input for one analysed piece (``rib``: RibAnalysis, ``piece``: PieceAnalysis).
+
+    A printed die carries its tile joints; a bed that cannot take it raises :class:`diegen.errors.GeometryError`
+    (see :func:`tile_plan`).
+    """
+    die = _bare_die(rib, piece)
+    layout = _layout(die, rib.spec.shared.die)
+    return die if layout is None else replace(die, tile_joints_x_mm=layout.joints_x_mm)
+
+
+def tile_plan(rib: Any, piece: Any) -> TileLayout | None:
+    """The print-bed tiles of a printed die (one tile when no bed is given), None for a die that is not printed.
+
+    Raises :class:`diegen.errors.GeometryError` when the bed cannot take the die or a joint has no room for
+    its alignment dowels.
+    """
+    return _layout(_bare_die(rib, piece), rib.spec.shared.die)
+
+
+def _layout(die: DieInput, die_spec: Any) -> TileLayout | None:
+    if die_making(die_spec) != "printed":
+        return None
+    return die_tile_layout(die, die_spec.print_bed_mm)
+
+
+def _bare_die(rib: Any, piece: Any) -> DieInput:
     g, shared = piece.piece, rib.spec.shared
     height = piece.die_height_mm
     return DieInput(
@@ -58,4 +92,5 @@ def pin_note(die: DieInput) -> str | None:
             f"press fit), {pin.depth:.1f} mm deep from the top face.")
 
 
-__all__ = ["ENGRAVING_NOTE", "PIN_INTERFERENCE_MM", "die_input", "marks_note", "pin_depth_mm", "pin_note"]
+__all__ = ["ENGRAVING_NOTE", "PIN_INTERFERENCE_MM", "die_input", "die_making", "marks_note", "pin_depth_mm",
+           "pin_note", "tile_plan"]

@@ -1,12 +1,11 @@
-"""Split a die longer than a printer's bed into tiles joined by alignment dowels.
+"""Cut a die longer than a printer's bed into the tiles of its layout, joined by alignment dowels.
 
-The die is cut by planes x = const (across the chord) into equal tiles; at
-each joint, dowel holes of ``dowel_d_mm`` run along X, ``dowel_depth_mm`` into
-each neighbouring tile, at mid-height of the block, so a dowel (or a length of
-filament or rod) locates the tiles when they are glued.  Tiles keep the die's
-coordinates (mm); ``along_bed_y`` says whether a tile's X runs along the bed's
-Y to fit.  The dowel clearance rule (``min_wall_mm`` of material round every
-dowel hole) is common practice, no source.
+The layout — where the joints are, the dowels' size and depth — is plain
+numbers (:mod:`diegen.die.tiles`); here the kernel finds room for the dowels
+across each joint (``min_wall_mm`` of material round every dowel hole and
+clear of every other face along its length), drills them and cuts the tiles.
+Tiles keep the die's coordinates (mm); ``along_bed_y`` says whether a tile's X
+runs along the bed's Y to fit.
 """
 
 from __future__ import annotations
@@ -17,9 +16,11 @@ from typing import Any
 
 import numpy as np
 
-from diegen.errors import SolidError
+from diegen.errors import GeometryError, SolidError
 from diegen.die.die_input import DieInput
 from diegen.die.occ.validate import check_solid
+from diegen.die.tiles import (BED_MARGIN_MM, DOWEL_D_MM, DOWEL_DEPTH_MM, MIN_WALL_MM, TileLayout, die_tile_layout,
+                              tile_layout)
 
 
 @dataclass(frozen=True, eq=False)
@@ -89,67 +90,80 @@ def _dowel_spots(shape: Any, x: float, z: float, d: float, depth: float, wall: f
     return spots
 
 
-def tile_for_bed(shape_or_die: Any, bed_xy_mm: tuple[float, float], dowel_d_mm: float = 5.0,
-                 dowel_depth_mm: float = 10.0, margin_mm: float = 2.0, min_wall_mm: float = 2.0) -> list[DieTile]:
+def tile_for_bed(shape_or_die: Any, bed_xy_mm: tuple[float, float], dowel_d_mm: float = DOWEL_D_MM,
+                 dowel_depth_mm: float = DOWEL_DEPTH_MM, margin_mm: float = BED_MARGIN_MM,
+                 min_wall_mm: float = MIN_WALL_MM) -> list[DieTile]:
     """Split a die (a cadquery solid, or a :class:`DieInput` to build) into tiles that fit the bed.
 
     ``bed_xy_mm`` is the bed's usable size (mm); each tile is kept ``margin_mm``
-    inside it.  Raise :class:`SolidError` when the bed is smaller than one tile
-    can be (narrower than the die, shorter than two dowel depths) or a joint has
-    no room for a dowel.
+    inside it.  The layout is :func:`diegen.die.tiles.tile_layout` of the die's
+    outline (of the solid's bounding box for a bare solid).  Raise
+    :class:`SolidError` when the bed is smaller than one tile can be (narrower
+    than the die, shorter than two dowel depths) or a joint has no room for a dowel.
     """
     import cadquery as cq
 
-    if isinstance(shape_or_die, DieInput):
-        from diegen.die.occ.form_block import build_die
+    sizes = {"dowel_d_mm": dowel_d_mm, "dowel_depth_mm": dowel_depth_mm, "margin_mm": margin_mm,
+             "min_wall_mm": min_wall_mm}
+    try:
+        if isinstance(shape_or_die, DieInput):
+            from diegen.die.occ.form_block import build_die
 
-        shape = build_die(shape_or_die)
-    else:
-        shape = shape_or_die if isinstance(shape_or_die, cq.Shape) else cq.Shape.cast(shape_or_die)
+            shape = build_die(shape_or_die)
+            layout = die_tile_layout(shape_or_die, bed_xy_mm, **sizes)
+        else:
+            shape = shape_or_die if isinstance(shape_or_die, cq.Shape) else cq.Shape.cast(shape_or_die)
+            bb = shape.BoundingBox()
+            layout = tile_layout((bb.xmin, bb.ymin, bb.xmax, bb.ymax), (bb.zmin, bb.zmax), bed_xy_mm, **sizes)
+    except GeometryError as exc:
+        raise SolidError(str(exc)) from exc
+    return cut_tiles(shape, layout)[0]
+
+
+def cut_tiles(shape: Any, layout: TileLayout) -> tuple[list[DieTile], list[tuple[float, float, float]]]:
+    """Drill the alignment dowel holes across every joint of ``layout`` and cut ``shape`` into its tiles.
+
+    The dowels are where the layout placed them (:func:`diegen.die.tiles.die_tile_layout`); a layout without
+    them (of a bare solid) has them found here, by probing the solid along each joint.
+
+    Returns the tiles and the dowels' axis points (x of the joint, y, z; mm), each dowel running along X
+    ``layout.dowel_depth_mm`` into either tile.
+    """
+    import cadquery as cq
+
     check_solid(shape, "die to tile")
-    bb = shape.BoundingBox()
-    bx, by = (float(v) - 2 * margin_mm for v in bed_xy_mm)
-    min_len = 2 * dowel_depth_mm + 2 * min_wall_mm
-    options = [(bx, by, False), (by, bx, True)]
-    feasible = [(length, rot) for length, width, rot in options if width >= bb.ylen and length >= min_len]
-    if not feasible:
-        raise SolidError(
-            f"a bed of {bed_xy_mm[0]:g} × {bed_xy_mm[1]:g} mm cannot take a tile of this die: it is {bb.ylen:.1f} mm "
-            f"deep and a tile must be at least {min_len:g} mm long (two dowel depths); use a larger bed, or cut "
-            "the die from sheet instead"
-        )
-    length, along_y = max(feasible)
-    count = max(1, math.ceil(bb.xlen / length - 1e-9))
-    if count == 1:
-        return [DieTile(0, bb.xmin, bb.xmax, along_y, shape)]
-    if bb.zlen < dowel_d_mm + 2 * min_wall_mm:
-        raise SolidError(
-            f"the die is {bb.zlen:.1f} mm thick, too thin for {dowel_d_mm:g} mm alignment dowels: "
-            "give a smaller dowel diameter"
-        )
-    cuts = [bb.xmin + bb.xlen * k / count for k in range(1, count)]
-    z = bb.zmin + 0.5 * bb.zlen
+    if len(layout.tiles) == 1:
+        only = layout.tiles[0]
+        return [DieTile(0, only.x_min_mm, only.x_max_mm, only.along_bed_y, shape)], []
+    d, depth, wall = layout.dowel_d_mm, layout.dowel_depth_mm, layout.min_wall_mm
+    z = layout.dowel_z_mm
     dowels = []
-    for x in cuts:
-        spots = _dowel_spots(shape, x, z, dowel_d_mm, dowel_depth_mm, min_wall_mm)
+    axes: list[tuple[float, float, float]] = []
+    planned: dict[float, list[float]] = {}
+    for x, y, _ in layout.dowels:
+        planned.setdefault(x, []).append(y)
+    for x in layout.joints_x_mm:
+        spots = planned.get(x) or ([] if layout.dowels else _dowel_spots(shape, x, z, d, depth, wall))
         if not spots:
             raise SolidError(
-                f"no room for a {dowel_d_mm:g} mm alignment dowel across the tile joint at x = {x:.1f} mm: "
+                f"no room for a {d:g} mm alignment dowel across the tile joint at x = {x:.1f} mm: "
                 "give a smaller dowel, a shorter dowel depth, or a larger bed"
             )
         for y in spots:
-            dowels.append(cq.Solid.makeCylinder(dowel_d_mm / 2, 2 * dowel_depth_mm,
-                                                cq.Vector(x - dowel_depth_mm, y, z), cq.Vector(1, 0, 0)))
+            axes.append((x, y, z))
+            dowels.append(cq.Solid.makeCylinder(d / 2, 2 * depth, cq.Vector(x - depth, y, z), cq.Vector(1, 0, 0)))
     try:
         drilled = shape.cut(*dowels)
     except Exception as exc:  # noqa: BLE001 - OCP's Standard_Failure family
         raise SolidError(f"the kernel failed drilling the tile dowel holes ({exc}); give a smaller dowel") from exc
     check_solid(drilled, "die with tile dowel holes", "give a smaller dowel or a shorter dowel depth")
-    edges = [bb.xmin - 1.0] + cuts + [bb.xmax + 1.0]
+    count = len(layout.tiles)
     tiles = []
-    for k in range(count):
-        cutter = cq.Solid.makeBox(edges[k + 1] - edges[k], bb.ylen + 2, bb.zlen + 2,
-                                  cq.Vector(edges[k], bb.ymin - 1, bb.zmin - 1))
+    for k, span in enumerate(layout.tiles):
+        x0 = span.x_min_mm - (1.0 if k == 0 else 0.0)
+        x1 = span.x_max_mm + (1.0 if k == count - 1 else 0.0)
+        cutter = cq.Solid.makeBox(x1 - x0, span.y_max_mm - span.y_min_mm + 2, span.z_max_mm - span.z_min_mm + 2,
+                                  cq.Vector(x0, span.y_min_mm - 1, span.z_min_mm - 1))
         try:
             piece = drilled.intersect(cutter)
         except Exception as exc:  # noqa: BLE001
@@ -162,7 +176,5 @@ def tile_for_bed(shape_or_die: Any, bed_xy_mm: tuple[float, float], dowel_d_mm: 
             )
         tile = cq.Solid(solids[0].wrapped)
         check_solid(tile, f"tile {k + 1} of {count}")
-        x0 = max(edges[k], bb.xmin)
-        x1 = min(edges[k + 1], bb.xmax)
-        tiles.append(DieTile(k, x0, x1, along_y, tile))
-    return tiles
+        tiles.append(DieTile(k, span.x_min_mm, span.x_max_mm, span.along_bed_y, tile))
+    return tiles, axes
