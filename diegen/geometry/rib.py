@@ -63,7 +63,7 @@ def rib_geometry(spec: RibSpec, section: np.ndarray | None = None, die_inset_mm:
     scaled = unit * spec.chord_mm
     airfoil = Polygon(scaled)
     if not airfoil.is_valid:
-        raise GeometryError(f"the {spec.airfoil.label} section is not a simple outline at {spec.chord_mm:.0f} mm chord")
+        raise GeometryError(f"the {spec.section_label} section is not a simple outline at {spec.chord_mm:.0f} mm chord")
     skin, sheet_t = shared.skin_thickness_mm, shared.sheet.thickness_mm
     oml = offset_inward(airfoil, skin, f"offsetting the section inward by the skin ({skin:.3f} mm)")
     die = offset_inward(oml, sheet_t, f"offsetting the outer mold line inward by the rib sheet ({sheet_t:.3f} mm)")

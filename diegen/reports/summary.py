@@ -12,10 +12,11 @@ import numpy as np
 
 from diegen.analysis import PieceAnalysis, RibAnalysis
 from diegen.fileio import write_text, write_with
+from diegen.numbers import plain
 from diegen.spec.model import WingSpec
 from diegen.wing import chord_at, leading_edge_at, stations
 
-COLUMNS = ("rib", "station_mm", "chord_mm", "piece", "part_id", "die_length_mm", "die_depth_mm", "die_height_mm",
+COLUMNS = ("rib", "station_mm", "chord_mm", "section", "piece", "part_id", "die_length_mm", "die_depth_mm", "die_height_mm",
            "stock_layers", "blank_length_mm", "blank_width_mm", "overbend_deg", "die_radius_mm", "max_shrink",
            "max_stretch", "flutes", "notches", "press_verdict", "warnings")
 
@@ -29,7 +30,7 @@ def summary_rows(spec: WingSpec, ribs: Sequence[RibAnalysis]) -> list[dict[str, 
             outline, blank = np.asarray(p.piece.outline), np.asarray(p.blank.outer)
             rows.append({
                 "rib": station.number, "station_mm": round(station.y_mm, 1), "chord_mm": round(rib.spec.chord_mm, 1),
-                "piece": p.piece.name, "part_id": p.piece.part_id,
+                "section": rib.spec.section_label, "piece": p.piece.name, "part_id": p.piece.part_id,
                 "die_length_mm": round(float(np.ptp(outline[:, 0])), 1), "die_depth_mm": round(float(np.ptp(outline[:, 1])), 1),
                 "die_height_mm": round(p.die_height_mm, 2), "stock_layers": p.die_layers,
                 "blank_length_mm": round(float(np.ptp(blank[:, 0])), 1), "blank_width_mm": round(float(np.ptp(blank[:, 1])), 1),
@@ -38,7 +39,11 @@ def summary_rows(spec: WingSpec, ribs: Sequence[RibAnalysis]) -> list[dict[str, 
                 "flutes": len(p.flutes), "notches": len(p.notches), "press_verdict": p.press.verdict,
                 "warnings": " | ".join(str(w) for w in p.warnings),
             })
-    return rows
+    return [{k: plain(v) if isinstance(v, float) else v for k, v in row.items()} for row in rows]
+
+
+# Landscape pages, in inches: A4 297 × 210 mm (ISO 216), Letter 11 × 8.5 in.
+PAGE_IN = {"a4": (297.0 / 25.4, 210.0 / 25.4), "letter": (11.0, 8.5)}
 
 
 def write_wing_summary(spec: WingSpec, ribs: Sequence[RibAnalysis], folder: Path) -> list[Path]:
@@ -78,14 +83,15 @@ def _pdf(spec: WingSpec, ribs: Sequence[RibAnalysis], rows: list[dict[str, Any]]
     from matplotlib.backends.backend_pdf import PdfPages
     from matplotlib.figure import Figure
 
+    page = PAGE_IN[spec.paper]
     with PdfPages(path) as pdf:
-        fig = Figure(figsize=(11, 8.5))
+        fig = Figure(figsize=page)
         _planform(fig.add_subplot(1, 1, 1), spec)
         pdf.savefig(fig)
         shown = ("part_id", "station_mm", "chord_mm", "die_length_mm", "die_depth_mm", "die_height_mm", "overbend_deg",
                  "max_shrink", "max_stretch", "flutes", "press_verdict")
         for start in range(0, len(rows), 40):
-            fig = Figure(figsize=(11, 8.5))
+            fig = Figure(figsize=page)
             ax = fig.add_axes((0.03, 0.03, 0.94, 0.92))
             ax.axis("off")
             ax.set_title(f"{spec.id}: pieces {start + 1}–{min(start + 40, len(rows))} of {len(rows)}")
@@ -96,13 +102,13 @@ def _pdf(spec: WingSpec, ribs: Sequence[RibAnalysis], rows: list[dict[str, Any]]
             pdf.savefig(fig)
         for rib in ribs:
             for p in rib.pieces:
-                pdf.savefig(_piece_page(p))
+                pdf.savefig(_piece_page(rib, p, page))
 
 
-def _piece_page(p: PieceAnalysis):
+def _piece_page(rib: RibAnalysis, p: PieceAnalysis, page: tuple[float, float]):
     from matplotlib.figure import Figure
 
-    fig = Figure(figsize=(11, 8.5))
+    fig = Figure(figsize=page)
     top = fig.add_axes((0.07, 0.42, 0.88, 0.5))
     for points, style in ((p.blank.outer, dict(color="tab:green", lw=0.9, label="blank")),
                           (p.piece.outline, dict(color="k", lw=1.2, label="die outline"))):
@@ -111,7 +117,7 @@ def _piece_page(p: PieceAnalysis):
     top.set_aspect("equal")
     top.grid(True, lw=0.3)
     top.legend(fontsize=7)
-    top.set_title(f"{p.piece.part_id}: over-bend {p.springback.overbend_deg:.2f}°, die R {p.springback.die_radius_mm:.2f} mm, "
+    top.set_title(f"{p.piece.part_id} ({rib.spec.section_label}): over-bend {p.springback.overbend_deg:.2f}°, die R {p.springback.die_radius_mm:.2f} mm, "
                   f"{len(p.flutes)} flute(s), press {p.press.verdict}", fontsize=9)
     bottom = fig.add_axes((0.07, 0.07, 0.88, 0.25))
     for run in p.runs:

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from diegen import __version__
 from diegen.analysis import MODELS, PieceAnalysis, RibAnalysis
+from diegen.numbers import without_negative_zeros
 from diegen.reports.document import SAFETY, die_life, piece_json
 from diegen.units import MM_PER_IN, mpa_to_psi
 
@@ -56,7 +57,7 @@ def piece_text(rib: RibAnalysis, p: PieceAnalysis) -> str:
         f"  blank         {d['blank']['area_mm2']:.0f} mm², perimeter {d['blank']['perimeter_mm']:.0f} mm",
     ]
     lines += [f"  warning       {w}" for w in p.warnings]
-    return "\n".join(lines)
+    return without_negative_zeros("\n".join(lines))
 
 
 def footer_text() -> str:
@@ -67,10 +68,11 @@ def footer_text() -> str:
 
 def rib_text(rib: RibAnalysis, footer: bool = True) -> str:
     head = [f"diegen {__version__} — rib {rib.spec.id}" + (f": {rib.spec.title}" if rib.spec.title else ""),
-            f"  {rib.spec.airfoil.label}, chord {_len(rib.spec.chord_mm, rib.spec.units)}, "
+            f"  {rib.spec.section_label}, chord {_len(rib.spec.chord_mm, rib.spec.units)}, "
             f"{rib.spec.shared.sheet.alloy} {_len(rib.spec.shared.sheet.thickness_mm, rib.spec.units)}"]
     head += [f"  warning: {w}" for w in rib.geometry.warnings]
-    return "\n".join(head + [piece_text(rib, p) for p in rib.pieces] + (["", footer_text()] if footer else []))
+    return without_negative_zeros(
+        "\n".join(head + [piece_text(rib, p) for p in rib.pieces] + (["", footer_text()] if footer else [])))
 
 
 __all__ = ["die_life_text", "footer_text", "piece_text", "rib_text"]
