@@ -242,7 +242,7 @@ def _analyse_piece(spec: RibSpec, piece: PieceGeometry, alloy: materials.SheetAl
     blank = replace(blank, grain_angle_deg=GRAIN_ANGLE_DEG)
     return PieceAnalysis(piece, alloy, minimum, springback, layout, tuple(runs), tuple(leg_names), flutes, notches, notes,
                          tuple(holes), press, blank, height, layers,
-                         tuple(w.about(piece.part_id, spec.positions) for w in warnings))
+                         tuple(w.about(piece.part_id, spec.positions, rib_id=spec.id) for w in warnings))
 
 
 def _bounds(piece: PieceGeometry) -> tuple[float, float, float, float]:

@@ -102,7 +102,7 @@ def _piece_ranges(spec: RibSpec, spars: list[SparCut], upper: np.ndarray, lower:
                 warnings.append(Finding(
                     "tail-piece-dropped", f"no tail piece: the die depth aft of the rear spar is {depth:.1f} mm, "
                     f"{where} (set flange.min_tail_depth to change this)", key="flange.min_tail_depth",
-                ).about(spec.id, spec.positions))
+                ).about("", spec.positions, rib_id=spec.id))
                 continue
             ranges.append((name, start, end, False))
     return ranges

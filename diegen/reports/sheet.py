@@ -284,7 +284,7 @@ def shop_sheet(rib: RibAnalysis, piece: PieceAnalysis, die_notes: Sequence[str] 
         f"## {number + 2}. Warnings",
         "",
     ]
-    lines += [f"* {w}" for w in piece.warnings] or ["* none"]
+    lines += [f"* {w}" for w in (*piece.warnings, *rib.geometry.warnings)] or ["* none"]
     lines += [
         "",
         "---",
