@@ -56,6 +56,17 @@ def piece_text(rib: RibAnalysis, p: PieceAnalysis) -> str:
         f"(catalogue value); {pr.durometer_advice}",
         f"  blank         {d['blank']['area_mm2']:.0f} mm², perimeter {d['blank']['perimeter_mm']:.0f} mm",
     ]
+    plan = d["die"]["print"]
+    if plan is not None:
+        if plan.get("problem"):
+            lines.append(f"  printed die   cannot be laid out: {plan['problem']}")
+        elif plan["bed_mm"] is None:
+            lines.append("  printed die   in one piece (no print bed given)")
+        else:
+            joints = ", ".join(f"{x:.1f}" for x in plan["joints_x_mm"])
+            where = f"; joints at x = {joints} mm" if joints else ""
+            lines.append(f"  printed die   {len(d['die']['tiles'])} tile(s) on a {plan['bed_mm'][0]:g} × "
+                         f"{plan['bed_mm'][1]:g} mm bed{where}")
     lines += [f"  warning       {w}" for w in p.warnings]
     return without_negative_zeros("\n".join(lines))
 
