@@ -133,10 +133,23 @@ def die_layers(stock_mm: float, flange_height_mm: float) -> int:
     return max(1, math.ceil((flange_height_mm + STOCK_CLEARANCE_MM) / stock_mm - 1e-9))
 
 
+def die_build_up(spec: RibSpec) -> tuple[int, float]:
+    """(layers of stock, die height in mm) of the spec's die.
+
+    A routed or machined die is stacked from whole layers of stock, enough for the flange plus clearance.  A
+    printed die is one piece, printed to ``die.stock_thickness`` high, or to the flange height plus clearance
+    (rounded up to a whole millimetre) where that is more.
+    """
+    die, flange = spec.shared.die, spec.shared.flange.height_mm
+    if materials.die_making(die.material, die.print_bed_mm) == "printed":
+        return 1, max(die.stock_thickness_mm, float(math.ceil(flange + STOCK_CLEARANCE_MM - 1e-9)))
+    layers = die_layers(die.stock_thickness_mm, flange)
+    return layers, layers * die.stock_thickness_mm
+
+
 def die_inset_mm(spec: RibSpec, springback: Springback) -> float:
     """The largest inset of the die's wall from its outline (mm): the top-edge setback or the bottom inset."""
-    die = spec.shared.die
-    height = die_layers(die.stock_thickness_mm, spec.shared.flange.height_mm) * die.stock_thickness_mm
+    height = die_build_up(spec)[1]
     return die_wall.largest_inset_mm(springback.die_radius_mm, springback.overbend_deg, height)
 
 
@@ -360,10 +373,14 @@ def _analyse_piece(spec: RibSpec, piece: PieceGeometry, alloy: materials.SheetAl
     warnings += hole_findings
     judgement, judged = _judge_flange(spec, runs, flutes, notches, holes, shrink_limit)
     warnings += judged
-    layers = die_layers(shared.die.stock_thickness_mm, shared.flange.height_mm)
-    height = layers * shared.die.stock_thickness_mm
+    layers, height = die_build_up(spec)
     press = _press(spec, piece, springback, flutes, holes, height)
     warnings += _press_findings(press, springback)
+    if height > shared.die.stock_thickness_mm + 1e-9 and layers == 1:
+        warnings.append(Finding(
+            "print-height-raised", f"die.stock_thickness {shared.die.stock_thickness_mm:.1f} mm is lower than the "
+            f"flange height {shared.flange.height_mm:.1f} mm + {STOCK_CLEARANCE_MM:.0f} mm clearance: the die is "
+            f"printed {height:.0f} mm high", key="die.stock_thickness"))
     if layers > 1:
         warnings.append(Finding(
             "die-laminated", f"die stock {shared.die.stock_thickness_mm:.1f} mm is thinner than the flange height "
@@ -372,7 +389,7 @@ def _analyse_piece(spec: RibSpec, piece: PieceGeometry, alloy: materials.SheetAl
     blank = _blank(piece, springback, layout, notches, holes, alloy, t)
     return PieceAnalysis(piece, alloy, minimum, springback, layout, tuple(runs), flutes, notches, notes, judgement,
                          tuple(holes), press, blank, height, layers,
-                         tuple(w.about(piece.part_id, spec.positions) for w in warnings))
+                         tuple(w.about(piece.part_id, spec.positions, rib_id=spec.id) for w in warnings))
 
 
 def _blank(piece: PieceGeometry, springback: Springback, layout: FlangeLayout, notches: tuple[relief_model.Notch, ...],

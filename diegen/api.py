@@ -89,14 +89,21 @@ def write_plots(analysis: Analysis, out_dir: str | Path) -> list[Path]:
     return paths
 
 
-def write_starter(kind: str, path: str | Path, overwrite: bool = False) -> Path:
-    """Write a commented starter spec of ``kind`` (rib | wing) that passes ``diegen check``."""
+STARTER_KINDS = ("rib", "wing")
+STARTER_UNITS = ("in", "mm")
+
+
+def write_starter(kind: str, path: str | Path, overwrite: bool = False, units: str = "in") -> Path:
+    """Write a commented starter spec of ``kind`` (rib | wing) in ``units`` (in | mm) that passes ``diegen check``."""
     from diegen.fileio import write_text
 
+    if kind not in STARTER_KINDS or units not in STARTER_UNITS:
+        raise OutputError(f"a starter is a {' or '.join(STARTER_KINDS)} in {' or '.join(STARTER_UNITS)}, "
+                          f"not a {kind} in {units}")
     path = Path(path)
     if path.exists() and not overwrite:
         raise OutputError(f"{path}: already exists; choose another name or pass --force to overwrite it")
-    text = resources.files("diegen").joinpath("templates", f"{kind}.yaml").read_text(encoding="utf-8")
+    text = resources.files("diegen").joinpath("templates", f"{kind}-{units}.yaml").read_text(encoding="utf-8")
     write_text(path, text)
     return path
 

@@ -62,6 +62,8 @@ def _parser() -> argparse.ArgumentParser:
     new = sub.add_parser("new", help="write a commented starter spec")
     new.add_argument("kind", choices=("rib", "wing"))
     new.add_argument("path", type=Path)
+    new.add_argument("--units", choices=("in", "mm"), default="in",
+                     help="the unit of the starter's bare numbers (default: in)")
     new.add_argument("--force", action="store_true", help="overwrite an existing file")
 
     sub.add_parser("materials", help="list sheet alloys and die materials with their sources")
@@ -89,7 +91,7 @@ def _run(args: argparse.Namespace) -> int:
         print(materials.catalogue_text())
         return EXIT_OK
     if args.command == "new":
-        path = api.write_starter(args.kind, args.path, overwrite=args.force)
+        path = api.write_starter(args.kind, args.path, overwrite=args.force, units=args.units)
         print(f"wrote {path}; next: diegen check {path}")
         return EXIT_OK
     if args.command == "check":

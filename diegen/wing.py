@@ -99,7 +99,30 @@ def rib_spec(spec: WingSpec, station: RibStation) -> RibSpec:
     return RibSpec(id=f"{spec.id}-R{station.number:02d}", units=spec.units, airfoil=spec.root_airfoil,
                    chord_mm=station.chord_mm * stretch, spars=tuple(spars), shared=shared, file=spec.file,
                    title=f"rib {station.number} at {station.y_mm:.0f} mm from the root", positions=positions,
-                   unit_warnings=warnings)
+                   unit_warnings=warnings, section=section_label_at(spec, station), paper=spec.paper)
+
+
+def blend_fraction(spec: WingSpec, station: RibStation) -> float:
+    """How much of the tip section a station's section holds: its span fraction, 0 at the root rib, 1 at the tip."""
+    return station.y_mm / spec.span_mm
+
+
+def section_label_at(spec: WingSpec, station: RibStation) -> str:
+    """The section of a station as the builder reads it: "NACA 23015" where root and tip are one section, else
+    the blend by span fraction, "62 % NACA 23015 + 38 % NACA 23012", and the oblique cut of a rib square to the spar."""
+    root, tip = spec.root_airfoil.label, spec.tip_airfoil.label
+    fraction = blend_fraction(spec, station)
+    if spec.root_airfoil == spec.tip_airfoil or fraction <= 0.0:
+        label = root
+    elif fraction >= 1.0:
+        label = tip
+    else:
+        tip_pc = 100.0 * fraction
+        digits = 0 if 0.5 <= tip_pc <= 99.5 else 1  # never "100 % A + 0 % B" for a true blend
+        label = f"{100.0 - tip_pc:.{digits}f} % {root} + {tip_pc:.{digits}f} % {tip}"
+    if station.oblique_deg:
+        label += f", cut square to the spar ({station.oblique_deg:.1f}° to the stream)"
+    return label
 
 
 def section_at(spec: WingSpec, station: RibStation) -> np.ndarray:
@@ -108,7 +131,7 @@ def section_at(spec: WingSpec, station: RibStation) -> np.ndarray:
     from diegen.geometry.section import blend
 
     n = max(spec.root_airfoil.points, spec.tip_airfoil.points)
-    fraction = station.y_mm / spec.span_mm
+    fraction = blend_fraction(spec, station)
     section = blend(raw_section(spec.root_airfoil), raw_section(spec.tip_airfoil), fraction, n)
     if station.oblique_deg:
         section[:, 1] /= math.cos(math.radians(station.oblique_deg))  # depth kept while the chord shrinks by cos

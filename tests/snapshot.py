@@ -33,6 +33,23 @@ def _here_free(text: str) -> str:
     return text.replace(str(ROOT), "<root>")
 
 
+def _report_digest(document: object) -> str:
+    """Digest of a report document, with each finding's spec file named by its base name alone.
+
+    The file is named as the spec was given (relative or absolute), so the fingerprint would otherwise depend on
+    the folder the repository lies in and the folder the build ran from.
+    """
+
+    def plain(value: object) -> object:
+        if isinstance(value, dict):
+            return {k: Path(v).name if k == "file" and isinstance(v, str) else plain(v) for k, v in value.items()}
+        if isinstance(value, list):
+            return [plain(v) for v in value]
+        return value
+
+    return _digest(json.dumps(plain(document), sort_keys=True))
+
+
 def _dxf_entities(path: Path) -> str:
     import ezdxf
 
@@ -72,7 +89,7 @@ def snapshot(folder: Path) -> dict[str, dict[str, object]]:
         for path in sorted(part.iterdir()):
             kind = path.name[len(part.name) + 1 :]
             if path.suffix == ".json":
-                entry[kind] = _digest(_here_free(json.dumps(json.loads(path.read_text()), sort_keys=True)))
+                entry[kind] = _report_digest(json.loads(path.read_text()))
             elif path.suffix in (".md", ".svg"):
                 entry[kind] = _digest(_here_free(path.read_text()))
             elif path.suffix == ".dxf":
@@ -87,8 +104,8 @@ def check_digests() -> dict[str, str]:
     """Digest of ``check --json`` (the API's report document) for each demo spec."""
     from diegen import api
 
-    specs = ROOT / "specs"
-    return {name: _digest(_here_free(json.dumps(api.report_json(api.analyse(api.load(specs / name))), sort_keys=True)))
+    specs = Path(__file__).resolve().parents[1] / "specs"
+    return {name: _report_digest(api.report_json(api.analyse(api.load(specs / name))))
             for name in ("demo-rib.yaml", "demo-wing.yaml")}
 
 

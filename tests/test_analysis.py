@@ -234,6 +234,33 @@ def test_new_wing_then_check_passes(tmp_path: Path) -> None:
     assert checked.stdout.count("== ") >= 3
 
 
+@pytest.mark.parametrize("kind", ["rib", "wing"])
+@pytest.mark.parametrize("units", ["in", "mm"])
+def test_starters_in_either_unit_check_and_offer_a_print_bed(tmp_path: Path, kind: str, units: str) -> None:
+    path = api.write_starter(kind, tmp_path / f"{kind}-{units}.yaml", units=units)
+    text = path.read_text()
+    assert f"\nunits: {units} " in text
+    assert any(line.strip().startswith("# print_bed: [") for line in text.splitlines())  # offered, commented out
+    spec = api.load(path)
+    assert spec.units == units and spec.paper == ("letter" if units == "in" else "a4")
+    analysis = api.analyse(spec)
+    ribs = analysis.ribs if kind == "wing" else (analysis,)
+    assert all({p.piece.name for p in rib.pieces} == {"nose", "center", "tail"} for rib in ribs)
+    # the print bed line, uncommented, gives a printed die
+    printed = tmp_path / f"printed-{kind}-{units}.yaml"
+    printed.write_text(text.replace("# print_bed:", "print_bed:").replace("material: solid-surface", "material: pla"))
+    assert api.report_json(api.analyse(api.load(printed)))["parts"][0]["die"]["making"] == "printed"
+
+
+@pytest.mark.slow
+def test_new_with_units_on_the_command_line(tmp_path: Path) -> None:
+    made = _cli("new", "rib", "m.yaml", "--units", "mm", cwd=tmp_path)
+    assert made.returncode == 0, made.stderr
+    assert "\nunits: mm " in (tmp_path / "m.yaml").read_text()
+    refused = _cli("new", "rib", "n.yaml", "--units", "cm", cwd=tmp_path)
+    assert refused.returncode == 2 and "invalid choice" in refused.stderr
+
+
 def test_materials_prints_a_table() -> None:
     done = _cli("materials", cwd=ROOT)
     assert done.returncode == 0, done.stderr

@@ -379,6 +379,23 @@ def test_pdf_square_blank_tiles_in_rows_and_columns(pypdf: Any, tmp_path: Path) 
     assert labels == {f"R{r} C{c}" for r in range(1, plan.rows + 1) for c in range(1, plan.cols + 1)}
 
 
+@pytest.mark.parametrize(("paper", "width"), [("a4", 272.0), ("letter", 255.0)])
+def test_pdf_blank_that_fits_one_page_with_its_footer_takes_one(pypdf: Any, tmp_path: Path, paper: str,
+                                                                 width: float) -> None:
+    # Landscape A4 is 297 × 210 mm (ISO 216), Letter 279.4 × 215.9 mm (ANSI/ASME Y14.1); with 10 mm margins the
+    # drawing window is 277 mm (A4) or 259.4 mm (Letter) wide: a blank just narrower than that fits, with the
+    # footer band below it, on one page (the 3 mm blank paper round the drawing is given up first).
+    drawing = long_blank(width, 90.0)
+    plan = write_pdf(drawing, tmp_path / "one.pdf", paper=paper)  # type: ignore[arg-type]
+    reader = pypdf.PdfReader(tmp_path / "one.pdf")
+    assert plan.pages == len(reader.pages) == 1 and plan.layout.landscape
+    (tile,) = plan.tiles
+    xmin, ymin, xmax, ymax = drawing.content_bbox()
+    assert tile.x0 <= xmin and xmax <= tile.x0 + plan.layout.region_w  # the whole blank is on the page
+    assert tile.y0 <= ymin and ymax <= tile.y0 + plan.layout.region_h
+    check_page_scale(reader.pages[0], reader)
+
+
 def test_pdf_bad_options_are_clear_errors(blank: BlankDrawing) -> None:
     with pytest.raises(OutputError, match="letter, a4"):  # the error lists the valid choices
         plan_tiles(blank, paper="tabloid")  # type: ignore[arg-type]

@@ -452,3 +452,23 @@ def test_auto_holes_respect_the_margin_on_every_demo_wing_rib() -> None:
                 count += 1
                 assert web.exterior.distance(point((h.x, h.y))) - h.d / 2 >= need - 1e-6, (piece.part_id, h)
     assert count > 60
+
+
+def test_a_dropped_tail_is_told_about_its_rib_and_every_other_warning_names_rib_and_part(spec: RibSpec) -> None:
+    # A minimum tail depth deeper than the section aft of the rear spar drops the tail piece: the finding is about
+    # the whole rib (no part), and says so in every form; every piece's finding names its rib and its part.
+    from diegen.analysis import analyse_rib
+    from diegen.reports.sheet import shop_sheet
+
+    flange = replace(spec.shared.flange, min_tail_depth_mm=500.0)
+    variant = replace(spec, shared=replace(spec.shared, flange=flange))
+    rib = analyse_rib(variant)
+    (dropped,) = rib.geometry.warnings
+    assert dropped.code == "tail-piece-dropped" and dropped.part_id == "" and dropped.rib_id == spec.id
+    assert str(dropped).startswith(f"rib {spec.id}: no tail piece")
+    assert dropped.as_json()["rib"] == spec.id and dropped.as_json()["part"] == ""
+    for piece in rib.pieces:
+        for finding in piece.warnings:
+            assert finding.rib_id == spec.id and finding.part_id == piece.piece.part_id
+            assert str(finding).startswith(f"{piece.piece.part_id}: ")
+        assert f"* rib {spec.id}: no tail piece" in shop_sheet(rib, piece)

@@ -432,12 +432,12 @@ def kernel_fails_for(monkeypatch):
 
     failing: set[str] = set()
 
-    def build_die(die):
+    def build_die(die, *_):
         if die.part_id in failing:
             raise SolidError(f"pretend kernel failure: the loft of {die.part_id} is not a valid solid")
         return ("stand-in solid", die.part_id)
 
-    def write_step(shape, path):
+    def write_step(shape, path, **_):
         write_text(path, f"stand-in STEP for {shape[1]}\n")
 
     def write_stl(shape, path, tolerance_mm=0.05, **_):

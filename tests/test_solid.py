@@ -212,6 +212,52 @@ def test_stl_watertight_and_volume_matches_step(which, bare_die, full_die, tmp_p
     assert mesh.volume == pytest.approx(volume(read_step(tmp_path / "d.step")), rel=0.005)
 
 
+def test_step_names_the_part_and_this_tool(bare_die, tmp_path):
+    # Read back with the kernel's document reader (names on): the one free shape carries the part id, the header
+    # (ISO 10303-21 FILE_NAME) names this tool as the originating system; the file text holds PRODUCT('<id>'.
+    from OCP.APIHeaderSection import APIHeaderSection_MakeHeader
+    from OCP.STEPCAFControl import STEPCAFControl_Reader
+    from OCP.TCollection import TCollection_ExtendedString
+    from OCP.TDataStd import TDataStd_Name
+    from OCP.TDF import TDF_LabelSequence
+    from OCP.TDocStd import TDocStd_Document
+    from OCP.XCAFDoc import XCAFDoc_DocumentTool
+
+    from diegen import __version__
+    from diegen.die.occ.export import write_step
+
+    path = tmp_path / "named.step"
+    write_step(bare_die, path, product="TEST-N1", description="form block TEST-N1, mm; NACA 2412")
+    assert "PRODUCT('TEST-N1'" in path.read_text()
+    document = TDocStd_Document(TCollection_ExtendedString("test"))
+    reader = STEPCAFControl_Reader()
+    reader.SetNameMode(True)
+    reader.ReadFile(str(path))
+    assert reader.Transfer(document)
+    labels = TDF_LabelSequence()
+    XCAFDoc_DocumentTool.ShapeTool_s(document.Main()).GetFreeShapes(labels)
+    assert labels.Length() == 1
+    name = TDataStd_Name()
+    assert labels.Value(1).FindAttribute(TDataStd_Name.GetID_s(), name)
+    assert name.Get().ToExtString() == "TEST-N1"
+    header = APIHeaderSection_MakeHeader(reader.ChangeReader().StepModel())
+    assert header.OriginatingSystem().ToCString() == f"diegen {__version__}"
+    assert header.Name().ToCString() == "named.step"
+
+
+def test_stl_header_names_this_tool_and_the_part(bare_die, tmp_path):
+    # A binary STL starts with an 80-byte header, then the triangle count (little-endian uint32), then 50 bytes
+    # a triangle; the header must not begin with "solid" or readers take the file for ASCII STL.
+    from diegen import __version__
+    from diegen.die.occ.export import write_stl
+
+    path = tmp_path / "named.stl"
+    write_stl(bare_die, path, header="TEST-N1")
+    data = path.read_bytes()
+    assert data[:80].decode("ascii").rstrip() == f"diegen {__version__} TEST-N1 mm"
+    assert len(data) == 84 + 50 * int.from_bytes(data[80:84], "little")
+
+
 def test_stl_not_written_when_check_fails(bare_die, tmp_path, monkeypatch):
     from diegen.die.occ import export
 

@@ -164,3 +164,14 @@ def test_wing_override_error_names_override_path():
     with pytest.raises(SpecError) as caught:
         parse_spec(text, "wing.yaml", ROOT / "specs")
     assert "overrides[0].sheet.thickness" in str(caught.value)
+
+
+def test_paper_size_defaults_by_units_and_can_be_chosen():
+    # Letter for a spec in inches, A4 for one in millimetres; either can be asked for by name
+    assert parse_spec(VERBATIM, "t1.yaml").paper == "letter"
+    assert parse_spec(_edit("units: in", "units: mm"), "t1.yaml").paper == "a4"
+    assert parse_spec(_edit("units: in", "units: in\npaper: a4"), "t1.yaml").paper == "a4"
+    with pytest.raises(SpecError) as caught:
+        parse_spec(_edit("units: in", "units: in\npaper: a3"), "t1.yaml")
+    (problem,) = caught.value.problems
+    assert problem.line == 5 and problem.key == "paper" and "a4, letter" in problem.message

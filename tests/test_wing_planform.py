@@ -218,3 +218,23 @@ def test_normal_to_spar_rib_spans_the_wing_square_to_the_spar() -> None:
     assert np.ptp(section[:, 0]) == pytest.approx(np.ptp(plain[:, 0]) * math.cos(lam), rel=1e-9)
     geometry = rib_geometry(normal, section_at(spec, station), stretch_limit=stretch_limit(normal))
     assert geometry.chord_mm == pytest.approx(length, rel=1e-9)
+
+
+# --------------------------------------------------------------------------- section labels
+def test_each_rib_names_the_blend_it_is_cut_from() -> None:
+    # The demo wing blends NACA 23015 at the root into NACA 23012 at the tip over 13 evenly spaced ribs: rib k
+    # holds (k - 1)/12 of the tip section (span fraction, numpy's linspace of the planform as the reference).
+    spec = api.load(DEMO_WING)
+    assert isinstance(spec, WingSpec)
+    ribs = [rib_spec(spec, s) for s in stations(spec)]
+    fractions = np.linspace(0.0, 1.0, 13)
+    assert ribs[0].section_label == "NACA 23015"
+    assert ribs[-1].section_label == "NACA 23012"  # the tip rib is the tip section alone
+    for rib, f in zip(ribs[1:-1], fractions[1:-1]):
+        assert rib.section_label == f"{100 * (1 - f):.0f} % NACA 23015 + {100 * f:.0f} % NACA 23012"
+    assert ribs[7].section_label == "42 % NACA 23015 + 58 % NACA 23012"  # 7/12 = 0.583 of the tip section
+
+
+def test_a_wing_of_one_section_names_it_without_a_blend() -> None:
+    spec = wing()
+    assert {rib_spec(spec, s).section_label for s in stations(spec)} == {"NACA 2412"}

@@ -91,6 +91,8 @@ class DieInput:
     bores: tuple[DieBore, ...] = ()
     pins: tuple[DiePin, ...] = ()
     engraving: tuple[str, ...] = ()  # lines engraved on the BOTTOM face, plus an orientation arrow
+    # x of the joints of a die printed in tiles: the marks keep clear of them and each tile is numbered
+    tile_joints_x_mm: tuple[float, ...] = ()
     bore_top_radius_mm: float | None = None  # defaults to top_radius_mm
     printed: bool = False  # printed, not routed: ``cutter_radius_mm`` is the printer's smallest inside radius
     min_land_mm: float = 0.0  # least wall between two flutes beyond the outline model's own rule (a printed line)

@@ -7,9 +7,11 @@ dowel in plastics and solid-surface stock) and ``pin_depth_mm`` deep.
 
 from __future__ import annotations
 
+from dataclasses import replace
 from typing import Any
 
 from diegen.die.die_input import DieBore, DieFlute, DieInput, DiePin, DieRun
+from diegen.die.tiles import TileLayout, die_tile_layout
 from diegen.geometry.tooling import tooling
 
 PIN_INTERFERENCE_MM = 0.03
@@ -21,14 +23,44 @@ def pin_depth_mm(dowel_d_mm: float, die_height_mm: float) -> float:
     return min(die_height_mm - 3.0, max(3.0 * dowel_d_mm, 10.0))
 
 
+def die_making(die_spec: Any) -> str:
+    """How the die of a spec's ``die`` section is made: ``printed``, ``machined`` or ``routed``."""
+    from diegen import materials
+
+    return materials.die_making(die_spec.material, die_spec.print_bed_mm)
+
+
 def die_input(rib: Any, piece: Any) -> DieInput:
     """The die builder's input for one analysed piece (``rib``: RibAnalysis, ``piece``: PieceAnalysis).
 
-    That is the die the analysis planned (:mod:`diegen.die.rules`: flutes and wall fitted to the piece), or, for a
-    piece analysed without a plan, the die as the piece's numbers ask for it.
+    That is the die the analysis planned (:mod:`diegen.die.plan`: flutes and wall fitted to the piece, a printed
+    die's tile joints placed), or, for a piece analysed without a plan, the die as the piece's numbers ask for it.
     """
     plan = getattr(piece, "die", None)
-    return plan.die if plan is not None else asked_die_input(rib.spec, piece)
+    die = plan.die if plan is not None else asked_die_input(rib.spec, piece)
+    return with_tile_joints(die, rib.spec.shared.die)
+
+
+def tile_plan(rib: Any, piece: Any) -> TileLayout | None:
+    """The print-bed tiles of a printed die (one tile when no bed is given), None for a die that is not printed.
+
+    Raises :class:`diegen.errors.GeometryError` when the bed cannot take the die or a joint has no room for
+    its alignment dowels.
+    """
+    plan = getattr(piece, "die", None)
+    return _layout(plan.die if plan is not None else asked_die_input(rib.spec, piece), rib.spec.shared.die)
+
+
+def _layout(die: DieInput, die_spec: Any) -> TileLayout | None:
+    if die_making(die_spec) != "printed":
+        return None
+    return die_tile_layout(die, die_spec.print_bed_mm)
+
+
+def with_tile_joints(die: DieInput, die_spec: Any) -> DieInput:
+    """``die`` carrying its tile joints when it is printed in tiles (the marks keep clear of them)."""
+    layout = _layout(die, die_spec)
+    return die if layout is None else replace(die, tile_joints_x_mm=layout.joints_x_mm)
 
 
 def asked_die_input(spec: Any, piece: Any) -> DieInput:
@@ -36,6 +68,7 @@ def asked_die_input(spec: Any, piece: Any) -> DieInput:
     g, shared = piece.piece, spec.shared
     height = piece.die_height_mm
     tool = tooling(shared.die.material, shared.die.cutter_diameter_mm)
+    printed = tool.printed or die_making(shared.die) == "printed"
     return DieInput(
         part_id=g.part_id,
         outline=tuple(DieRun(run.kind, run.points) for run in g.runs),
@@ -50,7 +83,7 @@ def asked_die_input(spec: Any, piece: Any) -> DieInput:
         engraving=(g.part_id, f"{shared.sheet.alloy} {shared.sheet.thickness_mm:.2f} mm"),
         printed=tool.printed,
         min_land_mm=tool.thinnest_wall_mm,
-        layer_mm=shared.die.stock_thickness_mm if piece.die_layers > 1 and not tool.printed else None,
+        layer_mm=shared.die.stock_thickness_mm if piece.die_layers > 1 and not printed else None,
         print_bed_mm=shared.die.print_bed_mm,
     )
 
@@ -74,4 +107,5 @@ def pin_note(die: DieInput) -> str | None:
             f"press fit), {pin.depth:.1f} mm deep from the top face.")
 
 
-__all__ = ["ENGRAVING_NOTE", "PIN_INTERFERENCE_MM", "asked_die_input", "die_input", "marks_note", "pin_depth_mm", "pin_note"]
+__all__ = ["ENGRAVING_NOTE", "PIN_INTERFERENCE_MM", "asked_die_input", "die_input", "die_making", "marks_note",
+           "pin_depth_mm", "pin_note", "tile_plan", "with_tile_joints"]

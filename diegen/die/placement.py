@@ -16,11 +16,12 @@ what to change.  :func:`diegen.die.occ.form_block.build_body` then makes:
 
 from __future__ import annotations
 
+from dataclasses import dataclass, replace
 from typing import Any
 
 import numpy as np
 import shapely
-from shapely.geometry import Point, Polygon
+from shapely.geometry import Point, Polygon, box
 from shapely.ops import polylabel
 
 from diegen.die import lettering
@@ -34,7 +35,7 @@ from diegen.geometry import die_wall
 __all__ = ["ARROW_LENGTH", "check_placement", "engraving_marks"]
 
 
-def _smallest_section(die: DieInput, model: OutlineModel) -> Polygon:
+def smallest_section(die: DieInput, model: OutlineModel) -> Polygon:
     """What every horizontal section of the die contains: the flat top face and the bottom face, flutes and all."""
     top = pieces_to_polygon(model.offset(die_wall.top_setback_mm(die.top_radius_mm, die.undercut_deg)))
     return top.intersection(_bottom_section(die, model))
@@ -47,7 +48,7 @@ def _bottom_section(die: DieInput, model: OutlineModel) -> Polygon:
 
 def check_placement(die: DieInput, model: OutlineModel, settings: BuildSettings) -> None:
     """Raise :class:`GeometryError` for a hole the die cannot carry (the outline model has checked the flutes)."""
-    inner = _smallest_section(die, model)
+    inner = smallest_section(die, model)
     wall = settings.min_wall_mm
     footprints: list[tuple[str, Polygon]] = []
     for pin in die.pins:
@@ -83,20 +84,25 @@ def check_placement(die: DieInput, model: OutlineModel, settings: BuildSettings)
                 )
 
 
-def engraving_marks(die: DieInput, model: OutlineModel, settings: BuildSettings) -> list[Polygon]:
-    """The engraving on the bottom face as polygons (mm, die coordinates): the lines of text and an arrow.
+@dataclass(frozen=True)
+class PlacedMarks:
+    """The engraving laid out on the bottom face (mm, die coordinates; see :func:`place_marks`).
 
-    Single-stroke capitals (:mod:`diegen.die.lettering`), as large as fit
-    between ``engrave_min_height_mm`` and ``engrave_max_height_mm``, placed in
-    the bottom face clear of the edge, the flutes, the bores and the pins that
-    reach it.  Seen from below with the die turned over about the X axis the
-    text reads normally, the first line on top, with an arrow under it
-    pointing forward (towards −X, the leading edge).  Raises
-    :class:`NoRoomForMarks` when there is no room.
+    ``lines``: the lines of text engraved (with the arrow under them; none, no arrow);
+    ``polygons``: every groove — the lines, the arrow and the tile numbers;
+    ``tile_labels``: for a die printed in tiles, the label engraved on each tile, or None where there was no room.
     """
-    lines = [line for line in die.engraving if line.strip()]
-    if not lines:
-        return []
+
+    lines: tuple[str, ...]
+    polygons: tuple[Polygon, ...]
+    tile_labels: tuple[str | None, ...] = ()
+
+
+PITCH = 1.6  # line pitch as a multiple of the letter height
+
+
+def _free_face(die: DieInput, model: OutlineModel, settings: BuildSettings) -> tuple[Any, float]:
+    """Where marks may go on the bottom face (clear of its edge, the flutes, bores, deep pins and tile joints)."""
     depth = settings.engrave_depth_mm
     margin = max(settings.min_wall_mm, 2.0)
     free = _bottom_section(die, model).buffer(-margin)
@@ -105,33 +111,106 @@ def engraving_marks(die: DieInput, model: OutlineModel, settings: BuildSettings)
     for pin in die.pins:
         if pin.depth >= die.height_mm - depth - settings.min_wall_mm:
             free = free.difference(Point(pin.x, pin.y).buffer(pin.d / 2.0 + margin))
-    pitch = 1.6  # line pitch as a multiple of the letter height
-    widths = [lettering.line_width_units(line) / lettering.CAP_UNITS for line in lines]  # per mm of letter height
-    size = settings.engrave_max_height_mm
-    while size >= settings.engrave_min_height_mm - 1e-9:
-        block_w = max(max(widths) + lettering.STROKE_FRACTION, ARROW_LENGTH) * size
-        block_h = pitch * size * (len(lines) + 1)
-        spot = _find_spot(free, block_w, block_h)
-        if spot is not None:
-            break
-        size *= 0.85
-    else:
-        raise NoRoomForMarks(
-            f"die {die.part_id}: no room on the bottom face for the engraving {lines!r} at "
-            f"{settings.engrave_min_height_mm:g} mm letter height: shorten it or leave it out"
-        )
-    cx, cy = spot
+    if die.tile_joints_x_mm:
+        _, y0, _, y1 = free.bounds if not free.is_empty else (0.0, 0.0, 0.0, 0.0)
+        for x in die.tile_joints_x_mm:  # no joint may cut a letter
+            free = free.difference(box(x - margin, y0 - 1.0, x + margin, y1 + 1.0))
+    return free, margin
+
+
+def _text_strokes(lines: list[str], cx: float, top: float, size: float) -> list[lettering.Stroke]:
+    """Strokes of ``lines`` centred on ``cx``, the first line's top at ``top`` (letters' tops towards −Y)."""
     unit = size / lettering.CAP_UNITS
-    top = cy - block_h / 2.0  # the first line is on top when turned over: at the smallest Y
     strokes = []
-    for i, (line, width) in enumerate(zip(lines, widths)):
+    for i, line in enumerate(lines):
+        width = lettering.line_width_units(line) / lettering.CAP_UNITS
         x0 = cx - width * size / 2.0
-        base = top + (i * pitch + 0.5 * (pitch - 1.0) + 1.0) * size  # the baseline, its letters towards −Y
+        base = top + (i * PITCH + 0.5 * (PITCH - 1.0) + 1.0) * size  # the baseline, its letters towards −Y
         strokes += [tuple((x0 + u * unit, base - v * unit) for u, v in stroke)
                     for stroke in lettering.line_strokes(line)]
-    marks = lettering.stroke_polygons(strokes, lettering.STROKE_FRACTION * size)
-    marks.append(_arrow(cx, top + (len(lines) + 0.5) * pitch * size, ARROW_LENGTH * size, 0.8 * size))
-    return marks
+    return strokes
+
+
+def place_marks(die: DieInput, model: OutlineModel, settings: BuildSettings) -> PlacedMarks:
+    """The engraving on the bottom face: the lines of text and an arrow, and each tile's number.
+
+    Single-stroke capitals (:mod:`diegen.die.lettering`), as large as fit
+    between ``engrave_min_height_mm`` and ``engrave_max_height_mm``, placed in
+    the bottom face clear of the edge, the flutes, the bores, the pins that
+    reach it and the tile joints.  Seen from below with the die turned over
+    about the X axis the text reads normally, the first line on top, with an
+    arrow under it pointing forward (towards −X, the leading edge).  A die
+    printed in tiles (``tile_joints_x_mm``) gets ``<part id> k/n`` (or ``k/n``
+    where that is too long) on every tile, clear of the other marks.  Raises
+    :class:`NoRoomForMarks` when there is no room for the lines.
+    """
+    lines = [line for line in die.engraving if line.strip()]
+    free, margin = _free_face(die, model, settings)
+    polygons: list[Polygon] = []
+    taken = None
+    if lines:
+        widths = [lettering.line_width_units(line) / lettering.CAP_UNITS for line in lines]  # per mm of letter height
+        placed = _largest_fit(free, settings, lambda size: (
+            max(max(widths) + lettering.STROKE_FRACTION, ARROW_LENGTH) * size, PITCH * size * (len(lines) + 1)))
+        if placed is None:
+            raise NoRoomForMarks(
+                f"die {die.part_id}: no room on the bottom face for the engraving {lines!r} at "
+                f"{settings.engrave_min_height_mm:g} mm letter height: shorten it or leave it out"
+            )
+        (cx, cy), size, (block_w, block_h) = placed
+        top = cy - block_h / 2.0  # the first line is on top when turned over: at the smallest Y
+        polygons += lettering.stroke_polygons(_text_strokes(lines, cx, top, size), lettering.STROKE_FRACTION * size)
+        polygons.append(_arrow(cx, top + (len(lines) + 0.5) * PITCH * size, ARROW_LENGTH * size, 0.8 * size))
+        taken = box(cx - block_w / 2, cy - block_h / 2, cx + block_w / 2, cy + block_h / 2).buffer(margin)
+    labels: list[str | None] = []
+    if die.tile_joints_x_mm:
+        x0, _, x1, _ = _bottom_section(die, model).bounds
+        edges = [x0 - 1.0, *die.tile_joints_x_mm, x1 + 1.0]
+        count = len(edges) - 1
+        for k in range(count):
+            region = free.intersection(box(edges[k], -1e9, edges[k + 1], 1e9))
+            if taken is not None:
+                region = region.difference(taken)
+            label = None
+            for text in (f"{die.part_id} {k + 1}/{count}", f"{k + 1}/{count}"):
+                width = lettering.line_width_units(text) / lettering.CAP_UNITS + lettering.STROKE_FRACTION
+                found = _largest_fit(region, settings, lambda size, w=width: (w * size, PITCH * size))
+                if found is not None:
+                    (cx, cy), size, (_, block_h) = found
+                    polygons += lettering.stroke_polygons(_text_strokes([text], cx, cy - block_h / 2.0, size),
+                                                          lettering.STROKE_FRACTION * size)
+                    label = text
+                    break
+            labels.append(label)
+    return PlacedMarks(tuple(lines), tuple(polygons), tuple(labels))
+
+
+def _largest_fit(free: Any, settings: BuildSettings, block: Any) -> tuple[tuple[float, float], float,
+                                                                          tuple[float, float]] | None:
+    """Spot, letter height and block size of the largest block (``block(size)`` → (w, h)) that fits in ``free``."""
+    size = settings.engrave_max_height_mm
+    while size >= settings.engrave_min_height_mm - 1e-9:
+        w, h = block(size)
+        spot = _find_spot(free, w, h)
+        if spot is not None:
+            return spot, size, (w, h)
+        size *= 0.85
+    return None
+
+
+def engraving_marks(die: DieInput, model: OutlineModel, settings: BuildSettings) -> list[Polygon]:
+    """The engraving's grooves on the bottom face as polygons (mm, die coordinates); see :func:`place_marks`."""
+    return list(place_marks(die, model, settings).polygons)
+
+
+def fit_marks(die: DieInput, model: OutlineModel, settings: BuildSettings) -> PlacedMarks:
+    """The marks that fit: all the engraving's lines, else the first (the part id) alone, else none."""
+    for lines in (die.engraving, die.engraving[:1], ()):
+        try:
+            return place_marks(replace(die, engraving=lines), model, settings)
+        except NoRoomForMarks:
+            continue
+    raise AssertionError("a die without lines of text needs no room for them")
 
 
 ARROW_LENGTH = 4.0  # the orientation arrow's length as a multiple of the letter height

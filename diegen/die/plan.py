@@ -40,7 +40,7 @@ def plan_die(spec: Any, piece: Any, settings: BuildSettings = DEFAULT_SETTINGS) 
 def with_die_plan(spec: Any, piece: Any, settings: BuildSettings = DEFAULT_SETTINGS) -> Any:
     """``piece`` (a PieceAnalysis) with its die plan, the flutes the die really carries, and the plan's findings."""
     plan = plan_die(spec, piece, settings)
-    findings = tuple(f.about(piece.piece.part_id, spec.positions) for f in plan.findings)
+    findings = tuple(f.about(piece.piece.part_id, spec.positions, rib_id=spec.id) for f in plan.findings)
     changes: dict[str, Any] = {"die": plan, "warnings": piece.warnings + findings}
     if [(f.s_mm, f.width_mm, f.depth_mm) for f in plan.die.flutes] != \
             [(f.s_mm, f.width_mm, f.depth_mm) for f in piece.flutes]:

@@ -24,7 +24,7 @@ from diegen.die.model import loft_sections, outline_model, section
 from diegen.die.outline import OutlineModel
 from diegen.die.placement import check_placement
 from diegen.die.settings import DEFAULT_SETTINGS, BuildSettings
-from diegen.die.tiling import TilePlan, plan_tiles
+from diegen.die.tiles import die_tile_layout
 from diegen.errors import GeometryError
 from diegen.findings import Finding
 
@@ -39,7 +39,7 @@ def check_die(die: DieInput, settings: BuildSettings = DEFAULT_SETTINGS) -> Outl
     if die.layer_mm:
         layer_outlines(die, model, die.layer_mm)
     if die.print_bed_mm:
-        plan_tiles(die, model, die.print_bed_mm, settings)
+        die_tile_layout(die, die.print_bed_mm, model)
     return model
 
 
@@ -52,11 +52,4 @@ def die_refusal(die: DieInput, settings: BuildSettings = DEFAULT_SETTINGS) -> st
     return None
 
 
-def tile_plan(die: DieInput, settings: BuildSettings = DEFAULT_SETTINGS) -> TilePlan | None:
-    """The print-bed tiles of a die :func:`check_die` passed (None: no print bed)."""
-    if not die.print_bed_mm:
-        return None
-    return plan_tiles(die, outline_model(die, settings), die.print_bed_mm, settings)
-
-
-__all__ = ["check_die", "die_refusal", "tile_plan"]
+__all__ = ["check_die", "die_refusal"]

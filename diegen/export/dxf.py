@@ -24,6 +24,7 @@ from diegen.blank.drawing import CUT, DRILL, LAYERS, NOTE, SCRIBE, BlankDrawing,
 from diegen.errors import OutputError
 from diegen.fileio import write_with
 from diegen.geometry.loops import signed_area
+from diegen.numbers import plain
 
 __all__ = [
     "BEND_LINETYPE",
@@ -52,8 +53,13 @@ def write_outlines_dxf(outlines: list[tuple[str, list[tuple[float, float]]]], pa
     msp = doc.modelspace()
     for index, (layer, points) in enumerate(outlines):
         doc.layers.add(layer, color=1 + index % 6)
-        msp.add_lwpolyline(points, close=True, dxfattribs={"layer": layer})
+        msp.add_lwpolyline(_xy(points), close=True, dxfattribs={"layer": layer})
     write_with(path, doc.saveas)
+
+
+def _xy(points: Polyline) -> list[tuple[float, float]]:
+    """Points with no negative zero among their coordinates (a "-0.0" in a drawing reads as a mistake)."""
+    return [(plain(x), plain(y)) for x, y in points]
 
 
 def build_dxf(drawing: BlankDrawing):  # -> ezdxf.document.Drawing (kept untyped so ezdxf loads lazily)
@@ -72,22 +78,22 @@ def build_dxf(drawing: BlankDrawing):  # -> ezdxf.document.Drawing (kept untyped
     msp = doc.modelspace()
 
     cut = {"layer": CUT.name}
-    msp.add_lwpolyline(drawing.outer, format="xy", close=True, dxfattribs=cut)
+    msp.add_lwpolyline(_xy(drawing.outer), format="xy", close=True, dxfattribs=cut)
     for contour in drawing.inner:
-        msp.add_lwpolyline(contour, format="xy", close=True, dxfattribs=cut)
+        msp.add_lwpolyline(_xy(contour), format="xy", close=True, dxfattribs=cut)
     for c in drawing.cut_circles:
-        msp.add_circle((c.x, c.y), c.r, dxfattribs=cut)
+        msp.add_circle((plain(c.x), plain(c.y)), c.r, dxfattribs=cut)
     for c in drawing.drill_circles:
-        msp.add_circle((c.x, c.y), c.r, dxfattribs={"layer": DRILL.name})
+        msp.add_circle((plain(c.x), plain(c.y)), c.r, dxfattribs={"layer": DRILL.name})
     for line in drawing.scribe_lines:
-        msp.add_lwpolyline(line, format="xy", close=False, dxfattribs={"layer": SCRIBE.name})
+        msp.add_lwpolyline(_xy(line), format="xy", close=False, dxfattribs={"layer": SCRIBE.name})
 
     note = {"layer": NOTE.name}
     title = drawing.title_block()
     for n in drawing.notes + title.notes:
-        msp.add_text(n.text, height=n.height, dxfattribs=note).set_placement((n.x, n.y))
+        msp.add_text(n.text, height=n.height, dxfattribs=note).set_placement((plain(n.x), plain(n.y)))
     for s in title.arrow:
-        msp.add_line((s.x0, s.y0), (s.x1, s.y1), dxfattribs={"layer": NOTE.name})
+        msp.add_line((plain(s.x0), plain(s.y0)), (plain(s.x1), plain(s.y1)), dxfattribs={"layer": NOTE.name})
 
     xmin, ymin, xmax, ymax = drawing.extent()
     doc.header["$EXTMIN"] = (xmin, ymin, 0.0)

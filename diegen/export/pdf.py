@@ -124,9 +124,21 @@ def page_layout(paper: Paper, landscape: bool, margin: float) -> PageLayout:
 
 def _count(length: float, window: float, overlap: float) -> int:
     """Pages along one axis so that n windows overlapping by ``overlap`` cover ``length``."""
-    if length <= window:
+    if length <= window + 1e-9:
         return 1
     return math.ceil((length - overlap) / (window - overlap) - 1e-9)
+
+
+CONTENT_PAD_MM: Final = 3.0
+"""Blank paper wanted round the drawing inside the drawing region, mm; given up before a page is added for it."""
+
+
+def _pad(length: float, window: float, overlap: float) -> float:
+    """The padding either side of ``length`` along one axis: :data:`CONTENT_PAD_MM`, or less where that much
+    would take another page (down to none: the drawing then reaches the region's edges)."""
+    pages = _count(length, window, overlap)
+    room = window if pages == 1 else pages * (window - overlap) + overlap
+    return min(CONTENT_PAD_MM, max(0.0, 0.5 * (room - length)))
 
 
 def _plan(layout: PageLayout, extent: tuple[float, float, float, float], overlap: float) -> TilePlan:
@@ -165,15 +177,15 @@ def plan_tiles(
             f"page margin {margin} mm is outside 5..40 mm (most printers cannot print nearer the edge than 5 mm)"
         )
     xmin, ymin, xmax, ymax = drawing.content_bbox()
-    pad = 3.0
-    extent = (xmin - pad, ymin - pad, xmax + pad, ymax + pad)
     choices = {"portrait": (False,), "landscape": (True,), "auto": (False, True)}[orientation]
     plans = []
     for landscape in choices:
         layout = page_layout(paper, landscape, margin)
         if not 0.0 <= overlap <= 0.25 * min(layout.region_w, layout.region_h):
             raise OutputError(f"tile overlap {overlap} mm must lie between 0 and a quarter of the printable area")
-        plans.append(_plan(layout, extent, overlap))
+        px = _pad(xmax - xmin, layout.region_w, overlap)
+        py = _pad(ymax - ymin, layout.region_h, overlap)
+        plans.append(_plan(layout, (xmin - px, ymin - py, xmax + px, ymax + py), overlap))
     return min(plans, key=lambda p: p.pages)
 
 

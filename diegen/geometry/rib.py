@@ -82,7 +82,7 @@ def rib_geometry(spec: RibSpec, section: np.ndarray | None = None, die_inset_mm:
     scaled = unit * spec.chord_mm
     airfoil = Polygon(scaled)
     if not airfoil.is_valid:
-        raise GeometryError(f"the {spec.airfoil.label} section is not a simple outline at {spec.chord_mm:.0f} mm chord "
+        raise GeometryError(f"the {spec.section_label} section is not a simple outline at {spec.chord_mm:.0f} mm chord "
                             "(it crosses or touches itself): check the airfoil's coordinates", key="airfoil")
     skin, sheet_t = shared.skin_thickness_mm, shared.sheet.thickness_mm
     with keyed("skin_thickness"):
@@ -129,7 +129,7 @@ def _piece_ranges(spec: RibSpec, spars: list[SparCut], upper: np.ndarray, lower:
                 warnings.append(Finding(
                     "tail-piece-dropped", f"no tail piece: the die depth aft of the rear spar is {depth:.1f} mm, "
                     f"{where} (set flange.min_tail_depth to change this)", key="flange.min_tail_depth",
-                ).about(spec.id, spec.positions))
+                ).about("", spec.positions, rib_id=spec.id))
                 continue
             ranges.append((name, start, end, False))
     return ranges

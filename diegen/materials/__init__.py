@@ -33,6 +33,7 @@ __all__ = [
     "SheetAlloy",
     "bend_radius_tables",
     "catalogue_text",
+    "die_making",
     "die_material",
     "die_material_names",
     "min_bend_radius",
@@ -87,6 +88,12 @@ class DieMaterial:
     printed: bool
     machining_note: str
     sources: Mapping[str, str] = field(hash=False)  # field name -> source string
+    machined: bool = False  # cut with end mills on a mill (or a rigid machine) rather than with router bits
+
+    @property
+    def making(self) -> str:
+        """How a die of this material is made: ``printed``, ``machined`` or ``routed``."""
+        return "printed" if self.printed else "machined" if self.machined else "routed"
 
 
 @dataclass(frozen=True)
@@ -232,6 +239,7 @@ def _parse_die(name: str, data: Mapping[str, Any]) -> DieMaterial:
         life_parts=life,
         printed=bool(data.get("printed", False)),
         machining_note=str(data.get("machining_note", "")),
+        machined=bool(data.get("machined", False)),
         sources=MappingProxyType(
             {
                 "compressive_strength_mpa": strength_src,
@@ -313,6 +321,12 @@ def die_material(name: str) -> DieMaterial:
     """The die material ``name`` or one of its aliases; MaterialError with suggestions if unknown."""
     cat = _catalogue()
     return cat.dies[_resolve("die material", name, tuple(cat.dies), cat.die_aliases)]
+
+
+def die_making(material: str, print_bed_mm: object = None) -> str:
+    """How a die of ``material`` is made: ``printed`` (a printed material, or any die given a print bed),
+    ``machined`` (cut with end mills) or ``routed``."""
+    return "printed" if print_bed_mm is not None else die_material(material).making
 
 
 def min_bend_radius(alloy: str, thickness_mm: float, table: str = "aa") -> MinRadius:

@@ -10,6 +10,9 @@ from typing import Any
 from diegen import __version__
 from diegen.analysis import MODELS, PieceAnalysis, RibAnalysis
 from diegen.blank.drawing import BlankDrawing
+from diegen.die.from_analysis import die_making, tile_plan
+from diegen.die.tiles import tile_files
+from diegen.errors import GeometryError
 
 SAFETY = (
     "A shop press stores a great deal of energy: rubber, blank or a split die or box can be ejected. Guard the "
@@ -26,8 +29,44 @@ def die_life(material: str) -> int | None:
     return materials.die_material(material).life_parts
 
 
+def section_label(spec: Any) -> str:
+    """The section a rib is cut from, as its reports name it (see :attr:`diegen.spec.model.RibSpec.section_label`)."""
+    return spec.section_label
+
+
 def _r(value: float, digits: int = 3) -> float:
-    return round(float(value), digits)
+    return round(float(value), digits) + 0.0  # + 0.0: a negative zero becomes 0.0
+
+
+PRINT_ORIENTATION = ("top face up, the flat bottom face on the bed: the wall leans in by the over-bend only, so "
+                     "it needs no support, and the edge radius and the web face are printed as smooth top layers "
+                     "(common practice, no source)")
+BED_MARGIN_WHY = ("kept clear of the bed's outermost edge, where the first layer sticks worst and clips or the "
+                  "frame may sit (common practice, no source)")
+
+
+def print_json(rib: RibAnalysis, p: PieceAnalysis) -> dict[str, Any]:
+    """``tiles`` (one per printed tile: bounds in mm and files) and ``print`` (the bed, joints and dowels) of a
+    printed die; an empty list and None for a die that is not printed."""
+    try:
+        layout = tile_plan(rib, p)
+    except GeometryError as exc:
+        return {"tiles": [], "print": {"bed_mm": list(rib.spec.shared.die.print_bed_mm or ()) or None,
+                                       "problem": str(exc)}}
+    if layout is None:
+        return {"tiles": [], "print": None}
+    files = tile_files(p.piece.part_id, layout)
+    tiles = [{"number": t.number, "x_range_mm": [_r(t.x_min_mm), _r(t.x_max_mm)],
+              "y_range_mm": [_r(t.y_min_mm), _r(t.y_max_mm)], "z_range_mm": [_r(t.z_min_mm), _r(t.z_max_mm)],
+              "size_mm": [_r(v) for v in t.size_mm], "along_bed_y": t.along_bed_y, "files": list(names)}
+             for t, names in zip(layout.tiles, files)]
+    return {"tiles": tiles, "print": {
+        "bed_mm": None if layout.bed_mm is None else [_r(v) for v in layout.bed_mm],
+        "bed_margin_mm": _r(layout.margin_mm), "bed_margin_why": BED_MARGIN_WHY, "orientation": PRINT_ORIENTATION,
+        "joints_x_mm": [_r(x) for x in layout.joints_x_mm],
+        "dowel_d_mm": _r(layout.dowel_d_mm), "dowel_depth_mm": _r(layout.dowel_depth_mm),
+        "dowels_mm": [[_r(x), _r(y), _r(z)] for x, y, z in layout.dowels],
+    }}
 
 
 def blank_numbers(blank: BlankDrawing) -> dict[str, float]:
@@ -45,6 +84,7 @@ def piece_json(rib: RibAnalysis, p: PieceAnalysis) -> dict[str, Any]:
         "id": g.part_id,
         "piece": g.name,
         "rib": rib.spec.id,
+        "airfoil": section_label(rib.spec),
         "chord_mm": _r(rib.geometry.chord_mm),
         "x_range_mm": [_r(g.x_range_mm[0]), _r(g.x_range_mm[1])],
         "depth_range_mm": [_r(g.depth_range_mm[0]), _r(g.depth_range_mm[1])],
@@ -89,6 +129,9 @@ def piece_json(rib: RibAnalysis, p: PieceAnalysis) -> dict[str, Any]:
             "refusal": None if p.die is None else p.die.refusal,
             "joggles": [{"spar": j.spar, "surface": j.surface, "x_start_mm": _r(j.x_start_mm), "x_end_mm": _r(j.x_end_mm),
                          "depth_mm": _r(j.depth_mm), "ramp_mm": _r(j.ramp_mm)} for j in g.joggles],
+            "making": die_making(rib.spec.shared.die),
+            "drawing_files": [f"{g.part_id}-die.dxf", f"{g.part_id}-die.svg"],
+            **print_json(rib, p),
         },
         "blank": blank_numbers(p.blank),
         "holes": [{"x_mm": _r(h.x), "y_mm": _r(h.y), "d_mm": _r(h.d), "bore_d_mm": _r(c.bore_d_mm),
@@ -124,4 +167,5 @@ def rib_json(rib: RibAnalysis) -> dict[str, Any]:
             "warnings": [w.as_json() for w in rib.geometry.warnings], "parts": [piece_json(rib, p) for p in rib.pieces]}
 
 
-__all__ = ["SAFETY", "blank_numbers", "die_life", "piece_json", "rib_json"]
+__all__ = ["BED_MARGIN_WHY", "PRINT_ORIENTATION", "SAFETY", "blank_numbers", "die_life", "piece_json", "print_json",
+           "rib_json", "section_label"]

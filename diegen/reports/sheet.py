@@ -5,8 +5,11 @@ from __future__ import annotations
 from collections.abc import Sequence
 
 from diegen.analysis import PieceAnalysis, RibAnalysis
+from diegen.die.drawing import BORES, BOTTOM_OUTLINE, DOWEL_HOLES, FLUTES, JOGGLES, MARKS, TILE_JOINTS, TOP_FLAT, TOP_OUTLINE
+from diegen.die.from_analysis import die_making
 from diegen.forming.relief import flute_arc_radius
-from diegen.reports.document import SAFETY
+from diegen.numbers import without_negative_zeros
+from diegen.reports.document import PRINT_ORIENTATION, SAFETY, print_json, section_label
 from diegen.reports.text import die_life_text
 from diegen.units import MM_PER_IN, mpa_to_psi
 
@@ -25,58 +28,134 @@ def nearest_round_over(radius_mm: float, inch: bool) -> float:
     return min(sizes, key=lambda r: abs(r - radius_mm))
 
 
-def shop_sheet(rib: RibAnalysis, piece: PieceAnalysis, die_notes: Sequence[str] = ()) -> str:
-    """The Markdown shop sheet of one piece."""
+class _Steps:
+    """Numbered steps that stay consecutive whatever is left out."""
+
+    def __init__(self) -> None:
+        self.count = 0
+
+    def __call__(self, text: str) -> str:
+        self.count += 1
+        return f"{self.count}. {text}"
+
+
+def _header(rib: RibAnalysis, piece: PieceAnalysis) -> list[str]:
     g, spec = piece.piece, rib.spec
     shared = spec.shared
-    inch = spec.units == "in"
     sb = piece.springback
-    xs = [p[0] for p in g.outline]
-    ys = [p[1] for p in g.outline]
-    bx = [p[0] for p in piece.blank.outer]
-    by = [p[1] for p in piece.blank.outer]
-    margin = 10.0
-    round_over = nearest_round_over(sb.die_radius_mm, inch)
-    press = piece.press
-    lines = [
+    return [
         f"# Shop sheet — {g.part_id}",
         "",
         f"Rib **{spec.id}**{' — ' + spec.title if spec.title else ''}, **{g.name}** piece, "
-        f"x = {g.x_range_mm[0]:.1f} … {g.x_range_mm[1]:.1f} mm from the leading edge. "
+        f"x = {g.x_range_mm[0]:.1f} … {g.x_range_mm[1]:.1f} mm from the leading edge; section "
+        f"**{section_label(spec)}** at {rib.geometry.chord_mm:.1f} mm chord. "
         f"Sheet **{piece.alloy.name} {_both(shared.sheet.thickness_mm)}**; flange {_both(shared.flange.height_mm)} "
         f"at inside radius {_both(sb.part_radius_mm)}.",
         "",
         "> **Caution.** " + SAFETY,
         "",
+    ]
+
+
+def _die_size(piece: PieceAnalysis) -> tuple[float, float]:
+    xs = [p[0] for p in piece.piece.outline]
+    ys = [p[1] for p in piece.piece.outline]
+    return max(xs) - min(xs), max(ys) - min(ys)
+
+
+def _blank_stock(piece: PieceAnalysis, shared) -> str:
+    bx = [p[0] for p in piece.blank.outer]
+    by = [p[1] for p in piece.blank.outer]
+    return (f"* Blank: {piece.alloy.name}, {_both(shared.sheet.thickness_mm)}, at least "
+            f"{_both(max(bx) - min(bx) + 2 * MARGIN_MM)} × {_both(max(by) - min(by) + 2 * MARGIN_MM)}; grain across "
+            "the long bend lines (the arrow on the template).")
+
+
+MARGIN_MM = 10.0  # stock left round a part for holding and trimming (common practice, no source)
+
+
+def _stock(piece: PieceAnalysis, shared, what: str) -> list[str]:
+    length, depth = _die_size(piece)
+    lines = [
         "## 1. Stock to cut",
         "",
-        f"* Die: {shared.die.material} ({piece.die_layers} layer(s) of {_both(shared.die.stock_thickness_mm)} → "
-        f"{_both(piece.die_height_mm)} high), at least {_both(max(xs) - min(xs) + 2 * margin)} × "
-        f"{_both(max(ys) - min(ys) + 2 * margin)}.",
-        f"* Blank: {piece.alloy.name}, {_both(shared.sheet.thickness_mm)}, at least "
-        f"{_both(max(bx) - min(bx) + 2 * margin)} × {_both(max(by) - min(by) + 2 * margin)}; grain across the "
-        "long bend lines (the arrow on the template).",
+        f"* Die: {shared.die.material} {what} ({piece.die_layers} layer(s) of {_both(shared.die.stock_thickness_mm)} → "
+        f"{_both(piece.die_height_mm)} high), at least {_both(length + 2 * MARGIN_MM)} × "
+        f"{_both(depth + 2 * MARGIN_MM)}.",
+        _blank_stock(piece, shared),
     ]
     if piece.die_layers > 1:
         lines.append(f"* Laminate the {piece.die_layers} layers with a rigid adhesive and align them on the dowel "
                      "holes before profiling (the layer outlines are in the die files' notes below).")
-    lines += [
+    return lines
+
+
+def _drawing_note(part: str) -> str:
+    return (f"The die drawing `{part}-die.dxf` (and `{part}-die.svg`, 1:1 in mm) holds every outline for 2D CAM on "
+            f"named layers; it is drawn as seen from the top face, so mirror it about X for a set-up with the bottom "
+            f"face up.")
+
+
+def _routed(rib: RibAnalysis, piece: PieceAnalysis) -> list[str]:
+    g, shared, sb = piece.piece, rib.spec.shared, piece.springback
+    inch = rib.spec.units == "in"
+    step = _Steps()
+    lines = _stock(piece, shared, "stock") + [
         "",
         "## 2. Router set-ups (3-axis)",
         "",
-        f"1. **Bottom face up.** Profile the outline with a **tapered bit of {sb.overbend_deg:.1f}° per side** "
-        f"so the wall leans in by the over-bend (the die angle is {sb.die_angle_deg:.1f}° so the flange springs back "
-        f"to 90°). Without a tapered bit: cut the outline straight with a ≤ {_both(shared.die.cutter_diameter_mm)} "
-        "straight bit from the top and file the undercut by hand to the bottom outline. Engrave the part id and "
-        "arrow on this face (never on the top: it would print into the web): single-stroke capitals, cut along their "
-        "centre lines with a bit as wide as the strokes.",
-        f"2. **Top face up.** Round the top edge with a **round-over bit of radius {_both(sb.die_radius_mm)}** "
-        f"(the springback-compensated die radius, not the part radius); the nearest standard bit is "
-        f"{_both(round_over)}.",
+        _drawing_note(g.part_id),
+        "",
+        step(f"**Bottom face up.** Profile the outline with a **tapered bit of {sb.overbend_deg:.1f}° per side** "
+             f"so the wall leans in by the over-bend (the die angle is {sb.die_angle_deg:.1f}° so the flange springs "
+             f"back to 90°): the wall meets the bottom face on layer `{BOTTOM_OUTLINE.name}` and the top face on "
+             f"`{TOP_OUTLINE.name}`. Without a tapered bit: cut `{TOP_OUTLINE.name}` straight with a "
+             f"≤ {_both(shared.die.cutter_diameter_mm)} straight bit from the top and file the undercut by hand to "
+             f"`{BOTTOM_OUTLINE.name}`. Engrave layer `{MARKS.name}` on this face (never on the top: it would print "
+             "into the web): single-stroke capitals, cut along their centre lines with a bit as wide as the "
+             "strokes."),
+        step(f"**Top face up.** Round the top edge with a **round-over bit of radius {_both(sb.die_radius_mm)}** "
+             f"(the springback-compensated die radius, not the part radius), from `{TOP_OUTLINE.name}` in to "
+             f"`{TOP_FLAT.name}`; the nearest standard bit is {_both(nearest_round_over(sb.die_radius_mm, inch))}."),
     ]
+    lines += _wall_features(piece, shared, step, "ball-nose bit from the side, or a round file no larger than "
+                            "that radius", "round-over")
+    return lines
+
+
+def _machined(rib: RibAnalysis, piece: PieceAnalysis) -> list[str]:
+    g, shared, sb = piece.piece, rib.spec.shared, piece.springback
+    inch = rib.spec.units == "in"
+    step = _Steps()
+    lines = _stock(piece, shared, "plate") + [
+        "",
+        "## 2. Machining set-ups (3-axis mill)",
+        "",
+        _drawing_note(g.part_id) + " Carbide end mills, not router bits; flood coolant or a lubricant mist, light "
+        "finishing passes, chips cleared (common practice, no source).",
+        "",
+        step(f"**Bottom face up.** Profile the wall with a **tapered end mill of {sb.overbend_deg:.1f}° per side** "
+             f"along `{BOTTOM_OUTLINE.name}` (the wall reaches `{TOP_OUTLINE.name}` at the top face; the die angle "
+             f"is {sb.die_angle_deg:.1f}° so the flange springs back to 90°), or rough it with a square end mill and "
+             f"finish the undercut with a ball end mill along the STEP wall. Engrave layer `{MARKS.name}` on this "
+             "face with a small ball or engraving end mill."),
+        step(f"**Top face up.** Round the top edge with a **corner-rounding end mill of radius "
+             f"{_both(sb.die_radius_mm)}** from `{TOP_OUTLINE.name}` in to `{TOP_FLAT.name}`; the nearest standard "
+             f"size is {_both(nearest_round_over(sb.die_radius_mm, inch))}."),
+    ]
+    lines += _wall_features(piece, shared, step, "ball end mill from the side, finished with a round file",
+                            "corner-rounding")
+    lines.append(step("Deburr every edge and polish the edge radius and the walls: a scratch in the die marks "
+                      "every part."))
+    return lines
+
+
+def _wall_features(piece: PieceAnalysis, shared, step: _Steps, flute_tool: str, edge_tool: str) -> list[str]:
+    g = piece.piece
+    lines = []
     if g.joggles:
-        lines.append(f"3. Joggle recesses ({len(g.joggles)}): stepped into the wall by the cap thickness with "
-                     "S-shaped run-outs; they are part of the outline and cut with it.")
+        lines.append(step(f"Joggle recesses ({len(g.joggles)}, layer `{JOGGLES.name}`): stepped into the wall by "
+                          "the cap thickness with S-shaped run-outs; they are part of the outline and cut with it."))
     if piece.flutes:
         sizes: dict[tuple[float, float], list] = {}
         for f in piece.flutes:
@@ -85,26 +164,102 @@ def shop_sheet(rib: RibAnalysis, piece: PieceAnalysis, die_notes: Sequence[str] 
                           f"{flute_arc_radius(same[0].width_mm, same[0].depth_mm):.1f} mm)"
                           for (w, d), same in sizes.items())
         lip = max(f.lip_radius_mm for f in piece.flutes)
-        lines.append(f"4. **Flutes ({len(piece.flutes)})**: grooves tapering from nothing at the top edge to full depth "
-                     f"at {_both(shared.flange.height_mm)} down: {kinds}; at the positions in the STEP file (ball-nose "
-                     "bit from the side, or a round file no larger than the arc's radius). Round each flute's lips "
-                     f"(where the groove meets the wall) to at least {_both(lip)} with a file: a sharp lip cracks the "
-                     "sheet.")
+        lines.append(step(f"**Flutes ({len(piece.flutes)}, layer `{FLUTES.name}`)**: grooves tapering from nothing at "
+                          f"the top edge to full depth at {_both(shared.flange.height_mm)} down: {kinds} "
+                          f"({flute_tool}). Round each flute's lips (where the groove meets the wall) to at least "
+                          f"{_both(lip)} with a file: a sharp lip cracks the sheet."))
     bores = [h for h in g.holes if h.flanged]
     if bores:
-        lines.append(f"5. Through bores for {len(bores)} flanged lightening hole(s), edges rounded to the die "
-                     f"radius: " + ", ".join(f"Ø{h.d:.0f} mm at ({h.x:.1f}, {h.y:.1f})" for h in bores) + ".")
+        lines.append(step(f"Through bores for {len(bores)} flanged lightening hole(s) (layer `{BORES.name}`), top "
+                          f"edges rounded to the die radius with the {edge_tool} tool: " +
+                          ", ".join(f"Ø{h.d:.0f} mm at ({h.x:.1f}, {h.y:.1f})" for h in bores) + "."))
+    return lines
+
+
+def _printed(rib: RibAnalysis, piece: PieceAnalysis) -> list[str]:
+    from diegen import materials
+
+    g, shared = piece.piece, rib.spec.shared
+    material = materials.die_material(shared.die.material)
+    info = print_json(rib, piece)
+    lines = [
+        "## 1. Printing the die",
+        "",
+        f"* Die: {material.description}, {_both(piece.die_height_mm)} high; no stock to cut and no layers to "
+        "laminate.",
+        f"* Print orientation: {PRINT_ORIENTATION}.",
+        _blank_stock(piece, shared),
+    ]
+    plan = info["print"]
+    if plan is None or plan.get("problem"):
+        length, depth = _die_size(piece)
+        lines.append(f"* **The die cannot be laid out on the bed:** {plan['problem']}." if plan else
+                     f"* Printed in one piece: the bed must take {length:.0f} × {depth:.0f} mm plus a margin.")
+        return lines
+    tiles = info["tiles"]
+    if plan["bed_mm"] is None:
+        t = tiles[0]
+        lines.append(f"* Printed in one piece of {t['size_mm'][0]:.1f} × {t['size_mm'][1]:.1f} × "
+                     f"{t['size_mm'][2]:.1f} mm (`{t['files'][1]}`): no print bed is given (`die.print_bed`), so "
+                     f"the bed must take it with {plan['bed_margin_mm']:g} mm to spare all round.")
+        return lines
+    bx, by = plan["bed_mm"]
+    lines += [
+        f"* Bed {bx:g} × {by:g} mm; every tile keeps {plan['bed_margin_mm']:g} mm from its edges: "
+        f"{plan['bed_margin_why']}.",
+        "",
+        "| tile | x from – to (mm) | length × width × height (mm) | lies along the bed's | files |",
+        "|---|---|---|---|---|",
+    ]
+    for t in tiles:
+        lines.append(f"| {t['number']} | {t['x_range_mm'][0]:.1f} – {t['x_range_mm'][1]:.1f} | "
+                     f"{t['size_mm'][0]:.1f} × {t['size_mm'][1]:.1f} × {t['size_mm'][2]:.1f} | "
+                     f"{'Y' if t['along_bed_y'] else 'X'} | `{t['files'][0]}`, `{t['files'][1]}` |")
+    lines.append("")
+    if len(tiles) > 1:
+        joints = ", ".join(f"{x:.1f}" for x in plan["joints_x_mm"])
+        dowels = "; ".join(f"x = {x:.1f}, y = {y:.1f}" for x, y, _ in plan["dowels_mm"])
+        lines += [
+            f"* Joints at x = {joints} mm (layer `{TILE_JOINTS.name}` of the die drawing). Alignment dowels "
+            f"Ø{plan['dowel_d_mm']:g} mm, {2 * plan['dowel_depth_mm']:g} mm long ({plan['dowel_depth_mm']:g} mm into "
+            f"each tile), along X at mid-height: {dowels} mm.",
+            "* Glue the tiles with the dowels in, on a flat plate with the top faces down so the top face is flush; "
+            "sand any step at a joint smooth before forming (common practice, no source).",
+            "* Each tile carries its number on its bottom face (see the notes below); no joint cuts a letter.",
+        ]
+    lines += ["* After printing: drill or ream the tooling-pin holes (see below).",
+              f"* Material: {material.machining_note}"]
+    return lines
+
+
+def shop_sheet(rib: RibAnalysis, piece: PieceAnalysis, die_notes: Sequence[str] = ()) -> str:
+    """The Markdown shop sheet of one piece: the die's section follows the way the die is made."""
+    g, spec = piece.piece, rib.spec
+    shared = spec.shared
+    press = piece.press
+    making = die_making(shared.die)
+    lines = _header(rib, piece)
+    lines += {"printed": _printed, "machined": _machined}.get(making, _routed)(rib, piece)
     lines += [
         "",
-        "## 3. Drilling",
+        "## 3. Drilling and notes from the die files" if making != "printed" else "## 2. Notes from the die files",
         "",
-        f"* Tooling pins: Ø{g.pins[0].d:.2f} mm dowels, press fit — drill the die a few hundredths under size "
-        "(or ream), blank holes at size: " + ", ".join(f"({q.x:.1f}, {q.y:.1f})" for q in g.pins) + " mm.",
+        f"* Tooling pins: Ø{g.pins[0].d:.2f} mm dowels, press fit — "
+        + ("printed holes come out a little small and rough: drill or ream the die's holes a few hundredths under "
+           "the dowel size (common practice, no source)" if making == "printed"
+           else f"drill the die (layer `{DOWEL_HOLES.name}`) a few hundredths under size (or ream)")
+        + ", blank holes at size: " + ", ".join(f"({q.x:.1f}, {q.y:.1f})" for q in g.pins) + " mm.",
     ]
     lines += [f"* {note}" for note in die_notes]
+    if making != "printed":
+        from diegen import materials
+
+        lines.append(f"* Material: {materials.die_material(shared.die.material).machining_note}")
+    number = 4 if making != "printed" else 3
+    step = _Steps()
     lines += [
         "",
-        "## 4. The blank",
+        f"## {number}. The blank",
         "",
         "* Print the PDF template at 100 % (check the 50 mm square), or cut from the DXF (CUT layer; DRILL layer for "
         "pin holes).",
@@ -113,45 +268,44 @@ def shop_sheet(rib: RibAnalysis, piece: PieceAnalysis, die_notes: Sequence[str] 
         "* Pilot holes for flanged lightening holes: " +
         (", ".join(f"Ø{c.pilot_d_mm:.1f} mm" for h, c in zip(g.holes, piece.holes) if h.flanged) or "none") + ".",
         "",
-        "## 5. Forming",
+        f"## {number + 1}. Forming",
         "",
-        "1. Wipe the die and blank; a film of lubricant (spray furniture polish or light oil) on the die walls.",
-        "2. Pin the blank to the die on the dowels, web on the top face.",
-        "3. A sacrificial rubber sheet over the blank protects the pad from the sheet's edges.",
-        f"4. Centre the die in the box (≥ {_both(shared.press.wall_clearance_mm)} from every wall), close the press "
-        f"to its rating ({shared.press.force_n / 1000:.0f} kN), hold, release.",
-        f"5. Press check: **{press.verdict.upper()}** — {press.pressure_mpa:.2f} MPa "
-        f"({mpa_to_psi(press.pressure_mpa):.0f} psi) in the box; setting the flanges on the "
-        f"{_both(sb.die_radius_mm)} die radius needs {press.needed_mpa:.2f} MPa ({mpa_to_psi(press.needed_mpa):.0f} "
-        "psi), " + (f"so expect the perimeter flange at about {press.flange_angle_deg:.0f}° (plastic-hinge model, see "
-                    "the report)." if press.fits_box else
-                    "but the die does not fit this box with the wall clearance: it cannot be pressed in it (use a "
-                    "larger box, or split the die).") +
-        f" Expect {die_life_text(shared.die.material)} from a {shared.die.material} die; {press.durometer_advice}.",
+        step("Wipe the die and blank; a film of lubricant (spray furniture polish or light oil) on the die walls."),
+        step("Pin the blank to the die on the dowels, web on the top face."),
+        step("A sacrificial rubber sheet over the blank protects the pad from the sheet's edges."),
+        step(f"Centre the die in the box (≥ {_both(shared.press.wall_clearance_mm)} from every wall), close the press "
+             f"to its rating ({shared.press.force_n / 1000:.0f} kN), hold, release."),
+        step(f"Press check: **{press.verdict.upper()}** — {press.pressure_mpa:.2f} MPa "
+             f"({mpa_to_psi(press.pressure_mpa):.0f} psi) in the box; setting the flanges on the "
+             f"{_both(piece.springback.die_radius_mm)} die radius needs {press.needed_mpa:.2f} MPa "
+             f"({mpa_to_psi(press.needed_mpa):.0f} psi), " +
+             (f"so expect the perimeter flange at about {press.flange_angle_deg:.0f}° (plastic-hinge model, see "
+              "the report)." if press.fits_box else
+              "but the die does not fit this box with the wall clearance: it cannot be pressed in it (use a "
+              "larger box, or split the die).") +
+             f" Expect {die_life_text(shared.die.material)} from a {shared.die.material} die; "
+             f"{press.durometer_advice}."),
     ]
-    step = 6
     if press.verdict != "full" and press.fits_box:
         names = ", ".join(f"{r.leg.name} (about {r.angle_deg:.0f}°)" for r in press.short_legs)
-        lines.append(f"{step}. Finish by hand over the die, with the blank still pinned: a hand seamer, or a "
-                     f"hardwood block and a soft mallet, working along the flange a little at a time: {names}.")
-        step += 1
+        lines.append(step("Finish by hand over the die, with the blank still pinned: a hand seamer, or a hardwood "
+                          f"block and a soft mallet, working along the flange a little at a time: {names}."))
     flange = piece.flange
-    check = (f"{step}. Check the flange angle (90°) and radius. Edge shrink left after relief "
+    check = (f"Check the flange angle (90°) and radius. Edge shrink left after relief "
              f"{flange.residual_shrink:.3f} at worst against a {flange.shrink_limit:.3f} wrinkle limit: "
              f"**{flange.verdict}**")
-    lines.append(check + (". " + "; or ".join(flange.remedies) + "." if flange.remedies else "."))
-    step += 1
+    lines.append(step(check + (". " + "; or ".join(flange.remedies) + "." if flange.remedies else ".")))
     if piece.alloy.name.endswith(("-O", "-W")):
-        lines.append(f"{step}. **Heat treatment.** {piece.alloy.name} is not a flight temper: the formed part must be "
-                     "solution heat-treated and aged to the temper the drawings call for, to the alloy's heat-treatment "
-                     "specification, before it is a flight part. Trial-form and check it after heat treatment: it "
-                     "distorts and its springback differs.")
+        lines.append(step(f"**Heat treatment.** {piece.alloy.name} is not a flight temper: the formed part must be "
+                          "solution heat-treated and aged to the temper the drawings call for, to the alloy's "
+                          "heat-treatment specification, before it is a flight part. Trial-form and check it after "
+                          "heat treatment: it distorts and its springback differs."))
     lines += [
         "",
-        "## 6. Warnings",
+        f"## {number + 2}. Warnings",
         "",
     ]
-    lines += [f"* {w}" for w in piece.warnings] or ["* none"]
+    lines += [f"* {w}" for w in (*piece.warnings, *rib.geometry.warnings)] or ["* none"]
     lines += [
         "",
         "---",
@@ -160,4 +314,4 @@ def shop_sheet(rib: RibAnalysis, piece: PieceAnalysis, die_notes: Sequence[str] 
         "follow the designer's drawings and the inspection the local authority requires.",
         "",
     ]
-    return "\n".join(lines)
+    return without_negative_zeros("\n".join(lines))

@@ -12,10 +12,11 @@ import numpy as np
 
 from diegen.analysis import PieceAnalysis, RibAnalysis
 from diegen.fileio import write_text, write_with
+from diegen.numbers import plain
 from diegen.spec.model import WingSpec
 from diegen.wing import chord_at, leading_edge_at, stations
 
-COLUMNS = ("rib", "station_mm", "chord_mm", "piece", "part_id", "die_length_mm", "die_depth_mm", "die_height_mm",
+COLUMNS = ("rib", "station_mm", "chord_mm", "section", "piece", "part_id", "die_length_mm", "die_depth_mm", "die_height_mm",
            "stock_layers", "blank_length_mm", "blank_width_mm", "overbend_deg", "die_radius_mm", "max_shrink",
            "max_stretch", "flutes", "notches", "press_verdict", "warnings")
 
@@ -29,7 +30,7 @@ def summary_rows(spec: WingSpec, ribs: Sequence[RibAnalysis]) -> list[dict[str, 
             outline, blank = np.asarray(p.piece.outline), np.asarray(p.blank.outer)
             rows.append({
                 "rib": station.number, "station_mm": round(station.y_mm, 1), "chord_mm": round(rib.spec.chord_mm, 1),
-                "piece": p.piece.name, "part_id": p.piece.part_id,
+                "section": rib.spec.section_label, "piece": p.piece.name, "part_id": p.piece.part_id,
                 "die_length_mm": round(float(np.ptp(outline[:, 0])), 1), "die_depth_mm": round(float(np.ptp(outline[:, 1])), 1),
                 "die_height_mm": round(p.die_height_mm, 2), "stock_layers": p.die_layers,
                 "blank_length_mm": round(float(np.ptp(blank[:, 0])), 1), "blank_width_mm": round(float(np.ptp(blank[:, 1])), 1),
@@ -38,7 +39,11 @@ def summary_rows(spec: WingSpec, ribs: Sequence[RibAnalysis]) -> list[dict[str, 
                 "flutes": len(p.flutes), "notches": len(p.notches), "press_verdict": p.press.verdict,
                 "warnings": " | ".join(str(w) for w in p.warnings),
             })
-    return rows
+    return [{k: plain(v) if isinstance(v, float) else v for k, v in row.items()} for row in rows]
+
+
+# Landscape pages, in inches: A4 297 × 210 mm (ISO 216), Letter 11 × 8.5 in.
+PAGE_IN = {"a4": (297.0 / 25.4, 210.0 / 25.4), "letter": (11.0, 8.5)}
 
 
 def write_wing_summary(spec: WingSpec, ribs: Sequence[RibAnalysis], folder: Path) -> list[Path]:
@@ -78,14 +83,15 @@ def _pdf(spec: WingSpec, ribs: Sequence[RibAnalysis], rows: list[dict[str, Any]]
     from matplotlib.backends.backend_pdf import PdfPages
     from matplotlib.figure import Figure
 
+    page = PAGE_IN[spec.paper]
     with PdfPages(path) as pdf:
-        fig = Figure(figsize=(11, 8.5))
+        fig = Figure(figsize=page)
         _planform(fig.add_subplot(1, 1, 1), spec)
         pdf.savefig(fig)
         shown = ("part_id", "station_mm", "chord_mm", "die_length_mm", "die_depth_mm", "die_height_mm", "overbend_deg",
                  "max_shrink", "max_stretch", "flutes", "press_verdict")
         for start in range(0, len(rows), 40):
-            fig = Figure(figsize=(11, 8.5))
+            fig = Figure(figsize=page)
             ax = fig.add_axes((0.03, 0.03, 0.94, 0.92))
             ax.axis("off")
             ax.set_title(f"{spec.id}: pieces {start + 1}–{min(start + 40, len(rows))} of {len(rows)}")
@@ -94,21 +100,21 @@ def _pdf(spec: WingSpec, ribs: Sequence[RibAnalysis], rows: list[dict[str, Any]]
             table.auto_set_font_size(False)
             table.set_fontsize(6)
             pdf.savefig(fig)
-        page = _PiecePage()
+        piece_page = _PiecePage(page)
         for rib in ribs:
             for p in rib.pieces:
-                page.write(pdf, p)
+                piece_page.write(pdf, rib, p)
 
 
 class _PiecePage:
     """One figure for every piece page: axes, grid, labels and legends are made once, a page adds its lines,
     is saved and takes them off again (axis limits follow each page's own lines)."""
 
-    def __init__(self) -> None:
+    def __init__(self, page: tuple[float, float]) -> None:
         from matplotlib.figure import Figure
         from matplotlib.lines import Line2D
 
-        self.fig = Figure(figsize=(11, 8.5))
+        self.fig = Figure(figsize=page)
         top = self.top = self.fig.add_axes((0.07, 0.42, 0.88, 0.5))
         top.set_aspect("equal")
         top.grid(True, lw=0.3)
@@ -122,14 +128,14 @@ class _PiecePage:
         bottom.grid(True, lw=0.3)
         bottom.legend(fontsize=7)
 
-    def write(self, pdf: Any, p: PieceAnalysis) -> None:
+    def write(self, pdf: Any, rib: RibAnalysis, p: PieceAnalysis) -> None:
         top, bottom = self.top, self.bottom
         added = []
         for points, style in ((p.blank.outer, {"color": "tab:green", "lw": 0.9}),
                               (p.piece.outline, {"color": "k", "lw": 1.2})):
             loop = np.vstack([np.asarray(points), np.asarray(points)[:1]])
             added += top.plot(loop[:, 0], loop[:, 1], **style)
-        self.title.set_text(f"{p.piece.part_id}: over-bend {p.springback.overbend_deg:.2f}°, die R "
+        self.title.set_text(f"{p.piece.part_id} ({rib.spec.section_label}): over-bend {p.springback.overbend_deg:.2f}°, die R "
                             f"{p.springback.die_radius_mm:.2f} mm, {len(p.flutes)} flute(s), press {p.press.verdict}")
         for index, run in enumerate(p.runs):
             added += bottom.plot(run.s_offset_mm + run.profile.s_mm, -run.profile.strain, lw=1, color=f"C{index % 10}")

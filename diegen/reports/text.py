@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from diegen import __version__
 from diegen.analysis import MODELS, PieceAnalysis, RibAnalysis
+from diegen.numbers import without_negative_zeros
 from diegen.reports.document import SAFETY, die_life, piece_json
 from diegen.units import MM_PER_IN, mpa_to_psi
 
@@ -63,8 +64,19 @@ def piece_text(rib: RibAnalysis, p: PieceAnalysis) -> str:
         f"(catalogue value); {pr.durometer_advice}",
         f"  blank         {d['blank']['area_mm2']:.0f} mm², perimeter {d['blank']['perimeter_mm']:.0f} mm",
     ]
+    plan = d["die"]["print"]
+    if plan is not None:
+        if plan.get("problem"):
+            lines.append(f"  printed die   cannot be laid out: {plan['problem']}")
+        elif plan["bed_mm"] is None:
+            lines.append("  printed die   in one piece (no print bed given)")
+        else:
+            joints = ", ".join(f"{x:.1f}" for x in plan["joints_x_mm"])
+            where = f"; joints at x = {joints} mm" if joints else ""
+            lines.append(f"  printed die   {len(d['die']['tiles'])} tile(s) on a {plan['bed_mm'][0]:g} × "
+                         f"{plan['bed_mm'][1]:g} mm bed{where}")
     lines += [f"  warning       {w}" for w in p.warnings]
-    return "\n".join(lines)
+    return without_negative_zeros("\n".join(lines))
 
 
 def refusals_text(refused: list[tuple[str, str]], total: int) -> str:
@@ -84,7 +96,7 @@ def rib_text(rib: RibAnalysis, footer: bool = True, shown: set[tuple] | None = N
     """The report of one rib; ``shown`` collects the findings about the spec file already printed (a wing's
     ribs share them), so each is printed once."""
     head = [f"diegen {__version__} — rib {rib.spec.id}" + (f": {rib.spec.title}" if rib.spec.title else ""),
-            f"  {rib.spec.airfoil.label}, chord {_len(rib.spec.chord_mm, rib.spec.units)}, "
+            f"  {rib.spec.section_label}, chord {_len(rib.spec.chord_mm, rib.spec.units)}, "
             f"{rib.spec.shared.sheet.alloy} {_len(rib.spec.shared.sheet.thickness_mm, rib.spec.units)}"]
     shown = set() if shown is None else shown
     for w in rib.geometry.warnings:
@@ -93,7 +105,8 @@ def rib_text(rib: RibAnalysis, footer: bool = True, shown: set[tuple] | None = N
             continue
         shown.add(key)
         head.append(f"  warning: {w.located() if w.code == 'units-suspect' else w}")
-    return "\n".join(head + [piece_text(rib, p) for p in rib.pieces] + (["", footer_text()] if footer else []))
+    return without_negative_zeros(
+        "\n".join(head + [piece_text(rib, p) for p in rib.pieces] + (["", footer_text()] if footer else [])))
 
 
 __all__ = ["die_life_text", "footer_text", "piece_text", "refusals_text", "rib_text"]

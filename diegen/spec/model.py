@@ -8,6 +8,7 @@ in the builder's own units).
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from pathlib import PurePath
 from typing import Literal
 
 from diegen.errors import Problem
@@ -60,7 +61,8 @@ class AirfoilSource:
 
     @property
     def label(self) -> str:
-        return f"NACA {self.naca}" if self.naca else str(self.file)
+        """The section as a builder names it: "NACA 2412", or the coordinate file's name."""
+        return f"NACA {self.naca}" if self.naca else PurePath(str(self.file)).name
 
 
 @dataclass(frozen=True)
@@ -212,6 +214,15 @@ class RibSpec:
     title: str = ""
     positions: SpecPositions = field(default=SpecPositions(), compare=False, repr=False)
     unit_warnings: tuple[Problem, ...] = field(default=(), compare=False, repr=False)  # see diegen.spec.plausible
+    # what the rib's section is, as the builder reads it ("NACA 2412", "62 % NACA 23015 + 38 % NACA 23012");
+    # empty: the airfoil's own label
+    section: str = ""
+    paper: str = "a4"  # paper size of the PDFs: "a4" or "letter"
+
+    @property
+    def section_label(self) -> str:
+        """The section the rib is cut from: the airfoil's file name or NACA designation, or a wing station's blend."""
+        return self.section or self.airfoil.label
 
 
 @dataclass(frozen=True)
@@ -258,6 +269,7 @@ class WingSpec:
     title: str = ""
     positions: SpecPositions = field(default=SpecPositions(), compare=False, repr=False)
     unit_warnings: tuple[Problem, ...] = field(default=(), compare=False, repr=False)  # see diegen.spec.plausible
+    paper: str = "a4"  # paper size of the PDFs: "a4" or "letter"
 
 
 Spec = RibSpec | WingSpec

@@ -80,7 +80,8 @@ ID_PATTERN = re.compile(r"^[A-Za-z0-9][A-Za-z0-9_.-]{0,63}$")
 # Matched against the stripped text; no two neighbouring parts can take the same characters (no slow backtracking).
 NACA_PATTERN = re.compile(r"^(?:naca\s*)?(?:-\s*)?(\d{4,5})$", re.IGNORECASE)
 
-HEADER_KEYS = ("diegen", "kind", "id", "units", "title")
+HEADER_KEYS = ("diegen", "kind", "id", "units", "title", "paper")
+PAPER_SIZES = ("a4", "letter")  # ISO 216 A4, 210 × 297 mm; Letter, 8.5 × 11 in
 SHARED_KEYS = ("skin_thickness", "sheet", "flange", "pieces", "lightening_holes", "hole_rules", "pins",
                "dowel_diameter", "relief", "die", "press", "joggle_runout")
 RIB_KEYS = (*HEADER_KEYS, "airfoil", "chord", "spars", *SHARED_KEYS)
@@ -119,6 +120,11 @@ def read_header(r: Reader, root: dict[str, YNode], kind: str) -> tuple[str | Non
     ident = r.text(root.get("id"), "id", _id_message)
     title = r.text(root.get("title"), "title") or ""
     return ident, title
+
+
+def read_paper(r: Reader, root: dict[str, YNode]) -> str:
+    """The paper size of every PDF the spec makes: ``paper``, by default Letter for inch specs and A4 for mm."""
+    return r.choice(root.get("paper"), "paper", PAPER_SIZES) or ("letter" if r.units == "in" else "a4")
 
 
 # -- airfoil ---------------------------------------------------------------
@@ -447,7 +453,8 @@ def read_rib(r: Reader, root: dict[str, YNode], spec_dir: Path) -> RibSpec:
     spars = read_spars(r, root.get("spars"), "spars", wing=False)
     shared = read_shared(r, root)
     check_pieces(r, root, shared.pieces, len(spars or ()))
-    return RibSpec(ident, r.units, airfoil, chord, spars, shared, r.file, title)  # type: ignore[arg-type]
+    return RibSpec(ident, r.units, airfoil, chord, spars, shared, r.file, title,  # type: ignore[arg-type]
+                   paper=read_paper(r, root))
 
 
 def read_stations(r: Reader, node: YNode | None, path: str) -> Stations | None:
@@ -512,7 +519,7 @@ def read_wing(r: Reader, root: dict[str, YNode], spec_dir: Path) -> WingSpec:
     check_pieces(r, root, shared.pieces, len(spars or ()))
     overrides = read_overrides(r, root.get("overrides"), shared)
     return WingSpec(ident, r.units, root_chord, tip_chord, span, sweep, sweep_line, stations, root_af, tip_af,  # type: ignore[arg-type]
-                    spars, orientation, shared, overrides, r.file, title)  # type: ignore[arg-type]
+                    spars, orientation, shared, overrides, r.file, title, paper=read_paper(r, root))  # type: ignore[arg-type]
 
 
 def read_overrides(r: Reader, node: YNode | None, shared: Shared) -> tuple[RibOverride, ...]:

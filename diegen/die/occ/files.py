@@ -1,4 +1,4 @@
-"""Write a piece's die files with the kernel: STEP, STL, print-bed tiles, and the laminate layers' outlines."""
+"""Write a piece's die files with the kernel: STEP, STL, the die drawing, print-bed tiles, laminate layers."""
 
 from __future__ import annotations
 
@@ -7,72 +7,90 @@ from pathlib import Path
 from typing import Any
 
 from diegen.die.die_input import DieInput
-from diegen.die.from_analysis import die_input, marks_note, pin_note
+from diegen.die.drawing import die_drawing
+from diegen.die.from_analysis import die_input, die_making, marks_note, pin_note, tile_plan
 from diegen.die.laminate import laminate_layers
+from diegen.die.model import outline_model
 from diegen.die.occ.export import write_step, write_stl
 from diegen.die.occ.form_block import build_die
-from diegen.die.occ.tiles import tile_for_bed
-from diegen.die.rules import tile_plan
-from diegen.die.tiling import TilePlan
-from diegen.errors import GeometryError, NoRoomForMarks
+from diegen.die.occ.tiles import cut_tiles
+from diegen.die.placement import PlacedMarks, fit_marks
+from diegen.die.settings import DEFAULT_SETTINGS
+from diegen.die.tiles import TileLayout, tile_file_stems
+from diegen.export.die_drawing import write_die_dxf, write_die_svg
 from diegen.export.dxf import write_outlines_dxf
 from diegen.fileio import refuse_foreign
 
 
-def write_die_files(rib: Any, piece: Any, folder: Path, claimed: bool = False) -> tuple[list[str], list[str]]:
-    """Build the die and write its files into ``folder``; return (file names, notes for the shop sheet).
+def die_file_names(part_id: str) -> list[str]:
+    """The die's own files: STEP, STL and the die drawing (DXF and SVG)."""
+    return [f"{part_id}-die.step", f"{part_id}-die.stl", f"{part_id}-die.dxf", f"{part_id}-die.svg"]
 
-    A die the analysis refused (``piece.die.refusal``) is refused here with the same message, before the kernel.
-    """
-    plan = getattr(piece, "die", None)
-    if plan is not None and plan.refusal is not None:
-        raise GeometryError(plan.refusal)
+
+def write_die_files(rib: Any, piece: Any, folder: Path, claimed: bool = False) -> tuple[list[str], list[str]]:
+    """Build the die and write its files into ``folder``; return (file names, notes for the shop sheet)."""
     die = die_input(rib, piece)
+    layout = tile_plan(rib, piece)
     part = die.part_id
     shared = rib.spec.shared
     tolerance = shared.die.stl_tolerance_mm
-    names = [f"{part}-die.step", f"{part}-die.stl"]
+    names = die_file_names(part)
     refuse_foreign([folder / n for n in names], claimed)
-    solid, marked = _build_with_marks(die)
-    write_step(solid, folder / names[0])
-    write_stl(solid, folder / names[1], tolerance_mm=tolerance)
-    notes = [marks_note(die.engraving, marked)]
+    model = outline_model(die, DEFAULT_SETTINGS)
+    marks = fit_marks(die, model, DEFAULT_SETTINGS)
+    marked = replace(die, engraving=marks.lines)
+    solid = build_die(marked, DEFAULT_SETTINGS, marks.polygons)
+    source = rib.spec.section_label + (f"; spec {Path(rib.spec.file).name}" if rib.spec.file else "")
+    write_step(solid, folder / names[0], product=part, description=f"form block {part}, mm; {source}")
+    write_stl(solid, folder / names[1], tolerance_mm=tolerance, header=part)
+    tile_names: list[str] = []
+    if layout is not None and len(layout.tiles) > 1:
+        tile_names = _write_tiles(solid, layout, part, folder, claimed, tolerance)
+    joggles = [(j.surface, j.x_start_mm, j.x_end_mm, j.depth_mm, j.ramp_mm) for j in piece.piece.joggles]
+    drawing = die_drawing(marked, model, marks, layout, joggles, f"rib {rib.spec.id}, {source}")
+    write_die_dxf(drawing, folder / names[2])
+    write_die_svg(drawing, folder / names[3])
+    notes = [marks_note(die.engraving, marks.lines)]
     if pin_note(die):
         notes.insert(0, pin_note(die))
-    if die.layer_mm:
-        names.append(_write_layers(die, die.layer_mm, folder, claimed))
+    if piece.die_layers > 1 and die_making(shared.die) != "printed":
+        names.append(_write_layers(die, shared.die.stock_thickness_mm, folder, claimed))
         notes.append(f"Laminated die: {piece.die_layers} layers; each layer's cut outline is in {names[-1]} "
                      "(layer LAYER1 on top).")
-    plan_of_tiles = tile_plan(die)
-    if plan_of_tiles is not None and die.print_bed_mm:
-        tile_names = _write_tiles(solid, plan_of_tiles, part, folder, claimed, tolerance)
+    if tile_names:
         names.extend(tile_names)
-        if len(tile_names) > 2:
-            notes.append(f"Printed die in {len(tile_names) // 2} tiles for a {die.print_bed_mm[0]:.0f} × "
-                         f"{die.print_bed_mm[1]:.0f} mm bed, with alignment dowel holes across each joint.")
+        notes.append(_tile_marks_note(layout, marks))
+        notes.append(f"Alignment dowel holes (Ø{layout.dowel_d_mm:g} mm, {2 * layout.dowel_depth_mm:g} mm long, "
+                     f"{layout.dowel_depth_mm:g} mm into each tile, at z = {layout.dowel_z_mm:.1f} mm) across the "
+                     "joints at " + "; ".join(f"x = {x:.1f}, y = {y:.1f}" for x, y, _ in layout.dowels) + " mm.")
     return names, notes
 
 
-def _build_with_marks(die: DieInput) -> tuple[Any, tuple[str, ...]]:
-    """The die solid and the engraving lines it carries: all, else the part id alone, else none."""
-    for lines in (die.engraving, die.engraving[:1], ()):
-        try:
-            return build_die(replace(die, engraving=lines)), lines
-        except NoRoomForMarks:
-            continue
-    raise AssertionError("a die without marks needs no room for them")
+def _tile_marks_note(layout: TileLayout, marks: PlacedMarks) -> str:
+    missing = [span.number for span, label in zip(layout.tiles, marks.tile_labels) if label is None]
+    engraved = [label for label in marks.tile_labels if label]
+    text = "No tile joint crosses a mark: the marks were laid out clear of the joints."
+    if engraved:
+        text += " Each tile's number is engraved on its bottom face: " + ", ".join(engraved) + "."
+    if missing:
+        count = len(layout.tiles)
+        text += (" No room to engrave the number on tile(s) " + ", ".join(str(n) for n in missing) +
+                 ": write " + ", ".join(f"{n}/{count}" for n in missing) + " on them by hand before they are parted.")
+    return text
 
 
-def _write_tiles(solid: Any, plan: TilePlan, part: str, folder: Path, claimed: bool, tolerance: float) -> list[str]:
-    tiles = tile_for_bed(solid, plan)
-    if len(tiles) == 1:
-        return []
+def _write_tiles(solid: Any, layout: TileLayout, part: str, folder: Path, claimed: bool,
+                 tolerance: float) -> list[str]:
+    stems = tile_file_stems(part, layout)
+    refuse_foreign([folder / f"{stem}.{ext}" for stem in stems for ext in ("step", "stl")], claimed)
     names = []
-    for tile in tiles:
-        stem = f"{part}-die-tile{tile.index + 1}"
-        refuse_foreign([folder / f"{stem}.step", folder / f"{stem}.stl"], claimed)
-        write_step(tile.shape, folder / f"{stem}.step")
-        write_stl(tile.shape, folder / f"{stem}.stl", tolerance_mm=tolerance)
+    count = len(layout.tiles)
+    tiles, _ = cut_tiles(solid, layout)
+    for tile, stem in zip(tiles, stems):
+        label = f"{part} tile {tile.index + 1} of {count}"
+        write_step(tile.shape, folder / f"{stem}.step", product=f"{part}-tile{tile.index + 1}",
+                   description=f"form block {part}, tile {tile.index + 1} of {count}, mm")
+        write_stl(tile.shape, folder / f"{stem}.stl", tolerance_mm=tolerance, header=label)
         names += [f"{stem}.step", f"{stem}.stl"]
     return names
 
@@ -86,4 +104,4 @@ def _write_layers(die: DieInput, stock: float, folder: Path, claimed: bool) -> s
     return name
 
 
-__all__ = ["write_die_files"]
+__all__ = ["die_file_names", "write_die_files"]

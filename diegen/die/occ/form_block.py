@@ -29,6 +29,7 @@ result raises :class:`diegen.errors.SolidError` with a hint.
 from __future__ import annotations
 
 import math
+from collections.abc import Sequence
 from dataclasses import replace
 from typing import TYPE_CHECKING, Any
 
@@ -259,9 +260,12 @@ def build_body(die: DieInput, model: OutlineModel, settings: BuildSettings = DEF
     return solid
 
 
-def build_die(die: DieInput, settings: BuildSettings = DEFAULT_SETTINGS) -> cq.Solid:
+def build_die(die: DieInput, settings: BuildSettings = DEFAULT_SETTINGS,
+              marks: Sequence[Polygon] | None = None) -> cq.Solid:
     """The finished die solid (cadquery ``Solid``), checked valid.
 
+    ``marks``: the engraving's grooves when already laid out
+    (:func:`diegen.die.placement.place_marks`); by default they are laid out here.
     Raises :class:`GeometryError` for input the die cannot follow (the
     checks of :func:`diegen.die.rules.check_die`, the same ones ``diegen
     check`` makes) and :class:`SolidError` when the kernel fails or returns an
@@ -270,7 +274,7 @@ def build_die(die: DieInput, settings: BuildSettings = DEFAULT_SETTINGS) -> cq.S
     name the part at fault.
     """
     model = check_die(die, settings)  # every refusal is the analysis's own (diegen.die.rules)
-    marks = engraving_marks(die, model, settings)
+    marks = engraving_marks(die, model, settings) if marks is None else list(marks)
     solid = build_body(die, model, settings, marks)
     problems = solid_problems(solid)
     if not problems:
