@@ -1,7 +1,13 @@
-"""Input paths that are not plain files: a located, truthful message and exit 2, never a hang.
+"""The output folder is safe, and input paths that are not plain files are refused.
 
-An airfoil ``file:`` (or the spec itself) that is a folder, a named pipe, a device or too large is refused with
-what it is and what was expected; a named pipe or device is never opened.
+* No write leaves ``<out>/<spec id>``: a piece folder or a file that is a symbolic link leading outside fails that
+  piece with a message naming the link and where it leads, the other pieces build, and the place outside is left
+  exactly as it was (nothing written, renamed or removed there).  Temporaries are created exclusively, never
+  through a link; clean-ups never remove through a link.
+* An airfoil ``file:`` (or the spec itself) that is a folder, a named pipe, a device or too large is refused with
+  what it is and what was expected; a named pipe or device is never opened.
+
+Builds use the stand-in die writer of ``conftest.py`` (the kernel is tested elsewhere).
 """
 
 from __future__ import annotations
@@ -9,16 +15,124 @@ from __future__ import annotations
 import os
 import subprocess
 import sys
+from dataclasses import replace
 from pathlib import Path
 
 import pytest
 from testing import DEMO_RIB
 
 from diegen import api, cli
-from diegen.errors import SpecError
-from diegen.fileio import UnusableInput, read_plain_file
+from diegen.errors import OutputError, SpecError
+from diegen.fileio import UnusableInput, confined_to, read_plain_file, write_text
+from diegen.pipeline.lock import remove_stale_temporaries
 
 
+def _two_pieces(spec):
+    """The demo rib with only its nose and tail (quicker; enough to show one piece failing beside another)."""
+    return replace(spec, shared=replace(spec.shared, pieces=("nose", "tail")))
+
+
+def _snapshot(folder: Path) -> dict[str, tuple[bytes, int]]:
+    """Every entry under ``folder`` (not following links): content and modification time, or the link text."""
+    found = {}
+    for path in sorted(folder.rglob("*")):
+        key = str(path.relative_to(folder))
+        if path.is_symlink():
+            found[key] = (os.readlink(path).encode(), 0)
+        elif path.is_file():
+            found[key] = (path.read_bytes(), path.stat().st_mtime_ns)
+        else:
+            found[key] = (b"<folder>", 0)
+    return found
+
+
+def _status(result) -> dict[str, str]:
+    return {o.part_id: o.status for o in result.outcomes}
+
+
+# -- no write leaves the output folder ----------------------------------------------------------------
+def test_piece_folder_linked_outside_fails_that_piece_and_leaves_the_outside_alone(tmp_path, spec, fake_solids):
+    elsewhere = tmp_path / "elsewhere"
+    elsewhere.mkdir()
+    (elsewhere / "T1-nose-blank.dxf").write_text("somebody's drawing")  # a name the nose would write
+    (tmp_path / "out" / "T1").mkdir(parents=True)
+    (tmp_path / "out" / "T1" / "T1-nose").symlink_to(elsewhere)
+    before = _snapshot(elsewhere)
+    result = api.build(_two_pieces(spec), tmp_path / "out", jobs=1, die_writer=fake_solids)
+    assert _status(result) == {"T1-nose": "failed", "T1-tail": "built"}
+    error = result.failed[0].error
+    assert error == (f"{tmp_path / 'out' / 'T1' / 'T1-nose'}: is a symbolic link to {elsewhere}, outside the output "
+                     f"folder {(tmp_path / 'out' / 'T1').resolve()}; refusing to write there")
+    assert f"FAILED     T1-nose: {error}" in result.summary()
+    assert _snapshot(elsewhere) == before
+    assert fake_solids == ["T1-tail"]  # the nose's die writer never ran
+
+
+def test_a_write_through_a_linked_folder_is_refused_before_a_temporary_is_made(tmp_path):
+    root, elsewhere = tmp_path / "root", tmp_path / "elsewhere"
+    root.mkdir()
+    elsewhere.mkdir()
+    (root / "piece").symlink_to(elsewhere)
+    with confined_to(root):
+        with pytest.raises(OutputError, match=r"piece: is a symbolic link to .*elsewhere, outside the output folder"):
+            write_text(root / "piece" / "a.txt", "x")
+        with pytest.raises(OutputError, match="outside the output folder"):
+            write_text(root / ".." / "escaped.txt", "x")
+        write_text(root / "inside" / "a.txt", "kept")  # a new folder inside is fine
+    assert list(elsewhere.iterdir()) == [] and not (tmp_path / "escaped.txt").exists()
+    assert (root / "inside" / "a.txt").read_text() == "kept"
+
+
+def test_temporaries_are_created_exclusively_never_through_a_link(tmp_path, monkeypatch):
+    """A link already at the temporary's name is neither followed nor replaced: another name is taken."""
+    names = iter(["deadbeef", "cafef00d"])
+    monkeypatch.setattr("diegen.fileio.secrets.token_hex", lambda n: next(names))
+    root = tmp_path / "root"
+    root.mkdir()
+    victim = tmp_path / "victim.txt"
+    victim.write_text("precious")
+    trap = root / ".a.deadbeef.part.txt"
+    trap.symlink_to(victim)
+    with confined_to(root):
+        write_text(root / "a.txt", "written")
+    assert victim.read_text() == "precious" and trap.is_symlink()
+    assert (root / "a.txt").read_text() == "written" and not (root / ".a.cafef00d.part.txt").exists()
+
+
+def test_clean_ups_never_remove_through_a_link(tmp_path):
+    root, elsewhere = tmp_path / "root", tmp_path / "elsewhere"
+    (root / "T1-nose").mkdir(parents=True)
+    elsewhere.mkdir()
+    outside_temporary = elsewhere / ".T1-x-die.0badc0de.part.step"  # looks like a stale temporary, but is outside
+    outside_temporary.write_text("not ours")
+    (root / "T1-tail").symlink_to(elsewhere)
+    (root / "T1-nose" / ".T1-nose-die.12345678.part.stl").symlink_to(outside_temporary)
+    stale = root / "T1-nose" / ".T1-nose-die.87654321.part.step"
+    stale.write_text("left by a killed build")
+    with confined_to(root):
+        remove_stale_temporaries(root)
+    assert not stale.exists()
+    assert outside_temporary.read_text() == "not ours"
+    assert (root / "T1-nose" / ".T1-nose-die.12345678.part.stl").is_symlink()
+
+
+def test_lock_and_manifest_that_are_links_are_refused(tmp_path, spec, fake_solids):
+    outside = tmp_path / "outside.json"
+    folder = tmp_path / "out" / "T1"
+    folder.mkdir(parents=True)
+    (folder / ".diegen.lock").symlink_to(outside)
+    with pytest.raises(OutputError, match=r"\.diegen\.lock: is a symbolic link to .*outside\.json"):
+        api.build(_two_pieces(spec), tmp_path / "out", jobs=1, die_writer=fake_solids)
+    assert not outside.exists()
+    (folder / ".diegen.lock").unlink()
+    outside.write_text("{}")
+    (folder / "manifest.json").symlink_to(outside)
+    with pytest.raises(OutputError, match=r"manifest\.json: is a symbolic link to .*outside the output folder"):
+        api.build(_two_pieces(spec), tmp_path / "out", jobs=1, die_writer=fake_solids)
+    assert outside.read_text() == "{}" and fake_solids == []
+
+
+# -- input paths that are not plain files ---------------------------------------------------------
 @pytest.fixture
 def airfoil_spec(tmp_path):
     def spec_for(airfoil: Path) -> Path:

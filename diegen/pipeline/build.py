@@ -7,6 +7,7 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from diegen.analysis import RibAnalysis
+from diegen.fileio import confined_to
 from diegen.geometry.polygon import outline_deviation_mm
 from diegen.pipeline.hashing import piece_hash, rib_input_hash
 from diegen.pipeline.jobs import Spec, rib_jobs
@@ -78,9 +79,12 @@ def _record(manifest: Manifest, task: PieceTask, result: TaskResult) -> PieceOut
 
 def build_spec(spec: Spec, out: Path, die_writer: DieWriter, warm_up: Callable[[], None] | None = None,
                force: bool = False, jobs: int | None = None, progress: bool = False) -> BuildResult:
-    """Build every piece of ``spec`` under ``out/<spec id>/``; ``die_writer`` writes each piece's die files."""
+    """Build every piece of ``spec`` under ``out/<spec id>/``; ``die_writer`` writes each piece's die files.
+
+    Nothing is written, renamed or removed outside that folder (resolved): a link that leads out fails its piece.
+    """
     folder = out / spec.id
-    with BuildLock(folder):
+    with BuildLock(folder), confined_to(folder) as root:
         remove_stale_temporaries(folder)
         manifest = Manifest.load(folder / MANIFEST)
         manifest.spec, manifest.kind = spec.id, "wing" if isinstance(spec, WingSpec) else "rib"
@@ -109,7 +113,7 @@ def build_spec(spec: Spec, out: Path, die_writer: DieWriter, warm_up: Callable[[
                     outcomes.append(PieceOutcome(part, "unchanged"))
                     continue
                 tasks.append(PieceTask(rib, job.section, index, digest))
-        _build_tasks(tasks, folder, manifest, outcomes, die_writer, warm_up, jobs, progress)
+        _build_tasks(tasks, folder, root, manifest, outcomes, die_writer, warm_up, jobs, progress)
         for rib in analyses:
             entry = manifest.ribs[rib.spec.id]
             entry.complete = all((manifest.piece(p) or PieceRecord()).status == "built" for p in entry.pieces)
@@ -125,7 +129,7 @@ def build_spec(spec: Spec, out: Path, die_writer: DieWriter, warm_up: Callable[[
     return BuildResult(folder, outcomes, warnings)
 
 
-def _build_tasks(tasks: list[PieceTask], folder: Path, manifest: Manifest, outcomes: list[PieceOutcome],
+def _build_tasks(tasks: list[PieceTask], folder: Path, root: Path, manifest: Manifest, outcomes: list[PieceOutcome],
                  die_writer: DieWriter, warm_up: Callable[[], None] | None, jobs: int | None,
                  progress: bool) -> None:
     bar = Progress(len(tasks), progress)
@@ -139,7 +143,7 @@ def _build_tasks(tasks: list[PieceTask], folder: Path, manifest: Manifest, outco
         outcomes.append(_record(manifest, task, result))
         bar.step(result.part_id)
 
-    run_tasks(tasks, folder, claimed, die_writer, warm_up, finish, jobs)
+    run_tasks(tasks, folder, root, claimed, die_writer, warm_up, finish, jobs)
 
 
 __all__ = ["BuildResult", "PieceOutcome", "build_spec"]
