@@ -4,6 +4,8 @@
   piece with a message naming the link and where it leads, the other pieces build, and the place outside is left
   exactly as it was (nothing written, renamed or removed there).  Temporaries are created exclusively, never
   through a link; clean-ups never remove through a link.
+* An ``-o`` that cannot hold the build gets a located, truthful message and exit 2 with nothing written: a file,
+  a folder that cannot be written, a path too long for the file system.
 * An airfoil ``file:`` (or the spec itself) that is a folder, a named pipe, a device or too large is refused with
   what it is and what was expected; a named pipe or device is never opened.
 
@@ -13,8 +15,10 @@ Builds use the stand-in die writer of ``conftest.py`` (the kernel is tested else
 from __future__ import annotations
 
 import os
+import shutil
 import subprocess
 import sys
+import tempfile
 from dataclasses import replace
 from pathlib import Path
 
@@ -130,6 +134,119 @@ def test_lock_and_manifest_that_are_links_are_refused(tmp_path, spec, fake_solid
     with pytest.raises(OutputError, match=r"manifest\.json: is a symbolic link to .*outside the output folder"):
         api.build(_two_pieces(spec), tmp_path / "out", jobs=1, die_writer=fake_solids)
     assert outside.read_text() == "{}" and fake_solids == []
+
+
+# -- odd output paths: located, truthful, exit 2, nothing written ------------------------------------
+def _cli(args: list[str], capsys) -> tuple[int, str]:
+    code = cli.main(args)
+    captured = capsys.readouterr()
+    assert "Traceback" not in captured.err and "internal error" not in captured.err, captured.err
+    return code, captured.err
+
+
+def test_output_that_is_a_file_exits_2_and_writes_nothing(tmp_path, capsys):
+    target = tmp_path / "out.txt"
+    target.write_text("a file")
+    before = _snapshot(tmp_path)
+    code, err = _cli(["build", str(DEMO_RIB), "-o", str(target), "-q"], capsys)
+    assert code == cli.EXIT_BAD_INPUT
+    assert err == f"error: {target}: is a file, expected a folder to write the build into (-o)\n"
+    assert _snapshot(tmp_path) == before
+
+
+def test_plots_of_check_refuse_an_output_that_is_a_file(tmp_path, capsys):
+    target = tmp_path / "out.txt"
+    target.write_text("a file")
+    code, err = _cli(["check", str(DEMO_RIB), "--plot", "-o", str(target)], capsys)
+    assert code == cli.EXIT_BAD_INPUT
+    assert err == f"error: {target}: is a file, expected a folder to write the build into (-o)\n"
+    assert target.read_text() == "a file" and [p.name for p in tmp_path.iterdir()] == ["out.txt"]
+
+
+def test_output_below_a_file_or_where_the_spec_folder_is_a_fifo(tmp_path, spec, fake_solids):
+    (tmp_path / "afile").write_text("x")
+    with pytest.raises(OutputError, match=r"afile is a file, so no folder can be made there \(-o\)"):
+        api.build(spec, tmp_path / "afile" / "out", die_writer=fake_solids)
+    (tmp_path / "out").mkdir()
+    os.mkfifo(tmp_path / "out" / "T1")
+    with pytest.raises(OutputError, match=r"out/T1: is a named pipe \(FIFO\), expected the output folder of spec"):
+        api.build(spec, tmp_path / "out", die_writer=fake_solids)
+    assert fake_solids == [] and sorted(p.name for p in tmp_path.rglob("*")) == ["T1", "afile", "out"]
+
+
+def test_output_path_too_long_exits_2_and_makes_no_folder(tmp_path, capsys):
+    long_name = tmp_path / "new" / ("x" * 300)
+    code, err = _cli(["build", str(DEMO_RIB), "-o", str(long_name), "-q"], capsys)
+    assert code == cli.EXIT_BAD_INPUT and "is 300 bytes long; this file system allows at most 255 bytes" in err
+    deep = tmp_path / "new" / "/".join(["y" * 200] * 21)
+    code, err = _cli(["build", str(DEMO_RIB), "-o", str(deep), "-q"], capsys)
+    assert code == cli.EXIT_BAD_INPUT and "too long a path for this file system" in err
+    assert "choose a shorter -o" in err and len(err) < 400  # the path is shortened in the message
+    assert list(tmp_path.iterdir()) == []
+
+
+def test_refused_build_leaves_no_empty_folder(tmp_path, fake_solids):
+    """A spec that loads but cannot be analysed (a 10 mm skin swallows a 6 % section of 300 mm chord): nothing is
+    left, not even the folders the build made on its way in."""
+    from test_refusals import rib_yaml
+
+    from diegen.errors import GeometryError
+
+    spec_path = tmp_path / "rib.yaml"
+    spec_path.write_text(rib_yaml(airfoil="naca 0006", chord=300, skin=10))
+    spec = api.load(spec_path)
+    with pytest.raises(GeometryError, match="offsetting the section"):
+        api.build(spec, tmp_path / "new" / "deeper", jobs=1, die_writer=fake_solids)
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["rib.yaml"]
+
+
+def _read_only_build(folder: Path, spec) -> str:
+    """The message of building into ``folder`` (made read-only) as a user who does not own it."""
+    from conftest import StandInDies
+
+    folder.chmod(0o555)
+    if os.geteuid() != 0:
+        with pytest.raises(OutputError) as caught:
+            api.build(spec, folder, jobs=1, die_writer=StandInDies())
+        return str(caught.value)
+    read, write = os.pipe()
+    child = os.fork()
+    if child == 0:  # the child: become the unprivileged user, try the build, report the error's text
+        message = "no error"
+        try:
+            os.close(read)
+            os.setgid(65534)
+            os.setuid(65534)
+            api.build(spec, folder, jobs=1, die_writer=StandInDies())
+        except BaseException as error:  # noqa: BLE001 - reported to the parent, which asserts on it
+            message = f"{type(error).__name__}: {error}"
+        finally:
+            os.write(write, message.encode())
+            os._exit(0)
+    os.close(write)
+    with os.fdopen(read, "rb") as pipe:
+        message = pipe.read().decode()
+    os.waitpid(child, 0)
+    return message
+
+
+@pytest.mark.skipif(not hasattr(os, "fork"), reason="needs os.fork to build as another user")
+def test_read_only_output_folder_exits_2_and_writes_nothing(spec):
+    # A folder readable by everyone (pytest's own temporary folder is private to its owner, so an unprivileged
+    # user could not even reach it).
+    base = Path(tempfile.mkdtemp(prefix="diegen-ro-"))
+    try:
+        base.chmod(0o755)
+        folder = base / "ro"
+        folder.mkdir()
+        message = _read_only_build(folder, _two_pieces(spec))
+        assert message.removeprefix("OutputError: ") == (
+            f"{folder}: folder is not writable (permission denied); choose another -o or change the folder's "
+            "permissions"), message
+        assert list(folder.iterdir()) == []
+    finally:
+        (base / "ro").chmod(0o755)
+        shutil.rmtree(base)
 
 
 # -- input paths that are not plain files ---------------------------------------------------------

@@ -9,6 +9,7 @@ from pathlib import Path
 from diegen.analysis import RibAnalysis
 from diegen.fileio import confined_to
 from diegen.geometry.polygon import outline_deviation_mm
+from diegen.pipeline.folder import check_output_folder
 from diegen.pipeline.hashing import piece_hash, rib_input_hash
 from diegen.pipeline.jobs import Spec, rib_jobs
 from diegen.pipeline.lock import BuildLock, remove_stale_temporaries
@@ -81,9 +82,13 @@ def build_spec(spec: Spec, out: Path, die_writer: DieWriter, warm_up: Callable[[
                force: bool = False, jobs: int | None = None, progress: bool = False) -> BuildResult:
     """Build every piece of ``spec`` under ``out/<spec id>/``; ``die_writer`` writes each piece's die files.
 
-    Nothing is written, renamed or removed outside that folder (resolved): a link that leads out fails its piece.
+    Nothing is written, renamed or removed outside that folder (resolved): a link that leads out fails its
+    piece.  An ``out`` that cannot hold the build is refused (:class:`OutputError`) before anything is made.
     """
     folder = out / spec.id
+    jobs_of_spec = list(rib_jobs(spec))
+    check_output_folder(out, spec.id, (f"{job.rib.id}-{name}" for job in jobs_of_spec
+                                       for name in job.rib.shared.pieces))
     with BuildLock(folder), confined_to(folder) as root:
         remove_stale_temporaries(folder)
         manifest = Manifest.load(folder / MANIFEST)
@@ -92,7 +97,6 @@ def build_spec(spec: Spec, out: Path, die_writer: DieWriter, warm_up: Callable[[
         tasks: list[PieceTask] = []
         warnings: list[str] = []
         analyses: list[RibAnalysis] = []
-        jobs_of_spec = list(rib_jobs(spec))
         for job in jobs_of_spec:
             key = rib_input_hash(job.rib, job.section)
             rib_entry = manifest.ribs.get(job.rib.id)
