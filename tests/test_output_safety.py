@@ -4,6 +4,8 @@
   piece with a message naming the link and where it leads, the other pieces build, and the place outside is left
   exactly as it was (nothing written, renamed or removed there).  Temporaries are created exclusively, never
   through a link; clean-ups never remove through a link.
+* The manifest vouches for content: every file's size and SHA-256 are recorded, and a file truncated, edited or
+  replaced on disk makes its piece be rebuilt, with the file and the reason in the summary.
 * An ``-o`` that cannot hold the build gets a located, truthful message and exit 2 with nothing written: a file,
   a folder that cannot be written, a path too long for the file system.
 * An airfoil ``file:`` (or the spec itself) that is a folder, a named pipe, a device or too large is refused with
@@ -14,6 +16,7 @@ Builds use the stand-in die writer of ``conftest.py`` (the kernel is tested else
 
 from __future__ import annotations
 
+import json
 import os
 import shutil
 import subprocess
@@ -29,6 +32,7 @@ from diegen import api, cli
 from diegen.errors import OutputError, SpecError
 from diegen.fileio import UnusableInput, confined_to, read_plain_file, write_text
 from diegen.pipeline.lock import remove_stale_temporaries
+from diegen.pipeline.manifest import RACY_NS, FileStamp
 
 
 def _two_pieces(spec):
@@ -70,6 +74,42 @@ def test_piece_folder_linked_outside_fails_that_piece_and_leaves_the_outside_alo
     assert f"FAILED     T1-nose: {error}" in result.summary()
     assert _snapshot(elsewhere) == before
     assert fake_solids == ["T1-tail"]  # the nose's die writer never ran
+
+
+def test_piece_folder_swapped_for_a_link_after_a_build_is_not_trusted(tmp_path, spec, fake_solids):
+    """The nose's folder moved elsewhere and linked back: the manifest no longer vouches for it, the rebuild
+    refuses to write through the link, and the moved files (now outside) are neither rewritten nor removed."""
+    out = tmp_path / "out"
+    api.build(_two_pieces(spec), out, jobs=1, die_writer=fake_solids)
+    elsewhere = tmp_path / "elsewhere"
+    shutil.move(out / "T1" / "T1-nose", elsewhere)
+    (out / "T1" / "T1-nose").symlink_to(elsewhere)
+    before = _snapshot(elsewhere)
+    result = api.build(_two_pieces(spec), out, jobs=1, die_writer=fake_solids)
+    assert _status(result) == {"T1-nose": "failed", "T1-tail": "unchanged"}
+    assert "T1-nose: is a symbolic link to" in result.failed[0].error
+    assert _snapshot(elsewhere) == before
+
+
+def test_file_linked_outside_fails_its_piece(tmp_path, spec, fake_solids):
+    out = tmp_path / "out"
+    api.build(_two_pieces(spec), out, jobs=1, die_writer=fake_solids)
+    outside = tmp_path / "outside.svg"
+    outside.write_text("not diegen's")
+    svg = out / "T1" / "T1-tail" / "T1-tail-blank.svg"
+    svg.unlink()
+    svg.symlink_to(Path("..") / ".." / ".." / "outside.svg")  # relative: leads to tmp_path/outside.svg
+    fake_solids.clear()
+    result = api.build(_two_pieces(spec), out, jobs=1, die_writer=fake_solids)
+    assert _status(result) == {"T1-nose": "unchanged", "T1-tail": "failed"}
+    assert result.failed[0].error == (f"{svg}: is a symbolic link to ../../../outside.svg (that is, {outside}), "
+                                      f"outside the output folder {(out / 'T1').resolve()}; refusing to write there")
+    assert outside.read_text() == "not diegen's" and svg.is_symlink()
+    assert fake_solids == []  # refused before anything was written
+    # the files written before are left as they were, and the manifest no longer lists them as built
+    manifest = json.loads((out / "T1" / "manifest.json").read_text())
+    assert manifest["pieces"]["T1-tail"]["status"] == "failed"
+    assert (out / "T1" / "T1-tail" / "T1-tail-die.step").is_file()
 
 
 def test_a_write_through_a_linked_folder_is_refused_before_a_temporary_is_made(tmp_path):
@@ -134,6 +174,74 @@ def test_lock_and_manifest_that_are_links_are_refused(tmp_path, spec, fake_solid
     with pytest.raises(OutputError, match=r"manifest\.json: is a symbolic link to .*outside the output folder"):
         api.build(_two_pieces(spec), tmp_path / "out", jobs=1, die_writer=fake_solids)
     assert outside.read_text() == "{}" and fake_solids == []
+
+
+# -- the manifest vouches for content ------------------------------------------------------------------
+def test_manifest_records_size_and_sha256_of_every_file(tmp_path, spec, fake_solids):
+    import hashlib
+
+    api.build(_two_pieces(spec), tmp_path, jobs=1, die_writer=fake_solids)
+    manifest = json.loads((tmp_path / "T1" / "manifest.json").read_text())
+    for part, entry in manifest["pieces"].items():
+        assert set(entry["stamps"]) == set(entry["files"]) and entry["files"]
+        for name, stamp in entry["stamps"].items():
+            data = (tmp_path / "T1" / part / name).read_bytes()
+            assert stamp["size"] == len(data) and stamp["sha256"] == hashlib.sha256(data).hexdigest()
+
+
+def test_truncated_die_file_is_rebuilt_and_the_summary_says_why(tmp_path, spec, fake_solids):
+    api.build(_two_pieces(spec), tmp_path, jobs=1, die_writer=fake_solids)
+    die = tmp_path / "T1" / "T1-nose" / "T1-nose-die.step"
+    good = die.read_bytes()
+    die.write_bytes((good * 10)[:100])  # the stand-in die is short: make it 100 bytes of something else
+    assert die.stat().st_size == 100 != len(good)
+    fake_solids.clear()
+    result = api.build(_two_pieces(spec), tmp_path, jobs=1, die_writer=fake_solids)
+    assert _status(result) == {"T1-nose": "built", "T1-tail": "unchanged"} and fake_solids == ["T1-nose"]
+    assert (f"built      T1-nose (T1-nose-die.step changed on disk since it was written: 100 bytes, {len(good)} "
+            "when written;") in result.summary()
+    assert die.read_bytes() == good
+    fake_solids.clear()
+    assert _status(api.build(_two_pieces(spec), tmp_path, jobs=1, die_writer=fake_solids)) == {
+        "T1-nose": "unchanged", "T1-tail": "unchanged"}
+
+
+def test_edited_file_of_the_same_size_is_rebuilt(tmp_path, spec, fake_solids):
+    api.build(_two_pieces(spec), tmp_path, jobs=1, die_writer=fake_solids)
+    sheet = tmp_path / "T1" / "T1-tail" / "T1-tail-sheet.md"
+    good = sheet.read_text()
+    sheet.write_text(good.replace("Caution", "CAUTION", 1))  # same size, other content
+    assert sheet.stat().st_size == len(good.encode())
+    fake_solids.clear()
+    result = api.build(_two_pieces(spec), tmp_path, jobs=1, die_writer=fake_solids)
+    assert _status(result) == {"T1-nose": "unchanged", "T1-tail": "built"}
+    assert ("T1-tail (T1-tail-sheet.md changed on disk since it was written: its SHA-256 differs from the one "
+            "recorded;") in result.summary()
+    assert sheet.read_text() == good
+
+
+def test_missing_file_is_named_in_the_summary(tmp_path, spec, fake_solids):
+    api.build(_two_pieces(spec), tmp_path, jobs=1, die_writer=fake_solids)
+    (tmp_path / "T1" / "T1-tail" / "T1-tail-blank.pdf").unlink()
+    result = api.build(_two_pieces(spec), tmp_path, jobs=1, die_writer=fake_solids)
+    assert "built      T1-tail (T1-tail-blank.pdf is missing;" in result.summary()
+
+
+def test_unchanged_files_are_hashed_only_when_size_or_time_moved(tmp_path, monkeypatch):
+    """The cost rule: size and modification time as recorded (and recorded well after the file's last change)
+    means the file is not read again; a touched file is read once, then trusted with its new time."""
+    path = tmp_path / "a.bin"
+    path.write_bytes(b"x" * 1000)
+    stamp = FileStamp.of(path)
+    reads = []
+    real = __import__("diegen.pipeline.manifest", fromlist=["_sha256"])._sha256
+    monkeypatch.setattr("diegen.pipeline.manifest._sha256", lambda p: reads.append(p) or real(p))
+    assert stamp.check(path) == "" and len(reads) == 1  # just written: within the same clock step, so read
+    stamp.hashed_ns = stamp.mtime_ns + RACY_NS + 1  # as if hashed long after the last write
+    assert stamp.check(path) == "" and len(reads) == 1  # size and time as recorded: not read
+    os.utime(path, ns=(stamp.mtime_ns + 10**9, stamp.mtime_ns + 10**9))
+    assert stamp.check(path) == "" and len(reads) == 2  # touched, content the same: read, and the time kept
+    assert stamp.mtime_ns == path.stat().st_mtime_ns
 
 
 # -- odd output paths: located, truthful, exit 2, nothing written ------------------------------------
@@ -249,7 +357,7 @@ def test_read_only_output_folder_exits_2_and_writes_nothing(spec):
         shutil.rmtree(base)
 
 
-# -- input paths that are not plain files ---------------------------------------------------------
+# -- input paths that are not plain files -------------------------------------------------------------------
 @pytest.fixture
 def airfoil_spec(tmp_path):
     def spec_for(airfoil: Path) -> Path:

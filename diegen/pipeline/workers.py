@@ -11,7 +11,7 @@ import sys
 import time
 from collections.abc import Callable, Sequence
 from concurrent.futures import FIRST_COMPLETED, Future, ProcessPoolExecutor, wait
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from pathlib import Path
 
 import numpy as np
@@ -20,6 +20,7 @@ from diegen.analysis import RibAnalysis, analyse_rib
 from diegen.errors import DiegenError
 from diegen.fileio import confined_to, inside, reason, remove_empty_folder, remove_file
 from diegen.pipeline.hashing import rib_input_hash
+from diegen.pipeline.manifest import FileStamp
 from diegen.pipeline.outputs import DieWriter, write_piece
 from diegen.spec.model import RibSpec
 
@@ -52,12 +53,13 @@ class PieceTask:
 
 @dataclass(frozen=True)
 class TaskResult:
-    """What a worker sends back: the files written, or the error; the time it took (s)."""
+    """What a worker sends back: the files written and their stamps, or the error; the time it took (s)."""
 
     part_id: str
     files: tuple[str, ...]
     error: str
     seconds: float
+    stamps: dict[str, FileStamp] = field(default_factory=dict)
 
 
 def build_piece(rib_spec: RibSpec, section: np.ndarray | None, index: int, folder: str, root: str, claimed: bool,
@@ -77,7 +79,8 @@ def build_piece(rib_spec: RibSpec, section: np.ndarray | None, index: int, folde
             inside(target)  # the piece folder itself (a link, say) must lead inside: checked before it is listed
             existed = _files_in(target)
             files = write_piece(rib, piece, target, die_writer, claimed)
-            return TaskResult(part, files, "", time.perf_counter() - start)
+            stamps = {name: FileStamp.of(target / name) for name in files}
+            return TaskResult(part, files, "", time.perf_counter() - start, stamps)
         except (DiegenError, OSError) as error:
             if existed is not None or _is_new_folder(target):
                 _remove_new_files(target, existed)
