@@ -78,7 +78,8 @@ def _escape(path: Path, real: Path, root: Path) -> str:
             if not _is_within(Path(target), root) and not _is_within(root, Path(target)):
                 link = os.readlink(prefix)
                 leads = link if link == target else f"{link} (that is, {target})"
-                return f"{prefix}: is a symbolic link to {leads}, outside the output folder {root}; refusing to write there"
+                return (f"{prefix}: is a symbolic link to {leads}, outside the output folder {root}; refusing to "
+                        "write there")
     return f"{path}: leads to {real}, outside the output folder {root}; refusing to write there"
 
 

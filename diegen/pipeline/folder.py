@@ -79,12 +79,13 @@ def _check_lengths(out: Path, spec_id: str, existing: Path, longest_part: str) -
         size = len(os.fsencode(part))
         if size > name_max:
             shown = part if len(part) <= 40 else part[:37] + "..."
-            raise OutputError(f"{_shown(absolute, out, spec_id)}: the name {shown!r} is {size} bytes long; this file system allows at most "
-                              f"{name_max} bytes in a name (-o)")
+            raise OutputError(f"{_shown(absolute, out, spec_id)}: the name {shown!r} is {size} bytes long; this file "
+                              f"system allows at most {name_max} bytes in a name (-o)")
     size = len(os.fsencode(folder / longest_part / longest_file_name(longest_part)))
     if size >= path_max:
-        raise OutputError(f"{_shown(absolute, out, spec_id)}: too long a path for this file system: the build's deepest file would have a "
-                          f"path of {size} bytes, and the limit is {path_max - 1}; choose a shorter -o")
+        raise OutputError(f"{_shown(absolute, out, spec_id)}: too long a path for this file system: the build's "
+                          f"deepest file would have a path of {size} bytes, and the limit is {path_max - 1}; choose a "
+                          "shorter -o")
 
 
 def _shown(path: Path, out: Path, spec_id: str) -> str:
