@@ -102,7 +102,7 @@ def _run(args: argparse.Namespace) -> int:
         else:
             print(api.report_text(analysis))
         if args.plot:
-            for path in api.write_plots(analysis, args.out):
+            for path in _write_plots(analysis, args.out):
                 print(f"plot: {path}")
         return EXIT_FAILED_PIECES if api.refused_pieces(analysis) else EXIT_OK
     if args.command == "diff":
@@ -115,6 +115,20 @@ def _run(args: argparse.Namespace) -> int:
         print(result.summary())
         return EXIT_FAILED_PIECES if result.failed else EXIT_OK
     raise AssertionError(args.command)
+
+
+def _write_plots(analysis, out: Path) -> list[Path]:
+    """The plots of ``check --plot``, kept inside ``out/<spec id>`` as a build's files are."""
+    from diegen import api
+    from diegen.fileio import confined_to
+    from diegen.pipeline.folder import check_output_folder
+    from diegen.pipeline.jobs import rib_analyses
+    from diegen.pipeline.lock import BuildLock
+
+    folder = out / analysis.spec.id
+    check_output_folder(out, analysis.spec.id, [p.piece.part_id for r in rib_analyses(analysis) for p in r.pieces])
+    with BuildLock(folder), confined_to(folder):
+        return api.write_plots(analysis, out)
 
 
 def main(argv: Sequence[str] | None = None) -> int:

@@ -222,7 +222,7 @@ def test_reject_huge_text_and_too_many_points(tmp_path: Path) -> None:
     big = tmp_path / "big.dat"
     with open(big, "wb") as handle:
         handle.truncate(MAX_FILE_BYTES + 10)  # sparse: refused before reading
-    with pytest.raises(AirfoilError, match=rf"^{re.escape(str(big))}:1: .*MB limit"):
+    with pytest.raises(AirfoilError, match=rf"^{re.escape(str(big))}: file is {MAX_FILE_BYTES + 10} bytes, .*5 MB"):
         read_coordinates(big)
 
 
@@ -240,7 +240,7 @@ def test_garbage_gives_only_airfoil_errors(text: str) -> None:
 
 
 def test_reject_missing_file(tmp_path: Path) -> None:
-    with pytest.raises(AirfoilError, match=r"missing\.dat:1: cannot read"):
+    with pytest.raises(AirfoilError, match=r"missing\.dat: file not found, expected a plain-text airfoil"):
         read_coordinates(tmp_path / "missing.dat")
 
 

@@ -17,8 +17,11 @@ error.  Comments start with ``#``; blank lines are ignored; numbers may be
 separated by spaces, tabs, commas or semicolons.  Data in percent of chord (any value above
 1.5) is divided by 100.  The result follows the loop convention of
 :mod:`diegen.geometry.section` (chord 1, LE at (0, 0), counter-clockwise Selig
-order).  Every rejection is an :class:`~diegen.errors.AirfoilError` whose message
-starts with ``file:line:``.
+order).  Every rejection of the content is an :class:`~diegen.errors.AirfoilError`
+whose message starts with ``file:line:``; a path that is not a plain file of at
+most :data:`MAX_FILE_BYTES` (missing, a folder, a named pipe, a device, too
+large, unreadable) is refused as ``file: what it is, what was expected``,
+without opening a pipe or device.
 """
 
 from __future__ import annotations
@@ -32,6 +35,7 @@ import numpy as np
 
 from diegen.errors import AirfoilError
 from diegen.geometry.loops import FloatArray, IntArray
+from diegen.fileio import UnusableInput, read_plain_file
 from diegen.geometry.section import (
     MIN_POINTS,
     first_x_reversal,
@@ -51,6 +55,7 @@ __all__ = [
 ]
 
 MAX_FILE_BYTES = 5 * 1024 * 1024  # size guard: refuse larger files unread
+EXPECTED = "a plain-text airfoil coordinate file"
 MAX_POINTS = 100_000  # size guard: refuse files with more coordinate rows
 PERCENT_THRESHOLD = 1.5  # any |value| above this means the data is in percent of chord
 X_REVERSAL_TOL = 1e-3  # a surface may step back in x by at most this (fraction of chord)
@@ -207,10 +212,7 @@ def read_coordinates(path: str | os.PathLike[str]) -> FloatArray:
     """Read an airfoil coordinate file (either layout) into a normalised loop (N, 2)."""
     p = Path(path)
     try:
-        size = p.stat().st_size
-        if size > MAX_FILE_BYTES:
-            raise AirfoilError(f"{p}:1: file is {size} bytes, over the {MAX_FILE_BYTES // 2**20} MB limit")
-        raw = p.read_bytes()
-    except OSError as exc:
-        raise AirfoilError(f"{p}:1: cannot read the file ({exc.strerror or exc})") from None
+        raw = read_plain_file(p, MAX_FILE_BYTES, EXPECTED)
+    except UnusableInput as error:
+        raise AirfoilError(str(error)) from None
     return parse_coordinates(raw.decode("utf-8", errors="replace"), name=str(p))

@@ -7,9 +7,11 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from diegen.analysis import RibAnalysis
+from diegen.fileio import confined_to
 from diegen.findings import Finding
 from diegen.geometry.polygon import outline_deviation_mm
 from diegen.locate import refusals_located
+from diegen.pipeline.folder import check_output_folder
 from diegen.pipeline.hashing import piece_hash, rib_input_hash
 from diegen.pipeline.jobs import Spec, rib_jobs
 from diegen.pipeline.lock import BuildLock, remove_stale_temporaries
@@ -28,6 +30,7 @@ class PieceOutcome:
     error: str = ""
     deviation_mm: float | None = None  # largest die-outline change from the previous build
     seconds: float = 0.0
+    reason: str = ""  # why a piece whose inputs did not change was rebuilt (a file changed on disk, ...)
 
 
 @dataclass
@@ -45,7 +48,8 @@ class BuildResult:
         same = [o for o in self.outcomes if o.status == "unchanged"]
         lines = [f"{len(built)} piece(s) built, {len(same)} unchanged, {len(self.failed)} failed → {self.folder}"]
         for o in built:
-            change = "new" if o.deviation_mm is None else f"die outline moved up to {o.deviation_mm:.3f} mm"
+            change = (o.reason if o.reason else "new" if o.deviation_mm is None
+                      else f"die outline moved up to {o.deviation_mm:.3f} mm")
             lines.append(f"  built      {o.part_id} ({change}; {o.seconds:.1f} s)")
         if same and built:
             lines.append(f"  unchanged  {', '.join(o.part_id for o in same)}")
@@ -56,7 +60,7 @@ class BuildResult:
         return "\n".join(lines)
 
 
-def _record(manifest: Manifest, task: PieceTask, result: TaskResult) -> PieceOutcome:
+def _record(manifest: Manifest, task: PieceTask, result: TaskResult, reason: str) -> PieceOutcome:
     rib, piece = task.rib, task.rib.pieces[task.index]
     part = piece.piece.part_id
     old = manifest.piece(part)
@@ -66,6 +70,7 @@ def _record(manifest: Manifest, task: PieceTask, result: TaskResult) -> PieceOut
     manifest.pieces[part] = PieceRecord(
         rib=rib.spec.id, piece=piece.piece.name, hash="" if failed else task.digest,
         status="failed" if failed else "built", error=result.error, files=list(result.files),
+        stamps=dict(result.stamps),
         outline=[[round(x, 4), round(y, 4)] for x, y in piece.piece.outline],
         numbers={"chord_mm": numbers["chord_mm"], "bend": numbers["bend"], "die": numbers["die"],
                  "blank": numbers["blank"], "press": numbers["press"],
@@ -75,33 +80,50 @@ def _record(manifest: Manifest, task: PieceTask, result: TaskResult) -> PieceOut
         warnings=[w.as_json() for w in piece.warnings],
     )
     manifest.save()
-    return PieceOutcome(part, "failed" if failed else "built", result.files, result.error, deviation, result.seconds)
+    return PieceOutcome(part, "failed" if failed else "built", result.files, result.error, deviation, result.seconds,
+                        reason)
 
 
 def build_spec(spec: Spec, out: Path, die_writer: DieWriter, warm_up: Callable[[], None] | None = None,
                force: bool = False, jobs: int | None = None, progress: bool = False) -> BuildResult:
-    """Build every piece of ``spec`` under ``out/<spec id>/``; ``die_writer`` writes each piece's die files."""
+    """Build every piece of ``spec`` under ``out/<spec id>/``; ``die_writer`` writes each piece's die files.
+
+    Nothing is written, renamed or removed outside that folder (resolved): a link that leads out fails its
+    piece.  An ``out`` that cannot hold the build is refused (:class:`OutputError`) before anything is made.
+    """
     folder = out / spec.id
-    with BuildLock(folder):
+    with refusals_located(spec):
+        jobs_of_spec = list(rib_jobs(spec))
+    check_output_folder(out, spec.id, (f"{job.rib.id}-{name}" for job in jobs_of_spec
+                                       for name in job.rib.shared.pieces))
+    with BuildLock(folder), confined_to(folder) as root:
         remove_stale_temporaries(folder)
         manifest = Manifest.load(folder / MANIFEST)
-        manifest.spec, manifest.kind = spec.id, "wing" if isinstance(spec, WingSpec) else "rib"
+        kind = "wing" if isinstance(spec, WingSpec) else "rib"
+        changed = (manifest.spec, manifest.kind) != (spec.id, kind)
+        manifest.spec, manifest.kind = spec.id, kind
         outcomes: list[PieceOutcome] = []
         tasks: list[PieceTask] = []
         refused: list[PieceTask] = []
+        reasons: dict[str, str] = {}
         warnings: list[Finding] = []
         analyses: list[RibAnalysis] = []
-        with refusals_located(spec):
-            jobs_of_spec = list(rib_jobs(spec))
+
+        def stale(part: str) -> str:
+            if part not in reasons:
+                reasons[part] = manifest.stale(folder, part)
+            return reasons[part]
+
         for job in jobs_of_spec:
             key = rib_input_hash(job.rib, job.section)
             rib_entry = manifest.ribs.get(job.rib.id)
             if (not force and rib_entry and rib_entry.input_hash == key
-                    and all(manifest.files_ok(folder, p) for p in rib_entry.pieces)):
+                    and not any(stale(p) for p in rib_entry.pieces)):
                 outcomes.extend(PieceOutcome(p, "unchanged") for p in rib_entry.pieces)
                 warnings.extend(Finding.from_json(w) for p in rib_entry.pieces for w in manifest.pieces[p].warnings)
                 continue
-            rib = analysed(job.rib, job.section)
+            with refusals_located(spec):
+                rib = analysed(job.rib, job.section)
             analyses.append(rib)
             manifest.ribs[job.rib.id] = RibRecord(key, [p.piece.part_id for p in rib.pieces])
             for index, piece in enumerate(rib.pieces):
@@ -109,24 +131,29 @@ def build_spec(spec: Spec, out: Path, die_writer: DieWriter, warm_up: Callable[[
                 digest = piece_hash(rib, piece)
                 entry = manifest.piece(part)
                 warnings.extend(piece.warnings)
-                if not force and entry and entry.hash == digest and manifest.files_ok(folder, part):
+                same_inputs = not force and entry is not None and entry.hash == digest
+                if same_inputs and not stale(part):
                     outcomes.append(PieceOutcome(part, "unchanged"))
                     continue
                 task = PieceTask(rib, job.section, index, digest)
                 if piece.die is not None and not piece.die.buildable:  # check refused it: no kernel call
                     refused.append(task)
-                else:
-                    tasks.append(task)
+                    continue
+                tasks.append(task)
+                # say why when nothing the piece is made from changed: a file changed on disk, a failed attempt
+                unfinished = entry is not None and entry.status != "built"
+                reasons[part] = stale(part) if same_inputs or (unfinished and not force) else ""
         for task in refused:
             plan = task.rib.pieces[task.index].die
-            outcomes.append(_record(manifest, task, TaskResult(task.part_id, (), plan.refusal or "", 0.0)))
-        _build_tasks(tasks, folder, manifest, outcomes, die_writer, warm_up, jobs, progress)
+            outcomes.append(_record(manifest, task, TaskResult(task.part_id, (), plan.refusal or "", 0.0), ""))
+        _build_tasks(tasks, folder, root, manifest, outcomes, reasons, die_writer, warm_up, jobs, progress)
         for rib in analyses:
             entry = manifest.ribs[rib.spec.id]
             entry.complete = all((manifest.piece(p) or PieceRecord()).status == "built" for p in entry.pieces)
             if not entry.complete:
                 entry.input_hash = ""  # re-analyse next time
-        manifest.save()
+        if tasks or refused or analyses or changed or manifest.dirty:
+            manifest.save()
         if isinstance(spec, WingSpec) and (tasks or refused or not (folder / "summary.csv").is_file()):
             from diegen.reports.summary import write_wing_summary
 
@@ -136,9 +163,11 @@ def build_spec(spec: Spec, out: Path, die_writer: DieWriter, warm_up: Callable[[
     return BuildResult(folder, outcomes, warnings)
 
 
-def _build_tasks(tasks: list[PieceTask], folder: Path, manifest: Manifest, outcomes: list[PieceOutcome],
-                 die_writer: DieWriter, warm_up: Callable[[], None] | None, jobs: int | None,
-                 progress: bool) -> None:
+def _build_tasks(tasks: list[PieceTask], folder: Path, root: Path, manifest: Manifest, outcomes: list[PieceOutcome],
+                 reasons: dict[str, str], die_writer: DieWriter, warm_up: Callable[[], None] | None,
+                 jobs: int | None, progress: bool) -> None:
+    if not tasks:
+        return
     bar = Progress(len(tasks), progress)
     claimed = {t.part_id: manifest.piece(t.part_id) is not None for t in tasks}
     for task in tasks:  # claim every piece before writing, so an interrupted piece's files stay ours
@@ -147,10 +176,10 @@ def _build_tasks(tasks: list[PieceTask], folder: Path, manifest: Manifest, outco
     manifest.save()
 
     def finish(task: PieceTask, result: TaskResult) -> None:
-        outcomes.append(_record(manifest, task, result))
+        outcomes.append(_record(manifest, task, result, reasons.get(task.part_id, "")))
         bar.step(result.part_id)
 
-    run_tasks(tasks, folder, claimed, die_writer, warm_up, finish, jobs)
+    run_tasks(tasks, folder, root, claimed, die_writer, warm_up, finish, jobs)
 
 
 __all__ = ["BuildResult", "PieceOutcome", "build_spec"]

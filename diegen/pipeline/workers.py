@@ -11,7 +11,7 @@ import sys
 import time
 from collections.abc import Callable, Sequence
 from concurrent.futures import FIRST_COMPLETED, Future, ProcessPoolExecutor, wait
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from pathlib import Path
 
 import numpy as np
@@ -19,7 +19,9 @@ import numpy as np
 from diegen.analysis import RibAnalysis
 from diegen.locate import analyse_located
 from diegen.errors import DiegenError
+from diegen.fileio import confined_to, inside, reason, remove_empty_folder, remove_file
 from diegen.pipeline.hashing import rib_input_hash
+from diegen.pipeline.manifest import FileStamp
 from diegen.pipeline.outputs import DieWriter, write_piece
 from diegen.spec.model import RibSpec
 
@@ -52,47 +54,68 @@ class PieceTask:
 
 @dataclass(frozen=True)
 class TaskResult:
-    """What a worker sends back: the files written, or the error; the time it took (s)."""
+    """What a worker sends back: the files written and their stamps, or the error; the time it took (s)."""
 
     part_id: str
     files: tuple[str, ...]
     error: str
     seconds: float
+    stamps: dict[str, FileStamp] = field(default_factory=dict)
 
 
-def build_piece(rib_spec: RibSpec, section: np.ndarray | None, index: int, folder: str, claimed: bool,
+def build_piece(rib_spec: RibSpec, section: np.ndarray | None, index: int, folder: str, root: str, claimed: bool,
                 die_writer: DieWriter) -> TaskResult:
-    """Worker entry point: analyse the rib (once per process) and write one piece."""
+    """Worker entry point: analyse the rib (once per process) and write one piece.
+
+    Every path written or removed must lie inside ``root`` (the resolved output folder, :mod:`diegen.fileio`).
+    """
     start = time.perf_counter()
     rib = analysed(rib_spec, section)
     piece = rib.pieces[index]
-    target = Path(folder) / piece.piece.part_id
-    existed = _files_in(target)
-    try:
-        files = write_piece(rib, piece, target, die_writer, claimed)
-        return TaskResult(piece.piece.part_id, files, "", time.perf_counter() - start)
-    except DiegenError as error:
-        _remove_new_files(target, existed)
-        return TaskResult(piece.piece.part_id, (), str(error), time.perf_counter() - start)
+    part = piece.piece.part_id
+    target = Path(folder) / part
+    existed: set[str] | None = None
+    with confined_to(root):
+        try:
+            inside(target)  # the piece folder itself (a link, say) must lead inside: checked before it is listed
+            existed = _files_in(target)
+            files = write_piece(rib, piece, target, die_writer, claimed)
+            stamps = {name: FileStamp.of(target / name) for name in files}
+            return TaskResult(part, files, "", time.perf_counter() - start, stamps)
+        except (DiegenError, OSError) as error:
+            if existed is not None or _is_new_folder(target):
+                _remove_new_files(target, existed)
+            message = str(error) if isinstance(error, DiegenError) else f"{error.filename or target}: {reason(error)}"
+            return TaskResult(part, (), message, time.perf_counter() - start)
 
 
 def _files_in(folder: Path) -> set[str] | None:
-    """Names of the files in ``folder`` (None: the folder does not exist)."""
-    return {p.name for p in folder.iterdir() if p.is_file()} if folder.is_dir() else None
+    """Names of everything in ``folder`` (None: the folder does not exist)."""
+    return set(os.listdir(folder)) if os.path.isdir(folder) else None
+
+
+def _is_new_folder(folder: Path) -> bool:
+    """The piece folder leads inside the output folder (so this attempt may have made it)."""
+    try:
+        inside(folder)
+    except DiegenError:
+        return False
+    return True
 
 
 def _remove_new_files(folder: Path, existed: set[str] | None) -> None:
     """After a failed piece: delete the files this attempt created (a die STEP without its STL, say).
 
-    Files that were there before are left alone: they are earlier good output or somebody else's.
+    Anything that was there before is left alone: earlier good output or somebody else's.  Only plain files in
+    a folder inside the output folder are removed, never through a link (:func:`diegen.fileio.remove_file`).
     """
-    if not folder.is_dir():
+    if not os.path.isdir(folder):
         return
-    for path in folder.iterdir():
-        if path.is_file() and (existed is None or path.name not in existed):
-            path.unlink(missing_ok=True)
-    if existed is None and not any(folder.iterdir()):
-        folder.rmdir()
+    for name in os.listdir(folder):
+        if existed is None or name not in existed:
+            remove_file(folder / name)
+    if existed is None:
+        remove_empty_folder(folder)
 
 
 class Progress:
@@ -112,13 +135,14 @@ class Progress:
                 sys.stderr.write("\n")
 
 
-def run_tasks(tasks: Sequence[PieceTask], folder: Path, claimed: dict[str, bool], die_writer: DieWriter,
+def run_tasks(tasks: Sequence[PieceTask], folder: Path, root: Path, claimed: dict[str, bool], die_writer: DieWriter,
               warm_up: Callable[[], None] | None, finish: Callable[[PieceTask, TaskResult], None],
               jobs: int | None) -> None:
-    """Build ``tasks`` in this process (one job) or a pool whose workers first call ``warm_up``."""
+    """Build ``tasks`` in this process (one job) or a pool whose workers first call ``warm_up``; every path
+    written stays inside ``root`` (the resolved output folder)."""
 
     def args(task: PieceTask) -> tuple:
-        return task.rib.spec, task.section, task.index, str(folder), claimed[task.part_id], die_writer
+        return task.rib.spec, task.section, task.index, str(folder), str(root), claimed[task.part_id], die_writer
 
     jobs = max(1, min(jobs or os.cpu_count() or 1, len(tasks) or 1))
     if jobs == 1:

@@ -15,6 +15,7 @@ from typing import Any
 import yaml
 
 from diegen.errors import Problem, SpecError
+from diegen.fileio import UnusableInput, read_plain_file
 
 __all__ = ["MAX_DEPTH", "MAX_FILE_BYTES", "MAX_NODES", "YNode", "load_file", "load_text"]
 
@@ -211,17 +212,9 @@ def load_file(path: str | Path) -> YNode:
     """Read and parse the spec file at ``path``."""
     path = Path(path)
     try:
-        size = path.stat().st_size
-        if size > MAX_FILE_BYTES:
-            raise SpecError(Problem(f"file is {size} bytes: larger than {MAX_FILE_BYTES // 1000} kB, not a spec",
-                                    str(path)))
-        raw = path.read_bytes()
-    except FileNotFoundError:
-        raise SpecError(Problem("file not found", str(path))) from None
-    except IsADirectoryError:
-        raise SpecError(Problem("is a folder, expected a YAML spec file", str(path))) from None
-    except OSError as exc:
-        raise SpecError(Problem(f"cannot read file: {exc.strerror}", str(path))) from None
+        raw = read_plain_file(path, MAX_FILE_BYTES, "a YAML spec file")
+    except UnusableInput as error:
+        raise SpecError(Problem(error.problem, str(path))) from None
     try:
         text = raw.decode("utf-8-sig")
     except UnicodeDecodeError as exc:
