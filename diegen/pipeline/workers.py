@@ -6,6 +6,7 @@ it had begun to write.  Ctrl-C keeps what finished and drops what did not start.
 
 from __future__ import annotations
 
+import multiprocessing
 import os
 import sys
 import time
@@ -135,6 +136,12 @@ class Progress:
                 sys.stderr.write("\n")
 
 
+def _work(task: PieceTask) -> float:
+    """A piece's expected share of the work: its die outline's length, and more for every flute and hole."""
+    piece = task.rib.pieces[task.index]
+    return piece.piece.length_mm * (1.0 + 0.1 * len(piece.flutes) + 0.1 * len(piece.piece.holes))
+
+
 def run_tasks(tasks: Sequence[PieceTask], folder: Path, root: Path, claimed: dict[str, bool], die_writer: DieWriter,
               warm_up: Callable[[], None] | None, finish: Callable[[PieceTask, TaskResult], None],
               jobs: int | None) -> None:
@@ -149,8 +156,12 @@ def run_tasks(tasks: Sequence[PieceTask], folder: Path, root: Path, claimed: dic
         for task in tasks:
             finish(task, build_piece(*args(task)))
         return
-    with ProcessPoolExecutor(max_workers=jobs, initializer=warm_up) as pool:
-        pending: dict[Future, PieceTask] = {pool.submit(build_piece, *args(t)): t for t in tasks}
+    # fresh worker processes, not forks: a fork taken while the solid kernel's own threads run (after a build in
+    # the same process) can leave a worker waiting forever inside the kernel
+    context = multiprocessing.get_context("spawn")
+    ordered = sorted(tasks, key=_work, reverse=True)  # the largest pieces first, so the pool ends together
+    with ProcessPoolExecutor(max_workers=jobs, initializer=warm_up, mp_context=context) as pool:
+        pending: dict[Future, PieceTask] = {pool.submit(build_piece, *args(t)): t for t in ordered}
         try:
             while pending:
                 done, _ = wait(pending, return_when=FIRST_COMPLETED)
