@@ -64,3 +64,11 @@ class SolidError(DiegenError, RuntimeError):
 
 class OutputError(DiegenError, OSError):
     """An output that must not or cannot be written."""
+
+
+class DrawingError(GeometryError):
+    """A drawing (DXF file, SVG path, point list) that cannot be read as a part outline.
+
+    The message names the source (file, entity handle, path position or spec key) and the place in the
+    drawing's own units.
+    """
