@@ -566,23 +566,32 @@ def join_edges(edges: Sequence[Edge], tol: float, place: Place) -> list[Contour]
 
 
 def _gap_message(chains: list[list[Edge]], tol: float, place: Place) -> str:
-    free = [(c[0].start, c[0].origin, k) for k, c in enumerate(chains)] + [(c[-1].end, c[-1].origin, k)
-                                                                           for k, c in enumerate(chains)]
+    free = [(c[0].start, c[0].origin) for c in chains] + [(c[-1].end, c[-1].origin) for c in chains]
+
+    def named(p: Point, origin: str) -> str:
+        return f"{place.at(p)} ({origin})" if origin else place.at(p)
+
+    def nearest(p: Point) -> tuple[float, Point, str] | None:
+        others = [(math.dist(p, q), q, o) for q, o in free if q is not p]
+        return min(others, key=lambda x: x[0]) if others else None
+
     lines = []
-    for k, chain in enumerate(chains[:5]):
-        parts = []
-        for p, origin in ((chain[0].start, chain[0].origin), (chain[-1].end, chain[-1].origin)):
-            others = [(math.dist(p, q), q, o) for q, o, kk in free if (q is not p)]
-            near = min(others, key=lambda x: x[0]) if others else None
-            text = f"{place.at(p)} ({origin})" if origin else place.at(p)
-            if near is not None:
-                text += f", {place.length(near[0])} from the nearest other free end {place.at(near[1])}"
-            parts.append(text)
-        names = ", ".join(dict.fromkeys(e.origin for e in chain if e.origin))
-        lines.append(f"open chain {k + 1} of {len(chain)} edge(s){f' [{names}]' if names else ''} ends at "
-                     + " and at ".join(parts))
+    for chain in chains[:5]:
+        (a, oa), (b, ob) = (chain[0].start, chain[0].origin), (chain[-1].end, chain[-1].origin)
+        names = contour_names(Contour(tuple(chain)))
+        head = f"the chain of {len(chain)} edge(s){f' [{names}]' if names else ''}"
+        near_a, near_b = nearest(a), nearest(b)
+        if near_a is not None and near_a[1] is b and near_b is not None and near_b[1] is a:
+            lines.append(f"{head} stops at {named(a, oa)} and {named(b, ob)}, {place.length(near_a[0])} apart")
+            continue
+        ends = []
+        for p, o, near in ((a, oa, near_a), (b, ob, near_b)):
+            gap = f", {place.length(near[0])} from the nearest free end {named(near[1], near[2])}" if near else ""
+            ends.append(named(p, o) + gap)
+        lines.append(f"{head} stops at {ends[0]}; and at {ends[1]}")
     more = f"; and {len(chains) - 5} more open chains" if len(chains) > 5 else ""
-    return (f"the outline is not closed (ends are joined within {place.length(tol)}): " + "; ".join(lines) + more)
+    return (f"the outline is not closed (edge ends are joined within {place.length(tol)}): "
+            + "; ".join(lines) + more)
 
 
 # -- checks ------------------------------------------------------------------------------
@@ -592,19 +601,25 @@ _AT = re.compile(r"\[\s*([-+0-9.eE]+)\s+([-+0-9.eE]+)\s*\]")
 
 def check_contour(contour: Contour, place: Place, what: str = "contour") -> None:
     """A contour that encloses area and does not cross or touch itself; else :class:`DrawingError` naming where."""
-    names = ", ".join(contour.origins[:6]) + (", ..." if len(contour.origins) > 6 else "")
-    label = f"{what} [{names}]" if names else what
-    area, length = contour.area, contour.length
-    if abs(area) <= CHORD_TOL_MM * length or len(contour.points) < 3:
-        raise DrawingError(f"{place.source}: {label} encloses no area ({abs(area):.3g} mm² inside "
+    label = f"{what} [{contour_names(contour)}]" if contour.origins else what
+    length = contour.length
+    ring = LinearRing(contour.points) if len(contour.points) >= 3 else None
+    enclosed = 0.0 if ring is None else float(shapely.make_valid(Polygon(ring)).area)
+    if enclosed <= CHORD_TOL_MM * length:
+        raise DrawingError(f"{place.source}: {label} encloses no area ({enclosed:.3g} mm² inside "
                            f"{place.length(length)} of edge): a zero-area contour (lines drawn out and back?) "
                            "is not an outline")
-    ring = LinearRing(contour.points)
     if not ring.is_simple:
         where = _crossing(ring)
         near = _edges_near(contour, where)
         raise DrawingError(f"{place.source}: {label} crosses or touches itself at {place.at(where)}"
                            f"{f' (edges {near})' if near else ''}: an outline must be one simple loop")
+
+
+def contour_names(contour: Contour, most: int = 4) -> str:
+    """The drawing entities a contour is made of (``LINE #2A, ARC #2B, ...``), for messages."""
+    names = list(dict.fromkeys(o.split(" segment ")[0] for o in contour.origins))
+    return ", ".join(names[:most]) + (f", and {len(names) - most} more" if len(names) > most else "")
 
 
 def _crossing(ring: LinearRing) -> Point:

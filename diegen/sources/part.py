@@ -33,7 +33,7 @@ from diegen.errors import DrawingError, GeometryError
 from diegen.geometry import pins as pin_rules
 from diegen.geometry.polygon import as_points, offset_inward, vertical_extents
 from diegen.geometry.types import Hole, PieceGeometry, Pin, Point, Points, Run
-from diegen.sources.contour import CHORD_TOL_MM, Contour, Place, split_edge, turn_angle
+from diegen.sources.contour import CHORD_TOL_MM, Contour, Place, contour_names, split_edge, turn_angle
 from diegen.sources.model import (OUTLINE_IS, AllEdges, Between, Drawing, DrawnHole, DrawnPart, DrawnPiece, DrawnPin,
                                   Flange, FlangeRun, FlangeRunSpec, OnLayer)
 
@@ -92,8 +92,7 @@ def drawn_part(drawing: Drawing, flanges: Sequence[FlangeRunSpec], outline_is: s
 
 
 def _names(contour: Contour) -> str:
-    names = contour.origins
-    return ", ".join(names[:4]) + (", ..." if len(names) > 4 else "")
+    return contour_names(contour)
 
 
 def _some_point(geometry) -> Point:
