@@ -18,6 +18,7 @@ common practice takes the larger of that and twice the bend radius).
 
 from __future__ import annotations
 
+import math
 from collections.abc import Sequence
 
 import numpy as np
@@ -76,7 +77,10 @@ def _corner_cut(piece: PieceGeometry, corner: Point, reach: float) -> Polygon:
     before, after = loop[index - 1], loop[(index + 1) % len(loop)]
     n_in = _unit(c - before) @ np.array([[0, -1], [1, 0]])  # right normal of a CCW edge points outward
     n_out = _unit(after - c) @ np.array([[0, -1], [1, 0]])
-    far = reach * 3
+    # the wedge spans far·n_in and far·n_out; the offset's mitre tip lies on the bisector at reach/(1 + n_in·n_out)
+    # along each (cut off at the mitre limit), so a sharp corner needs a longer wedge than a square one
+    spread = max(1.0 + float(n_in @ n_out), 1e-9)
+    far = reach * max(3.0, min(1.0 / spread, MITRE_LIMIT / math.sqrt(2.0 * spread)) + 1.0)
     return Polygon([c, c + far * n_in, c + far * (n_in + n_out), c + far * n_out])
 
 
