@@ -56,7 +56,8 @@ def drawn_part(drawing: Drawing, flanges: Sequence[FlangeRunSpec], outline_is: s
     contours inside it as holes, and its pin spots.
 
     ``outline_is`` is ``mold-line`` (the finished part's outline) or ``die``.  A from/to point may lie
-    up to ``snap_mm`` from the outline.  Raises :class:`DrawingError` for a contour outside the outline or
+    up to ``snap_mm`` from the outline; it is taken to the nearest outline point, or to the nearest edge end
+    (a vertex of the drawing) when one lies within ``snap_mm`` of it.  Raises :class:`DrawingError` for a contour outside the outline or
     crossing it, a hole inside another, a pin off the part, a layer no outline edge is on, a from/to point
     too far from the outline, and edges two flange runs both claim.
     """
@@ -131,7 +132,8 @@ def _lay_runs(outer: Contour, specs: Sequence[FlangeRunSpec], place: Place,
                         f"{place.source}: {_label(spec, index)}: the {role} point {place.at(p)} is "
                         f"{place.length(distance)} from the outline (at most {place.length(snap_mm)} allowed); the "
                         f"nearest outline point is {place.at((foot.x, foot.y))}")
-                snapped.append((foot.x, foot.y))
+                corner = min((e.start for e in outer.edges), key=lambda q: math.dist(p, q))
+                snapped.append(corner if math.dist(p, corner) <= snap_mm else (foot.x, foot.y))
             if math.dist(*snapped) <= VERTEX_SNAP_MM:
                 raise DrawingError(f"{place.source}: {_label(spec, index)}: from and to meet at the same outline point "
                                    f"{place.at(snapped[0])}: a flange run needs two different ends")
@@ -253,8 +255,11 @@ def drawn_piece(part: DrawnPart, *, part_id: str, sheet_thickness_mm: float, pin
         die_pts = np.asarray(as_points(die_poly), dtype=float)
         die_s = np.asarray(shapely.line_locate_point(LinearRing(mold_pts), shapely.points(die_pts)), dtype=float)
         die_pts, die_s = _unwrap(die_pts, die_s, total)
-    pts, s, vertex_marks = _place_marks(die_pts, die_s, marks, total)
-    runs, run_flanges, reliefs = _runs(pts, s, vertex_marks, offsets, flanges, total)
+    inset = 0.0 if part.outline_is == "die" else sheet_thickness_mm
+    pts, s, vertex_marks = _place_marks(die_pts, die_s, marks, total, inset)
+    pts, s, vertex_marks = _drop_inserted_points(pts, s, vertex_marks, offsets, mold, total)
+    straight = _straight_segments(pts, s, offsets, mold, total)
+    runs, run_flanges, reliefs = _runs(pts, s, vertex_marks, straight, offsets, flanges, total)
     die_poly = Polygon([p for run in runs for p in run.points[:-1]])
     holes, cutouts = _holes(part, die_poly, runs, bend_radius, hole_flange_height_mm, place)
     pins = _pins(part, die_poly, holes, bend_radius, edge_margin_mm, pin_diameter_mm, auto_pins, part_id, place)
@@ -266,22 +271,22 @@ def drawn_piece(part: DrawnPart, *, part_id: str, sheet_thickness_mm: float, pin
     return DrawnPiece(geometry, run_flanges, mirrored, cutouts)
 
 
-def _mold_marks(part: DrawnPart) -> list[tuple[float, bool, bool]]:
-    """Boundaries along the drawn outline: (arc length, is a run boundary, is a corner), at edge starts."""
+def _mold_marks(part: DrawnPart) -> list[tuple[float, bool, float]]:
+    """Boundaries along the drawn outline, at edge starts: (arc length, is a run boundary, signed turn in rad
+    where the edges meet at a corner, else 0)."""
     edges = part.outline.edges
     offsets = part.outline.edge_offsets()
-    run_of = [None] * len(edges)
+    run_of: list[int | None] = [None] * len(edges)
     for i, run in enumerate(part.runs):
         for k in range(run.first_edge, run.stop_edge):
             run_of[k] = i
     marks = []
     for k, edge in enumerate(edges):
-        before = edges[k - 1]
-        turn = abs(math.degrees(turn_angle(before.end_tangent(), edge.start_tangent())))
+        turn = turn_angle(edges[k - 1].end_tangent(), edge.start_tangent())
         boundary = run_of[k] != run_of[k - 1]
-        corner = turn >= CORNER_TURN_DEG
+        corner = abs(math.degrees(turn)) >= CORNER_TURN_DEG
         if boundary or corner:
-            marks.append((float(offsets[k]), boundary, corner))
+            marks.append((float(offsets[k]), boundary, turn if corner else 0.0))
     return marks
 
 
@@ -295,19 +300,45 @@ def _unwrap(pts: np.ndarray, s: np.ndarray, total: float) -> tuple[np.ndarray, n
     return pts, np.maximum.accumulate(s)
 
 
-def _place_marks(pts: np.ndarray, s: np.ndarray, marks: list[tuple[float, bool, bool]],
-                 total: float) -> tuple[list[Point], list[float], list[tuple[bool, bool]]]:
+def _place_marks(pts: np.ndarray, s: np.ndarray, marks: list[tuple[float, bool, float]], total: float,
+                 inset: float) -> tuple[list[Point], list[float], list[tuple[bool, bool]]]:
     """Die outline points and footpoint positions with a point at every mark, and each point's marks
-    (run boundary, corner)."""
+    (run boundary, corner).  ``inset`` is how far the die outline lies inside the drawn one (mm)."""
     points = [(float(x), float(y)) for x, y in pts]
     where = [float(v) for v in s]
     flags: list[tuple[bool, bool]] = [(False, False)] * len(points)
     eps = 1e-6 * max(1.0, total)
-    for s_mark, boundary, corner in marks:
-        index = _mark_index(points, where, s_mark, eps, total)
+    for s_mark, boundary, turn in marks:
+        count = len(points)
+        index = _corner_index(points, where, s_mark, turn, inset, total) if turn > 0 and inset > 0 else None
+        if index is None:
+            index = _mark_index(points, where, s_mark, eps, total)
+        if len(points) > count:  # a point was put in for the mark
+            flags.insert(index, (False, False))
         old = flags[index]
-        flags[index] = (old[0] or boundary, old[1] or corner)
+        flags[index] = (old[0] or boundary, old[1] or turn != 0.0)
     return points, where, flags
+
+
+def _corner_index(points: list[Point], where: list[float], s_mark: float, turn: float, inset: float,
+                  total: float) -> int | None:
+    """The die's own corner for a convex corner of the drawn outline offset inward by ``inset``.
+
+    The offset corner's nearest points on the drawn outline are its two feet, inset/tan(half the corner's
+    inside angle) either side of the corner: the die point in that reach that turns most is the corner.
+    """
+    reach = inset / math.tan(max(math.pi - turn, math.radians(1.0)) / 2.0) + 2 * MERGE_MM
+    s = np.asarray(where)
+    near = [i for i in range(len(points))
+            if min(abs(s[i] - s_mark), abs(s[i] - s_mark - total), abs(s[i] - s_mark + total)) <= reach]
+    n = len(points)
+    best, best_turn = None, 0.0
+    for i in near:
+        a, b, c = points[i - 1], points[i], points[(i + 1) % n]
+        t = turn_angle(_direction(a, b), _direction(b, c))
+        if t > best_turn:
+            best, best_turn = i, t
+    return best if best is not None and best_turn >= math.radians(CORNER_TURN_DEG) / 2 else None
 
 
 def _mark_index(points: list[Point], where: list[float], s_mark: float, eps: float, total: float) -> int:
@@ -326,6 +357,9 @@ def _mark_index(points: list[Point], where: list[float], s_mark: float, eps: flo
         if 0 <= i < n and ext[i] < target < ext[i + 1]:
             u = (target - ext[i]) / (ext[i + 1] - ext[i])
             a, b = points[i], points[(i + 1) % n]
+            if ext[i + 1] - ext[i] > math.dist(a, b) + MERGE_MM:
+                # the footpoints jump here: one end is a corner of the die, the mark belongs on it
+                return i if _turn_at(points, i) >= _turn_at(points, (i + 1) % n) else (i + 1) % n
             p = (a[0] + u * (b[0] - a[0]), a[1] + u * (b[1] - a[1]))
             if math.dist(p, a) <= MERGE_MM:
                 return i
@@ -350,13 +384,58 @@ def _middle(points: list[Point], where: list[float], same: list[int]) -> int:
                    where[same[0]])
 
 
+def _turn_at(points: list[Point], i: int) -> float:
+    n = len(points)
+    return abs(turn_angle(_direction(points[i - 1], points[i]), _direction(points[i], points[(i + 1) % n])))
+
+
 def _insert(points: list[Point], where: list[float], index: int, p: Point, s_value: float) -> int:
     points.insert(index, p)
     where.insert(index, s_value)
     return index
 
 
-def _runs(pts: list[Point], s: list[float], flags: list[tuple[bool, bool]], offsets: np.ndarray,
+def _mold_edge(s_value: float, offsets: np.ndarray) -> int:
+    k = int(np.searchsorted(offsets, s_value % offsets[-1], side="right")) - 1
+    return min(max(k, 0), len(offsets) - 2)
+
+
+def _straight_segments(pts: list[Point], s: list[float], offsets: np.ndarray, mold: Contour,
+                       total: float) -> list[bool]:
+    """For each die segment (point i to i + 1), whether it lies along a straight edge of the drawn outline."""
+    n = len(pts)
+    straight = []
+    for i in range(n):
+        a, b = pts[i], pts[(i + 1) % n]
+        s_next = s[(i + 1) % n] + (total if i + 1 == n else 0.0)
+        edge = mold.edges[_mold_edge((s[i] + s_next) / 2.0, offsets)]
+        if edge.kind != "line" or math.dist(a, b) == 0.0:
+            straight.append(False)
+            continue
+        d, e = _direction(a, b), _direction(edge.start, edge.end)
+        straight.append(d[0] * e[0] + d[1] * e[1] > 1.0 - 1e-9)
+    return straight
+
+
+def _drop_inserted_points(pts: list[Point], s: list[float], flags: list[tuple[bool, bool]], offsets: np.ndarray,
+                          mold: Contour, total: float) -> tuple[list[Point], list[float], list[tuple[bool, bool]]]:
+    """Drop unmarked points where a curved stretch does not turn (points the offset put on a chord's middle).
+
+    The contoured-flange strain spreads each point's turning over its half edges, which is a uniform
+    turning rate only when the points that turn are evenly spaced: a point on a chord's middle breaks that.
+    """
+    n = len(pts)
+    straight = _straight_segments(pts, s, offsets, mold, total)
+    keep = []
+    for i in range(n):
+        before, after = pts[i - 1], pts[(i + 1) % n]
+        turn = abs(turn_angle(_direction(before, pts[i]), _direction(pts[i], after)))
+        keep.append(flags[i] != (False, False) or straight[i - 1] or straight[i] or turn > 1e-7)
+    return ([p for p, k in zip(pts, keep) if k], [v for v, k in zip(s, keep) if k],
+            [f for f, k in zip(flags, keep) if k])
+
+
+def _runs(pts: list[Point], s: list[float], flags: list[tuple[bool, bool]], straight: list[bool], offsets: np.ndarray,
           flanges: tuple[Flange | None, ...], total: float) -> tuple[tuple[Run, ...], tuple[Flange | None, ...], Points]:
     """The die outline split at its marked points into runs, each run's flange, and the relief points."""
     n = len(pts)
@@ -369,20 +448,20 @@ def _runs(pts: list[Point], s: list[float], flags: list[tuple[bool, bool]], offs
         loop = pts + [pts[0]]
         mid = s[n // 2] % total
         flange = _flange_at(mid, offsets, flanges)
-        return (Run("curve", _densify(loop), flange is not None),), (flange,), ()
+        return (Run("curve", _densify(loop, straight), flange is not None),), (flange,), ()
     pieces = []
     for j, a in enumerate(cuts):
         b = cuts[(j + 1) % len(cuts)]
         idx = list(range(a, b + 1)) if b > a else list(range(a, n)) + list(range(0, b + 1))
         s_a, s_b = s[a], s[b] if b > a else s[b] + total
-        pieces.append((a, b, [pts[i] for i in idx], (s_a + s_b) / 2.0 % total))
+        pieces.append((a, b, [pts[i] for i in idx], (s_a + s_b) / 2.0 % total, [straight[i] for i in idx[:-1]]))
     runs, run_flanges = [], []
-    for _, _, points, mid in pieces:
+    for _, _, points, mid, along in pieces:
         flange = _flange_at(mid, offsets, flanges)
-        runs.append(_run(points, flange is not None))
+        runs.append(_run(points, along, flange is not None))
         run_flanges.append(flange)
     reliefs = []
-    for j, (a, _, _, _) in enumerate(pieces):
+    for j, (a, _, _, _, _) in enumerate(pieces):
         before = run_flanges[j - 1]
         if flags[a][1] and before is not None and run_flanges[j] is not None and len(pieces) > 1:
             turn = abs(math.degrees(turn_angle(_direction(pts[a - 1], pts[a]), _direction(pts[a], pts[(a + 1) % n]))))
@@ -401,13 +480,13 @@ def _flange_at(s_mid: float, offsets: np.ndarray, flanges: tuple[Flange | None, 
     return flanges[min(max(k, 0), len(flanges) - 1)]
 
 
-def _run(points: list[Point], flanged: bool) -> Run:
+def _run(points: list[Point], straight: list[bool], flanged: bool) -> Run:
     p = np.asarray(points, dtype=float)
     chord = p[-1] - p[0]
     length = float(np.hypot(*chord))
     if len(p) == 2 or (length > 0 and _off_chord(p, chord, length) <= 1e-9 * max(1.0, length)):
         return Run("line", (points[0], points[-1]), flanged)
-    return Run("curve", _densify(points), flanged)
+    return Run("curve", _densify(points, straight), flanged)
 
 
 def _off_chord(p: np.ndarray, chord: np.ndarray, length: float) -> float:
@@ -415,11 +494,12 @@ def _off_chord(p: np.ndarray, chord: np.ndarray, length: float) -> float:
     return float(np.max(np.abs(rel[:, 0] * chord[1] - rel[:, 1] * chord[0])) / length)
 
 
-def _densify(points: list[Point]) -> Points:
-    """Points every ``CURVE_STEP_MM`` at most along each straight segment (ends kept)."""
+def _densify(points: list[Point], straight: list[bool]) -> Points:
+    """Points every ``CURVE_STEP_MM`` at most along each segment on a straight edge of the drawing (ends kept);
+    chords of curved stretches are left alone (a point on a chord would be a kink to the strain's windowing)."""
     out: list[Point] = [points[0]]
-    for a, b in zip(points[:-1], points[1:]):
-        steps = max(1, math.ceil(math.dist(a, b) / CURVE_STEP_MM))
+    for a, b, along in zip(points[:-1], points[1:], straight):
+        steps = max(1, math.ceil(math.dist(a, b) / CURVE_STEP_MM)) if along else 1
         for k in range(1, steps + 1):
             u = k / steps
             out.append(b if k == steps else (a[0] + u * (b[0] - a[0]), a[1] + u * (b[1] - a[1])))
@@ -438,7 +518,11 @@ def _holes(part: DrawnPart, die_poly: Polygon, runs: tuple[Run, ...], bend_radiu
             raise GeometryError(f"{place.source}: {label} reaches outside the die outline"
                                 f"{' (the mold line offset inward by the sheet)' if part.outline_is == 'mold-line' else ''}"
                                 f" near {place.at(_some_point(poly.boundary.difference(die_poly)))}")
-        gap = min((line.distance(poly) for line in flanged_edges), default=math.inf)
+        if drawn.circle is not None:  # the true circle, not its flattened polygon
+            centre = ShapelyPoint(drawn.circle[0], drawn.circle[1])
+            gap = min((line.distance(centre) for line in flanged_edges), default=math.inf) - drawn.circle[2] / 2
+        else:
+            gap = min((line.distance(poly) for line in flanged_edges), default=math.inf)
         if gap < bend_radius:
             raise GeometryError(f"{place.source}: {label} comes within {place.length(gap)} of a flanged edge of the die; the "
                                 f"flange bend takes {place.length(bend_radius)} of web (its bend radius) along a "
