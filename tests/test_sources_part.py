@@ -22,8 +22,19 @@ from diegen.die.die_input import OutlineRun
 from diegen.die.outline import OutlineModel
 from diegen.errors import DrawingError, GeometryError
 from diegen.forming.strain import strain_along
-from diegen.sources import (CHORD_TOL_MM, AllEdges, Between, Flange, FlangeRunSpec, OnLayer, drawn_part, drawn_piece,
-                            read_dxf, read_points, read_svg_path)
+from diegen.sources import (
+    CHORD_TOL_MM,
+    AllEdges,
+    Between,
+    Flange,
+    FlangeRunSpec,
+    OnLayer,
+    drawn_part,
+    drawn_piece,
+    read_dxf,
+    read_points,
+    read_svg_path,
+)
 
 T = 1.0  # sheet thickness (mm)
 FLANGE = Flange(height_mm=12.0, bend_radius_mm=3.0)
@@ -67,7 +78,7 @@ def bulkhead(tmp_path_factory):
 
 
 def test_bulkhead_die_is_the_mold_line_circle_less_the_sheet(bulkhead):
-    radius, part, piece = bulkhead
+    radius, _, piece = bulkhead
     g = piece.geometry
     rho = radius - T
     (run,) = g.runs
@@ -187,7 +198,7 @@ def test_from_to_runs_leave_cut_edges_and_the_blank_stops_flush_with_them(tmp_pa
     corner_x = max(x for x, _ in g.outline)
     assert corner_x == pytest.approx(math.sqrt((r - T) ** 2 - T**2), abs=2 * CHORD_TOL_MM)
     lean = offset * math.tan(math.acos(1.0 - CHORD_TOL_MM / r))
-    minx, miny, maxx, maxy = blank.bounds
+    _, _, maxx, maxy = blank.bounds
     assert corner_x - 1e-9 <= maxx <= corner_x + lean + 1e-9
     assert corner_x - 1e-9 <= maxy <= corner_x + lean + 1e-9
 
@@ -232,6 +243,37 @@ def test_rounded_rectangle_is_one_curve_run_whose_fillets_shrink_by_the_closed_f
     width = 12.0
     profile = strain_along(np.asarray(run.points), width, closed=False)
     assert profile.max_shrink == pytest.approx(width / (r - T + width), rel=2e-3)
+    die_model(piece)
+
+
+def test_spline_gusset_in_inches_with_a_flanged_curve_and_drawn_pins(tmp_path):
+    doc = ezdxf.new("R2010")
+    doc.header["$INSUNITS"] = 1  # inches
+    msp = doc.modelspace()
+    msp.add_line((0, 0), (9, 0), dxfattribs={"layer": "CUT"})
+    msp.add_line((0, 6), (0, 0), dxfattribs={"layer": "CUT"})
+    msp.add_spline([(9, 0), (7.5, 2.8), (4.5, 4.9), (1.6, 5.9), (0, 6)], dxfattribs={"layer": "EDGE"})
+    for x, y in ((1.5, 1.5), (4.0, 1.2)):
+        msp.add_point((x, y), dxfattribs={"layer": "PINS"})
+    doc.saveas(tmp_path / "gusset.dxf")
+    drawing = read_dxf(tmp_path / "gusset.dxf", layers=["CUT", "EDGE"], pin_layer="PINS")
+    part = drawn_part(drawing, (FlangeRunSpec(OnLayer("EDGE"), FLANGE, "flanges[0]"),), "mold-line")
+    piece = drawn_piece(part, part_id="K2", sheet_thickness_mm=T, pin_diameter_mm=3.0)
+    g = piece.geometry
+    assert sorted((r.kind, r.flanged) for r in g.runs) == [("curve", True), ("line", False), ("line", False)]
+    assert g.relief_points == ()  # the flanged curve meets only cut edges
+    assert sorted((p.x, p.y) for p in g.pins) == [pytest.approx((1.5 * 25.4, 1.5 * 25.4)),
+                                                  pytest.approx((4.0 * 25.4, 1.2 * 25.4))]
+    assert g.x_range_mm[0] == pytest.approx(T) and g.x_range_mm[1] < 9 * 25.4 - T  # the sharp tip moves in further
+    curve = next(r for r in g.plain_runs if r.flanged)
+    profile = strain_along(np.asarray(curve.points), 14.0, closed=False)
+    assert 0.0 < profile.max_shrink < 14.0 / (14.0 + 50.0)  # a gentle convex curve (its radius is above 50 mm)
+    blank = Polygon(blank_of(piece).outer)
+    web = Polygon(g.outline)
+    # cut edges: the blank stops on the die's straight edges (y = t and x = t)
+    minx, miny, _, _ = blank.bounds
+    assert (minx, miny) == pytest.approx((T, T), abs=1e-9)
+    assert blank.contains(web)
     die_model(piece)
 
 

@@ -172,8 +172,8 @@ def test_several_subpaths_are_several_contours():
     ("M 0 0 K 10 0", r"svg path at character 7: expected a command letter .*found 'K 10 0'"),
     ("10 0 L 5 5", r"svg path at character 1: expected a command letter \(M to begin\)"),
     ("M 0 0 A 5 5 0 2 1 10 0 Z", r"character 15: expected the large-arc flag \(0 or 1\) of command 'A', found '2"),
-    ("M 0 0 H 50 V 20", r"the subpath starting at character 1 is not closed: it ends at \(50\.000, 20\.000\) mm, "
-                        r"53\.852 mm from where it starts, \(0\.000, 0\.000\) mm; end it with Z"),
+    ("M 0 0 H 50 V 20", (r"the subpath starting at character 1 is not closed: it ends at \(50\.000, 20\.000\) mm, "
+                         r"53\.852 mm from where it starts, \(0\.000, 0\.000\) mm; end it with Z")),
     ("M 0 0 L 50 20 L 50 0 L 0 20 Z", r"subpath 1 \[.*\] crosses or touches itself at \(25\.000, 10\.000\) mm"),
     ("M 0 0 H 40 H 0 Z", r"encloses no area"),
     ("", r"svg path: the path draws nothing"),

@@ -36,8 +36,19 @@ specs/README.md, "Drawn parts"):
 
 from diegen.sources.contour import CHORD_TOL_MM, Contour, Edge, Place, bulge_arc
 from diegen.sources.dxf import DEFAULT_JOIN_TOL_MM, read_dxf
-from diegen.sources.model import (AllEdges, Between, Drawing, DrawnHole, DrawnPart, DrawnPiece, DrawnPin, Flange,
-                                  FlangeRun, FlangeRunSpec, OnLayer)
+from diegen.sources.model import (
+                                  AllEdges,
+                                  Between,
+                                  Drawing,
+                                  DrawnHole,
+                                  DrawnPart,
+                                  DrawnPiece,
+                                  DrawnPin,
+                                  Flange,
+                                  FlangeRun,
+                                  FlangeRunSpec,
+                                  OnLayer,
+)
 from diegen.sources.part import CORNER_TURN_DEG, drawn_part, drawn_piece
 from diegen.sources.points import points_with_bulges, read_points
 from diegen.sources.svg import read_svg_path

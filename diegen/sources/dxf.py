@@ -29,8 +29,20 @@ from pathlib import Path
 import numpy as np
 
 from diegen.errors import DrawingError
-from diegen.sources.contour import (CHORD_TOL_MM, Contour, Edge, Place, arc_edge, check_contour, circle_edges,
-                                    curve_edge, flatten_bspline, flatten_ellipse, join_edges, line_edge)
+from diegen.sources.contour import (
+    CHORD_TOL_MM,
+    Contour,
+    Edge,
+    Place,
+    arc_edge,
+    check_contour,
+    circle_edges,
+    curve_edge,
+    flatten_bspline,
+    flatten_ellipse,
+    join_edges,
+    line_edge,
+)
 from diegen.sources.model import Drawing, DrawnPin
 from diegen.sources.units import length_unit_mm
 from diegen.spec.reader import suggest
@@ -102,10 +114,12 @@ def read_dxf(path: str | Path, layers: str | Sequence[str] | None = None, pin_la
     place = Place(source, unit, scale)
     wanted = _layer_set(layers)
     pin_key = pin_layer.casefold() if pin_layer else None
-    if wanted is None and pin_key is not None:
-        outline_layer = lambda key: key != pin_key  # noqa: E731
-    else:
-        outline_layer = (lambda key: True) if wanted is None else (lambda key: key in wanted)  # noqa: E731
+
+    def outline_layer(key: str) -> bool:
+        if wanted is None:
+            return key != pin_key  # every layer but the pins'
+        return key in wanted
+
     tol = CHORD_TOL_MM
     open_edges: list[Edge] = []
     closed: list[Contour] = []
@@ -259,9 +273,11 @@ def _polyline(entity, kind: str, layer: str, origin: str, scale: float, tol: flo
 
 
 def _spline(entity, layer: str, origin: str, scale: float, tol: float, place: Place) -> tuple[list[Edge], bool]:
+    from ezdxf.lldxf.const import DXFError
+
     try:
         spline = entity.construction_tool()
-    except Exception as error:  # ezdxf raises several kinds for a spline without usable points
+    except (DXFError, ValueError, IndexError, ArithmeticError) as error:  # a spline without usable points
         raise DrawingError(f"{place.source}: {origin} on layer {layer} cannot be evaluated ({error})") from None
     control = np.asarray([(p[0] * scale, p[1] * scale) for p in spline.control_points], dtype=float)
     weights = np.asarray(spline.weights(), dtype=float) if spline.is_rational else None

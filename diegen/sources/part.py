@@ -34,8 +34,19 @@ from diegen.geometry import pins as pin_rules
 from diegen.geometry.polygon import as_points, offset_inward, vertical_extents
 from diegen.geometry.types import Hole, PieceGeometry, Pin, Point, Points, Run
 from diegen.sources.contour import CHORD_TOL_MM, Contour, Place, contour_names, split_edge, turn_angle
-from diegen.sources.model import (OUTLINE_IS, AllEdges, Between, Drawing, DrawnHole, DrawnPart, DrawnPiece, DrawnPin,
-                                  Flange, FlangeRun, FlangeRunSpec, OnLayer)
+from diegen.sources.model import (
+    OUTLINE_IS,
+    AllEdges,
+    Between,
+    Drawing,
+    DrawnHole,
+    DrawnPart,
+    DrawnPiece,
+    Flange,
+    FlangeRun,
+    FlangeRunSpec,
+    OnLayer,
+)
 
 CORNER_TURN_DEG = 10.0  # project limit: an edge junction turning this much or more is a corner
 SNAP_MM = 1.0  # a from/to point may lie this far from the outline (default)
@@ -452,7 +463,7 @@ def _runs(pts: list[Point], s: list[float], flags: list[tuple[bool, bool]], stra
     pieces = []
     for j, a in enumerate(cuts):
         b = cuts[(j + 1) % len(cuts)]
-        idx = list(range(a, b + 1)) if b > a else list(range(a, n)) + list(range(0, b + 1))
+        idx = list(range(a, b + 1)) if b > a else list(range(a, n)) + list(range(b + 1))
         s_a, s_b = s[a], s[b] if b > a else s[b] + total
         pieces.append((a, b, [pts[i] for i in idx], (s_a + s_b) / 2.0 % total, [straight[i] for i in idx[:-1]]))
     runs, run_flanges = [], []

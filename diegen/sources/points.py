@@ -10,7 +10,6 @@ is one closed contour; a last point equal to the first is dropped.
 from __future__ import annotations
 
 import math
-from collections.abc import Sequence
 
 from diegen.errors import Problem, SpecError
 from diegen.sources.contour import Contour, Place, arc_edge, check_contour, line_edge

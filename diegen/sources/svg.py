@@ -19,8 +19,19 @@ import re
 import numpy as np
 
 from diegen.errors import DrawingError
-from diegen.sources.contour import (CHORD_TOL_MM, Contour, Edge, Place, arc_edge, bezier_tangents, check_contour,
-                                    curve_edge, flatten_bezier, flatten_ellipse, line_edge)
+from diegen.sources.contour import (
+    CHORD_TOL_MM,
+    Contour,
+    Edge,
+    Place,
+    arc_edge,
+    bezier_tangents,
+    check_contour,
+    curve_edge,
+    flatten_bezier,
+    flatten_ellipse,
+    line_edge,
+)
 from diegen.sources.model import Drawing
 from diegen.sources.units import SVG_UNITS, length_unit_mm
 
