@@ -370,3 +370,18 @@ def test_block_references_on_the_outline_layer_are_refused(tmp_path):
 def test_drawing_errors_belong_to_the_error_family():
     assert issubclass(DrawingError, GeometryError) and issubclass(DrawingError, DiegenError)
     assert issubclass(DrawingError, ValueError)
+
+
+def test_an_arc_that_closes_on_itself_within_the_tolerance_is_a_circle(tmp_path):
+    doc = new_doc()
+    doc.modelspace().add_arc((10, 20), 25, 30.0, 30.0 - 1e-6)  # nearly 360°: its ends 4e-7 mm apart
+    (contour,) = read_dxf(save(doc, tmp_path)).contours
+    assert contour.circle == pytest.approx((10.0, 20.0, 50.0))
+
+
+def test_a_drawing_far_too_large_for_a_part_is_refused(tmp_path):
+    doc = new_doc(insunits=6)  # metres: a 40 × 20 "part" is 40 m long
+    doc.modelspace().add_lwpolyline([(0, 0), (40, 0), (40, 20), (0, 20)], close=True)
+    with pytest.raises(DrawingError, match=r"contour 1 \[LWPOLYLINE #\w+\] spans 40\.0000 m \(40000\.000 mm\), more "
+                                           r"than the 10000 mm a part formed in a shop press could be"):
+        read_dxf(save(doc, tmp_path))

@@ -47,6 +47,8 @@ from diegen.geometry.types import Point, Points
 CHORD_TOL_MM = 0.01  # largest distance between a curve and its flattened polyline
 MIN_ARC_STEPS = 2  # an arc is never flattened to fewer chords (a single chord would read as a line)
 MAX_FLAT_POINTS = 200_000  # one edge flattened to more points than this is not a part outline
+MAX_COORD_MM = 1.0e6  # project limit: a drawn point this far (1 km) from the origin is a mistake of units or data
+MAX_SPAN_MM = 10_000.0  # project limit: no part formed in a shop press is 10 m across
 
 EdgeKind = Literal["line", "arc", "curve"]
 
@@ -101,14 +103,19 @@ def bulge_arc(a: Sequence[float], b: Sequence[float], bulge: float) -> tuple[Poi
 def arc_steps(radius: float, sweep: float, tol: float = CHORD_TOL_MM) -> int:
     """Equal steps of an arc whose chords stay within ``tol`` of it: step ≤ 2·acos(1 − tol/r)."""
     step = math.pi if tol >= radius else 2.0 * math.acos(1.0 - tol / radius)
-    return max(MIN_ARC_STEPS, math.ceil(abs(sweep) / step - 1e-12))
+    if not step > 0.0 or not math.isfinite(radius):
+        raise DrawingError(f"an arc of radius {radius:.4g} mm is far too large for a part outline "
+                           "(are the drawing's units right?)")
+    n = math.ceil(abs(sweep) / step - 1e-12)
+    _check_count(n)
+    return max(MIN_ARC_STEPS, n)
 
 
 def arc_points(a: Sequence[float], b: Sequence[float], bulge: float, tol: float = CHORD_TOL_MM) -> Points:
     """The arc from ``a`` to ``b`` flattened within ``tol`` (both end points exact)."""
+    _check_points((a, b))
     (cx, cy), radius, sweep = bulge_arc(a, b, bulge)
     n = arc_steps(radius, sweep, tol)
-    _check_count(n)
     start = math.atan2(a[1] - cy, a[0] - cx)
     angles = start + sweep * np.arange(1, n) / n
     inner = [(cx + radius * math.cos(t), cy + radius * math.sin(t)) for t in angles]
@@ -116,6 +123,14 @@ def arc_points(a: Sequence[float], b: Sequence[float], bulge: float, tol: float 
 
 
 # -- flattening of general curves ------------------------------------------------------
+
+
+def _check_points(points: Sequence[Sequence[float]]) -> None:
+    """Every coordinate finite and within ``MAX_COORD_MM`` of the origin."""
+    for p in points:
+        if not (math.isfinite(p[0]) and math.isfinite(p[1])) or max(abs(p[0]), abs(p[1])) > MAX_COORD_MM:
+            raise DrawingError(f"a point at ({p[0]:.4g}, {p[1]:.4g}) mm lies more than {MAX_COORD_MM:.0f} mm from the "
+                               "origin (or is not a number): not a part outline (are the drawing's units right?)")
 
 
 def _check_count(n: int) -> None:
@@ -361,6 +376,7 @@ class Edge:
 
 
 def line_edge(a: Sequence[float], b: Sequence[float], layer: str = "", origin: str = "") -> Edge:
+    _check_points((a, b))
     return Edge("line", ((float(a[0]), float(a[1])), (float(b[0]), float(b[1]))), layer=layer, origin=origin)
 
 
@@ -371,6 +387,7 @@ def arc_edge(a: Sequence[float], b: Sequence[float], bulge: float, layer: str = 
 
 def curve_edge(points: Sequence[Sequence[float]], tangents: tuple[Point, Point] | None, layer: str = "",
                origin: str = "") -> Edge:
+    _check_points(points)
     return Edge("curve", _tuple(np.asarray(points, dtype=float)), layer=layer, origin=origin, tangents=tangents)
 
 
@@ -520,8 +537,11 @@ def join_edges(edges: Sequence[Edge], tol: float, place: Place) -> list[Contour]
             continue
         used[first] = True
         chain = [pool[first]]
-        if math.dist(chain[0].start, chain[0].end) <= tol:  # one curve that closes on itself
-            contours.append(Contour((chain[0].with_ends(chain[0].start, chain[0].start),)))
+        if math.dist(chain[0].start, chain[0].end) <= tol:  # one edge that closes on itself
+            edge = chain[0]
+            closed_edges = (circle_edges(edge.centre, edge.radius, edge.layer, edge.origin) if edge.kind == "arc"
+                            else (edge.with_ends(edge.start, edge.start),))
+            contours.append(Contour(tuple(closed_edges)))
             continue
         closed = False
         for direction in (0, 1):
@@ -602,6 +622,11 @@ _AT = re.compile(r"\[\s*([-+0-9.eE]+)\s+([-+0-9.eE]+)\s*\]")
 def check_contour(contour: Contour, place: Place, what: str = "contour") -> None:
     """A contour that encloses area and does not cross or touch itself; else :class:`DrawingError` naming where."""
     label = f"{what} [{contour_names(contour)}]" if contour.origins else what
+    xy = np.asarray(contour.points, dtype=float)
+    span = float(np.max(xy.max(axis=0) - xy.min(axis=0))) if len(xy) else 0.0
+    if span > MAX_SPAN_MM:
+        raise DrawingError(f"{place.source}: {label} spans {place.length(span)}, more than the {MAX_SPAN_MM:.0f} mm a "
+                           "part formed in a shop press could be (are the drawing's units right?)")
     length = contour.length
     ring = LinearRing(contour.points) if len(contour.points) >= 3 else None
     enclosed = 0.0 if ring is None else float(shapely.make_valid(Polygon(ring)).area)
