@@ -98,5 +98,6 @@ def test_a_crossing_point_list_is_a_drawing_error():
 
 
 def test_points_far_from_the_origin_are_refused():
-    with pytest.raises(DrawingError, match=r"a point at \(1e\+300, 0\) mm lies more than 1000000 mm from the origin"):
+    with pytest.raises(DrawingError, match=r"^outline.points\[0\]: a point at \(1e\+300, 0\) mm lies more than 1000000 mm "
+                                           r"from the origin"):
         read_points([[0, 0], [1e300, 0], [0, 10, 1]])

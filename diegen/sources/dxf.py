@@ -68,7 +68,7 @@ PLANE_TOL = 1e-9  # an extrusion vector's X and Y parts must vanish to this (rel
 
 def drawing_units(header_code: int | None, units: str | None, source: str) -> tuple[str, float]:
     """The drawing's unit name and mm per unit, from the header code and the caller's ``units``."""
-    given = None if units is None else (units, length_unit_mm(units, f"{source}: units"))
+    given = None if units is None else (str(units).strip().lower(), length_unit_mm(units, f"{source}: units"))
     if header_code in (None, 0):
         if given is None:
             raise DrawingError(f"{source}: the drawing does not say its units (header $INSUNITS is "
@@ -110,7 +110,11 @@ def read_dxf(path: str | Path, layers: str | Sequence[str] | None = None, pin_la
     except (OSError, DXFError, UnicodeError, ValueError) as error:
         raise DrawingError(f"{source}: not a readable DXF file ({error})") from None
     header = doc.header.get("$INSUNITS", None)
-    unit, scale = drawing_units(None if header is None else int(header), units, source)
+    try:
+        code = None if header is None else int(header)
+    except (TypeError, ValueError):
+        raise DrawingError(f"{source}: header $INSUNITS is {header!r}, not a unit code") from None
+    unit, scale = drawing_units(code, units, source)
     place = Place(source, unit, scale)
     wanted = _layer_set(layers)
     pin_key = pin_layer.casefold() if pin_layer else None
@@ -148,8 +152,10 @@ def read_dxf(path: str | Path, layers: str | Sequence[str] | None = None, pin_la
         _check_plane(entity, origin, source)
         try:
             edges, is_closed = _edges(entity, kind, layer, origin, scale, tol, place)
-        except DrawingError:
-            raise
+        except DrawingError as error:
+            if str(error).startswith(f"{source}:"):
+                raise
+            raise DrawingError(f"{source}: {origin} on layer {layer}: {error}") from None
         except (ValueError, ZeroDivisionError, IndexError, ArithmeticError) as error:
             raise DrawingError(f"{source}: {origin} on layer {layer} cannot be read: {error}") from None
         if is_closed:

@@ -241,7 +241,7 @@ def drawn_piece(part: DrawnPart, *, part_id: str, sheet_thickness_mm: float, pin
     """
     place = part.place
     flanges = part.edge_flanges()
-    used = [r for r in part.runs]
+    used = list(part.runs)
     directions = {r.flange.direction for r in used}
     if len(directions) > 1:
         ups = ", ".join(dict.fromkeys(r.label for r in used if r.flange.direction == "up"))
@@ -257,8 +257,7 @@ def drawn_piece(part: DrawnPart, *, part_id: str, sheet_thickness_mm: float, pin
     marks = _mold_marks(part)
     if part.outline_is == "die":
         die_pts = mold_pts
-        die_s = np.concatenate([np.cumsum(np.r_[0.0, np.hypot(*np.diff(mold_pts, axis=0).T)])])
-        die_poly = Polygon(die_pts)
+        die_s = np.cumsum(np.r_[0.0, np.hypot(*np.diff(mold_pts, axis=0).T)])
     else:
         die_poly = offset_inward(Polygon(mold_pts), sheet_thickness_mm,
                                  f"{place.source}: offsetting the mold line inward by the sheet "

@@ -11,7 +11,7 @@ from __future__ import annotations
 
 import math
 
-from diegen.errors import Problem, SpecError
+from diegen.errors import DrawingError, Problem, SpecError
 from diegen.sources.contour import Contour, Place, arc_edge, check_contour, line_edge
 from diegen.sources.model import Drawing
 from diegen.spec.reader import describe
@@ -61,8 +61,11 @@ def read_points(points: object, mm_per_unit: float = 1.0, unit: str = "mm", key:
             raise fail(f"point {i} repeats the next one, ({x / mm_per_unit:g}, {y / mm_per_unit:g}): remove one",
                        f"[{i}]")
         origin = f"{key}[{i}]"
-        edges.append(arc_edge((x, y), (nx, ny), bulge, origin=origin) if bulge != 0.0
-                     else line_edge((x, y), (nx, ny), origin=origin))
+        try:
+            edges.append(arc_edge((x, y), (nx, ny), bulge, origin=origin) if bulge != 0.0
+                         else line_edge((x, y), (nx, ny), origin=origin))
+        except DrawingError as error:
+            raise DrawingError(f"{file + ': ' if file else ''}{origin}: {error}") from None
     place = Place(f"{file + ': ' if file else ''}{key}", unit, mm_per_unit)
     contour = Contour(tuple(edges))
     check_contour(contour, place, "the outline")

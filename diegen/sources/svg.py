@@ -57,7 +57,12 @@ def read_svg_path(d: str, units: str, name: str = "svg path", join_tol_mm: float
     place = Place(name, str(units).strip().lower(), scale, y_down=True)
     builder = _Builder(place, scale, join_tol_mm)
     for letter, args, pos in _commands(d, name):
-        builder.command(letter, args, pos)
+        try:
+            builder.command(letter, args, pos)
+        except DrawingError as error:
+            if str(error).startswith(f"{name}"):
+                raise
+            raise DrawingError(f"{name} at character {pos + 1} ({letter}): {error}") from None
     builder.finish(len(d))
     if not builder.contours:
         raise DrawingError(f"{name}: the path draws nothing (expected at least one closed subpath such as "
