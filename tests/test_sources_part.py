@@ -186,6 +186,8 @@ def test_from_to_runs_leave_cut_edges_and_the_blank_stops_flush_with_them(tmp_pa
     assert by_kind == [("curve", False), ("line", True), ("line", True)]
     # the one corner between two flanged runs: the mold line's square corner, offset in by t
     assert g.relief_points == (pytest.approx((T, T)),)
+    # plain data: every coordinate a Python float
+    assert {type(v) for run in g.runs for p in run.points for v in p} == {float}
     # pins were placed automatically (none drawn), inside the web clear of the bends
     assert len(g.pins) >= 2 and all(Polygon(g.outline).contains(Point(p.x, p.y)) for p in g.pins)
     offset = 10.0

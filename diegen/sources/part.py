@@ -400,8 +400,8 @@ def _turn_at(points: list[Point], i: int) -> float:
 
 
 def _insert(points: list[Point], where: list[float], index: int, p: Point, s_value: float) -> int:
-    points.insert(index, p)
-    where.insert(index, s_value)
+    points.insert(index, (float(p[0]), float(p[1])))
+    where.insert(index, float(s_value))
     return index
 
 
