@@ -16,6 +16,7 @@ from dataclasses import dataclass
 __all__ = [
     "AirfoilError",
     "DiegenError",
+    "DrawingError",
     "FormingError",
     "GeometryError",
     "MaterialError",
@@ -112,3 +113,9 @@ def keyed(key: str) -> Iterator[None]:
             found = _INDEXED_KEY.match(str(error))
             error.key = found[1] if found and found[1].startswith(key) else key
         raise
+class DrawingError(GeometryError):
+    """A drawing (DXF file, SVG path, point list) that cannot be read as a part outline.
+
+    The message names the source (file, entity handle, path position or spec key) and the place in the
+    drawing's own units.
+    """

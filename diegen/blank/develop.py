@@ -8,6 +8,7 @@ mold line for a bend through the die angle θi; the bend's neutral-line length i
 the same before and after springback, so the blank edge stands
 ``developed width − Ri·tan(θi/2)`` outside the die outline.
 
+A run without a flange (a rib tail's cut end, a drawn part's cut edge) stops the blank flush with it.
 Corners where a perimeter flange meets an end flange get a relief: the
 overlapping corner square is cut away and a relief hole is drilled at the
 intersection of the bend tangent lines (FAA-H-8083-31, ch. 4, "folding a box":
@@ -17,6 +18,7 @@ common practice takes the larger of that and twice the bend radius).
 
 from __future__ import annotations
 
+import math
 from collections.abc import Sequence
 
 import numpy as np
@@ -25,10 +27,13 @@ from shapely.geometry import LineString, Polygon
 
 from diegen.blank.drawing import BlankDrawing, Circle
 from diegen.geometry.polygon import QUAD_SEGS, single_polygon
-from diegen.geometry.types import PieceGeometry, Point
+from diegen.geometry.types import PieceGeometry, Point, Run
 from diegen.units import MM_PER_IN
 
-__all__ = ["develop_blank", "flange_band_area", "notch_polygon", "relief_hole_diameter"]
+MITRE_LIMIT = 10.0  # the blank's outward offset keeps corners sharp up to this many offsets from the outline
+_TO_RIGHT = np.array([[0.0, -1.0], [1.0, 0.0]])  # v @ _TO_RIGHT turns v a quarter turn clockwise
+
+__all__ = ["MITRE_LIMIT", "develop_blank", "flange_band_area", "notch_polygon", "relief_hole_diameter"]
 
 
 def relief_hole_diameter(thickness_mm: float, bend_radius_mm: float) -> float:
@@ -41,6 +46,31 @@ def _unit(v: np.ndarray) -> np.ndarray:
     return v / np.linalg.norm(v)
 
 
+def _beyond_cut_edge(run: Run, web: Polygon, offset_mm: float) -> Polygon:
+    """The blank material beyond a run that has no flange, outside the web.
+
+    A straight run cuts along its own line as far as any flange corner can reach (the offset's mitre
+    limit); a curved run takes off the band beyond it (wider than the developed flange) and, past each
+    of its ends, the side beyond its end tangent, so a neighbouring flange stops flush with the cut edge.
+    """
+    reach = MITRE_LIMIT * offset_mm + 1.0
+    pts = np.asarray(run.points, dtype=float)
+    a, b = pts[0], pts[-1]
+    t0, t1 = _unit(pts[1] - pts[0]), _unit(pts[-1] - pts[-2])
+    n0, n1 = t0 @ _TO_RIGHT, t1 @ _TO_RIGHT  # the right normal of a CCW edge points outward
+    if run.kind == "line" and len(pts) == 2:
+        region = Polygon([a - t0 * reach, b + t0 * reach, b + t0 * reach + n0 * reach, a - t0 * reach + n0 * reach])
+    else:
+        band = LineString(pts).buffer(-(1.5 * offset_mm + 1.0), quad_segs=QUAD_SEGS, cap_style="flat",
+                                      single_sided=True)
+        before = Polygon([a - t0 * reach, a, a + n0 * reach, a - t0 * reach + n0 * reach])
+        after = Polygon([b, b + t1 * reach, b + t1 * reach + n1 * reach, b + n1 * reach])
+        region = shapely.union_all([band, before, after])
+    if region.intersection(web).area > 0.0:
+        region = region.difference(web)
+    return region
+
+
 def _corner_cut(piece: PieceGeometry, corner: Point, reach: float) -> Polygon:
     """The wedge beyond both flanges at a corner (between the two edges' outward normals)."""
     loop = np.asarray(piece.outline)
@@ -49,7 +79,10 @@ def _corner_cut(piece: PieceGeometry, corner: Point, reach: float) -> Polygon:
     before, after = loop[index - 1], loop[(index + 1) % len(loop)]
     n_in = _unit(c - before) @ np.array([[0, -1], [1, 0]])  # right normal of a CCW edge points outward
     n_out = _unit(after - c) @ np.array([[0, -1], [1, 0]])
-    far = reach * 3
+    # the wedge spans far·n_in and far·n_out; the offset's mitre tip lies on the bisector at reach/(1 + n_in·n_out)
+    # along each (cut off at the mitre limit), so a sharp corner needs a longer wedge than a square one
+    spread = max(1.0 + float(n_in @ n_out), 1e-9)
+    far = reach * max(3.0, min(1.0 / spread, MITRE_LIMIT / math.sqrt(2.0 * spread)) + 1.0)
     return Polygon([c, c + far * n_in, c + far * (n_in + n_out), c + far * n_out])
 
 
@@ -80,12 +113,10 @@ def develop_blank(piece: PieceGeometry, *, offset_mm: float, die_radius_mm: floa
     flanged hole (ignored for plain holes, which are cut to size).
     """
     web = Polygon(piece.outline)
-    blank = web.buffer(offset_mm, quad_segs=QUAD_SEGS, join_style="mitre", mitre_limit=10.0)
-    for run in piece.runs:  # a cut end (no flange) stops the blank at the die's end face
-        if run.kind == "line" and not run.flanged:
-            x_cut = max(p[0] for p in run.points)
-            _minx, miny, maxx, maxy = blank.bounds
-            blank = blank.difference(shapely.box(x_cut, miny - 1, maxx + 1, maxy + 1))
+    blank = web.buffer(offset_mm, quad_segs=QUAD_SEGS, join_style="mitre", mitre_limit=MITRE_LIMIT)
+    for run in piece.runs:  # a cut edge (no flange) stops the blank flush with it
+        if not run.flanged and len(run.points) >= 2:
+            blank = blank.difference(_beyond_cut_edge(run, web, offset_mm))
     relief_d = relief_hole_diameter(thickness_mm, die_radius_mm)
     reliefs = []
     for corner in piece.relief_points:

@@ -1,0 +1,593 @@
+"""From a drawing to a drawn part (outline, holes, pins, flange runs) and on to a geometry-layer piece.
+
+:func:`drawn_part` takes the largest closed contour as the outline (made counter-clockwise), the
+contours inside it as holes, and lays the flange runs on the outline's edges.  :func:`drawn_piece`
+makes the die outline — the outline itself, or for a mold-line outline the outline offset inward by
+the sheet thickness (a true normal offset with round joins, as the rib's mold-line offsets) — and
+fills a :class:`~diegen.geometry.types.PieceGeometry` the forming analysis, blank and die layers read:
+
+* runs are split at flange-run boundaries and at corners; a run that is one straight edge is a
+  ``line``, anything else a ``curve`` (its straight stretches given points every ``CURVE_STEP_MM`` so
+  a spline through them stays straight);
+* a corner is an edge junction of the drawn outline that turns by ``CORNER_TURN_DEG`` or more
+  (project limit: a gentler turn is left inside its run, where the contoured-flange strain, windowed
+  over one flange width, sees it as a tight curve); a concave corner of a mold-line outline becomes a
+  round of the sheet thickness in the die outline and so is no corner of the die;
+* relief points are the die's corners where a flanged run meets another flanged run;
+* round holes become holes (plain, or flanged to a given height), other inner contours cutouts;
+  drawn pin spots become pins (or pins are placed as for a rib when none are drawn).
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Sequence
+from dataclasses import replace
+
+import numpy as np
+import shapely
+from shapely.geometry import LinearRing, LineString, Polygon
+from shapely.geometry import Point as ShapelyPoint
+
+from diegen.errors import DrawingError, GeometryError
+from diegen.geometry import pins as pin_rules
+from diegen.geometry.polygon import as_points, offset_inward, vertical_extents
+from diegen.geometry.types import Hole, PieceGeometry, Pin, Point, Points, Run
+from diegen.sources.contour import CHORD_TOL_MM, Contour, Place, contour_names, split_edge, turn_angle
+from diegen.sources.model import (
+    OUTLINE_IS,
+    AllEdges,
+    Between,
+    Drawing,
+    DrawnHole,
+    DrawnPart,
+    DrawnPiece,
+    Flange,
+    FlangeRun,
+    FlangeRunSpec,
+    OnLayer,
+)
+
+CORNER_TURN_DEG = 10.0  # project limit: an edge junction turning this much or more is a corner
+SNAP_MM = 1.0  # a from/to point may lie this far from the outline (default)
+VERTEX_SNAP_MM = CHORD_TOL_MM  # a split this close to an edge end moves onto the end
+MERGE_MM = 0.05  # a run boundary this close to a die outline point moves onto that point
+CURVE_STEP_MM = 2.0  # longest segment inside a curve run (the die's spline then keeps straight stretches straight)
+DEPTH_SAMPLES = 64
+DEPTH_SPAN = 0.8  # the web's depth is sampled over the middle 80 % of its length (a rounded end has none)
+PIECE_NAME = "part"
+
+
+# -- the drawn part -------------------------------------------------------------------------------------
+
+
+def drawn_part(drawing: Drawing, flanges: Sequence[FlangeRunSpec], outline_is: str = "mold-line",
+               snap_mm: float = SNAP_MM) -> DrawnPart:
+    """The drawing's largest contour as a counter-clockwise outline with ``flanges`` laid on it, the
+    contours inside it as holes, and its pin spots.
+
+    ``outline_is`` is ``mold-line`` (the finished part's outline) or ``die``.  A from/to point may lie
+    up to ``snap_mm`` from the outline; it is taken to the nearest outline point, or to the nearest edge end
+    (a vertex of the drawing) when one lies within ``snap_mm`` of it.  Raises :class:`DrawingError` for a contour outside the outline or
+    crossing it, a hole inside another, a pin off the part, a layer no outline edge is on, a from/to point
+    too far from the outline, and edges two flange runs both claim.
+    """
+    place = drawing.place
+    if outline_is not in OUTLINE_IS:
+        raise DrawingError(f"{place.source}: expected the outline to be one of {', '.join(OUTLINE_IS)}, "
+                           f"found {outline_is!r}")
+    if not drawing.contours:
+        raise DrawingError(f"{place.source}: no closed contour to take as the outline")
+    contours = sorted(drawing.contours, key=lambda c: abs(c.area), reverse=True)
+    outer = contours[0].oriented(ccw=True)
+    outer_poly = Polygon(outer.points)
+    holes: list[DrawnHole] = []
+    for contour in contours[1:]:
+        poly = Polygon(contour.points)
+        _check_inside(outer, outer_poly, contour, poly, place)
+        for other in holes:
+            other_poly = Polygon(other.contour.points)
+            if poly.intersects(other_poly):
+                where = _some_point(poly.boundary.intersection(other_poly.boundary) or poly.intersection(other_poly))
+                raise DrawingError(f"{place.source}: the inner contours [{_names(contour)}] and "
+                                   f"[{_names(other.contour)}] overlap near {place.at(where)}: a hole may not lie in "
+                                   "or cross another")
+        holes.append(DrawnHole(contour.oriented(ccw=False), contour.circle))
+    web = Polygon(outer.points, [h.contour.points for h in holes])
+    for pin in drawing.pins:
+        if not web.contains(ShapelyPoint(pin.x, pin.y)):
+            inside_hole = outer_poly.contains(ShapelyPoint(pin.x, pin.y))
+            raise DrawingError(f"{place.source}: pin {pin.origin} at {place.at((pin.x, pin.y))} lies "
+                               f"{'in a hole' if inside_hole else 'outside the outline'}: a pin goes through the web")
+    outline, runs = _lay_runs(outer, flanges, place, snap_mm)
+    return DrawnPart(outline, outline_is, runs, tuple(holes), drawing.pins, place.source, place)  # type: ignore[arg-type]
+
+
+def _names(contour: Contour) -> str:
+    return contour_names(contour)
+
+
+def _some_point(geometry) -> Point:
+    if geometry is None or geometry.is_empty:
+        return (math.nan, math.nan)
+    x, y = shapely.get_coordinates(geometry)[0]
+    return float(x), float(y)
+
+
+def _check_inside(outer: Contour, outer_poly: Polygon, contour: Contour, poly: Polygon, place: Place) -> None:
+    if outer_poly.contains(poly):
+        return
+    crossing = outer_poly.boundary.intersection(poly.boundary)
+    if not crossing.is_empty:
+        raise DrawingError(f"{place.source}: the contour [{_names(contour)}] crosses the outline [{_names(outer)}] "
+                           f"at {place.at(_some_point(crossing))}: a hole must lie inside the outline")
+    p = poly.representative_point()
+    raise DrawingError(f"{place.source}: the contour [{_names(contour)}] near {place.at((p.x, p.y))} lies outside the "
+                       f"outline [{_names(outer)}]: a drawing (or its outline layers) must hold one part")
+
+
+def _lay_runs(outer: Contour, specs: Sequence[FlangeRunSpec], place: Place,
+              snap_mm: float) -> tuple[Contour, tuple[FlangeRun, ...]]:
+    """Split the outline at every from/to point, give each edge the flange that claims it, and start the
+    outline at a run boundary."""
+    ring = LinearRing(outer.points)
+    ends: dict[int, tuple[Point, Point]] = {}
+    for index, spec in enumerate(specs):
+        if isinstance(spec.edges, Between):
+            snapped = []
+            for role, p in (("from", spec.edges.start), ("to", spec.edges.end)):
+                distance = ring.distance(ShapelyPoint(p))
+                foot = ring.interpolate(ring.project(ShapelyPoint(p)))
+                if distance > snap_mm:
+                    raise DrawingError(
+                        f"{place.source}: {_label(spec, index)}: the {role} point {place.at(p)} is "
+                        f"{place.length(distance)} from the outline (at most {place.length(snap_mm)} allowed); the "
+                        f"nearest outline point is {place.at((foot.x, foot.y))}")
+                corner = min((e.start for e in outer.edges), key=lambda q: math.dist(p, q))
+                snapped.append(corner if math.dist(p, corner) <= snap_mm else (foot.x, foot.y))
+            if math.dist(*snapped) <= VERTEX_SNAP_MM:
+                raise DrawingError(f"{place.source}: {_label(spec, index)}: from and to meet at the same outline point "
+                                   f"{place.at(snapped[0])}: a flange run needs two different ends")
+            ends[index] = (snapped[0], snapped[1])
+            for p in snapped:
+                outer = _split_at(outer, p)
+    claims: list[int | None] = [None] * len(outer.edges)
+    for index, spec in enumerate(specs):
+        chosen = _chosen_edges(outer, spec, index, ends.get(index), place)
+        for k in chosen:
+            if claims[k] is not None:
+                edge = outer.edges[k]
+                raise DrawingError(
+                    f"{place.source}: {_label(specs[claims[k]], claims[k])} and {_label(spec, index)} both claim the "
+                    f"edge {edge.origin + ' ' if edge.origin else ''}from {place.at(edge.start)} to {place.at(edge.end)}:"
+                    " each edge may have one flange at most")
+            claims[k] = index
+    n = len(outer.edges)
+    start = next((k for k in range(n) if claims[k] != claims[k - 1]), 0)
+    outer = outer.starting_at(start)
+    claims = claims[start:] + claims[:start]
+    runs = []
+    k = 0
+    while k < n:
+        stop = k + 1
+        while stop < n and claims[stop] == claims[k]:
+            stop += 1
+        if claims[k] is not None:
+            spec = specs[claims[k]]
+            runs.append(FlangeRun(k, stop, spec.flange, _label(spec, claims[k])))
+        k = stop
+    return outer, tuple(runs)
+
+
+def _label(spec: FlangeRunSpec, index: int) -> str:
+    return spec.label or f"flange run {index + 1}"
+
+
+def _split_at(contour: Contour, p: Point) -> Contour:
+    """The contour with the edge under ``p`` split there (unless ``p`` is at an edge end already)."""
+    best, best_d = 0, math.inf
+    for k, edge in enumerate(contour.edges):
+        if min(math.dist(p, edge.start), math.dist(p, edge.end)) <= VERTEX_SNAP_MM:
+            return contour
+        d = LineString(edge.points).distance(ShapelyPoint(p))
+        if d < best_d:
+            best, best_d = k, d
+    head, tail = split_edge(contour.edges[best], p)
+    return Contour(contour.edges[:best] + (head, tail) + contour.edges[best + 1:])
+
+
+def _vertex_edge(contour: Contour, p: Point) -> int:
+    """Index of the edge that starts at the outline point ``p``."""
+    return int(np.argmin([math.dist(p, e.start) for e in contour.edges]))
+
+
+def _chosen_edges(outer: Contour, spec: FlangeRunSpec, index: int, ends: tuple[Point, Point] | None,
+                  place: Place) -> list[int]:
+    n = len(outer.edges)
+    if isinstance(spec.edges, AllEdges):
+        return list(range(n))
+    if isinstance(spec.edges, OnLayer):
+        key = spec.edges.layer.casefold()
+        chosen = [k for k, e in enumerate(outer.edges) if e.layer.casefold() == key]
+        if not chosen:
+            layers = ", ".join(sorted({e.layer for e in outer.edges if e.layer})) or "none (the source has no layers)"
+            raise DrawingError(f"{place.source}: {_label(spec, index)}: no outline edge is on layer "
+                               f"{spec.edges.layer!r}; the outline's edges are on: {layers}")
+        return chosen
+    if isinstance(spec.edges, Between) and ends is not None:
+        first, last = _vertex_edge(outer, ends[0]), _vertex_edge(outer, ends[1])
+        count = (last - first) % n
+        return [(first + i) % n for i in range(count)]
+    raise DrawingError(f"{place.source}: {_label(spec, index)}: expected the edges as all, a layer or from/to points, "
+                       f"found {spec.edges!r}")
+
+
+# -- the geometry-layer piece -----------------------------------------------------------------------------
+
+
+def drawn_piece(part: DrawnPart, *, part_id: str, sheet_thickness_mm: float, pin_diameter_mm: float,
+                hole_flange_height_mm: float | None = None, edge_margin_mm: float = 6.0,
+                auto_pins: bool = True) -> DrawnPiece:
+    """The drawn part as the geometry layer's piece (mm).
+
+    The die outline is the outline (``die``) or the outline offset inward by ``sheet_thickness_mm``
+    (``mold-line``).  Round holes are plain, or flanged to ``hole_flange_height_mm``.  Drawn pin spots
+    become pins of ``pin_diameter_mm``; with none drawn and ``auto_pins``, pins are placed as a rib's are,
+    ``edge_margin_mm`` clear of the flange bend line and the holes.  When every flange bends up, the piece
+    is the drawing's mirror image (x → −x) so the flanges fold down over the die.
+
+    Raises :class:`GeometryError` for flanges bending both ways, an offset that leaves nothing or splits
+    the part, a hole that reaches the flange bend or outside the die, a pin without room.
+    """
+    place = part.place
+    flanges = part.edge_flanges()
+    used = list(part.runs)
+    directions = {r.flange.direction for r in used}
+    if len(directions) > 1:
+        ups = ", ".join(dict.fromkeys(r.label for r in used if r.flange.direction == "up"))
+        downs = ", ".join(dict.fromkeys(r.label for r in used if r.flange.direction == "down"))
+        raise GeometryError(f"{place.source}: flanges bend up ({ups}) and down ({downs}): one form block folds every "
+                            "flange the same way; make the part in two pressings (two parts), or form some by hand")
+    mirrored = directions == {"up"}
+    bend_radius = max((r.flange.bend_radius_mm for r in used), default=0.0)
+    mold = part.outline
+    mold_pts = np.asarray(mold.points, dtype=float)
+    offsets = mold.edge_offsets()
+    total = float(offsets[-1])
+    marks = _mold_marks(part)
+    if part.outline_is == "die":
+        die_pts = mold_pts
+        die_s = np.cumsum(np.r_[0.0, np.hypot(*np.diff(mold_pts, axis=0).T)])
+    else:
+        die_poly = offset_inward(Polygon(mold_pts), sheet_thickness_mm,
+                                 f"{place.source}: offsetting the mold line inward by the sheet "
+                                 f"({sheet_thickness_mm:.3f} mm) for the die outline")
+        die_pts = np.asarray(as_points(die_poly), dtype=float)
+        die_s = np.asarray(shapely.line_locate_point(LinearRing(mold_pts), shapely.points(die_pts)), dtype=float)
+        die_pts, die_s = _unwrap(die_pts, die_s, total)
+    inset = 0.0 if part.outline_is == "die" else sheet_thickness_mm
+    pts, s, vertex_marks = _place_marks(die_pts, die_s, marks, total, inset)
+    pts, s, vertex_marks = _drop_inserted_points(pts, s, vertex_marks, offsets, mold, total)
+    straight = _straight_segments(pts, s, offsets, mold, total)
+    runs, run_flanges, reliefs = _runs(pts, s, vertex_marks, straight, offsets, flanges, total)
+    die_poly = Polygon([p for run in runs for p in run.points[:-1]])
+    holes, cutouts = _holes(part, die_poly, runs, bend_radius, hole_flange_height_mm, place)
+    pins = _pins(part, die_poly, holes, bend_radius, edge_margin_mm, pin_diameter_mm, auto_pins, part_id, place)
+    minx, _, maxx, _ = die_poly.bounds
+    geometry = PieceGeometry(PIECE_NAME, part_id, (float(minx), float(maxx)), runs, (), holes, pins, reliefs,
+                             _depth_range(die_poly), runs)
+    if mirrored:
+        geometry, run_flanges, cutouts = _mirror(geometry, run_flanges, cutouts)
+    return DrawnPiece(geometry, run_flanges, mirrored, cutouts)
+
+
+def _mold_marks(part: DrawnPart) -> list[tuple[float, bool, float]]:
+    """Boundaries along the drawn outline, at edge starts: (arc length, is a run boundary, signed turn in rad
+    where the edges meet at a corner, else 0)."""
+    edges = part.outline.edges
+    offsets = part.outline.edge_offsets()
+    run_of: list[int | None] = [None] * len(edges)
+    for i, run in enumerate(part.runs):
+        for k in range(run.first_edge, run.stop_edge):
+            run_of[k] = i
+    marks = []
+    for k, edge in enumerate(edges):
+        turn = turn_angle(edges[k - 1].end_tangent(), edge.start_tangent())
+        boundary = run_of[k] != run_of[k - 1]
+        corner = abs(math.degrees(turn)) >= CORNER_TURN_DEG
+        if boundary or corner:
+            marks.append((float(offsets[k]), boundary, turn if corner else 0.0))
+    return marks
+
+
+def _unwrap(pts: np.ndarray, s: np.ndarray, total: float) -> tuple[np.ndarray, np.ndarray]:
+    """Start the die loop where its footpoints on the drawn outline wrap round, and make them non-decreasing."""
+    jumps = np.diff(np.r_[s, s[0]])
+    start = (int(np.argmin(jumps)) + 1) % len(s)
+    pts, s = np.roll(pts, -start, axis=0), np.roll(s, -start)
+    if s[0] > total / 2:  # the first point's footpoint sits at the very end of the outline: read it as 0
+        s[0] -= total
+    return pts, np.maximum.accumulate(s)
+
+
+def _place_marks(pts: np.ndarray, s: np.ndarray, marks: list[tuple[float, bool, float]], total: float,
+                 inset: float) -> tuple[list[Point], list[float], list[tuple[bool, bool]]]:
+    """Die outline points and footpoint positions with a point at every mark, and each point's marks
+    (run boundary, corner).  ``inset`` is how far the die outline lies inside the drawn one (mm)."""
+    points = [(float(x), float(y)) for x, y in pts]
+    where = [float(v) for v in s]
+    flags: list[tuple[bool, bool]] = [(False, False)] * len(points)
+    eps = 1e-6 * max(1.0, total)
+    for s_mark, boundary, turn in marks:
+        count = len(points)
+        index = _corner_index(points, where, s_mark, turn, inset, total) if turn > 0 and inset > 0 else None
+        if index is None:
+            index = _mark_index(points, where, s_mark, eps, total)
+        if len(points) > count:  # a point was put in for the mark
+            flags.insert(index, (False, False))
+        old = flags[index]
+        flags[index] = (old[0] or boundary, old[1] or turn != 0.0)
+    return points, where, flags
+
+
+def _corner_index(points: list[Point], where: list[float], s_mark: float, turn: float, inset: float,
+                  total: float) -> int | None:
+    """The die's own corner for a convex corner of the drawn outline offset inward by ``inset``.
+
+    The offset corner's nearest points on the drawn outline are its two feet, inset/tan(half the corner's
+    inside angle) either side of the corner: the die point in that reach that turns most is the corner.
+    """
+    reach = inset / math.tan(max(math.pi - turn, math.radians(1.0)) / 2.0) + 2 * MERGE_MM
+    s = np.asarray(where)
+    near = [i for i in range(len(points))
+            if min(abs(s[i] - s_mark), abs(s[i] - s_mark - total), abs(s[i] - s_mark + total)) <= reach]
+    n = len(points)
+    best, best_turn = None, 0.0
+    for i in near:
+        a, b, c = points[i - 1], points[i], points[(i + 1) % n]
+        t = turn_angle(_direction(a, b), _direction(b, c))
+        if t > best_turn:
+            best, best_turn = i, t
+    return best if best is not None and best_turn >= math.radians(CORNER_TURN_DEG) / 2 else None
+
+
+def _mark_index(points: list[Point], where: list[float], s_mark: float, eps: float, total: float) -> int:
+    """The die outline point for the drawn outline's position ``s_mark`` (inserting one where needed)."""
+    n = len(points)
+    s = np.asarray(where)
+    for target in (s_mark, s_mark + total, s_mark - total):
+        same = np.nonzero(np.abs(s - target) <= eps)[0]
+        if len(same) == 1:
+            return int(same[0])
+        if len(same) > 1:  # a round join about a concave corner: mark its middle
+            return _middle(points, where, [int(i) for i in same])
+    ext = np.r_[s, s[0] + total]
+    for target in (s_mark, s_mark + total):
+        i = int(np.searchsorted(ext, target, side="right")) - 1
+        if 0 <= i < n and ext[i] < target < ext[i + 1]:
+            u = (target - ext[i]) / (ext[i + 1] - ext[i])
+            a, b = points[i], points[(i + 1) % n]
+            if ext[i + 1] - ext[i] > math.dist(a, b) + MERGE_MM:
+                # the footpoints jump here: one end is a corner of the die, the mark belongs on it
+                return i if _turn_at(points, i) >= _turn_at(points, (i + 1) % n) else (i + 1) % n
+            p = (a[0] + u * (b[0] - a[0]), a[1] + u * (b[1] - a[1]))
+            if math.dist(p, a) <= MERGE_MM:
+                return i
+            if math.dist(p, b) <= MERGE_MM:
+                return (i + 1) % n
+            return _insert(points, where, i + 1, p, float(target))
+    return int(np.argmin(np.abs(s - s_mark)))
+
+
+def _middle(points: list[Point], where: list[float], same: list[int]) -> int:
+    """The point halfway along the outline points ``same`` (consecutive), inserted unless one lies there."""
+    run = np.asarray([points[i] for i in same])
+    lengths = np.r_[0.0, np.cumsum(np.hypot(*np.diff(run, axis=0).T))]
+    half = lengths[-1] / 2.0
+    j = int(np.argmin(np.abs(lengths - half)))
+    if abs(lengths[j] - half) <= MERGE_MM:
+        return same[j]
+    j = int(np.searchsorted(lengths, half))
+    u = (half - lengths[j - 1]) / (lengths[j] - lengths[j - 1])
+    a, b = run[j - 1], run[j]
+    return _insert(points, where, same[j], (float(a[0] + u * (b[0] - a[0])), float(a[1] + u * (b[1] - a[1]))),
+                   where[same[0]])
+
+
+def _turn_at(points: list[Point], i: int) -> float:
+    n = len(points)
+    return abs(turn_angle(_direction(points[i - 1], points[i]), _direction(points[i], points[(i + 1) % n])))
+
+
+def _insert(points: list[Point], where: list[float], index: int, p: Point, s_value: float) -> int:
+    points.insert(index, (float(p[0]), float(p[1])))
+    where.insert(index, float(s_value))
+    return index
+
+
+def _mold_edge(s_value: float, offsets: np.ndarray) -> int:
+    k = int(np.searchsorted(offsets, s_value % offsets[-1], side="right")) - 1
+    return min(max(k, 0), len(offsets) - 2)
+
+
+def _straight_segments(pts: list[Point], s: list[float], offsets: np.ndarray, mold: Contour,
+                       total: float) -> list[bool]:
+    """For each die segment (point i to i + 1), whether it lies along a straight edge of the drawn outline."""
+    n = len(pts)
+    straight = []
+    for i in range(n):
+        a, b = pts[i], pts[(i + 1) % n]
+        s_next = s[(i + 1) % n] + (total if i + 1 == n else 0.0)
+        edge = mold.edges[_mold_edge((s[i] + s_next) / 2.0, offsets)]
+        if edge.kind != "line" or math.dist(a, b) == 0.0:
+            straight.append(False)
+            continue
+        d, e = _direction(a, b), _direction(edge.start, edge.end)
+        straight.append(d[0] * e[0] + d[1] * e[1] > 1.0 - 1e-9)
+    return straight
+
+
+def _drop_inserted_points(pts: list[Point], s: list[float], flags: list[tuple[bool, bool]], offsets: np.ndarray,
+                          mold: Contour, total: float) -> tuple[list[Point], list[float], list[tuple[bool, bool]]]:
+    """Drop unmarked points where a curved stretch does not turn (points the offset put on a chord's middle).
+
+    The contoured-flange strain spreads each point's turning over its half edges, which is a uniform
+    turning rate only when the points that turn are evenly spaced: a point on a chord's middle breaks that.
+    """
+    n = len(pts)
+    straight = _straight_segments(pts, s, offsets, mold, total)
+    keep = []
+    for i in range(n):
+        before, after = pts[i - 1], pts[(i + 1) % n]
+        turn = abs(turn_angle(_direction(before, pts[i]), _direction(pts[i], after)))
+        keep.append(flags[i] != (False, False) or straight[i - 1] or straight[i] or turn > 1e-7)
+    return ([p for p, k in zip(pts, keep) if k], [v for v, k in zip(s, keep) if k],
+            [f for f, k in zip(flags, keep) if k])
+
+
+def _runs(pts: list[Point], s: list[float], flags: list[tuple[bool, bool]], straight: list[bool], offsets: np.ndarray,
+          flanges: tuple[Flange | None, ...], total: float) -> tuple[tuple[Run, ...], tuple[Flange | None, ...], Points]:
+    """The die outline split at its marked points into runs, each run's flange, and the relief points."""
+    n = len(pts)
+    cuts = [i for i in range(n) if flags[i][0] or flags[i][1]]
+    if len(cuts) == 1:  # one corner alone: split the loop opposite it too, so no run is a loop with a corner
+        target = (s[cuts[0]] + total / 2.0)
+        cuts.append(int(np.argmin([abs(((v - target + total / 2) % total) - total / 2) for v in s])))
+        cuts.sort()
+    if not cuts:
+        loop = pts + [pts[0]]
+        mid = s[n // 2] % total
+        flange = _flange_at(mid, offsets, flanges)
+        return (Run("curve", _densify(loop, straight), flange is not None),), (flange,), ()
+    pieces = []
+    for j, a in enumerate(cuts):
+        b = cuts[(j + 1) % len(cuts)]
+        idx = list(range(a, b + 1)) if b > a else list(range(a, n)) + list(range(b + 1))
+        s_a, s_b = s[a], s[b] if b > a else s[b] + total
+        pieces.append((a, b, [pts[i] for i in idx], (s_a + s_b) / 2.0 % total, [straight[i] for i in idx[:-1]]))
+    runs, run_flanges = [], []
+    for _, _, points, mid, along in pieces:
+        flange = _flange_at(mid, offsets, flanges)
+        runs.append(_run(points, along, flange is not None))
+        run_flanges.append(flange)
+    reliefs = []
+    for j, (a, _, _, _, _) in enumerate(pieces):
+        before = run_flanges[j - 1]
+        if flags[a][1] and before is not None and run_flanges[j] is not None and len(pieces) > 1:
+            turn = abs(math.degrees(turn_angle(_direction(pts[a - 1], pts[a]), _direction(pts[a], pts[(a + 1) % n]))))
+            if turn >= CORNER_TURN_DEG:
+                reliefs.append(pts[a])
+    return tuple(runs), tuple(run_flanges), tuple(reliefs)
+
+
+def _direction(a: Point, b: Point) -> Point:
+    d = math.dist(a, b)
+    return ((b[0] - a[0]) / d, (b[1] - a[1]) / d)
+
+
+def _flange_at(s_mid: float, offsets: np.ndarray, flanges: tuple[Flange | None, ...]) -> Flange | None:
+    k = int(np.searchsorted(offsets, s_mid, side="right")) - 1
+    return flanges[min(max(k, 0), len(flanges) - 1)]
+
+
+def _run(points: list[Point], straight: list[bool], flanged: bool) -> Run:
+    p = np.asarray(points, dtype=float)
+    chord = p[-1] - p[0]
+    length = float(np.hypot(*chord))
+    if len(p) == 2 or (length > 0 and _off_chord(p, chord, length) <= 1e-9 * max(1.0, length)):
+        return Run("line", (points[0], points[-1]), flanged)
+    return Run("curve", _densify(points, straight), flanged)
+
+
+def _off_chord(p: np.ndarray, chord: np.ndarray, length: float) -> float:
+    rel = p - p[0]
+    return float(np.max(np.abs(rel[:, 0] * chord[1] - rel[:, 1] * chord[0])) / length)
+
+
+def _densify(points: list[Point], straight: list[bool]) -> Points:
+    """Points every ``CURVE_STEP_MM`` at most along each segment on a straight edge of the drawing (ends kept);
+    chords of curved stretches are left alone (a point on a chord would be a kink to the strain's windowing)."""
+    out: list[Point] = [points[0]]
+    for a, b, along in zip(points[:-1], points[1:], straight):
+        steps = max(1, math.ceil(math.dist(a, b) / CURVE_STEP_MM)) if along else 1
+        for k in range(1, steps + 1):
+            u = k / steps
+            out.append(b if k == steps else (a[0] + u * (b[0] - a[0]), a[1] + u * (b[1] - a[1])))
+    return tuple(out)
+
+
+def _holes(part: DrawnPart, die_poly: Polygon, runs: tuple[Run, ...], bend_radius: float,
+           flange_height: float | None, place: Place) -> tuple[tuple[Hole, ...], tuple[Points, ...]]:
+    flanged_edges = [LineString(r.points) for r in runs if r.flanged]
+    holes, cutouts = [], []
+    for drawn in part.holes:
+        poly = Polygon(drawn.contour.points)
+        name = _names(drawn.contour)
+        label = f"the hole [{name}]" if name else "a hole"
+        if not die_poly.contains(poly):
+            raise GeometryError(f"{place.source}: {label} reaches outside the die outline"
+                                f"{' (the mold line offset inward by the sheet)' if part.outline_is == 'mold-line' else ''}"
+                                f" near {place.at(_some_point(poly.boundary.difference(die_poly)))}")
+        if drawn.circle is not None:  # the true circle, not its flattened polygon
+            centre = ShapelyPoint(drawn.circle[0], drawn.circle[1])
+            gap = min((line.distance(centre) for line in flanged_edges), default=math.inf) - drawn.circle[2] / 2
+        else:
+            gap = min((line.distance(poly) for line in flanged_edges), default=math.inf)
+        if gap < bend_radius:
+            raise GeometryError(f"{place.source}: {label} comes within {place.length(gap)} of a flanged edge of the die; the "
+                                f"flange bend takes {place.length(bend_radius)} of web (its bend radius) along a "
+                                "flanged edge")
+        if drawn.circle is not None:
+            x, y, d = drawn.circle
+            holes.append(Hole(x, y, d, flange_height is not None, float(flange_height or 0.0)))
+        else:
+            cutouts.append(drawn.contour.points)
+    return tuple(holes), tuple(cutouts)
+
+
+def _pins(part: DrawnPart, die_poly: Polygon, holes: tuple[Hole, ...], bend_radius: float, margin: float,
+          diameter: float, auto: bool, part_id: str, place: Place) -> tuple[Pin, ...]:
+    if not part.pins:
+        return pin_rules.auto_pins(die_poly, bend_radius, margin, diameter, holes, part_id) if auto else ()
+    room = pin_rules.pin_room(die_poly, bend_radius, margin, diameter, holes)
+    inset = bend_radius + margin + diameter / 2.0
+    pins = []
+    for pin in part.pins:
+        spot = ShapelyPoint(pin.x, pin.y)
+        if not room.contains(spot):
+            edge = die_poly.exterior.distance(spot) if die_poly.contains(spot) else -die_poly.exterior.distance(spot)
+            raise GeometryError(
+                f"{place.source}: pin {pin.origin} at {place.at((pin.x, pin.y))}: a {diameter:.2f} mm pin's centre must "
+                f"stand {inset:.2f} mm inside the die outline (bend radius {bend_radius:.2f} mm + margin {margin:.2f} mm"
+                f" + half the pin) and as clear of the holes; it is {edge:.2f} mm inside the die outline")
+        pins.append(Pin(pin.x, pin.y, diameter))
+    return tuple(pins)
+
+
+def _depth_range(die_poly: Polygon) -> tuple[float, float]:
+    """Smallest and largest vertical depth of the web (mm), sampled across the middle of its length."""
+    minx, _, maxx, _ = die_poly.bounds
+    margin = (1.0 - DEPTH_SPAN) / 2.0 * (maxx - minx)
+    extents = vertical_extents(die_poly, np.linspace(minx + margin, maxx - margin, DEPTH_SAMPLES))
+    depths = extents[:, 1] - extents[:, 0]
+    depths = depths[np.isfinite(depths)]
+    return (round(float(depths.min()), 3), round(float(depths.max()), 3)) if depths.size else (0.0, 0.0)
+
+
+def _mirror(geometry: PieceGeometry, run_flanges: tuple[Flange | None, ...],
+            cutouts: tuple[Points, ...]) -> tuple[PieceGeometry, tuple[Flange | None, ...], tuple[Points, ...]]:
+    """The piece seen from its other face (x → −x), still counter-clockwise."""
+
+    def flip(points: Points) -> Points:
+        return tuple((-x, y) for x, y in reversed(points))
+
+    runs = tuple(Run(r.kind, flip(r.points), r.flanged) for r in reversed(geometry.runs))
+    x0, x1 = geometry.x_range_mm
+    mirrored = replace(geometry, x_range_mm=(-x1, -x0), runs=runs, plain_runs=runs,
+                       holes=tuple(replace(h, x=-h.x) for h in geometry.holes),
+                       pins=tuple(replace(p, x=-p.x) for p in geometry.pins),
+                       relief_points=tuple((-x, y) for x, y in geometry.relief_points))
+    return mirrored, tuple(reversed(run_flanges)), tuple(flip(c) for c in cutouts)
+
+
+__all__ = ["CORNER_TURN_DEG", "SNAP_MM", "drawn_part", "drawn_piece"]
