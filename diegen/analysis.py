@@ -13,9 +13,9 @@ import numpy as np
 
 from diegen import materials
 from diegen.blank.develop import develop_blank, notch_polygon
-from diegen.errors import FormingError
 from diegen.blank.drawing import BlankDrawing
 from diegen.die.plan import DiePlan, with_die_plan
+from diegen.errors import FormingError
 from diegen.findings import Finding
 from diegen.forming import press as press_model
 from diegen.forming import relief as relief_model

@@ -25,7 +25,8 @@ def _jobs(text: str) -> int:
     try:
         value = int(text)
     except ValueError:
-        raise argparse.ArgumentTypeError(f"expected a whole number of worker processes (1 or more), found {text!r}")
+        raise argparse.ArgumentTypeError(
+            f"expected a whole number of worker processes (1 or more), found {text!r}") from None
     if value < 1:
         raise argparse.ArgumentTypeError(f"expected 1 or more worker processes, found {value}; leave -j out to use "
                                          "one per core")

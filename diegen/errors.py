@@ -8,7 +8,6 @@ matching built-in, so callers may catch either.  The CLI turns any
 from __future__ import annotations
 
 import re
-
 from collections.abc import Iterator
 from contextlib import contextmanager
 from dataclasses import dataclass

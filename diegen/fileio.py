@@ -33,7 +33,7 @@ def confined_to(folder: str | os.PathLike[str]) -> Iterator[Path]:
 
     ``folder`` is resolved once, here: the limit is the real folder it names now.
     """
-    global _ROOT
+    global _ROOT  # noqa: PLW0603 - one build per process confines its writes; workers set it per piece
     previous, _ROOT = _ROOT, Path(folder).resolve()
     try:
         yield _ROOT

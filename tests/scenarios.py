@@ -157,7 +157,7 @@ def scenarios() -> list[Scenario]:
     """The corpus: at least 30 specs (see the module docstring for what they cover)."""
     out: list[Scenario] = []
     # -- single ribs: every alloy, relief policy and die material in turn over a spread of sections and chords --
-    sections = ("0012", "2412", "4412", "23012", "0009", "2415", "4415", "23015", "0015") + DATABASE_SECTIONS
+    sections = ("0012", "2412", "4412", "23012", "0009", "2415", "4415", "23015", "0015", *DATABASE_SECTIONS)
     chords = (250, 1600, 400, 900, 320, 1200, 600, 750, 280, 1050, 500, 1400, 350, 800, 450, 1000)
     gauges = (0.4, 0.5, 0.6, 0.8, 1.0, 1.2, 1.6, 0.635, 0.813, 1.016)
     materials = ROUTED + PRINTED
@@ -229,5 +229,16 @@ def _tail(name: str, die: str) -> Scenario:
 TAIL_PRINTED = _tail("TAIL-PLA", "{material: pla, stock_thickness: 20, cutter_diameter: 6, print_bed: [250, 210]}")
 TAIL_ROUTED = _tail("TAIL-MDF", "{material: mdf, stock_thickness: 18, cutter_diameter: 6}")
 
-__all__ = ["ALLOYS", "PRINTED", "RELIEFS", "ROUTED", "Scenario", "TAIL_PRINTED", "TAIL_ROUTED", "bend_radius_mm",
-           "database_folder", "scenarios", "write"]
+__all__ = [
+    "ALLOYS",
+    "PRINTED",
+    "RELIEFS",
+    "ROUTED",
+    "TAIL_PRINTED",
+    "TAIL_ROUTED",
+    "Scenario",
+    "bend_radius_mm",
+    "database_folder",
+    "scenarios",
+    "write",
+]

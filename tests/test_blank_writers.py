@@ -20,8 +20,8 @@ import pytest
 from shapely.geometry import Polygon, box
 from shapely.ops import unary_union
 
-from diegen.errors import GeometryError, OutputError
 from diegen.blank.drawing import BlankDrawing, Circle, Note
+from diegen.errors import GeometryError, OutputError
 from diegen.export.dxf import read_dxf_outline, write_dxf
 from diegen.export.pdf import MM_PER_INCH, plan_tiles, write_pdf
 from diegen.export.svg import SVG_MARGIN, write_svg

@@ -13,10 +13,10 @@ from pathlib import Path
 import pytest
 
 from diegen import api
+from diegen.errors import OutputError
 from diegen.pipeline.hashing import rib_input_hash
 from diegen.pipeline.lock import BuildLock
 from diegen.pipeline.manifest import Manifest
-from diegen.errors import OutputError
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO_RIB = ROOT / "specs" / "demo-rib.yaml"
@@ -95,10 +95,9 @@ def test_foreign_file_is_never_overwritten(tmp_path, fake_solids):
 
 
 def test_second_build_into_the_same_folder_is_refused(tmp_path):
-    with BuildLock(tmp_path / "T1"):
-        with pytest.raises(OutputError, match="another diegen build"):
-            with BuildLock(tmp_path / "T1"):
-                pass
+    with BuildLock(tmp_path / "T1"), pytest.raises(OutputError, match="another diegen build"), \
+            BuildLock(tmp_path / "T1"):
+        pass
 
 
 def test_rib_input_hash_ignores_file_location_but_not_values():

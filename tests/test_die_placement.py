@@ -127,7 +127,7 @@ def test_bore_counts_its_rounded_top_edge(bare, bare_model) -> None:
     reach = d / 2 + bare.bore_radius_mm
     ok, close = _probe_points(bare, reach + WALL)
     check_placement(replace(bare, bores=(DieBore(*ok, d),)), bare_model, DEFAULT_SETTINGS)
-    with pytest.raises(GeometryError, match="bore at .* closer than"):
+    with pytest.raises(GeometryError, match=r"bore at .* closer than"):
         check_placement(replace(bare, bores=(DieBore(*close, d),)), bare_model, DEFAULT_SETTINGS)
 
 
@@ -142,7 +142,7 @@ def test_two_bores_keep_the_wall_between_them(bare, bare_model) -> None:
         assert smallest_section(bare).buffer(-WALL - 0.1).contains(unary_union(discs)), "probe off the plate"
         die = replace(bare, bores=pair)
         if refused:
-            with pytest.raises(GeometryError, match="are closer than .* move them apart"):
+            with pytest.raises(GeometryError, match=r"are closer than .* move them apart"):
                 check_placement(die, bare_model, DEFAULT_SETTINGS)
         else:
             check_placement(die, bare_model, DEFAULT_SETTINGS)

@@ -168,7 +168,7 @@ def test_minimum_radius_is_judged_on_the_die_radius(tmp_path) -> None:
         api.analyse(api.load(path))
     message = str(caught.value)
     assert "1.905 mm minimum" in message and message.startswith(f"{path}:12:")
-    wanted = float(message.split("use a part radius of at least ")[1].split(" mm")[0])
+    wanted = float(message.split("use a part radius of at least ")[1].split(" mm", maxsplit=1)[0])
     path.write_text(DEMO_RIB.read_text().replace('bend_radius: "3/32 in"', f'bend_radius: "{wanted + 0.002} mm"'))
     piece = api.analyse(api.load(path)).pieces[0]
     assert piece.springback.die_radius_mm >= piece.min_radius.radius_mm == pytest.approx(1.905)

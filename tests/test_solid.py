@@ -557,9 +557,10 @@ def test_kernel_failure_becomes_solid_error(bare_input, monkeypatch):
 
 # ---------------------------------------------------------------- tiles and laminates
 def test_tiles_fit_the_bed_and_keep_the_volume(bare_die, bare_input):
+    from diegen.die.tiling import plan_tiles
+
     from diegen.die.model import outline_model
     from diegen.die.occ.tiles import tile_for_bed
-    from diegen.die.tiling import plan_tiles
 
     bed = (150.0, 200.0)
     plan = plan_tiles(bare_input, outline_model(bare_input), bed, dowel_d_mm=5.0, dowel_depth_mm=10.0)
@@ -577,8 +578,9 @@ def test_tiles_fit_the_bed_and_keep_the_volume(bare_die, bare_input):
 
 
 def test_bed_too_small(bare_input):
-    from diegen.die.model import outline_model
     from diegen.die.tiling import plan_tiles
+
+    from diegen.die.model import outline_model
 
     with pytest.raises(GeometryError, match="cannot take a tile"):
         plan_tiles(bare_input, outline_model(bare_input), (100.0, 100.0))

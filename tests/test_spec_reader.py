@@ -105,7 +105,7 @@ def test_numbers_within_bounds() -> None:
         "e": "expected a number, found a boolean (true)",
     }
     for p in r.problems:
-        assert (p.line, p.column) == at(NUMBERS, f"{p.key}:")[0:1] + (4,)  # every value starts in column 4
+        assert (p.line, p.column) == (*at(NUMBERS, f"{p.key}:")[0:1], 4)  # every value starts in column 4
 
 
 LENGTHS = """\

@@ -244,6 +244,24 @@ def die_drawing(die: DieInput, model: OutlineModel, marks: PlacedMarks, tiles: T
     return DieDrawing(die.part_id, title, DIE_LAYERS, tuple(polylines), tuple(circles), tuple(texts))
 
 
-__all__ = ["BORES", "BOTTOM_OUTLINE", "Circle", "DIE_LAYERS", "DOWEL_HOLES", "DieDrawing", "DrawingLayer", "FLUTES",
-           "JOGGLES", "MARKS", "NOTES", "Polyline", "SAMPLE_MM", "TEXT_MM", "TILE_JOINTS", "TOP_FLAT", "TOP_OUTLINE",
-           "Text", "die_drawing"]
+__all__ = [
+    "BORES",
+    "BOTTOM_OUTLINE",
+    "DIE_LAYERS",
+    "DOWEL_HOLES",
+    "FLUTES",
+    "JOGGLES",
+    "MARKS",
+    "NOTES",
+    "SAMPLE_MM",
+    "TEXT_MM",
+    "TILE_JOINTS",
+    "TOP_FLAT",
+    "TOP_OUTLINE",
+    "Circle",
+    "DieDrawing",
+    "DrawingLayer",
+    "Polyline",
+    "Text",
+    "die_drawing",
+]

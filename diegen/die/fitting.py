@@ -269,7 +269,7 @@ def _fit_flutes(die: DieInput, piece: Any, spec: Any, settings: BuildSettings) -
     if _model_with(die, kept, settings) is None:  # crowded, or too wide for the wall between corners: fewer
         kept = ()
         for flute in sized:
-            if _model_with(die, kept + (flute,), settings) is not None:
+            if _model_with(die, (*kept, flute), settings) is not None:
                 kept += (flute,)
     fitted = replace(die, flutes=kept)
     for _ in range(4):  # the room is measured on samples: make sure, and shallower still where it was not enough
@@ -305,4 +305,4 @@ def _fit_flutes(die: DieInput, piece: Any, spec: Any, settings: BuildSettings) -
     return fitted, [Finding(code, message, key="relief", s_mm=changed[0].s_mm if changed else None)]
 
 
-__all__ = ["Fitted", "MIN_FLUTE_DEPTH_MM", "ROOM_MARGIN_MM", "WALL_MARGIN_MM", "fit_die", "largest_wall_inset"]
+__all__ = ["MIN_FLUTE_DEPTH_MM", "ROOM_MARGIN_MM", "WALL_MARGIN_MM", "Fitted", "fit_die", "largest_wall_inset"]

@@ -89,7 +89,7 @@ def loft_sections(die: DieInput, settings: BuildSettings = DEFAULT_SETTINGS
     if die.flutes and arc[-1].depth_mm + 0.05 < die.flute_length_mm < die.height_mm - 0.05:
         depths.append(die.flute_length_mm)  # the flutes' taper ends here: the ruled wall needs a section
     depths.append(die.height_mm)
-    wall = (arc[-1],) + tuple(die_wall.WallSection(die_wall.wall_inset_mm(d, die.undercut_deg), d) for d in depths[1:])
+    wall = (arc[-1], *tuple(die_wall.WallSection(die_wall.wall_inset_mm(d, die.undercut_deg), d) for d in depths[1:]))
     return arc, wall
 
 

@@ -6,9 +6,9 @@ from __future__ import annotations
 from dataclasses import dataclass, replace
 from typing import Any
 
+from diegen.die.die_input import DieInput
 from diegen.die.fitting import fit_die
 from diegen.die.from_analysis import asked_die_input
-from diegen.die.die_input import DieInput
 from diegen.die.rules import die_refusal
 from diegen.die.settings import DEFAULT_SETTINGS, BuildSettings
 from diegen.findings import Finding

@@ -14,11 +14,7 @@ change, and the refusal that is left, if any, with its remedy.  Lengths in mm, a
 
 from __future__ import annotations
 
-from dataclasses import dataclass, replace
-from typing import Any
-
 from diegen.die.die_input import DieInput
-from diegen.die.from_analysis import asked_die_input
 from diegen.die.laminate import layer_outlines
 from diegen.die.model import loft_sections, outline_model, section
 from diegen.die.outline import OutlineModel
@@ -26,7 +22,6 @@ from diegen.die.placement import check_placement
 from diegen.die.settings import DEFAULT_SETTINGS, BuildSettings
 from diegen.die.tiles import die_tile_layout
 from diegen.errors import GeometryError
-from diegen.findings import Finding
 
 
 def check_die(die: DieInput, settings: BuildSettings = DEFAULT_SETTINGS) -> OutlineModel:

@@ -247,7 +247,7 @@ def dowel_spots(layout: TileLayout, solid: Any, x: float) -> list[float]:
                        for part in getattr(blocked, "geoms", [blocked]) if not part.is_empty)
     free: list[tuple[float, float]] = []
     at = y0 - 1.0
-    for a, b in forbidden + [(y1 + 1.0, y1 + 1.0)]:
+    for a, b in [*forbidden, (y1 + 1.0, y1 + 1.0)]:
         if a > at:
             free.append((at, a))
         at = max(at, b)

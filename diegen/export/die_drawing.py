@@ -52,7 +52,7 @@ def write_die_dxf(drawing: DieDrawing, path: str | os.PathLike[str]) -> Path:
     doc = build_die_dxf(drawing)
     target = Path(path)
     try:
-        write_with(target, lambda tmp: doc.saveas(tmp))
+        write_with(target, doc.saveas)
     except OSError as exc:
         raise OutputError(f"cannot write DXF {target}: {exc}") from exc
     return target

@@ -25,8 +25,8 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import Any, Final, Literal, get_args
 
-from diegen.errors import OutputError
 from diegen.blank.drawing import CUT, DRILL, NOTE, SCRIBE, BlankDrawing, arrow_segments
+from diegen.errors import OutputError
 from diegen.export.pdfdoc import ASCENT_EM, Canvas, Document, circle_operators, polyline_operators
 from diegen.fileio import write_bytes
 

@@ -21,6 +21,7 @@ strains dimensionless.
 
 from __future__ import annotations
 
+import itertools
 import math
 from dataclasses import dataclass
 from typing import Literal
@@ -174,7 +175,7 @@ def _runs(s: FloatArray, g: FloatArray, total: float, closed: bool) -> list[tupl
                 break
             idx.append(nxt)
             j = nxt
-        area = sum(0.5 * (g[a] + g[b]) * seg(a) for a, b in zip(idx[:-1], idx[1:]))
+        area = sum(0.5 * (g[a] + g[b]) * seg(a) for a, b in itertools.pairwise(idx))
         length = sum(seg(a) for a in idx[:-1])
         start = float(s[i0])
         if closed or i0 > 0:  # lead-in crossing

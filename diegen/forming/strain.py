@@ -207,7 +207,7 @@ def strain_along(
 
     seg = (np.roll(pts, -1, axis=0) - pts) if closed else (pts[1:] - pts[:-1])
     s_vertex = np.concatenate(([0.0], np.cumsum(np.hypot(seg[:, 0], seg[:, 1]))))
-    n_grid = max(int(math.ceil(total / stp)), 1)
+    n_grid = max(math.ceil(total / stp), 1)
     grid = np.linspace(0.0, total, n_grid + 1)
     s = np.unique(np.concatenate((grid, s_vertex)))
     if closed:

@@ -34,8 +34,8 @@ from pathlib import Path
 import numpy as np
 
 from diegen.errors import AirfoilError
-from diegen.geometry.loops import FloatArray, IntArray
 from diegen.fileio import UnusableInput, read_plain_file
+from diegen.geometry.loops import FloatArray, IntArray
 from diegen.geometry.section import (
     MIN_POINTS,
     first_x_reversal,
@@ -149,7 +149,7 @@ def _build_chain(rows: _Rows, name: str) -> tuple[FloatArray, IntArray]:
     return chain, lines
 
 
-def offending_point(loop: FloatArray, point_lines: NDArray[np.intp], near: int) -> int:
+def offending_point(loop: FloatArray, point_lines: IntArray, near: int) -> int:
     """The point (loop index) to blame for a loop that crosses itself: of the points on the crossing edges, the
     one written first in the file whose removal leaves the outline simple; else the point ``near`` the crossing.
 

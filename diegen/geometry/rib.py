@@ -24,8 +24,8 @@ from diegen.geometry.pieces import (
     relief_points,
     tail_end,
 )
-from diegen.geometry.tooling import tooling
 from diegen.geometry.polygon import QUAD_SEGS, as_points, inscribed_diameter, offset_inward, vertical_extents
+from diegen.geometry.tooling import tooling
 from diegen.geometry.types import Hole, PieceGeometry, RibGeometry
 from diegen.spec.model import AirfoilSource, RibSpec
 

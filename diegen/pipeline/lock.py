@@ -100,7 +100,7 @@ def remove_stale_temporaries(folder: Path) -> None:
 
     Only plain files are removed and no link is followed: a link (to a folder or file) is left alone.
     """
-    for where, folders, files in os.walk(folder, followlinks=False):
+    for where, _folders, files in os.walk(folder, followlinks=False):
         for name in files:
             if fnmatch.fnmatch(name, f".*{TEMPORARY_MARK}*"):
                 path = Path(where) / name

@@ -18,9 +18,9 @@ from pathlib import Path
 import numpy as np
 
 from diegen.analysis import RibAnalysis
-from diegen.locate import analyse_located
 from diegen.errors import DiegenError
 from diegen.fileio import confined_to, inside, reason, remove_empty_folder, remove_file
+from diegen.locate import analyse_located
 from diegen.pipeline.hashing import rib_input_hash
 from diegen.pipeline.manifest import FileStamp
 from diegen.pipeline.outputs import DieWriter, write_piece

@@ -89,7 +89,7 @@ def refusals_text(refused: list[tuple[str, str]], total: int) -> str:
 def footer_text() -> str:
     """Which model each number comes from, and the safety cautions."""
     models = ["Models behind the numbers:"] + [f"  {name.replace('_', ' ')}: {text}" for name, text in MODELS.items()]
-    return "\n".join(models + ["", "Safety: " + SAFETY])
+    return "\n".join([*models, "", "Safety: " + SAFETY])
 
 
 def rib_text(rib: RibAnalysis, footer: bool = True, shown: set[tuple] | None = None) -> str:

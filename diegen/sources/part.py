@@ -193,7 +193,7 @@ def _split_at(contour: Contour, p: Point) -> Contour:
         if d < best_d:
             best, best_d = k, d
     head, tail = split_edge(contour.edges[best], p)
-    return Contour(contour.edges[:best] + (head, tail) + contour.edges[best + 1:])
+    return Contour((*contour.edges[:best], head, tail, *contour.edges[best + 1:]))
 
 
 def _vertex_edge(contour: Contour, p: Point) -> int:
@@ -455,7 +455,7 @@ def _runs(pts: list[Point], s: list[float], flags: list[tuple[bool, bool]], stra
         cuts.append(int(np.argmin([abs(((v - target + total / 2) % total) - total / 2) for v in s])))
         cuts.sort()
     if not cuts:
-        loop = pts + [pts[0]]
+        loop = [*pts, pts[0]]
         mid = s[n // 2] % total
         flange = _flange_at(mid, offsets, flanges)
         return (Run("curve", _densify(loop, straight), flange is not None),), (flange,), ()

@@ -16,13 +16,13 @@ from typing import Any
 
 from diegen import units
 from diegen.spec.model import (
-    FlangeTrial,
     PIECE_NAMES,
     RELIEF_POLICIES,
     RIB_ORIENTATIONS,
     AirfoilSource,
     Die,
     Flange,
+    FlangeTrial,
     HoleRules,
     Holes,
     HoleSpec,
@@ -352,7 +352,6 @@ def read_pins(r: Reader, node: YNode | None, path: str, diameter: float) -> Pins
 
 
 def read_die(r: Reader, node: YNode | None, path: str, base: Die | None = None) -> Die | None:
-    from diegen import materials
 
     fields = r.mapping(node, path, ("material", "stock_thickness", "cutter_diameter", "print_bed", "stl_tolerance"),
                        () if base else ("material", "stock_thickness", "cutter_diameter"))

@@ -25,9 +25,9 @@ from pathlib import Path
 from typing import Any
 
 from diegen import __version__
+from diegen.die.occ.validate import step_file_problems, stl_problems
 from diegen.errors import SolidError
 from diegen.fileio import atomic_path
-from diegen.die.occ.validate import step_file_problems, stl_problems
 
 STL_TOLERANCE_MM = 0.05
 STL_ANGULAR_TOLERANCE_DEG = 15.0

@@ -16,11 +16,18 @@ from typing import Any
 
 import numpy as np
 
-from diegen.errors import GeometryError, SolidError
 from diegen.die.die_input import DieInput
 from diegen.die.occ.validate import check_solid
-from diegen.die.tiles import (BED_MARGIN_MM, DOWEL_D_MM, DOWEL_DEPTH_MM, MIN_WALL_MM, TileLayout, die_tile_layout,
-                              tile_layout)
+from diegen.die.tiles import (
+    BED_MARGIN_MM,
+    DOWEL_D_MM,
+    DOWEL_DEPTH_MM,
+    MIN_WALL_MM,
+    TileLayout,
+    die_tile_layout,
+    tile_layout,
+)
+from diegen.errors import GeometryError, SolidError
 
 
 @dataclass(frozen=True, eq=False)
@@ -154,7 +161,7 @@ def cut_tiles(shape: Any, layout: TileLayout) -> tuple[list[DieTile], list[tuple
             dowels.append(cq.Solid.makeCylinder(d / 2, 2 * depth, cq.Vector(x - depth, y, z), cq.Vector(1, 0, 0)))
     try:
         drilled = shape.cut(*dowels)
-    except Exception as exc:  # noqa: BLE001 - OCP's Standard_Failure family
+    except Exception as exc:
         raise SolidError(f"the kernel failed drilling the tile dowel holes ({exc}); give a smaller dowel") from exc
     check_solid(drilled, "die with tile dowel holes", "give a smaller dowel or a shorter dowel depth")
     count = len(layout.tiles)
@@ -166,7 +173,7 @@ def cut_tiles(shape: Any, layout: TileLayout) -> tuple[list[DieTile], list[tuple
                                   cq.Vector(x0, span.y_min_mm - 1, span.z_min_mm - 1))
         try:
             piece = drilled.intersect(cutter)
-        except Exception as exc:  # noqa: BLE001
+        except Exception as exc:
             raise SolidError(f"the kernel failed cutting tile {k + 1} of {count} ({exc})") from exc
         solids = piece.Solids()
         if len(solids) != 1:
