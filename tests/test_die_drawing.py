@@ -88,7 +88,9 @@ def test_die_dxf_holes_are_circles_with_their_sizes_noted(demo, tmp_path: Path) 
     doc = ezdxf.readfile(write_die_dxf(drawing, tmp_path / "die.dxf"))
     msp = doc.modelspace()
     bores = sorted(2 * e.dxf.radius for e in msp.query(f'CIRCLE[layer=="{BORES.name}"]'))
-    assert bores == pytest.approx(sorted(h.d for h in piece.piece.holes if h.flanged), abs=1e-9)
+    # the flange's wall stands inside the bore: clear hole d plus the sheet thickness t on each side
+    t = demo.spec.shared.sheet.thickness_mm
+    assert bores == pytest.approx(sorted(h.d + 2.0 * t for h in piece.piece.holes if h.flanged), abs=1e-9)
     pins = [(e.dxf.center.x, e.dxf.center.y, 2 * e.dxf.radius) for e in msp.query(f'CIRCLE[layer=="{DOWEL_HOLES.name}"]')]
     assert len(pins) == len(die.pins)
     for (x, y, d), pin in zip(pins, die.pins):

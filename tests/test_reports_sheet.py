@@ -45,7 +45,8 @@ PSI = N_PER_LBF / MM_PER_IN**2  # MPa per lbf/in², NIST SP 811 App. B
 T3_YIELD_MPA = 50_000 * PSI
 RAW = yaml.safe_load(DEMO_RIB.read_text(encoding="utf-8"))
 
-HEADINGS = ("## 1. Stock to cut", "## 2. Router set-ups (3-axis)", "## 3. Drilling", "## 4. The blank",
+HEADINGS = ("## 1. Stock to cut", "## 2. Router set-ups (3-axis)", "## 3. Drilling and notes from the die files",
+            "## 4. The blank",
             "## 5. Forming", "## 6. Warnings")
 
 # The demo rib in millimetres, for what the sheet does by the spec's units.
@@ -117,6 +118,8 @@ def test_headings_in_order(sheets, name: str) -> None:
     assert lines[0] == f"# Shop sheet — {piece.piece.part_id}"
     at = [lines.index(h) for h in HEADINGS]
     assert at == sorted(at)
+    numbers = [int(line[3:].split(".")[0]) for line in lines if line.startswith("## ")]
+    assert numbers == list(range(1, len(HEADINGS) + 1))  # every section numbered once, in order
 
 
 @pytest.mark.parametrize("name", PIECES)
@@ -190,17 +193,24 @@ def test_router_numbers(sheets, name: str) -> None:
 
 @pytest.mark.parametrize("name", PIECES)
 def test_features_listed(sheets, name: str) -> None:
-    """Joggles, flutes, bores for the flanged holes only, every pin, every pilot hole (worked out here)."""
+    """Joggles, flutes, bores for the flanged holes only, every pin, every pilot hole (worked out here).  A
+    flanged hole's bore is its clear diameter plus the sheet thickness on either side, d + 2t: the flange's wall
+    stands inside the bore."""
     piece, text = sheets[name]
     g = piece.piece
-    assert (f"Joggle recesses ({len(g.joggles)})" in text) == bool(g.joggles)
+    assert (f"Joggle recesses ({len(g.joggles)}, layer `JOGGLE-RECESSES`)" in text) == bool(g.joggles)
     flanged = [h for h in g.holes if h.flanged]
     if flanged:
-        assert f"Through bores for {len(flanged)} flanged lightening hole(s)" in text
+        assert f"Through bores for {len(flanged)} flanged lightening hole(s) (layer `BORES`)" in text
+    t = inches(RAW["sheet"]["thickness"]) * MM_PER_IN
+    bores = next((line for line in text.splitlines() if "Through bores for" in line), "")
     for h in g.holes:
-        assert (f"Ø{h.d:.0f} mm at ({h.x:.1f}, {h.y:.1f})" in text) == h.flanged
+        assert (f"Ø{h.d + 2 * t:.2f} mm at ({h.x:.1f}, {h.y:.1f}) for the Ø{h.d:.0f} mm hole" in bores) == h.flanged
+        assert (f"({h.x:.1f}, {h.y:.1f})" in bores) == h.flanged
     pins_line = next(line for line in text.splitlines() if line.startswith("* Tooling pins"))
-    assert pins_line.count("(") - 1 == len(g.pins)  # "(or ream)" and one pair per pin
+    pairs = re.findall(r"\((-?[\d.]+), (-?[\d.]+)\)", pins_line)  # one (x, y) pair per pin, nothing else
+    assert pairs == [(f"{q.x:.1f}", f"{q.y:.1f}") for q in g.pins]
+    assert "(layer `DOWEL-HOLES`)" in pins_line
     for q in g.pins:
         assert f"({q.x:.1f}, {q.y:.1f})" in pins_line and f"Ø{q.d:.2f} mm dowels" in pins_line
     # the pilots from the flange's developed length (FAA-H-8083-31 ch. 4 setback, K-factor bend allowance with the
@@ -218,7 +228,16 @@ def test_flute_numbers(sheets) -> None:
     piece, text = sheets["nose"]
     assert piece.flutes
     line = next(line for line in text.splitlines() if "**Flutes (" in line)
-    assert line.startswith(f"4. **Flutes ({len(piece.flutes)})**: grooves ")
+    # after the two router set-ups and the joggle recesses, if any, with no gap in the numbers
+    number = 3 + bool(piece.piece.joggles)
+    assert line.startswith(f"{number}. **Flutes ({len(piece.flutes)}, layer `FLUTES`)**: grooves ")
+    # "N × W mm wide, D mm deep" a size: the counts grouped here by width and depth to 0.1 mm
+    counts: dict[tuple[str, str], int] = {}
+    for f in piece.flutes:
+        key = (f"{f.width_mm:.1f}", f"{f.depth_mm:.1f}")
+        counts[key] = counts.get(key, 0) + 1
+    for (w, d), n in counts.items():
+        assert f"{n} × {w} mm wide, {d} mm deep" in line, line
     for f in piece.flutes:
         r = (f.width_mm**2 / 4 + f.depth_mm**2) / (2 * f.depth_mm)
         assert f"{f.width_mm:.1f} mm wide" in line and f"{f.depth_mm:.1f} mm deep" in line, line

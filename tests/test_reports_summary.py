@@ -163,8 +163,14 @@ def check_pdf(pages: list[str], spec_id: str, rows: list[dict], ribs) -> None:
         last = min(40 * (k + 1), len(rows))
         assert f"{spec_id}: pieces {40 * k + 1}–{last} of {len(rows)}" in pages[1 + k]
     pieces = [p for rib in ribs for p in rib.pieces]
-    for page, p in zip(pages[1 + tables:], pieces):
-        assert (f"{p.piece.part_id}: over-bend {p.springback.overbend_deg:.2f}°, die R "
+    assert len(pieces) == len(rows)
+    root = " ".join(RAW["airfoil"]["root"].split()).casefold()  # the spec file's root section, "naca 23015"
+    for page, p, row in zip(pages[1 + tables:], pieces, rows):
+        assert row["part_id"] == p.piece.part_id
+        if row["rib"] == 1:  # the root rib is cut from the root section itself (span fraction 0)
+            assert row["section"].casefold() == root
+        # the title names the section the piece is cut from, as its table row does
+        assert (f"{p.piece.part_id} ({row['section']}): over-bend {p.springback.overbend_deg:.2f}°, die R "
                 f"{p.springback.die_radius_mm:.2f} mm, {len(p.flutes)} flute(s), press {p.press.verdict}") in page
         assert "die outline" in page and "shrink limit" in page
 

@@ -146,11 +146,13 @@ def _wall_features(piece: PieceAnalysis, shared, step: _Steps, flute_tool: str, 
                           f"the top edge to full depth at {_both(shared.flange.height_mm)} down: {kinds} "
                           f"({flute_tool}). Round each flute's lips (where the groove meets the wall) to at least "
                           f"{_both(lip)} with a file: a sharp lip cracks the sheet."))
-    bores = [h for h in g.holes if h.flanged]
+    bores = [(h, c) for h, c in zip(g.holes, piece.holes) if h.flanged]
     if bores:
-        lines.append(step(f"Through bores for {len(bores)} flanged lightening hole(s) (layer `{BORES.name}`), top "
-                          f"edges rounded to the die radius with the {edge_tool} tool: " +
-                          ", ".join(f"Ø{h.d:.0f} mm at ({h.x:.1f}, {h.y:.1f})" for h in bores) + "."))
+        lines.append(step(f"Through bores for {len(bores)} flanged lightening hole(s) (layer `{BORES.name}`), each "
+                          "the clear hole plus the sheet thickness on either side, top edges rounded to the die "
+                          f"radius with the {edge_tool} tool: " +
+                          ", ".join(f"Ø{c.bore_d_mm:.2f} mm at ({h.x:.1f}, {h.y:.1f}) for the Ø{h.d:.0f} mm hole"
+                                    for h, c in bores) + "."))
     return lines
 
 
