@@ -33,7 +33,8 @@ STOCK_CLEARANCE_MM = 3.0
 GRAIN_ANGLE_DEG = 90.0
 
 MODELS = {
-    "bend_allowance": "K-factor form BA = θ(R + kT), FAA-H-8083-31 ch. 4; aviation form (0.01743R + 0.0078T)N beside it",
+    "bend_allowance": "K-factor form BA = θ(R + kT), FAA-H-8083-31 ch. 4; aviation form (0.01743R + 0.0078T)N "
+                      "beside it",
     "setback": "SB = tan(θ/2)(R + T), FAA-H-8083-31 ch. 4",
     "springback": "pure bending about the neutral surface, plane strain, elastic unloading 1/ρf = 1/ρi − 12M/(E't³) "
                   "(Marciniak, Duncan & Hu 2002, ch. 6; equals ρi/ρf = 4X³ − 3X + 1, Gardiner 1957, without "

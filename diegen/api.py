@@ -42,7 +42,8 @@ def report_json(analysis: Analysis) -> dict[str, Any]:
     from diegen import __version__
 
     return {"diegen_version": __version__, "spec": analysis.spec.id, "kind": "wing", "models": MODELS,
-            "safety": SAFETY, "warnings": [w.as_json() for w in _once(w for r in analysis.ribs for w in r.geometry.warnings)],
+            "safety": SAFETY,
+            "warnings": [w.as_json() for w in _once(w for r in analysis.ribs for w in r.geometry.warnings)],
             "parts": [piece_json(r, p) for r in analysis.ribs for p in r.pieces]}
 
 
@@ -133,5 +134,6 @@ def diff_text(old: Spec, new: Spec) -> str:
     return diff_specs(old, new)
 
 
-__all__ = ["Analysis", "RibJob", "WingAnalysis", "analyse", "build", "diff_text", "load", "refused_pieces", "report_json",
+__all__ = ["Analysis", "RibJob", "WingAnalysis", "analyse", "build", "diff_text", "load", "refused_pieces",
+           "report_json",
            "report_text", "rib_jobs", "write_plots", "write_starter"]

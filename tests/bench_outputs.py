@@ -145,7 +145,8 @@ def commands(repeat: int, out: Path) -> dict[str, tuple[float, float]]:
     for _ in range(repeat):
         for name, command in runs.items():
             results[name].append(child(command))
-    return {name: (statistics.median(w for w, _ in r), statistics.median(c for _, c in r)) for name, r in results.items()}
+    return {name: (statistics.median(w for w, _ in r), statistics.median(c for _, c in r))
+            for name, r in results.items()}
 
 
 def main() -> None:

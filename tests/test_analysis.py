@@ -279,8 +279,9 @@ def test_bad_spec_is_reported_without_a_traceback(tmp_path: Path) -> None:
 def test_joggle_ramps_bend_rounder_than_the_die_wall_inset(tmp_path: Path) -> None:
     """With a large die radius and thick stock the die's wall sits further in than the cutter radius: the joggle
     ramps' convex bends (radius L²/((10/√3)·d) for the ramp d·(10u³ − 15u⁴ + 6u⁵), derived) are then made rounder
-    than that inset, else the die's offset sections would cusp there.  The inset: top setback R(1 + sin α)/cos α (a circle tangent
-    to the top face and the wall leaning by α, plane geometry) or the bottom inset H·tan α, whichever is larger."""
+    than that inset, else the die's offset sections would cusp there.  The inset: top setback R(1 + sin α)/cos α
+    (a circle tangent to the top face and the wall leaning by α, plane geometry) or the bottom inset H·tan α,
+    whichever is larger."""
     text = DEMO_RIB.read_text().replace('bend_radius: "3/32 in"', 'bend_radius: "1/8 in"').replace(
         "stock_thickness: 0.5", "stock_thickness: 0.75").replace("chord: 40", "chord: 60")
     path = tmp_path / "rib.yaml"

@@ -91,7 +91,8 @@ def test_die_dxf_holes_are_circles_with_their_sizes_noted(demo, tmp_path: Path) 
     # the flange's wall stands inside the bore: clear hole d plus the sheet thickness t on each side
     t = demo.spec.shared.sheet.thickness_mm
     assert bores == pytest.approx(sorted(h.d + 2.0 * t for h in piece.piece.holes if h.flanged), abs=1e-9)
-    pins = [(e.dxf.center.x, e.dxf.center.y, 2 * e.dxf.radius) for e in msp.query(f'CIRCLE[layer=="{DOWEL_HOLES.name}"]')]
+    dowels = msp.query(f'CIRCLE[layer=="{DOWEL_HOLES.name}"]')
+    pins = [(e.dxf.center.x, e.dxf.center.y, 2 * e.dxf.radius) for e in dowels]
     assert len(pins) == len(die.pins)
     for (x, y, d), pin in zip(pins, die.pins):
         assert (x, y, d) == pytest.approx((pin.x, pin.y, pin.d), abs=1e-9)

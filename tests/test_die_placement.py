@@ -111,14 +111,16 @@ def _probe_points(die: DieInput, clearance: float) -> tuple[tuple[float, float],
     edge = nearest_points(inner.exterior, pole)[0]
     line = LineString([edge, pole])
     assert line.length > clearance + 1.0, "the probe plate is too small"
-    return tuple(line.interpolate(clearance + PROBE_MM).coords[0]), tuple(line.interpolate(clearance - PROBE_MM).coords[0])
+    return (tuple(line.interpolate(clearance + PROBE_MM).coords[0]),
+            tuple(line.interpolate(clearance - PROBE_MM).coords[0]))
 
 
 def test_pin_near_the_edge_is_refused_just_inside_the_wall(bare, bare_model) -> None:
     d = 3.2
     ok, close = _probe_points(bare, d / 2 + WALL)
     check_placement(replace(bare, pins=(DiePin(*ok, d, 10.0),)), bare_model, DEFAULT_SETTINGS)
-    with pytest.raises(GeometryError, match=rf"{bare.part_id}: pin hole at .* closer than {WALL:g} mm to the die's edge"):
+    with pytest.raises(GeometryError,
+                       match=rf"{bare.part_id}: pin hole at .* closer than {WALL:g} mm to the die's edge"):
         check_placement(replace(bare, pins=(DiePin(*close, d, 10.0),)), bare_model, DEFAULT_SETTINGS)
 
 

@@ -77,7 +77,8 @@ def test_document_reads_back_strictly(pypdf: Any, tmp_path: Path) -> None:
     paths = stroked_subpaths(reader.pages[0], reader)
     assert paths[0] == ([(10.0, 10.0), (100.0, 10.0), (100.0, 50.0)], True)
     circle = paths[1][0]  # on-curve points of the four quarters: start and 90°, 180°, 270°, 360°
-    assert [(round(x, 6), round(y, 6)) for x, y in circle] == [(320, 300), (300, 320), (280, 300), (300, 280), (320, 300)]
+    assert [(round(x, 6), round(y, 6)) for x, y in circle] == [(320, 300), (300, 320), (280, 300), (300, 280),
+                                                                (320, 300)]
 
 
 def test_text_alignment_and_substitutes(pypdf: Any, tmp_path: Path) -> None:

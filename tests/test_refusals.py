@@ -208,7 +208,8 @@ def test_a_wing_rib_refusal_is_located_in_the_override_that_applies(tmp_path: Pa
     Table 3-1): the refusal points at that override's key, not at the wing's own flange."""
     text = (rib_yaml(t='"0.063 in"', radius='"0.3 in"').replace("kind: rib", "kind: wing")
             .replace("airfoil: naca 2412\nchord: 600\n",
-                     "airfoil: naca 2412\nplanform: {root_chord: 600, tip_chord: 500, span: 900, stations: {count: 3}}\n")
+                     "airfoil: naca 2412\n"
+                     "planform: {root_chord: 600, tip_chord: 500, span: 900, stations: {count: 3}}\n")
             + "overrides:\n  - ribs: [2]\n    flange: {bend_radius: \"0.03 in\"}\n")
     path = tmp_path / "wing.yaml"
     path.write_text(text)

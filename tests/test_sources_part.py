@@ -372,7 +372,8 @@ def test_a_hole_in_the_flange_bend_and_a_pin_off_the_web_are_refused(tmp_path):
 
 def test_an_outline_too_thin_for_the_sheet_offset_and_a_bad_outline_kind_are_refused():
     sliver = read_points([[0, 0], [100, 0], [100, 0.5], [0, 0.5]])
-    with pytest.raises(GeometryError, match=r"offsetting the mold line inward by the sheet \(1\.000 mm\).*nothing is left"):
+    with pytest.raises(GeometryError,
+                       match=r"offsetting the mold line inward by the sheet \(1\.000 mm\).*nothing is left"):
         drawn_piece(drawn_part(sliver, ALL), part_id="S", sheet_thickness_mm=T, pin_diameter_mm=3.0)
     with pytest.raises(DrawingError, match=r"expected the outline to be one of mold-line, die, found 'oml'"):
         drawn_part(square(), ALL, "oml")
@@ -384,4 +385,5 @@ def test_outline_without_flanges_is_all_cut_edges():
     assert not any(r.flanged for r in piece.geometry.runs) and piece.geometry.relief_points == ()
     blank = Polygon(blank_of(piece).outer)
     assert blank.area == pytest.approx(100.0 * 100.0, rel=1e-12)  # every edge is cut: the blank is the web
-    assert LineString(blank.exterior.coords).hausdorff_distance(LineString(Polygon(piece.geometry.outline).exterior.coords)) <= 1e-9
+    die_ring = LineString(Polygon(piece.geometry.outline).exterior.coords)
+    assert LineString(blank.exterior.coords).hausdorff_distance(die_ring) <= 1e-9

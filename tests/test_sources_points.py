@@ -92,12 +92,12 @@ def test_bad_point_lists_name_the_key(points, key, message):
 
 
 def test_a_crossing_point_list_is_a_drawing_error():
-    with pytest.raises(DrawingError, match=r"outline.points: the outline \[outline.points\[0\], .*\] crosses or touches "
-                                           r"itself at \(5\.000, 5\.000\) mm"):
+    with pytest.raises(DrawingError, match=r"outline.points: the outline \[outline.points\[0\], .*\] crosses or "
+                                           r"touches itself at \(5\.000, 5\.000\) mm"):
         read_points([[0, 0], [10, 10], [10, 0], [0, 10]])
 
 
 def test_points_far_from_the_origin_are_refused():
-    with pytest.raises(DrawingError, match=r"^outline.points\[0\]: a point at \(1e\+300, 0\) mm lies more than 1000000 mm "
-                                           r"from the origin"):
+    with pytest.raises(DrawingError, match=r"^outline.points\[0\]: a point at \(1e\+300, 0\) mm lies more than "
+                                           r"1000000 mm from the origin"):
         read_points([[0, 0], [1e300, 0], [0, 10, 1]])

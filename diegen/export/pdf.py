@@ -237,7 +237,8 @@ def _overlap_operators(plan: TilePlan, tile: Tile) -> str:
     lay = plan.layout
     first = plan.tiles[0]
     reach = 5.0  # a registration mark reaches 4 mm from its centre
-    wx0, wy0, wx1, wy1 = tile.x0 - reach, tile.y0 - reach, tile.x0 + lay.region_w + reach, tile.y0 + lay.region_h + reach
+    wx0, wy0 = tile.x0 - reach, tile.y0 - reach
+    wx1, wy1 = tile.x0 + lay.region_w + reach, tile.y0 + lay.region_h + reach
     trims: list[tuple[tuple[float, float], tuple[float, float]]] = []
     marks: list[tuple[float, float]] = []
     n_y = max(2, math.ceil((ey1 - ey0) / REGISTRATION_PITCH_MM) + 1)
@@ -313,7 +314,8 @@ def _page_furniture(page: Canvas, drawing: BlankDrawing, plan: TilePlan, tile: T
     # grain arrow
     gx, gy = bx + 0.5 * MM_PER_INCH, m + 34.0
     page.style(width=_lw(0.8), colour=NOTE.rgb, cap=1)
-    page.polylines([((seg.x0, seg.y0), (seg.x1, seg.y1)) for seg in arrow_segments(gx, gy, 22.0, drawing.grain_angle_deg)])
+    arrow = arrow_segments(gx, gy, 22.0, drawing.grain_angle_deg)
+    page.polylines([((seg.x0, seg.y0), (seg.x1, seg.y1)) for seg in arrow])
     text(gx, m + 19.0, "GRAIN (rolling direction)", 5.6, ha="center", va="center")
 
     # title and instructions

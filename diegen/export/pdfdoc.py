@@ -210,8 +210,8 @@ class Canvas:
             if part in _SYMBOLS:
                 advance, strokes = _SYMBOLS[part]
                 s = size
-                out.append(f"q {_num(cos * s)} {_num(sin * s)} {_num(-sin * s)} {_num(cos * s)} {_num(px)} {_num(py)} cm"
-                           f" {_num(_SYMBOL_STROKE_EM)} w 1 J 1 j [] 0 d\n")
+                out.append(f"q {_num(cos * s)} {_num(sin * s)} {_num(-sin * s)} {_num(cos * s)} {_num(px)} "
+                           f"{_num(py)} cm {_num(_SYMBOL_STROKE_EM)} w 1 J 1 j [] 0 d\n")
                 out.append("".join(polyline_operators(stroke, False) for stroke in strokes))
                 if part in _CIRCLED:
                     out.append(circle_operators(*_CIRCLED[part]))

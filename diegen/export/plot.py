@@ -177,7 +177,8 @@ class _GeometryPicture(_Picture):
         ax.set_xlim(x0 - pad, x1 + pad)
         ax.set_ylim(outline[:, 1].min() - pad - 10, outline[:, 1].max() + pad + 10)
         self.title.set_text(f"{g.part_id}: {g.name} piece, die outline and web features "
-                            f"(max shrink {piece_analysis.max_shrink:.3f}, press verdict {piece_analysis.press.verdict})")
+                            f"(max shrink {piece_analysis.max_shrink:.3f}, press verdict "
+                            f"{piece_analysis.press.verdict})")
         return self.write(path)
 
 
@@ -247,7 +248,8 @@ class _PreviewPicture(_Picture):
             magnitudes.append(np.abs(run.profile.strain[:-1]))
             s = run.s_offset_mm + run.profile.s_mm
             self.line(strain_ax, s, -run.profile.strain, lw=1.0, color=f"C{index % 10}")
-            if index < len(piece_analysis.flange.residual_profiles) and (piece_analysis.flutes or piece_analysis.notches):
+            relieved = piece_analysis.flutes or piece_analysis.notches
+            if index < len(piece_analysis.flange.residual_profiles) and relieved:
                 self.line(strain_ax, s, piece_analysis.flange.residual_profiles[index], lw=0.8, ls=":",
                           color=f"C{index % 10}")
             strain_x.append(s)

@@ -404,8 +404,8 @@ def flutes(
         b = run.length_mm / count - land
         if b <= 0.0:
             return FluteSet(run, profile, (), excess, 0.0, False,
-                            f"{count} flute(s) would be needed but the {run.length_mm:.0f} mm run has no room for them: "
-                            "lower the flange or add notches")
+                            f"{count} flute(s) would be needed but the {run.length_mm:.0f} mm run has no room for "
+                            "them: lower the flange or add notches")
         d = min(d, b / 2.0)
         gather = flute_gather(b, d, profile)
     # keep a flute width clear of the run's ends when there is room: a run often ends at a corner of the

@@ -49,7 +49,8 @@ __all__ = [
 JOGGLE_SAMPLE_MM = 0.5  # point spacing along a joggle ramp and zone
 RAMP_BEND = 10.0 / math.sqrt(3.0)  # the ramp's tightest radius is L²/(RAMP_BEND·d) (see ramp_shape)
 MIN_POINT_GAP_MM = 0.2  # closer outline points are merged
-RAMP_MARGIN = 1.25  # ramps are laid out this much rounder than they must be: room for sampling and the surface's own curve
+# ramps are laid out this much rounder than they must be: room for sampling and the surface's own curve
+RAMP_MARGIN = 1.25
 MIN_END_FACE_MM = 1.0  # shortest end face (die depth at a spar cut) that is still a face
 
 

@@ -30,7 +30,8 @@ def diff_specs(old: Spec, new: Spec) -> str:
             else:
                 lines.append(f"  changed    {part}: same die outline, other numbers differ")
     changed = sum(1 for line in lines if not line.strip().startswith("identical"))
-    return "\n".join([f"{changed} of {len(lines)} piece(s) differ between {old.file or old.id} and {new.file or new.id}", *lines])
+    head = f"{changed} of {len(lines)} piece(s) differ between {old.file or old.id} and {new.file or new.id}"
+    return "\n".join([head, *lines])
 
 
 __all__ = ["diff_specs"]

@@ -35,7 +35,8 @@ def piece_hash(rib: RibAnalysis, piece: PieceAnalysis) -> str:
     """Hash of everything a piece's files are made from: the piece's analysed values and the parts of the rib's
     spec its writers read (not the whole spec: moving the rear spar leaves the nose piece alone).
 
-    The findings enter without the spec file's path (like :func:`rib_input_hash`); the strain profiles (numpy arrays, whose ``repr`` abbreviates) enter through their bytes.
+    The findings enter without the spec file's path (like :func:`rib_input_hash`); the strain profiles (numpy
+    arrays, whose ``repr`` abbreviates) enter through their bytes.
     """
     spec, shared = rib.spec, rib.spec.shared
     read_by_writers = (spec.id, spec.title, spec.units, spec.airfoil, spec.chord_mm, rib.geometry.chord_mm,

@@ -110,7 +110,25 @@ def _routed(rib: RibAnalysis, piece: PieceAnalysis) -> list[str]:
     g, shared, sb = piece.piece, rib.spec.shared, piece.springback
     inch = rib.spec.units == "in"
     step = _Steps()
-    lines = [*_stock(piece, shared, "stock"), "", "## 2. Router set-ups (3-axis)", "", _drawing_note(g.part_id), "", step(f"**Bottom face up.** Profile the outline with a **tapered bit of {sb.overbend_deg:.1f}° per side** " f"so the wall leans in by the over-bend (the die angle is {sb.die_angle_deg:.1f}° so the flange springs " f"back to 90°): the wall meets the bottom face on layer `{BOTTOM_OUTLINE.name}` and the top face on " f"`{TOP_OUTLINE.name}`. Without a tapered bit: cut `{TOP_OUTLINE.name}` straight with a " f"≤ {_both(shared.die.cutter_diameter_mm)} straight bit from the top and file the undercut by hand to " f"`{BOTTOM_OUTLINE.name}`. Engrave layer `{MARKS.name}` on this face (never on the top: it would print " "into the web): single-stroke capitals, cut along their centre lines with a bit as wide as the " "strokes."), step(f"**Top face up.** Round the top edge with a **round-over bit of radius {_both(sb.die_radius_mm)}** " f"(the springback-compensated die radius, not the part radius), from `{TOP_OUTLINE.name}` in to " f"`{TOP_FLAT.name}`; the nearest standard bit is {_both(nearest_round_over(sb.die_radius_mm, inch))}.")]
+    lines = [
+        *_stock(piece, shared, "stock"),
+        "",
+        "## 2. Router set-ups (3-axis)",
+        "",
+        _drawing_note(g.part_id),
+        "",
+        step(f"**Bottom face up.** Profile the outline with a **tapered bit of {sb.overbend_deg:.1f}° per side** "
+             f"so the wall leans in by the over-bend (the die angle is {sb.die_angle_deg:.1f}° so the flange springs "
+             f"back to 90°): the wall meets the bottom face on layer `{BOTTOM_OUTLINE.name}` and the top face on "
+             f"`{TOP_OUTLINE.name}`. Without a tapered bit: cut `{TOP_OUTLINE.name}` straight with a "
+             f"≤ {_both(shared.die.cutter_diameter_mm)} straight bit from the top and file the undercut by hand to "
+             f"`{BOTTOM_OUTLINE.name}`. Engrave layer `{MARKS.name}` on this face (never on the top: it would print "
+             "into the web): single-stroke capitals, cut along their centre lines with a bit as wide as the "
+             "strokes."),
+        step(f"**Top face up.** Round the top edge with a **round-over bit of radius {_both(sb.die_radius_mm)}** "
+             f"(the springback-compensated die radius, not the part radius), from `{TOP_OUTLINE.name}` in to "
+             f"`{TOP_FLAT.name}`; the nearest standard bit is {_both(nearest_round_over(sb.die_radius_mm, inch))}."),
+    ]
     lines += _wall_features(piece, shared, step, "ball-nose bit from the side, or a round file no larger than "
                             "that radius", "round-over")
     return lines
@@ -120,7 +138,23 @@ def _machined(rib: RibAnalysis, piece: PieceAnalysis) -> list[str]:
     g, shared, sb = piece.piece, rib.spec.shared, piece.springback
     inch = rib.spec.units == "in"
     step = _Steps()
-    lines = [*_stock(piece, shared, "plate"), "", "## 2. Machining set-ups (3-axis mill)", "", _drawing_note(g.part_id) + " Carbide end mills, not router bits; flood coolant or a lubricant mist, light " "finishing passes, chips cleared (common practice, no source).", "", step(f"**Bottom face up.** Profile the wall with a **tapered end mill of {sb.overbend_deg:.1f}° per side** " f"along `{BOTTOM_OUTLINE.name}` (the wall reaches `{TOP_OUTLINE.name}` at the top face; the die angle " f"is {sb.die_angle_deg:.1f}° so the flange springs back to 90°), or rough it with a square end mill and " f"finish the undercut with a ball end mill along the STEP wall. Engrave layer `{MARKS.name}` on this " "face with a small ball or engraving end mill."), step(f"**Top face up.** Round the top edge with a **corner-rounding end mill of radius " f"{_both(sb.die_radius_mm)}** from `{TOP_OUTLINE.name}` in to `{TOP_FLAT.name}`; the nearest standard " f"size is {_both(nearest_round_over(sb.die_radius_mm, inch))}.")]
+    lines = [
+        *_stock(piece, shared, "plate"),
+        "",
+        "## 2. Machining set-ups (3-axis mill)",
+        "",
+        _drawing_note(g.part_id) + " Carbide end mills, not router bits; flood coolant or a lubricant mist, light "
+        "finishing passes, chips cleared (common practice, no source).",
+        "",
+        step(f"**Bottom face up.** Profile the wall with a **tapered end mill of {sb.overbend_deg:.1f}° per side** "
+             f"along `{BOTTOM_OUTLINE.name}` (the wall reaches `{TOP_OUTLINE.name}` at the top face; the die angle "
+             f"is {sb.die_angle_deg:.1f}° so the flange springs back to 90°), or rough it with a square end mill and "
+             f"finish the undercut with a ball end mill along the STEP wall. Engrave layer `{MARKS.name}` on this "
+             "face with a small ball or engraving end mill."),
+        step(f"**Top face up.** Round the top edge with a **corner-rounding end mill of radius "
+             f"{_both(sb.die_radius_mm)}** from `{TOP_OUTLINE.name}` in to `{TOP_FLAT.name}`; the nearest standard "
+             f"size is {_both(nearest_round_over(sb.die_radius_mm, inch))}."),
+    ]
     lines += _wall_features(piece, shared, step, "ball end mill from the side, finished with a round file",
                             "corner-rounding")
     lines.append(step("Deburr every edge and polish the edge radius and the walls: a scratch in the die marks "

@@ -16,7 +16,8 @@ from diegen.numbers import plain
 from diegen.spec.model import WingSpec
 from diegen.wing import chord_at, leading_edge_at, stations
 
-COLUMNS = ("rib", "station_mm", "chord_mm", "section", "piece", "part_id", "die_length_mm", "die_depth_mm", "die_height_mm",
+COLUMNS = ("rib", "station_mm", "chord_mm", "section", "piece", "part_id", "die_length_mm", "die_depth_mm",
+           "die_height_mm",
            "stock_layers", "blank_length_mm", "blank_width_mm", "overbend_deg", "die_radius_mm", "max_shrink",
            "max_stretch", "flutes", "notches", "press_verdict", "warnings")
 
@@ -31,10 +32,13 @@ def summary_rows(spec: WingSpec, ribs: Sequence[RibAnalysis]) -> list[dict[str, 
             rows.append({
                 "rib": station.number, "station_mm": round(station.y_mm, 1), "chord_mm": round(rib.spec.chord_mm, 1),
                 "section": rib.spec.section_label, "piece": p.piece.name, "part_id": p.piece.part_id,
-                "die_length_mm": round(float(np.ptp(outline[:, 0])), 1), "die_depth_mm": round(float(np.ptp(outline[:, 1])), 1),
+                "die_length_mm": round(float(np.ptp(outline[:, 0])), 1),
+                "die_depth_mm": round(float(np.ptp(outline[:, 1])), 1),
                 "die_height_mm": round(p.die_height_mm, 2), "stock_layers": p.die_layers,
-                "blank_length_mm": round(float(np.ptp(blank[:, 0])), 1), "blank_width_mm": round(float(np.ptp(blank[:, 1])), 1),
-                "overbend_deg": round(p.springback.overbend_deg, 2), "die_radius_mm": round(p.springback.die_radius_mm, 3),
+                "blank_length_mm": round(float(np.ptp(blank[:, 0])), 1),
+                "blank_width_mm": round(float(np.ptp(blank[:, 1])), 1),
+                "overbend_deg": round(p.springback.overbend_deg, 2),
+                "die_radius_mm": round(p.springback.die_radius_mm, 3),
                 "max_shrink": round(p.max_shrink, 4), "max_stretch": round(p.max_stretch, 4),
                 "flutes": len(p.flutes), "notches": len(p.notches), "press_verdict": p.press.verdict,
                 "warnings": " | ".join(str(w) for w in p.warnings),
@@ -135,7 +139,8 @@ class _PiecePage:
                               (p.piece.outline, {"color": "k", "lw": 1.2})):
             loop = np.vstack([np.asarray(points), np.asarray(points)[:1]])
             added += top.plot(loop[:, 0], loop[:, 1], **style)
-        self.title.set_text(f"{p.piece.part_id} ({rib.spec.section_label}): over-bend {p.springback.overbend_deg:.2f}°, die R "
+        self.title.set_text(f"{p.piece.part_id} ({rib.spec.section_label}): over-bend "
+                            f"{p.springback.overbend_deg:.2f}°, die R "
                             f"{p.springback.die_radius_mm:.2f} mm, {len(p.flutes)} flute(s), press {p.press.verdict}")
         for index, run in enumerate(p.runs):
             added += bottom.plot(run.s_offset_mm + run.profile.s_mm, -run.profile.strain, lw=1, color=f"C{index % 10}")

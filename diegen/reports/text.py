@@ -23,7 +23,8 @@ def die_life_text(material: str) -> str:
 def piece_text(rib: RibAnalysis, p: PieceAnalysis) -> str:
     g, u, d = p.piece, rib.spec.units, piece_json(rib, p)
     lines = [
-        f"== {g.part_id} ({g.name} piece)  x {g.x_range_mm[0]:.1f}–{g.x_range_mm[1]:.1f} mm of {rib.geometry.chord_mm:.1f} mm chord",
+        f"== {g.part_id} ({g.name} piece)  x {g.x_range_mm[0]:.1f}–{g.x_range_mm[1]:.1f} mm of "
+        f"{rib.geometry.chord_mm:.1f} mm chord",
         f"  die outline   length {_len(g.length_mm, u)}, area {g.area_mm2:.0f} mm², depth {g.depth_range_mm[0]:.1f}–"
         f"{g.depth_range_mm[1]:.1f} mm, height {_len(p.die_height_mm, u)} ({p.die_layers} layer(s) of stock)",
         *([f"  DIE REFUSED   {p.die.refusal}"] if p.die is not None and p.die.refusal else []),
@@ -44,7 +45,8 @@ def piece_text(rib: RibAnalysis, p: PieceAnalysis) -> str:
     else:
         lines.append(f"  relief        none needed (policy: {rib.spec.shared.relief})")
     for j in g.joggles:
-        lines.append(f"  joggle        spar {j.spar + 1} {j.surface}: {j.depth_mm:.2f} mm deep over x {j.x_start_mm:.1f}–"
+        lines.append(f"  joggle        spar {j.spar + 1} {j.surface}: {j.depth_mm:.2f} mm deep over x "
+                     f"{j.x_start_mm:.1f}–"
                      f"{j.x_end_mm:.1f} mm, ramps {j.ramp_mm:.1f} mm")
     for h in d["holes"]:
         kind = f"flanged {h['flange_height_mm']:.1f} mm, pilot Ø{h['pilot_d_mm']:.1f}" if h["flanged"] else "plain"

@@ -553,7 +553,8 @@ def join_edges(edges: Sequence[Edge], tol: float, place: Place) -> list[Contour]
                     names = [chain[-1].origin] + [pool[i].origin for i, _ in found]
                     if closes:
                         names.append(chain[0].origin)
-                    branches.append(f"{len(names)} edge ends meet at {place.at(tip)} ({', '.join(n for n in names if n)})")
+                    listed = ", ".join(n for n in names if n)
+                    branches.append(f"{len(names)} edge ends meet at {place.at(tip)} ({listed})")
                     found = found[:1] if not closes else []
                 if closes and not found:
                     closed = True

@@ -68,9 +68,9 @@ def drawn_part(drawing: Drawing, flanges: Sequence[FlangeRunSpec], outline_is: s
 
     ``outline_is`` is ``mold-line`` (the finished part's outline) or ``die``.  A from/to point may lie
     up to ``snap_mm`` from the outline; it is taken to the nearest outline point, or to the nearest edge end
-    (a vertex of the drawing) when one lies within ``snap_mm`` of it.  Raises :class:`DrawingError` for a contour outside the outline or
-    crossing it, a hole inside another, a pin off the part, a layer no outline edge is on, a from/to point
-    too far from the outline, and edges two flange runs both claim.
+    (a vertex of the drawing) when one lies within ``snap_mm`` of it.  Raises :class:`DrawingError` for a contour
+    outside the outline or crossing it, a hole inside another, a pin off the part, a layer no outline edge is on, a
+    from/to point too far from the outline, and edges two flange runs both claim.
     """
     place = drawing.place
     if outline_is not in OUTLINE_IS:
@@ -159,8 +159,8 @@ def _lay_runs(outer: Contour, specs: Sequence[FlangeRunSpec], place: Place,
                 edge = outer.edges[k]
                 raise DrawingError(
                     f"{place.source}: {_label(specs[claims[k]], claims[k])} and {_label(spec, index)} both claim the "
-                    f"edge {edge.origin + ' ' if edge.origin else ''}from {place.at(edge.start)} to {place.at(edge.end)}:"
-                    " each edge may have one flange at most")
+                    f"edge {edge.origin + ' ' if edge.origin else ''}from {place.at(edge.start)} to "
+                    f"{place.at(edge.end)}: each edge may have one flange at most")
             claims[k] = index
     n = len(outer.edges)
     start = next((k for k in range(n) if claims[k] != claims[k - 1]), 0)
@@ -445,8 +445,9 @@ def _drop_inserted_points(pts: list[Point], s: list[float], flags: list[tuple[bo
             [f for f, k in zip(flags, keep) if k])
 
 
-def _runs(pts: list[Point], s: list[float], flags: list[tuple[bool, bool]], straight: list[bool], offsets: np.ndarray,
-          flanges: tuple[Flange | None, ...], total: float) -> tuple[tuple[Run, ...], tuple[Flange | None, ...], Points]:
+def _runs(pts: list[Point], s: list[float], flags: list[tuple[bool, bool]], straight: list[bool],
+          offsets: np.ndarray, flanges: tuple[Flange | None, ...],
+          total: float) -> tuple[tuple[Run, ...], tuple[Flange | None, ...], Points]:
     """The die outline split at its marked points into runs, each run's flange, and the relief points."""
     n = len(pts)
     cuts = [i for i in range(n) if flags[i][0] or flags[i][1]]
@@ -525,8 +526,8 @@ def _holes(part: DrawnPart, die_poly: Polygon, runs: tuple[Run, ...], bend_radiu
         name = _names(drawn.contour)
         label = f"the hole [{name}]" if name else "a hole"
         if not die_poly.contains(poly):
-            raise GeometryError(f"{place.source}: {label} reaches outside the die outline"
-                                f"{' (the mold line offset inward by the sheet)' if part.outline_is == 'mold-line' else ''}"
+            offset_note = " (the mold line offset inward by the sheet)" if part.outline_is == "mold-line" else ""
+            raise GeometryError(f"{place.source}: {label} reaches outside the die outline{offset_note}"
                                 f" near {place.at(_some_point(poly.boundary.difference(die_poly)))}")
         if drawn.circle is not None:  # the true circle, not its flattened polygon
             centre = ShapelyPoint(drawn.circle[0], drawn.circle[1])
@@ -534,9 +535,9 @@ def _holes(part: DrawnPart, die_poly: Polygon, runs: tuple[Run, ...], bend_radiu
         else:
             gap = min((line.distance(poly) for line in flanged_edges), default=math.inf)
         if gap < bend_radius:
-            raise GeometryError(f"{place.source}: {label} comes within {place.length(gap)} of a flanged edge of the die; the "
-                                f"flange bend takes {place.length(bend_radius)} of web (its bend radius) along a "
-                                "flanged edge")
+            raise GeometryError(f"{place.source}: {label} comes within {place.length(gap)} of a flanged edge of the "
+                                f"die; the flange bend takes {place.length(bend_radius)} of web (its bend radius) "
+                                "along a flanged edge")
         if drawn.circle is not None:
             x, y, d = drawn.circle
             holes.append(Hole(x, y, d, flange_height is not None, float(flange_height or 0.0)))
@@ -557,9 +558,10 @@ def _pins(part: DrawnPart, die_poly: Polygon, holes: tuple[Hole, ...], bend_radi
         if not room.contains(spot):
             edge = die_poly.exterior.distance(spot) if die_poly.contains(spot) else -die_poly.exterior.distance(spot)
             raise GeometryError(
-                f"{place.source}: pin {pin.origin} at {place.at((pin.x, pin.y))}: a {diameter:.2f} mm pin's centre must "
-                f"stand {inset:.2f} mm inside the die outline (bend radius {bend_radius:.2f} mm + margin {margin:.2f} mm"
-                f" + half the pin) and as clear of the holes; it is {edge:.2f} mm inside the die outline")
+                f"{place.source}: pin {pin.origin} at {place.at((pin.x, pin.y))}: a {diameter:.2f} mm pin's centre "
+                f"must stand {inset:.2f} mm inside the die outline (bend radius {bend_radius:.2f} mm + margin "
+                f"{margin:.2f} mm + half the pin) and as clear of the holes; it is {edge:.2f} mm inside the die "
+                "outline")
         pins.append(Pin(pin.x, pin.y, diameter))
     return tuple(pins)
 

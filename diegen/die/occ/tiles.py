@@ -79,7 +79,8 @@ def _dowel_spots(shape: Any, x: float, z: float, d: float, depth: float, wall: f
     reach = d / 2 + wall
 
     def clear(y: float) -> bool:
-        ring = [(y + reach * math.cos(a), z + reach * math.sin(a)) for a in np.linspace(0, 2 * math.pi, 16, endpoint=False)]
+        angles = np.linspace(0, 2 * math.pi, 16, endpoint=False)
+        ring = [(y + reach * math.cos(a), z + reach * math.sin(a)) for a in angles]
         if not all(_inside(shape, [(x, yy, zz) for yy, zz in ring])):
             return False
         for yy, zz in ring:  # no face (bore, pin, wall) within the dowel's length
