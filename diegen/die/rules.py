@@ -66,6 +66,7 @@ class DiePlan:
     die: DieInput  # after fitting: what ``build`` makes
     refusal: str | None = None  # what ``build`` would refuse, with the remedy (None: buildable)
     findings: tuple[Finding, ...] = ()  # what fitting changed, and what that costs
+    asked: DieInput | None = None  # the die as the piece asked for it, before fitting
 
     @property
     def buildable(self) -> bool:
@@ -79,7 +80,7 @@ def plan_die(spec: Any, piece: Any, settings: BuildSettings = DEFAULT_SETTINGS) 
     asked = asked_die_input(spec, piece)
     fitted = fit_die(asked, piece, spec, settings)
     return DiePlan(fitted.die, die_refusal(fitted.die, settings) if fitted.refusal is None else fitted.refusal,
-                   fitted.findings)
+                   fitted.findings, asked)
 
 
 def with_die_plan(spec: Any, piece: Any, settings: BuildSettings = DEFAULT_SETTINGS) -> Any:
