@@ -51,6 +51,7 @@ class Fitted:
     die: DieInput
     findings: tuple[Finding, ...] = ()
     refusal: str | None = None
+    checked: bool = False  # the die passed every rule as it stands (nothing needed fitting)
 
 
 def fit_die(die: DieInput, piece: Any, spec: Any, settings: BuildSettings = DEFAULT_SETTINGS) -> Fitted:
@@ -58,7 +59,7 @@ def fit_die(die: DieInput, piece: Any, spec: Any, settings: BuildSettings = DEFA
     from diegen.die.rules import die_refusal
 
     if die_refusal(die, settings) is None:
-        return Fitted(die)
+        return Fitted(die, checked=True)
     findings: list[Finding] = []
     plain = replace(die, flutes=())
     try:

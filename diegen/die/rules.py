@@ -79,8 +79,8 @@ def plan_die(spec: Any, piece: Any, settings: BuildSettings = DEFAULT_SETTINGS) 
 
     asked = asked_die_input(spec, piece)
     fitted = fit_die(asked, piece, spec, settings)
-    return DiePlan(fitted.die, die_refusal(fitted.die, settings) if fitted.refusal is None else fitted.refusal,
-                   fitted.findings, asked)
+    refusal = fitted.refusal if fitted.refusal is not None or fitted.checked else die_refusal(fitted.die, settings)
+    return DiePlan(fitted.die, refusal, fitted.findings, asked)
 
 
 def with_die_plan(spec: Any, piece: Any, settings: BuildSettings = DEFAULT_SETTINGS) -> Any:
