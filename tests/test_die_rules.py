@@ -22,7 +22,7 @@ from dataclasses import replace
 
 import numpy as np
 import pytest
-from shapely.geometry import Point, Polygon, box
+from shapely.geometry import Polygon
 from shapely.geometry.polygon import orient
 from test_refusals import rib_yaml
 

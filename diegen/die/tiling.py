@@ -18,7 +18,7 @@ import shapely
 from shapely.geometry import LineString, Point, Polygon, box
 
 from diegen.die.die_input import DieInput
-from diegen.die.model import flute_scale, loft_sections, section
+from diegen.die.model import loft_sections, section
 from diegen.die.outline import OutlineModel, pieces_to_polygon
 from diegen.die.settings import DEFAULT_SETTINGS, BuildSettings
 from diegen.errors import GeometryError

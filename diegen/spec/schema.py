@@ -277,8 +277,6 @@ def read_pins(r: Reader, node: YNode | None, path: str, diameter: float) -> Pins
 
 
 def read_die(r: Reader, node: YNode | None, path: str, base: Die | None = None) -> Die | None:
-    from diegen import materials
-
     fields = r.mapping(node, path, ("material", "stock_thickness", "cutter_diameter", "print_bed", "stl_tolerance"),
                        () if base else ("material", "stock_thickness", "cutter_diameter"))
     if fields is None:
