@@ -383,3 +383,18 @@ def test_resample_rejects_bad_counts() -> None:
         resample(naca_section("0012"), 5)
     with pytest.raises(AirfoilError, match="fraction"):
         blend(naca_section("0012"), naca_section("0012"), float("nan"))
+
+
+@pytest.mark.parametrize("surface", ["upper", "lower"])
+def test_a_crossing_outline_names_the_line_of_the_point_moved(surface: str) -> None:
+    """One mistyped point moved across the other surface: the error names its line, not the far surface's points
+    it crosses (NACA 0012 ordinates from the Report 824 equations, written out here)."""
+    xs = 0.5 * (1 - np.cos(np.linspace(0.0, np.pi, 41)))
+    half = 5 * 0.12 * (0.2969 * np.sqrt(xs) - 0.1260 * xs - 0.3516 * xs**2 + 0.2843 * xs**3 - 0.1036 * xs**4)
+    rows = [(x, y) for x, y in zip(xs[::-1], half[::-1])] + [(x, -y) for x, y in zip(xs[1:], half[1:])]
+    moved = 15 if surface == "upper" else 60  # 0-based row: mid-chord on that surface
+    x, y = rows[moved]
+    rows[moved] = (x, -y - 0.03 if y > 0 else -y + 0.03)
+    text = "a test section\n" + "".join(f"{x:.7f} {y:.7f}\n" for x, y in rows)
+    with pytest.raises(AirfoilError, match=rf"^sec\.dat:{moved + 2}: the outline crosses or touches itself at this"):
+        parse_coordinates(text, "sec.dat")

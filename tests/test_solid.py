@@ -557,15 +557,14 @@ def test_kernel_failure_becomes_solid_error(bare_input, monkeypatch):
 
 # ---------------------------------------------------------------- tiles and laminates
 def test_tiles_fit_the_bed_and_keep_the_volume(bare_die, bare_input):
-    from diegen.die.tiling import plan_tiles
-
     from diegen.die.model import outline_model
-    from diegen.die.occ.tiles import tile_for_bed
+    from diegen.die.occ.tiles import cut_tiles
+    from diegen.die.tiles import die_tile_layout
 
     bed = (150.0, 200.0)
-    plan = plan_tiles(bare_input, outline_model(bare_input), bed, dowel_d_mm=5.0, dowel_depth_mm=10.0)
-    tiles = tile_for_bed(bare_die, plan)
-    assert len(tiles) == plan.count == 2
+    layout = die_tile_layout(bare_input, bed, outline_model(bare_input), dowel_d_mm=5.0, dowel_depth_mm=10.0)
+    tiles, dowels = cut_tiles(bare_die, layout)
+    assert len(tiles) == len(layout.tiles) == 2
     for t in tiles:
         bb = t.shape.BoundingBox()
         length, width = (bb.xlen, bb.ylen)
@@ -573,17 +572,16 @@ def test_tiles_fit_the_bed_and_keep_the_volume(bare_die, bare_input):
         assert length <= bx - 4 + 1e-6 and width <= by - 4 + 1e-6
     total = sum(volume(t.shape) for t in tiles)
     n_dowels = round((volume(bare_die) - total) / (math.pi * 2.5**2 * 20.0))
-    assert n_dowels == len(plan.dowels) and n_dowels in (1, 2)
+    assert n_dowels == len(dowels) and n_dowels in (1, 2)
     assert volume(bare_die) - total == pytest.approx(n_dowels * math.pi * 2.5**2 * 20.0, rel=1e-4)
 
 
 def test_bed_too_small(bare_input):
-    from diegen.die.tiling import plan_tiles
-
     from diegen.die.model import outline_model
+    from diegen.die.tiles import die_tile_layout
 
-    with pytest.raises(GeometryError, match="cannot take a tile"):
-        plan_tiles(bare_input, outline_model(bare_input), (100.0, 100.0))
+    with pytest.raises(GeometryError, match="bed"):
+        die_tile_layout(bare_input, (100.0, 100.0), outline_model(bare_input))
 
 
 def test_laminate_layers(bare_input, outline):

@@ -52,12 +52,13 @@ class Fitted:
     die: DieInput
     findings: tuple[Finding, ...] = ()
     refusal: str | None = None
+    checked: bool = False  # the die passed every rule as it stands (nothing needed fitting)
 
 
 def fit_die(die: DieInput, piece: Any, spec: Any, settings: BuildSettings = DEFAULT_SETTINGS) -> Fitted:
     """``die`` (as the analysed ``piece`` asks for it) fitted to the piece: the wall first, then the flutes."""
     if die_refusal(die, settings) is None:
-        return Fitted(die)
+        return Fitted(die, checked=True)
     findings: list[Finding] = []
     plain = replace(die, flutes=())
     try:
@@ -186,7 +187,8 @@ def _fit_wall(die: DieInput, piece: Any, spec: Any, settings: BuildSettings) -> 
             f"the die's top-edge radius is {radius:.2f} mm instead of {die.top_radius_mm:.2f} mm: the piece is too "
             f"thin{spot} for the arc's {die_wall.top_setback_mm(die.top_radius_mm, die.undercut_deg):.2f} mm "
             f"setback (its outline takes {room:.2f} mm); the part's bend radius comes out about {part_radius:.2f} mm "
-            f"instead of {piece.springback.part_radius_mm:.2f} mm (the minimum is {minimum:.2f} mm)",
+            f"instead of {piece.springback.part_radius_mm:.2f} mm (the minimum is {minimum:.2f} mm; the blank is laid "
+            "out for the radius asked)",
             key="flange.bend_radius"))
     return replace(die, top_radius_mm=radius, undercut_deg=undercut, bore_top_radius_mm=die.bore_radius_mm), findings
 

@@ -269,7 +269,8 @@ class OutlineModel:
         ring = self.dense_base()
         poly = Polygon(ring)
         if not poly.is_valid:
-            raise GeometryError(f"die outline crosses itself: {explain_validity(poly)}")
+            raise GeometryError(f"die outline crosses itself: {explain_validity(poly)}: check the section's "
+                                "coordinates and the spar caps (a joggle deeper than the section?)")
         if not poly.exterior.is_ccw:
             raise GeometryError("die outline runs clockwise: list the runs counter-clockwise (interior on the left)")
         # junction turns
@@ -486,7 +487,8 @@ class OutlineModel:
             p = a.point(a.length, 0.0)
             raise GeometryError(
                 f"the die outline offset inward by {inset:.3f} mm cannot be closed at the corner "
-                f"({p[0]:.2f}, {p[1]:.2f}) mm: an edge next to it is too short or the corner too sharp"
+                f"({p[0]:.2f}, {p[1]:.2f}) mm: an edge next to it is too short or the corner too sharp; lower the "
+                "top radius or the undercut (lower die stock), or move the spar where the section is deeper"
             )
         return sa, sb
 

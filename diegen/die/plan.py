@@ -23,6 +23,7 @@ class DiePlan:
     die: DieInput  # after fitting: what ``build`` makes
     refusal: str | None = None  # what ``build`` would refuse, with the remedy (None: buildable)
     findings: tuple[Finding, ...] = ()  # what fitting changed, and what that costs
+    asked: DieInput | None = None  # the die as the piece asked for it, before fitting
 
     @property
     def buildable(self) -> bool:
@@ -33,8 +34,8 @@ def plan_die(spec: Any, piece: Any, settings: BuildSettings = DEFAULT_SETTINGS) 
     """The die of one analysed piece (``spec``: RibSpec, ``piece``: PieceAnalysis), fitted and checked."""
     asked = asked_die_input(spec, piece)
     fitted = fit_die(asked, piece, spec, settings)
-    return DiePlan(fitted.die, die_refusal(fitted.die, settings) if fitted.refusal is None else fitted.refusal,
-                   fitted.findings)
+    refusal = fitted.refusal if fitted.refusal is not None or fitted.checked else die_refusal(fitted.die, settings)
+    return DiePlan(fitted.die, refusal, fitted.findings, asked)
 
 
 def with_die_plan(spec: Any, piece: Any, settings: BuildSettings = DEFAULT_SETTINGS) -> Any:
