@@ -14,6 +14,7 @@ fibreboard dies; every one of its pieces builds or check refuses it with a remed
 
 from __future__ import annotations
 
+import multiprocessing
 import re
 import time
 from concurrent.futures import ProcessPoolExecutor
@@ -67,7 +68,9 @@ def corpus(tmp_path_factory: pytest.TempPathFactory) -> dict[str, dict]:
                             "check": {p.piece.part_id: p.die.refusal for r in rib_analyses(analysis) for p in r.pieces}}
     order = sorted(found, key=lambda p: -len(found[p]["check"]))  # the longest first: the pool ends together
     start = time.perf_counter()
-    with ProcessPoolExecutor(max_workers=JOBS, initializer=_warm_up) as pool:
+    # fresh processes, not forks: a fork taken after this process ran the kernel can hang inside it
+    spawn = multiprocessing.get_context("spawn")
+    with ProcessPoolExecutor(max_workers=JOBS, initializer=_warm_up, mp_context=spawn) as pool:
         futures = [pool.submit(_build, path, str(folder / "out")) for path in order]
         for future in futures:
             path, outcomes, refusal, seconds = future.result()
