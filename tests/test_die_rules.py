@@ -27,7 +27,7 @@ from shapely.geometry.polygon import orient
 from test_refusals import rib_yaml
 
 from diegen import api, cli
-from diegen.die.die_input import DieInput, OutlineRun
+from diegen.die.die_input import DieInput, DieRun
 from diegen.die.model import loft_sections, outline_model
 from diegen.die.rules import die_refusal
 from diegen.spec import parse_spec
@@ -142,7 +142,7 @@ def _notched_die(printed: bool, cutter_radius: float) -> DieInput:
     ring = orient(shape, 1.0).exterior  # counter-clockwise
     points = [ring.interpolate(d).coords[0] for d in np.arange(0.0, ring.length, 0.25)]
     points.append(points[0])
-    return DieInput("NOTCH", (OutlineRun("curve", tuple(points)),), 20.0, 0.5, 0.0, cutter_radius, printed=printed)
+    return DieInput("NOTCH", (DieRun("curve", tuple(points)),), 20.0, 0.5, 0.0, cutter_radius, printed=printed)
 
 
 def test_a_routed_die_keeps_the_cutter_rule_and_a_printed_one_does_not():
