@@ -35,6 +35,7 @@ def analyse(spec: Spec) -> Analysis:
 def report_json(analysis: Analysis) -> dict[str, Any]:
     """One JSON-ready document: ``{"parts": [...]}`` with every piece of every rib."""
     from diegen.analysis import MODELS
+    from diegen.findings import once
     from diegen.reports.document import SAFETY, piece_json, rib_json
 
     if not isinstance(analysis, WingAnalysis):
@@ -43,7 +44,7 @@ def report_json(analysis: Analysis) -> dict[str, Any]:
 
     return {"diegen_version": __version__, "spec": analysis.spec.id, "kind": "wing", "models": MODELS,
             "safety": SAFETY,
-            "warnings": [w.as_json() for w in _once(w for r in analysis.ribs for w in r.geometry.warnings)],
+            "warnings": [w.as_json() for w in once(w for r in analysis.ribs for w in r.geometry.warnings)],
             "parts": [piece_json(r, p) for r in analysis.ribs for p in r.pieces]}
 
 
@@ -58,17 +59,10 @@ def report_text(analysis: Analysis) -> str:
                                 if refused else []) + [footer_text()])
 
 
-def _once(findings: Any) -> list[Any]:
-    """Findings about the spec file itself once, though every rib of a wing reports them (other findings all)."""
-    seen: set[tuple] = set()
-    out = []
-    for finding in findings:
-        key = (finding.code, finding.key, finding.line, finding.column, finding.message)
-        if finding.code == "units-suspect" and key in seen:
-            continue
-        seen.add(key)
-        out.append(finding)
-    return out
+def warning_count(report: dict[str, Any]) -> int:
+    """How many findings a report (:func:`report_json`) holds: those about the spec or a whole rib, and each
+    piece's; ``diegen build`` counts the same ones."""
+    return len(report["warnings"]) + sum(len(part["warnings"]) for part in report["parts"])
 
 
 def refused_pieces(analysis: Analysis) -> list[tuple[str, str]]:
@@ -135,5 +129,4 @@ def diff_text(old: Spec, new: Spec) -> str:
 
 
 __all__ = ["Analysis", "RibJob", "WingAnalysis", "analyse", "build", "diff_text", "load", "refused_pieces",
-           "report_json",
-           "report_text", "rib_jobs", "write_plots", "write_starter"]
+           "report_json", "report_text", "rib_jobs", "warning_count", "write_plots", "write_starter"]

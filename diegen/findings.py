@@ -8,6 +8,7 @@ its rib's id), or ``"rib <rib id>: <message>"`` for a finding about a whole rib,
 
 from __future__ import annotations
 
+from collections.abc import Iterable, Sequence
 from dataclasses import dataclass, replace
 from typing import Any
 
@@ -66,4 +67,26 @@ class Finding:
         return found
 
 
-__all__ = ["Finding"]
+def once(findings: Iterable[Finding]) -> list[Finding]:
+    """Findings about the spec file itself once, though every rib of a wing reports them (other findings all)."""
+    seen: set[tuple] = set()
+    out = []
+    for finding in findings:
+        key = (finding.code, finding.key, finding.line, finding.column, finding.message)
+        if finding.code == "units-suspect" and key in seen:
+            continue
+        seen.add(key)
+        out.append(finding)
+    return out
+
+
+def tagged(findings: Sequence[Finding]) -> str:
+    """The findings' codes with how often each occurs, most frequent first: ``relief-short ×2, units-suspect``."""
+    counts: dict[str, int] = {}
+    for finding in findings:
+        counts[finding.code] = counts.get(finding.code, 0) + 1
+    ordered = sorted(counts.items(), key=lambda item: (-item[1], item[0]))
+    return ", ".join(code if n == 1 else f"{code} ×{n}" for code, n in ordered)
+
+
+__all__ = ["Finding", "once", "tagged"]

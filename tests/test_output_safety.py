@@ -106,10 +106,11 @@ def test_file_linked_outside_fails_its_piece(tmp_path, spec, fake_solids):
                                       f"outside the output folder {(out / 'T1').resolve()}; refusing to write there")
     assert outside.read_text() == "not diegen's" and svg.is_symlink()
     assert fake_solids == []  # refused before anything was written
-    # the files written before are left as they were, and the manifest no longer lists them as built
+    # the earlier build's plain files are removed, the link is left (neither followed nor removed), a note says why
     manifest = json.loads((out / "T1" / "manifest.json").read_text())
-    assert manifest["pieces"]["T1-tail"]["status"] == "failed"
-    assert (out / "T1" / "T1-tail" / "T1-tail-die.step").is_file()
+    assert manifest["pieces"]["T1-tail"]["status"] == "failed" and manifest["pieces"]["T1-tail"]["files"] == []
+    assert sorted(p.name for p in (out / "T1" / "T1-tail").iterdir()) == ["FAILED.txt", "T1-tail-blank.svg"]
+    assert "symbolic link" in (out / "T1" / "T1-tail" / "FAILED.txt").read_text()
 
 
 def test_a_write_through_a_linked_folder_is_refused_before_a_temporary_is_made(tmp_path):

@@ -24,7 +24,8 @@ from diegen.fileio import write_text
 MANIFEST = "manifest.json"
 RACY_NS = 2_000_000_000  # 2 s: the coarsest modification-time step of common file systems (FAT)
 
-PieceStatus = Literal["built", "failed", "building"]
+PieceStatus = Literal["built", "failed", "building", "left"]
+"""``left``: no longer in the spec, its folder kept because it holds files diegen did not write."""
 
 
 @dataclass
@@ -86,7 +87,12 @@ def _sha256(path: Path) -> tuple[str, os.stat_result]:
 
 @dataclass
 class PieceRecord:
-    """One piece as last built: its hash, status, files, die outline (mm) and headline numbers."""
+    """One piece as last built: its hash, status, files, die outline (mm) and headline numbers.
+
+    A failed piece lists no files (its earlier ones are removed); its ``hash`` is kept when the failure follows from
+    its inputs alone (the next build with the same inputs reports it failed without trying again), and ``note``
+    names the plain-text note diegen left in its folder saying why it failed.
+    """
 
     rib: str = ""
     piece: str = ""
@@ -98,15 +104,18 @@ class PieceRecord:
     outline: list[list[float]] = field(default_factory=list)
     numbers: dict[str, Any] = field(default_factory=dict)
     warnings: list[dict[str, Any]] = field(default_factory=list)  # findings, as in the report
+    note: str = ""  # the failure note diegen wrote into the piece folder ('' when none)
 
 
 @dataclass
 class RibRecord:
-    """One rib: the hash of its inputs (empty when a piece failed: re-analyse next time) and its pieces."""
+    """One rib: the hash of its inputs (empty when a piece failed: re-analyse next time), its pieces and the
+    findings about the whole rib."""
 
     input_hash: str
     pieces: list[str]
     complete: bool = False
+    warnings: list[dict[str, Any]] = field(default_factory=list)  # findings about the rib, as in the report
 
 
 @dataclass
@@ -158,7 +167,7 @@ class Manifest:
         except OutputError as error:
             return str(error)
         if entry.status != "built":
-            return "not finished last time" if entry.status == "building" else "failed last time"
+            return {"building": "not finished last time", "failed": "failed last time"}.get(entry.status, "new")
         for name in entry.files:
             stamp = entry.stamps.get(name)
             if stamp is None:

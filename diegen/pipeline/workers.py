@@ -18,7 +18,7 @@ from pathlib import Path
 import numpy as np
 
 from diegen.analysis import RibAnalysis
-from diegen.errors import DiegenError
+from diegen.errors import DiegenError, OutputError
 from diegen.fileio import confined_to, inside, reason, remove_empty_folder, remove_file
 from diegen.locate import analyse_located
 from diegen.pipeline.hashing import rib_input_hash
@@ -55,13 +55,17 @@ class PieceTask:
 
 @dataclass(frozen=True)
 class TaskResult:
-    """What a worker sends back: the files written and their stamps, or the error; the time it took (s)."""
+    """What a worker sends back: the files written and their stamps, or the error; the time it took (s).
+
+    ``lasting``: the error follows from the piece's inputs (its geometry, its die), not from the output folder or
+    the machine, so building the same inputs again would fail the same way."""
 
     part_id: str
     files: tuple[str, ...]
     error: str
     seconds: float
     stamps: dict[str, FileStamp] = field(default_factory=dict)
+    lasting: bool = False
 
 
 def build_piece(rib_spec: RibSpec, section: np.ndarray | None, index: int, folder: str, root: str, claimed: bool,
@@ -87,7 +91,8 @@ def build_piece(rib_spec: RibSpec, section: np.ndarray | None, index: int, folde
             if existed is not None or _is_new_folder(target):
                 _remove_new_files(target, existed)
             message = str(error) if isinstance(error, DiegenError) else f"{error.filename or target}: {reason(error)}"
-            return TaskResult(part, (), message, time.perf_counter() - start)
+            lasting = isinstance(error, DiegenError) and not isinstance(error, (OutputError, OSError))
+            return TaskResult(part, (), message, time.perf_counter() - start, lasting=lasting)
 
 
 def _files_in(folder: Path) -> set[str] | None:

@@ -13,6 +13,7 @@ from diegen.blank.drawing import BlankDrawing
 from diegen.die.from_analysis import die_making, tile_plan
 from diegen.die.tiles import tile_files
 from diegen.errors import GeometryError
+from diegen.findings import once
 
 SAFETY = (
     "A shop press stores a great deal of energy: rubber, blank or a split die or box can be ejected. Guard the "
@@ -165,7 +166,8 @@ def piece_json(rib: RibAnalysis, p: PieceAnalysis) -> dict[str, Any]:
 
 def rib_json(rib: RibAnalysis) -> dict[str, Any]:
     return {"diegen_version": __version__, "spec": rib.spec.id, "models": MODELS, "safety": SAFETY,
-            "warnings": [w.as_json() for w in rib.geometry.warnings], "parts": [piece_json(rib, p) for p in rib.pieces]}
+            "warnings": [w.as_json() for w in once(rib.geometry.warnings)],
+            "parts": [piece_json(rib, p) for p in rib.pieces]}
 
 
 __all__ = ["BED_MARGIN_WHY", "PRINT_ORIENTATION", "SAFETY", "blank_numbers", "die_life", "piece_json", "print_json",

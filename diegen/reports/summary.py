@@ -4,7 +4,9 @@ from __future__ import annotations
 
 import csv
 import io
-from collections.abc import Sequence
+import os
+import stat
+from collections.abc import Mapping, Sequence
 from pathlib import Path
 from typing import Any
 
@@ -16,13 +18,15 @@ from diegen.numbers import plain
 from diegen.spec.model import WingSpec
 from diegen.wing import chord_at, leading_edge_at, stations
 
-COLUMNS = ("rib", "station_mm", "chord_mm", "section", "piece", "part_id", "die_length_mm", "die_depth_mm",
+COLUMNS = ("rib", "station_mm", "chord_mm", "section", "piece", "part_id", "status", "die_length_mm", "die_depth_mm",
            "die_height_mm",
            "stock_layers", "blank_length_mm", "blank_width_mm", "overbend_deg", "die_radius_mm", "max_shrink",
            "max_stretch", "flutes", "notches", "press_verdict", "warnings")
 
 
-def summary_rows(spec: WingSpec, ribs: Sequence[RibAnalysis]) -> list[dict[str, Any]]:
+def summary_rows(spec: WingSpec, ribs: Sequence[RibAnalysis],
+                 status: Mapping[str, str] | None = None) -> list[dict[str, Any]]:
+    """A row a piece; ``status``: what the build did with each part (built, unchanged, failed; '' when unknown)."""
     by_rib = {f"{spec.id}-R{s.number:02d}": s for s in stations(spec)}
     rows = []
     for rib in ribs:
@@ -32,6 +36,7 @@ def summary_rows(spec: WingSpec, ribs: Sequence[RibAnalysis]) -> list[dict[str, 
             rows.append({
                 "rib": station.number, "station_mm": round(station.y_mm, 1), "chord_mm": round(rib.spec.chord_mm, 1),
                 "section": rib.spec.section_label, "piece": p.piece.name, "part_id": p.piece.part_id,
+                "status": (status or {}).get(p.piece.part_id, ""),
                 "die_length_mm": round(float(np.ptp(outline[:, 0])), 1),
                 "die_depth_mm": round(float(np.ptp(outline[:, 1])), 1),
                 "die_height_mm": round(p.die_height_mm, 2), "stock_layers": p.die_layers,
@@ -46,18 +51,49 @@ def summary_rows(spec: WingSpec, ribs: Sequence[RibAnalysis]) -> list[dict[str, 
     return [{k: plain(v) if isinstance(v, float) else v for k, v in row.items()} for row in rows]
 
 
-# Landscape pages, in inches: A4 297 × 210 mm (ISO 216), Letter 11 × 8.5 in.
-PAGE_IN = {"a4": (297.0 / 25.4, 210.0 / 25.4), "letter": (11.0, 8.5)}
-
-
-def write_wing_summary(spec: WingSpec, ribs: Sequence[RibAnalysis], folder: Path) -> list[Path]:
-    """Write ``summary.csv`` and ``summary.pdf`` for the whole wing (``ribs``: every rib, analysed) into ``folder``."""
-    rows = summary_rows(spec, ribs)
+def _csv_text(rows: Sequence[Mapping[str, Any]]) -> str:
     buffer = io.StringIO()
     writer = csv.DictWriter(buffer, fieldnames=COLUMNS)
     writer.writeheader()
     writer.writerows(rows)
-    write_text(folder / "summary.csv", buffer.getvalue())
+    return buffer.getvalue()
+
+
+def update_summary_status(folder: Path, status: Mapping[str, str]) -> bool:
+    """Bring the ``status`` column of an existing ``summary.csv`` up to date (rewritten only when it changes).
+
+    False when there is no such summary with these columns and exactly these parts, in this order: it must then be
+    written afresh.
+    """
+    path = folder / "summary.csv"
+    try:
+        if not stat.S_ISREG(os.lstat(path).st_mode):
+            return False
+        text = path.read_text(encoding="utf-8")
+        reader = csv.DictReader(io.StringIO(text, newline=""))
+        rows = list(reader)
+    except (OSError, ValueError, csv.Error):
+        return False
+    if tuple(reader.fieldnames or ()) != COLUMNS or [r["part_id"] for r in rows] != list(status):
+        return False
+    for row in rows:
+        row["status"] = status[row["part_id"]]
+    updated = _csv_text(rows)
+    if updated != text:
+        write_text(path, updated)
+    return True
+
+
+# Landscape pages, in inches: A4 297 × 210 mm (ISO 216), Letter 11 × 8.5 in.
+PAGE_IN = {"a4": (297.0 / 25.4, 210.0 / 25.4), "letter": (11.0, 8.5)}
+
+
+def write_wing_summary(spec: WingSpec, ribs: Sequence[RibAnalysis], folder: Path,
+                       status: Mapping[str, str] | None = None) -> list[Path]:
+    """Write ``summary.csv`` and ``summary.pdf`` for the whole wing (``ribs``: every rib, analysed) into ``folder``;
+    ``status`` is what the build did with each part."""
+    rows = summary_rows(spec, ribs, status)
+    write_text(folder / "summary.csv", _csv_text(rows))
     write_with(folder / "summary.pdf", lambda tmp: _pdf(spec, ribs, rows, tmp))
     return [folder / "summary.csv", folder / "summary.pdf"]
 
@@ -155,4 +191,4 @@ class _PiecePage:
                 artist.remove()
 
 
-__all__ = ["COLUMNS", "summary_rows", "write_wing_summary"]
+__all__ = ["COLUMNS", "summary_rows", "update_summary_status", "write_wing_summary"]
