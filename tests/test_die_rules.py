@@ -57,7 +57,7 @@ def _arc_gather(width: float, depth: float) -> float:
 
 
 # -- flutes on a tight nose ------------------------------------------------------------------------------
-TIGHT_NOSE = dict(airfoil="naca 0009", chord=400, front=0.3, alloy="6061-T6", t=0.8, radius=1.2, height=8,
+TIGHT_NOSE = dict(airfoil="naca 0009", chord=400, front=0.3, alloy="6061-T6", t=0.8, radius=1.6, height=8,
                   pieces="[nose]", die="{material: solid-surface, stock_thickness: 80, cutter_diameter: 6}")
 
 
@@ -90,7 +90,7 @@ def test_notches_instead_of_flutes_need_no_fitting():
 
 
 # -- a piece too thin for its wall ---------------------------------------------------------------------------
-THIN = dict(airfoil="naca 0009", chord=400, front=0.3, alloy="2024-T3", t=0.5, radius=1.6, height=8,
+THIN = dict(airfoil="naca 0009", chord=400, front=0.3, alloy="2024-T3", t=0.5, radius=1.8, height=8,
             pieces="[nose]", die="{material: solid-surface, stock_thickness: 80, cutter_diameter: 6}")
 
 
@@ -112,7 +112,7 @@ def test_a_piece_too_thin_for_the_undercut_gets_a_smaller_one_and_a_warning():
 
 
 def test_a_wall_that_would_need_a_radius_below_the_table_is_refused_with_a_remedy(tmp_path, fake_solids):
-    changes = {**THIN, "t": 0.8, "radius": 2.4, "die": "{material: solid-surface, stock_thickness: 50, "
+    changes = {**THIN, "t": 0.8, "radius": 2.8, "die": "{material: solid-surface, stock_thickness: 50, "
                "cutter_diameter: 6}"}
     path = tmp_path / "rib.yaml"
     path.write_text(rib_yaml(**changes))
