@@ -20,8 +20,16 @@ from shapely.geometry import LineString, Point, Polygon
 from testing import DEMO_RIB
 
 from diegen import api
-from diegen.die.drawing import (BORES, BOTTOM_OUTLINE, DOWEL_HOLES, MARKS, TILE_JOINTS, TOP_FLAT, TOP_OUTLINE,
-                                die_drawing)
+from diegen.die.drawing import (
+    BORES,
+    BOTTOM_OUTLINE,
+    DOWEL_HOLES,
+    MARKS,
+    TILE_JOINTS,
+    TOP_FLAT,
+    TOP_OUTLINE,
+    die_drawing,
+)
 from diegen.die.from_analysis import die_input, tile_plan
 from diegen.die.model import bottom_inset_mm, outline_model, top_face_inset_mm
 from diegen.die.placement import fit_marks
@@ -126,6 +134,6 @@ def test_printed_die_marks_keep_clear_of_the_joints(demo, tmp_path: Path) -> Non
         assert not any(cut.intersects(p) for p in marks.polygons)
     doc = ezdxf.readfile(write_die_dxf(drawing, tmp_path / "die.dxf"))
     lines = [e for e in doc.modelspace().query(f'LWPOLYLINE[layer=="{TILE_JOINTS.name}"]') if not e.closed]
-    assert sorted(list(e.get_points("xy"))[0][0] for e in lines) == pytest.approx(list(layout.joints_x_mm))
+    assert sorted(next(iter(e.get_points("xy")))[0] for e in lines) == pytest.approx(list(layout.joints_x_mm))
     dowels = [e for e in doc.modelspace().query(f'LWPOLYLINE[layer=="{TILE_JOINTS.name}"]') if e.closed]
     assert len(dowels) == len(layout.dowels) >= len(layout.joints_x_mm)

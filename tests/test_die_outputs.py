@@ -7,6 +7,7 @@ their bounds), the ISO 10303-21 text of the STEP files.
 
 from __future__ import annotations
 
+import itertools
 import json
 from pathlib import Path
 
@@ -71,7 +72,7 @@ def test_the_report_lists_a_printed_dies_tiles(tmp_path: Path) -> None:
         x0, x1 = part["x_range_mm"]
         spans = [t["x_range_mm"] for t in die["tiles"]]
         assert spans[0][0] <= x0 + 1.0 and spans[-1][1] >= x1 - 1.0  # the tiles cover the piece
-        assert all(a[1] == b[0] for a, b in zip(spans, spans[1:]))  # and meet at the joints
+        assert all(a[1] == b[0] for a, b in itertools.pairwise(spans))  # and meet at the joints
         for tile in die["tiles"]:
             length, width, _ = tile["size_mm"]
             assert length <= usable + 1e-9 and width <= usable + 1e-9
@@ -111,7 +112,7 @@ def test_printed_demo_rib_builds_tiles_drawing_and_sheet(tmp_path: Path) -> None
             assert all((folder / name).is_file() for name in tile["files"])
             mesh = trimesh.load(folder / tile["files"][1])
             assert mesh.is_watertight
-            (mx0, my0, mz0), (mx1, my1, mz1) = mesh.bounds
+            (mx0, my0, _), (mx1, my1, _) = mesh.bounds
             (x0, x1), (y0, y1) = tile["x_range_mm"], tile["y_range_mm"]
             assert x0 - FIT_TOL_MM <= mx0 and mx1 <= x1 + FIT_TOL_MM
             assert y0 - FIT_TOL_MM <= my0 and my1 <= y1 + FIT_TOL_MM

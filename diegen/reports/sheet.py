@@ -5,7 +5,17 @@ from __future__ import annotations
 from collections.abc import Sequence
 
 from diegen.analysis import PieceAnalysis, RibAnalysis
-from diegen.die.drawing import BORES, BOTTOM_OUTLINE, DOWEL_HOLES, FLUTES, JOGGLES, MARKS, TILE_JOINTS, TOP_FLAT, TOP_OUTLINE
+from diegen.die.drawing import (
+    BORES,
+    BOTTOM_OUTLINE,
+    DOWEL_HOLES,
+    FLUTES,
+    JOGGLES,
+    MARKS,
+    TILE_JOINTS,
+    TOP_FLAT,
+    TOP_OUTLINE,
+)
 from diegen.die.from_analysis import die_making
 from diegen.forming.relief import flute_arc_radius
 from diegen.numbers import without_negative_zeros
@@ -173,7 +183,7 @@ def _wall_features(piece: PieceAnalysis, shared, step: _Steps, flute_tool: str, 
 def _printed(rib: RibAnalysis, piece: PieceAnalysis) -> list[str]:
     from diegen import materials
 
-    g, shared = piece.piece, rib.spec.shared
+    shared = rib.spec.shared
     material = materials.die_material(shared.die.material)
     info = print_json(rib, piece)
     lines = [
