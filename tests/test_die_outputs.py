@@ -112,7 +112,7 @@ def test_printed_demo_rib_builds_tiles_drawing_and_sheet(tmp_path: Path) -> None
             assert all((folder / name).is_file() for name in tile["files"])
             mesh = trimesh.load(folder / tile["files"][1])
             assert mesh.is_watertight
-            (mx0, my0, _mz0), (mx1, my1, _mz1) = mesh.bounds
+            (mx0, my0, _), (mx1, my1, _) = mesh.bounds
             (x0, x1), (y0, y1) = tile["x_range_mm"], tile["y_range_mm"]
             assert x0 - FIT_TOL_MM <= mx0 and mx1 <= x1 + FIT_TOL_MM
             assert y0 - FIT_TOL_MM <= my0 and my1 <= y1 + FIT_TOL_MM

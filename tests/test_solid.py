@@ -166,6 +166,19 @@ def test_package_imports_without_kernel():
     subprocess.run([sys.executable, "-c", code], check=True, cwd=Path(__file__).resolve().parents[1])
 
 
+def test_workers_forked_after_the_kernel_ran_in_process_finish(tmp_path):
+    # The kernel's thread pool does not survive a fork: a build whose workers are forked from a process that has
+    # already built a die (with parallel checks and meshing) must still finish, not wait forever.
+    spec = tmp_path / "tail.yaml"
+    spec.write_text((Path(__file__).resolve().parents[1] / "specs" / "demo-rib.yaml").read_text()
+                    .replace("pieces: [nose, center, tail]", "pieces: [tail, center]"))
+    code = ("import sys; from diegen import api; s = api.load(sys.argv[1]); "
+            "assert not api.build(s, sys.argv[2] + '/a', jobs=1).failed; "
+            "assert not api.build(s, sys.argv[2] + '/b', jobs=2).failed")
+    subprocess.run([sys.executable, "-c", code, str(spec), str(tmp_path)], check=True, timeout=600,
+                   cwd=Path(__file__).resolve().parents[1])
+
+
 # ---------------------------------------------------------------- STEP and STL
 @pytest.mark.parametrize("which", ["bare", "full"])
 def test_step_reimports_as_one_valid_closed_solid(which, bare_die, full_die, tmp_path):

@@ -108,7 +108,7 @@ def _record(folder: Path, manifest: Manifest, task: PieceTask, result: TaskResul
         rib=rib.spec.id, piece=piece.piece.name, hash=task.digest if not failed or result.lasting else "",
         status="failed" if failed else "built", error=result.error, files=list(result.files),
         stamps=dict(result.stamps),
-        outline=[[round(x, 4), round(y, 4)] for x, y in piece.piece.outline],
+        outline=[[round(x, 4) + 0.0, round(y, 4) + 0.0] for x, y in piece.piece.outline],
         numbers=numbers, warnings=[w.as_json() for w in piece.warnings], note=note,
     )
     manifest.save()

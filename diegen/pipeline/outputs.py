@@ -50,7 +50,7 @@ def write_piece(rib: RibAnalysis, piece: PieceAnalysis, folder: Path, die_writer
     die_files, die_notes = die_writer(rib, piece, folder, claimed)
     write_dxf(piece.blank, folder / names["blank_dxf"])
     write_svg(piece.blank, folder / names["blank_svg"])
-    write_pdf(piece.blank, folder / names["blank_pdf"], paper="letter" if rib.spec.units == "in" else "a4")
+    write_pdf(piece.blank, folder / names["blank_pdf"], paper=rib.spec.paper)  # type: ignore[arg-type]
     preview_plot(rib, piece, folder / names["preview"])
     write_text(folder / names["report"], json.dumps(piece_json(rib, piece), indent=2))
     write_text(folder / names["sheet"], shop_sheet(rib, piece, die_notes))

@@ -193,7 +193,7 @@ def _wall_features(piece: PieceAnalysis, shared, step: _Steps, flute_tool: str, 
 def _printed(rib: RibAnalysis, piece: PieceAnalysis) -> list[str]:
     from diegen import materials
 
-    _g, shared = piece.piece, rib.spec.shared
+    shared = rib.spec.shared
     material = materials.die_material(shared.die.material)
     info = print_json(rib, piece)
     lines = [

@@ -25,6 +25,7 @@ from pathlib import Path
 from typing import Any
 
 from diegen import __version__
+from diegen.die.occ.threads import parallel_ok
 from diegen.die.occ.validate import step_file_problems, stl_problems
 from diegen.errors import SolidError
 from diegen.fileio import atomic_path
@@ -121,7 +122,7 @@ def write_stl(shape: Any, path: str | os.PathLike[str], tolerance_mm: float = ST
     BRepTools.Clean_s(shape.wrapped)  # drop any earlier mesh so the tolerances asked for are the ones used
     with atomic_path(path) as tmp:
         ok = shape.exportStl(str(tmp), tolerance=tolerance_mm, angularTolerance=math.radians(angular_tolerance_deg),
-                             ascii=False, relative=False, parallel=True)
+                             ascii=False, relative=False, parallel=parallel_ok())
         if not ok:
             raise SolidError(f"the kernel could not write the STL file {os.fspath(path)!r}")
         with open(tmp, "r+b") as stl:

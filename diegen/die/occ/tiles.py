@@ -17,6 +17,7 @@ from typing import Any
 import numpy as np
 
 from diegen.die.die_input import DieInput
+from diegen.die.occ.threads import parallel_ok
 from diegen.die.occ.validate import check_solid
 from diegen.die.tiles import (
     BED_MARGIN_MM,
@@ -98,6 +99,26 @@ def _dowel_spots(shape: Any, x: float, z: float, d: float, depth: float, wall: f
     return spots
 
 
+def _boolean(kind: str, shape: Any, tools: list[Any]) -> Any:
+    """``shape`` cut by, or in common with, ``tools`` (cadquery shapes); parallel only where that is safe."""
+    import cadquery as cq
+    from OCP.BRepAlgoAPI import BRepAlgoAPI_Common, BRepAlgoAPI_Cut
+    from OCP.TopTools import TopTools_ListOfShape
+
+    op = BRepAlgoAPI_Cut() if kind == "cut" else BRepAlgoAPI_Common()
+    args, others = TopTools_ListOfShape(), TopTools_ListOfShape()
+    args.Append(shape.wrapped)
+    for tool in tools:
+        others.Append(tool.wrapped)
+    op.SetArguments(args)
+    op.SetTools(others)
+    op.SetRunParallel(parallel_ok())
+    op.Build()
+    if not op.IsDone():
+        raise SolidError(f"the kernel's boolean {kind} did not finish")
+    return cq.Shape.cast(op.Shape())
+
+
 def tile_for_bed(shape_or_die: Any, bed_xy_mm: tuple[float, float], dowel_d_mm: float = DOWEL_D_MM,
                  dowel_depth_mm: float = DOWEL_DEPTH_MM, margin_mm: float = BED_MARGIN_MM,
                  min_wall_mm: float = MIN_WALL_MM) -> list[DieTile]:
@@ -161,7 +182,7 @@ def cut_tiles(shape: Any, layout: TileLayout) -> tuple[list[DieTile], list[tuple
             axes.append((x, y, z))
             dowels.append(cq.Solid.makeCylinder(d / 2, 2 * depth, cq.Vector(x - depth, y, z), cq.Vector(1, 0, 0)))
     try:
-        drilled = shape.cut(*dowels)
+        drilled = _boolean("cut", shape, dowels)
     except Exception as exc:
         raise SolidError(f"the kernel failed drilling the tile dowel holes ({exc}); give a smaller dowel") from exc
     check_solid(drilled, "die with tile dowel holes", "give a smaller dowel or a shorter dowel depth")
@@ -173,7 +194,7 @@ def cut_tiles(shape: Any, layout: TileLayout) -> tuple[list[DieTile], list[tuple
         cutter = cq.Solid.makeBox(x1 - x0, span.y_max_mm - span.y_min_mm + 2, span.z_max_mm - span.z_min_mm + 2,
                                   cq.Vector(x0, span.y_min_mm - 1, span.z_min_mm - 1))
         try:
-            piece = drilled.intersect(cutter)
+            piece = _boolean("common", drilled, [cutter])
         except Exception as exc:
             raise SolidError(f"the kernel failed cutting tile {k + 1} of {count} ({exc})") from exc
         solids = piece.Solids()

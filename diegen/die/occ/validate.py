@@ -13,6 +13,7 @@ from typing import Any
 
 import numpy as np
 
+from diegen.die.occ.threads import parallel_ok
 from diegen.die.settings import VOLUME_EPS
 from diegen.errors import SolidError
 
@@ -68,7 +69,7 @@ def solid_problems(shape: Any) -> list[str]:
     problems = []
     if raw is None or raw.IsNull():
         return ["the kernel returned no shape"]
-    if not BRepCheck_Analyzer(raw, True, True).IsValid():  # geometric controls on, parallel
+    if not BRepCheck_Analyzer(raw, True, parallel_ok()).IsValid():  # geometric controls on, parallel where safe
         problems.append("the kernel's shape check (BRepCheck_Analyzer) finds it invalid")
     solids = 0
     exp = TopExp_Explorer(raw, TopAbs_SOLID)
