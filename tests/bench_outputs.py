@@ -72,15 +72,14 @@ def ms(pair: tuple[float, float]) -> str:
 
 def writers(repeat: int, out: Path) -> None:
     """Per piece and writer: median wall (CPU) ms; the PNG writers' first call in this process beside them."""
-    from diegen.export.sheet import shop_sheet
-    from diegen.report import piece_json
-
     from diegen import api
     from diegen.export.dxf import write_dxf
     from diegen.export.pdf import write_pdf
     from diegen.export.plot import piece_plot, preview_plot
     from diegen.export.svg import write_svg
     from diegen.fileio import write_text
+    from diegen.reports.document import piece_json
+    from diegen.reports.sheet import shop_sheet
 
     rib = api.analyse(api.load(DEMO_RIB))
     paper = "letter" if rib.spec.units == "in" else "a4"
@@ -112,9 +111,9 @@ def writers(repeat: int, out: Path) -> None:
 def kernel_floor(repeat: int, out: Path) -> tuple[float, float]:
     """Sum over the demo rib's pieces of the floor's median wall and CPU seconds (kernel already imported)."""
     from bench_die import floor_run
-    from diegen.solid.from_piece import die_input
 
     from diegen import api
+    from diegen.die.from_analysis import die_input
 
     rib = api.analyse(api.load(DEMO_RIB))
     tolerance = rib.spec.shared.die.stl_tolerance_mm
