@@ -36,6 +36,7 @@ from diegen.die.rules import die_refusal
 from diegen.die.settings import DEFAULT_SETTINGS, BuildSettings
 from diegen.errors import DiegenError, GeometryError
 from diegen.findings import Finding
+from diegen.numbers import without_negative_zeros
 from diegen.geometry import die_wall
 
 ROOM_MARGIN_MM = 0.1  # flutes stop this short of where the wall's offsets would meet
@@ -143,7 +144,7 @@ def _fit_wall(die: DieInput, piece: Any, spec: Any, settings: BuildSettings) -> 
         return die, []
     room, where = largest_wall_inset(model)
     target = room - WALL_MARGIN_MM
-    spot = f" at ({where[0]:.1f}, {where[1]:.1f}) mm" if where else ""
+    spot = without_negative_zeros(f" at ({where[0]:.1f}, {where[1]:.1f}) mm") if where else ""
     if target <= 0.0:
         raise _Refused(
             f"die {die.part_id}: the die outline has no room for any wall{spot}: it comes to a point there; give "

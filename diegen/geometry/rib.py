@@ -91,7 +91,8 @@ def rib_geometry(spec: RibSpec, section: np.ndarray | None = None, die_inset_mm:
         die = offset_inward(oml, sheet_t, f"offsetting the outer mold line inward by the rib sheet ({sheet_t:.3f} mm)")
     upper, lower = monotone_surfaces(np.asarray(as_points(die)))
     spars = [SparCut(s.at * spec.chord_mm, s.web_mm, s.cap_thickness_mm, s.cap_width_mm) for s in spec.spars]
-    warnings: list[Finding] = [Finding("units-suspect", w.message, spec.id, w.key, w.file, w.line, w.column)
+    warnings: list[Finding] = [Finding("units-suspect", w.message, rib_id=spec.id, key=w.key, file=w.file,
+                                       line=w.line, column=w.column)
                                for w in spec.unit_warnings]
     pieces = []
     inside = tooling(shared.die.material, shared.die.cutter_diameter_mm).inside_radius_mm
