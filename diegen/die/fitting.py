@@ -36,8 +36,8 @@ from diegen.die.rules import die_refusal
 from diegen.die.settings import DEFAULT_SETTINGS, BuildSettings
 from diegen.errors import DiegenError, GeometryError
 from diegen.findings import Finding
-from diegen.numbers import without_negative_zeros
 from diegen.geometry import die_wall
+from diegen.numbers import without_negative_zeros
 
 ROOM_MARGIN_MM = 0.1  # flutes stop this short of where the wall's offsets would meet
 MIN_FLUTE_DEPTH_MM = 0.3  # a shallower flute gathers too little to be worth cutting: it is left out
