@@ -142,3 +142,21 @@ def test_real_build_of_the_demo_rib_nose(tmp_path):
     result = api.build(spec, tmp_path, jobs=1)
     assert not result.failed, result.summary()
     check_step_file(tmp_path / "T1" / "T1-nose" / "T1-nose-die.step")
+
+
+def test_two_builds_making_the_same_output_folder_at_once_both_go_on(tmp_path, monkeypatch):
+    """A parent folder made by another build between the check and the mkdir is taken as it is, not an error."""
+    import os
+
+    from diegen.pipeline import lock
+
+    real_mkdir = os.mkdir
+
+    def racing_mkdir(path, *args, **kwargs):
+        if not os.path.exists(path):
+            real_mkdir(path, *args, **kwargs)  # the other build gets there first
+        return real_mkdir(path, *args, **kwargs)
+
+    monkeypatch.setattr(lock.os, "mkdir", racing_mkdir)
+    made = lock._make_folders(tmp_path / "out" / "T1")
+    assert (tmp_path / "out" / "T1").is_dir() and made == []

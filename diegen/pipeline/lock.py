@@ -75,7 +75,12 @@ def _make_folders(folder: Path) -> list[Path]:
     made = []
     try:
         for path in reversed(missing):
-            os.mkdir(path)
+            try:
+                os.mkdir(path)
+            except FileExistsError:
+                if os.path.isdir(path) and not os.path.islink(path):
+                    continue  # another build made it meanwhile (two specs into one output folder): not ours
+                raise
             made.append(path)
     except OSError:
         for path in reversed(made):
