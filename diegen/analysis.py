@@ -25,6 +25,7 @@ from diegen.forming.strain import StrainProfile, pilot_diameter, strain_along
 from diegen.geometry import die_wall
 from diegen.geometry.rib import rib_geometry
 from diegen.geometry.types import PieceGeometry, RibGeometry
+from diegen.sources.geometry import part_geometry
 from diegen.spec.model import RibSpec
 
 # The die stands at least this much taller than the flange so the rubber can wrap it (common practice, no source).
@@ -211,8 +212,11 @@ def analyse_rib(spec: RibSpec, section: np.ndarray | None = None) -> RibAnalysis
     flange = spec.shared.flange
     springback = springback_for(spec, alloy)
     minimum = check_radius(spec, springback)
-    geometry = rib_geometry(spec, section, die_inset_mm=die_inset_mm(spec, springback),
-                            stretch_limit=alloy.stretch_limit)
+    if spec.drawn is not None:
+        geometry = part_geometry(spec)
+    else:
+        geometry = rib_geometry(spec, section, die_inset_mm=die_inset_mm(spec, springback),
+                                stretch_limit=alloy.stretch_limit)
     layout = flange_layout(flange.height_mm, flange.bend_radius_mm, t, alloy.k_factor)
     pieces = tuple(_analyse_piece(spec, piece, alloy, minimum, springback, layout) for piece in geometry.pieces)
     pieces = tuple(with_die_plan(spec, piece) for piece in pieces)

@@ -125,6 +125,8 @@ def develop_blank(piece: PieceGeometry, *, offset_mm: float, die_radius_mm: floa
         reliefs.append(Circle(x, y, relief_d))
     for cut in notch_cuts:
         blank = blank.difference(cut)
+    for cutout in piece.cutouts:
+        blank = blank.difference(Polygon(cutout))
     blank = single_polygon(blank, f"developing the blank of {piece.part_id}")
     blank = shapely.geometry.polygon.orient(blank, 1.0)
     cut_circles = list(reliefs)

@@ -80,6 +80,8 @@ class PieceGeometry:
     # The same outline without joggle recesses: contoured-flange strain is judged on it,
     # since a joggle's short S-ramp is a local offset, not a plan curve the flange shrinks or stretches over.
     plain_runs: tuple[Run, ...] = ()
+    # Inner contours of a drawn part that are not round holes: cut from the blank, nothing on the die (CW loops).
+    cutouts: tuple[Points, ...] = ()
 
     @property
     def outline(self) -> Points:

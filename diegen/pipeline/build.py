@@ -189,7 +189,7 @@ def build_spec(spec: Spec, out: Path, die_writer: DieWriter, warm_up: Callable[[
     with BuildLock(folder), confined_to(folder) as root:
         remove_stale_temporaries(folder)
         manifest = Manifest.load(folder / MANIFEST)
-        kind = "wing" if isinstance(spec, WingSpec) else "rib"
+        kind = "wing" if isinstance(spec, WingSpec) else spec.kind
         changed = (manifest.spec, manifest.kind) != (spec.id, kind)
         manifest.spec, manifest.kind = spec.id, kind
         outcomes: list[PieceOutcome] = []

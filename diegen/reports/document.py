@@ -85,7 +85,7 @@ def piece_json(rib: RibAnalysis, p: PieceAnalysis) -> dict[str, Any]:
         "id": g.part_id,
         "piece": g.name,
         "rib": rib.spec.id,
-        "airfoil": section_label(rib.spec),
+        ("airfoil" if rib.spec.drawn is None else "drawing"): section_label(rib.spec),
         "chord_mm": _r(rib.geometry.chord_mm),
         "x_range_mm": [_r(g.x_range_mm[0]), _r(g.x_range_mm[1])],
         "depth_range_mm": [_r(g.depth_range_mm[0]), _r(g.depth_range_mm[1])],

@@ -53,12 +53,18 @@ def _header(rib: RibAnalysis, piece: PieceAnalysis) -> list[str]:
     g, spec = piece.piece, rib.spec
     shared = spec.shared
     sb = piece.springback
+    if spec.drawn is None:
+        what = (f"Rib **{spec.id}**{' — ' + spec.title if spec.title else ''}, **{g.name}** piece, "
+                f"x = {g.x_range_mm[0]:.1f} … {g.x_range_mm[1]:.1f} mm from the leading edge; section "
+                f"**{section_label(spec)}** at {rib.geometry.chord_mm:.1f} mm chord. ")
+    else:
+        what = (f"Part **{spec.id}**{' — ' + spec.title if spec.title else ''}, drawn in **{section_label(spec)}**, "
+                f"{rib.geometry.chord_mm:.1f} mm long (x = {g.x_range_mm[0]:.1f} … {g.x_range_mm[1]:.1f} mm on the "
+                "die). ")
     return [
         f"# Shop sheet — {g.part_id}",
         "",
-        f"Rib **{spec.id}**{' — ' + spec.title if spec.title else ''}, **{g.name}** piece, "
-        f"x = {g.x_range_mm[0]:.1f} … {g.x_range_mm[1]:.1f} mm from the leading edge; section "
-        f"**{section_label(spec)}** at {rib.geometry.chord_mm:.1f} mm chord. "
+        what +
         f"Sheet **{piece.alloy.name} {_both(shared.sheet.thickness_mm)}**; flange {_both(shared.flange.height_mm)} "
         f"at inside radius {_both(sb.part_radius_mm)}.",
         "",

@@ -22,9 +22,10 @@ def die_life_text(material: str) -> str:
 
 def piece_text(rib: RibAnalysis, p: PieceAnalysis) -> str:
     g, u, d = p.piece, rib.spec.units, piece_json(rib, p)
+    whole = (f"{rib.geometry.chord_mm:.1f} mm chord" if rib.spec.drawn is None
+             else f"the drawing's {rib.geometry.chord_mm:.1f} mm")
     lines = [
-        f"== {g.part_id} ({g.name} piece)  x {g.x_range_mm[0]:.1f}–{g.x_range_mm[1]:.1f} mm of "
-        f"{rib.geometry.chord_mm:.1f} mm chord",
+        f"== {g.part_id} ({g.name} piece)  x {g.x_range_mm[0]:.1f}–{g.x_range_mm[1]:.1f} mm of {whole}",
         f"  die outline   length {_len(g.length_mm, u)}, area {g.area_mm2:.0f} mm², depth {g.depth_range_mm[0]:.1f}–"
         f"{g.depth_range_mm[1]:.1f} mm, height {_len(p.die_height_mm, u)} ({p.die_layers} layer(s) of stock)",
         *([f"  DIE REFUSED   {p.die.refusal}"] if p.die is not None and p.die.refusal else []),
@@ -97,8 +98,9 @@ def footer_text() -> str:
 def rib_text(rib: RibAnalysis, footer: bool = True, shown: set[tuple] | None = None) -> str:
     """The report of one rib; ``shown`` collects the findings about the spec file already printed (a wing's
     ribs share them), so each is printed once."""
-    head = [f"diegen {__version__} — rib {rib.spec.id}" + (f": {rib.spec.title}" if rib.spec.title else ""),
-            f"  {rib.spec.section_label}, chord {_len(rib.spec.chord_mm, rib.spec.units)}, "
+    size = "chord" if rib.spec.drawn is None else "length"
+    head = [f"diegen {__version__} — {rib.spec.kind} {rib.spec.id}" + (f": {rib.spec.title}" if rib.spec.title else ""),
+            f"  {rib.spec.section_label}, {size} {_len(rib.spec.chord_mm, rib.spec.units)}, "
             f"{rib.spec.shared.sheet.alloy} {_len(rib.spec.shared.sheet.thickness_mm, rib.spec.units)}"]
     shown = set() if shown is None else shown
     for w in rib.geometry.warnings:

@@ -10,11 +10,13 @@ from diegen.errors import Problem, SpecError
 from diegen.spec.model import RibSpec, Spec, SpecPositions, WingSpec
 from diegen.spec.plausible import unit_warnings
 from diegen.spec.reader import Reader
-from diegen.spec.schema import read_rib, read_wing
+from diegen.spec.schema import read_part, read_rib, read_wing
 from diegen.spec.yamltree import YNode, load_file, load_text
 from diegen.units import SPEC_UNITS
 
-__all__ = ["RibSpec", "Spec", "SpecError", "WingSpec", "load_spec", "parse_spec"]
+SPEC_KINDS = ("rib", "wing", "part")
+
+__all__ = ["SPEC_KINDS", "RibSpec", "Spec", "SpecError", "WingSpec", "load_spec", "parse_spec"]
 
 
 def _validate(tree: YNode, file: str, spec_dir: Path) -> Spec:
@@ -23,15 +25,15 @@ def _validate(tree: YNode, file: str, spec_dir: Path) -> Spec:
     root = tree.value
     pre = Reader(file)
     units_name = pre.choice(root.get("units"), "units", SPEC_UNITS) if "units" in root else None
-    kind = pre.choice(root.get("kind"), "kind", ("rib", "wing")) if "kind" in root else None
-    for key, choices in (("units", "in or mm"), ("kind", "rib or wing")):
+    kind = pre.choice(root.get("kind"), "kind", SPEC_KINDS) if "kind" in root else None
+    for key, choices in (("units", "in or mm"), ("kind", "rib, wing or part")):
         if key not in root:
             pre.problem(tree, key, f"missing required key {key!r} ({choices})")
     if pre.problems and kind is None:
         raise SpecError(pre.problems)
     reader = Reader(file, units_name or "mm")
     reader.problems.extend(pre.problems)
-    spec = read_rib(reader, root, spec_dir) if kind == "rib" else read_wing(reader, root, spec_dir)
+    spec = {"rib": read_rib, "wing": read_wing, "part": read_part}[kind](reader, root, spec_dir)
     if reader.problems:
         raise SpecError(sorted(reader.problems, key=lambda p: (p.line or 0, p.column or 0)))
     return replace(spec, positions=SpecPositions(file, tuple(_key_positions(tree, ""))),

@@ -9,7 +9,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 from pathlib import PurePath
-from typing import Literal
+from typing import Any, Literal
 
 from diegen.errors import Problem
 
@@ -19,6 +19,7 @@ __all__ = [
     "RIB_ORIENTATIONS",
     "AirfoilSource",
     "Die",
+    "DrawnOutline",
     "Flange",
     "HoleRules",
     "HoleSpec",
@@ -203,7 +204,23 @@ class SpecPositions:
 
 
 @dataclass(frozen=True)
+class DrawnOutline:
+    """A ``kind: part`` spec's outline as read from its drawing, and how its holes and pins are made.
+
+    ``part`` holds the outline (mm), the flange runs laid on it, the inner contours and the drawn pin spots;
+    ``label`` names the drawing in reports (``frame-4.dxf, layer OUTLINE, mold line``).
+    """
+
+    part: Any  # a diegen.sources.model.DrawnPart (not imported: the drawing readers sit above the spec's model)
+    flanged_holes: bool  # round holes get a flange of hole_rules.flange_height
+    label: str
+
+
+@dataclass(frozen=True)
 class RibSpec:
+    """One part made in one pressing: a rib at one chord (its outline from an airfoil, cut into pieces at the
+    spars), or, with ``drawn`` set (``kind: part``), a part whose outline comes from a drawing (one piece)."""
+
     id: str
     units: str
     airfoil: AirfoilSource
@@ -218,6 +235,12 @@ class RibSpec:
     # empty: the airfoil's own label
     section: str = ""
     paper: str = "a4"  # paper size of the PDFs: "a4" or "letter"
+    drawn: DrawnOutline | None = None  # kind: part
+
+    @property
+    def kind(self) -> str:
+        """``rib`` or ``part``, as the spec's ``kind`` says."""
+        return "rib" if self.drawn is None else "part"
 
     @property
     def section_label(self) -> str:

@@ -63,6 +63,7 @@ __all__ = [
     "read_hole_rules",
     "read_holes",
     "read_overrides",
+    "read_part",
     "read_pieces",
     "read_pins",
     "read_press",
@@ -407,9 +408,10 @@ def read_press(r: Reader, node: YNode | None, path: str, base: Press | None = No
                  _or(clearance, base.wall_clearance_mm if base else by_units(r.units, *WALL_CLEARANCE)), read)
 
 
-def read_shared(r: Reader, root: dict[str, YNode], base: Shared | None = None) -> Shared:
+def read_shared(r: Reader, root: dict[str, YNode], base: Shared | None = None,
+                required: tuple[str, ...] = ("skin_thickness", "sheet", "flange", "die", "press")) -> Shared:
     """The sections shared by rib and wing specs (with ``base``: only the keys present change)."""
-    for key in ("skin_thickness", "sheet", "flange", "die", "press"):
+    for key in required:
         if base is None and key not in root:
             r.problem(None, key, f"missing required key {key!r}")
     skin = r.length(root.get("skin_thickness"), "skin_thickness", high=in_to_mm(0.5))
@@ -463,6 +465,13 @@ def read_rib(r: Reader, root: dict[str, YNode], spec_dir: Path) -> RibSpec:
     check_pieces(r, root, shared.pieces, len(spars or ()))
     return RibSpec(ident, r.units, airfoil, chord, spars, shared, r.file, title,  # type: ignore[arg-type]
                    paper=read_paper(r, root))
+
+
+def read_part(r: Reader, root: dict[str, YNode], spec_dir: Path) -> RibSpec:
+    """A ``kind: part`` spec (see :mod:`diegen.spec.part`) with this schema's header and shared sections."""
+    from diegen.spec.part import read_part as read_drawn_part
+
+    return read_drawn_part(r, root, spec_dir, read_header, read_paper, read_shared)
 
 
 def read_stations(r: Reader, node: YNode | None, path: str) -> Stations | None:

@@ -1,0 +1,43 @@
+"""A ``kind: part`` spec's geometry in the form the rest of the pipeline reads: a one-piece rib geometry.
+
+From here on a drawn part and a rib are the same thing to the forming analysis, the blank, the die model, the
+kernel, the writers and the build: a :class:`~diegen.geometry.types.RibGeometry` whose pieces are die outlines
+with flange runs, holes and pins.
+"""
+
+from __future__ import annotations
+
+from dataclasses import replace
+
+from diegen.errors import keyed
+from diegen.findings import Finding
+from diegen.geometry.types import RibGeometry
+from diegen.sources.part import drawn_piece
+from diegen.spec.model import RibSpec
+
+__all__ = ["part_geometry"]
+
+
+def part_geometry(spec: RibSpec) -> RibGeometry:
+    """The die outline, flange runs, holes, cut-outs and pins of the part ``spec`` draws (mm), as one piece."""
+    drawn, shared = spec.drawn, spec.shared
+    assert drawn is not None, "part_geometry takes a kind: part spec"
+    rules = shared.holes.rules
+    with keyed("outline"):
+        piece = drawn_piece(drawn.part, part_id=spec.id, sheet_thickness_mm=shared.sheet.thickness_mm,
+                            pin_diameter_mm=shared.pins.diameter_mm,
+                            hole_flange_height_mm=rules.flange_height_mm if drawn.flanged_holes else None,
+                            edge_margin_mm=rules.edge_margin_mm)
+    warnings = [Finding("units-suspect", w.message, rib_id=spec.id, key=w.key, file=w.file, line=w.line,
+                        column=w.column) for w in spec.unit_warnings]
+    if piece.mirrored:
+        warnings.append(Finding(
+            "part-mirrored", "every flange bends up in the drawing: the die, the blank and their drawings are the "
+            "drawing's mirror image (seen from the other face), so the flanges fold down over the die", key="flanges"))
+    if drawn.flanged_holes and piece.cutouts:
+        warnings.append(Finding(
+            "cutout-not-flanged", f"{len(piece.cutouts)} inner contour(s) are not round: they are cut plain (the "
+            "hole-flange model is for round holes)", key="holes"))
+    geometry = replace(piece.geometry, cutouts=piece.cutouts)
+    mold = drawn.part.outline.points
+    return RibGeometry(spec.id, spec.chord_mm, mold, mold, geometry.outline, (geometry,), tuple(warnings))
