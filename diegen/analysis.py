@@ -182,7 +182,7 @@ def check_radius(spec: RibSpec, springback: Springback) -> materials.MinRadius:
     if springback.die_radius_mm < minimum.radius_mm - 1e-9:
         wanted = _part_radius_for_die(spec, minimum.radius_mm)
         raise FormingError(
-            f"rib {spec.id}: the die bends the metal to {springback.die_radius_mm:.3f} mm "
+            f"{spec.kind} {spec.id}: the die bends the metal to {springback.die_radius_mm:.3f} mm "
             f"(to spring back to the part's {flange.bend_radius_mm:.3f} mm), below the {minimum.radius_mm:.3f} mm "
             f"minimum for {sheet.thickness_mm:.3f} mm {sheet.alloy} ({minimum.table} table: {minimum.citation}); "
             f"use a part radius of at least {wanted:.3f} mm, or a softer temper", key="flange.bend_radius"

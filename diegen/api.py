@@ -84,7 +84,7 @@ def write_plots(analysis: Analysis, out_dir: str | Path) -> list[Path]:
     return paths
 
 
-STARTER_KINDS = ("rib", "wing")
+STARTER_KINDS = ("rib", "wing", "part")
 STARTER_UNITS = ("in", "mm")
 
 

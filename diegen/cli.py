@@ -61,7 +61,7 @@ def _parser() -> argparse.ArgumentParser:
     diff.add_argument("new", type=Path)
 
     new = sub.add_parser("new", help="write a commented starter spec")
-    new.add_argument("kind", choices=("rib", "wing"))
+    new.add_argument("kind", choices=("rib", "wing", "part"))
     new.add_argument("path", type=Path)
     new.add_argument("--units", choices=("in", "mm"), default="in",
                      help="the unit of the starter's bare numbers (default: in)")

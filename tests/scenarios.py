@@ -214,7 +214,89 @@ def scenarios() -> list[Scenario]:
         die=_die("pla", 8.0, 0, None, 6.0, False), force="10 ton", box_mm=(300.0, 250.0)))
     out.append(TAIL_PRINTED)
     out.append(TAIL_ROUTED)
-    return out
+    return out + parts()
+
+
+def part(name: str, *, inch: bool, outline: str, alloy: str, t_mm: float, flange_mm: float, radius_factor: float,
+         relief: str, die: str, force: str, box_mm: tuple[float, float], flanges: str = "all", holes: str = "plain",
+         durometer: int = 55) -> Scenario:
+    """A drawn part (``kind: part``) whose outline is given in the spec (points or an SVG path)."""
+    scale = 25.4 if inch else 1.0
+    radius = bend_radius_mm(alloy, t_mm, radius_factor)
+    text = (f"diegen: 1\nkind: part\nid: {name}\nunits: {'in' if inch else 'mm'}\n"
+            f"title: corpus scenario {name} (invented)\n"
+            f"outline: {outline}\nflanges: {flanges}\nholes: {holes}\npins: auto\n"
+            f"sheet: {{alloy: {alloy}, thickness: {t_mm / scale:.4g}}}\n"
+            f"flange: {{height: {flange_mm / scale:.4g}, bend_radius: \"{radius:.1f} mm\"}}\n"
+            f"relief: {relief}\ndie: {die}\n"
+            f"press: {{force: {force}, box: [{box_mm[0] / scale:.4g}, {box_mm[1] / scale:.4g}], "
+            f"rubber: {{durometer: {durometer}, thickness: {50 / scale:.4g}}}}}\n")
+    return Scenario(name, text)
+
+
+QUARTER = 0.41421356  # bulge of a quarter circle, tan(90°/4)
+
+
+def _rounded_rectangle(w: float, h: float, r: float) -> str:
+    """Points with bulges of a w × h rectangle whose corners are rounded to r (counter-clockwise)."""
+    pts = [(r, 0, 0), (w - r, 0, QUARTER), (w, r, 0), (w, h - r, QUARTER), (w - r, h, 0), (r, h, QUARTER),
+           (0, h - r, 0), (0, r, QUARTER)]
+    return "[" + ", ".join(f"[{x:g}, {y:g}" + (f", {b}]" if b else "]") for x, y, b in pts) + "]"
+
+
+def _circle_path(cx: float, cy: float, r: float) -> str:
+    return f"M {cx - r:g} {cy:g} A {r:g} {r:g} 0 1 0 {cx + r:g} {cy:g} A {r:g} {r:g} 0 1 0 {cx - r:g} {cy:g} Z"
+
+
+def parts() -> list[Scenario]:
+    """Drawn parts: bulkheads, formers, gussets, brackets and nose ribs, in points and SVG paths, every way of
+    making the die, convex and concave flanges, flanged holes, cut-outs, partial flanges and mirrored parts."""
+    routed = lambda material, flange, cutter, inch=False: _die(material, flange, 0, None, cutter, inch)  # noqa: E731
+    return [
+        part("P01", inch=False, outline=f"{{points: {_rounded_rectangle(220, 180, 30)}, is: mold-line}}",
+             alloy="2024-T3", t_mm=0.8, flange_mm=12.0, radius_factor=1.2, relief="flutes",
+             die=routed("solid-surface", 12.0, 6.0), force="20 ton", box_mm=(300.0, 250.0)),
+        part("P02", inch=False, outline="{svg: \"" + _circle_path(0, 0, 100) + " " + _circle_path(-45, 0, 25) + " "
+             + _circle_path(45, 0, 25) + "\", units: mm, is: mold-line}", holes="flanged",
+             alloy="6061-T6", t_mm=1.0, flange_mm=10.0, radius_factor=1.0, relief="flutes",
+             die=routed("fibreboard", 10.0, 6.0), force="20 t", box_mm=(300.0, 250.0)),
+        part("P03", inch=True, outline="{points: [[0, 0], [6, 0], [6, 0.75], [0.75, 4], [0, 4]], is: mold-line}",
+             flanges="[{from: [6, 0.75], to: [0.75, 4], direction: up}]", alloy="5052-H32", t_mm=0.813,
+             flange_mm=12.7, radius_factor=1.5, relief="flutes", die=routed("hdpe", 12.7, 6.35, True),
+             force="25 ton", box_mm=(609.6, 304.8)),
+        part("P04", inch=False, outline="{points: [[0, 0], [180, 0], [180, 60], [160, 60, -0.19891], [60, 160], "
+             "[60, 180], [0, 180]], is: mold-line}", alloy="3003-H14", t_mm=0.5, flange_mm=8.0, radius_factor=1.0,
+             relief="flutes", die=_die("pla", 8.0, 0, (220, 220), 6.0, False), force="20 ton",
+             box_mm=(300.0, 250.0)),
+        part("P05", inch=False, outline="{points: [[120, -40], [120, 40], [40, 40, 1], [40, -40]], is: mold-line}",
+             flanges="[{from: [120, 40], to: [120, -40]}]", alloy="2024-O", t_mm=0.5, flange_mm=8.0,
+             radius_factor=1.0, relief="notches", die=_die("petg", 8.0, 0, None, 6.0, False), force="20 ton",
+             box_mm=(300.0, 250.0)),
+        part("P06", inch=False, outline=f"{{points: {_rounded_rectangle(260, 160, 50)}, is: die}}",
+             alloy="6061-T6", t_mm=1.6, flange_mm=16.0, radius_factor=1.5, relief="flutes",
+             die=routed("aluminium", 16.0, 12.7), force="50 ton", box_mm=(600.0, 400.0)),
+        part("P07", inch=False, outline="{points: [[80, -22], [80, 22], [22, 22, 1], [22, -22]], is: mold-line}",
+             alloy="3003-O", t_mm=0.4, flange_mm=6.0, radius_factor=2.0, relief="none",
+             die=_die("pla", 6.0, 0, None, 6.0, False), force="10 ton", box_mm=(300.0, 250.0)),
+        part("P08", inch=True, outline="{points: [[3, 0], [1.5, 2.598], [-1.5, 2.598], [-3, 0], [-1.5, -2.598], "
+             "[1.5, -2.598]], is: mold-line}", alloy="5052-O", t_mm=0.635, flange_mm=9.525, radius_factor=1.0,
+             relief="flutes", die=routed("fibreboard", 9.525, 6.35, True), force="20 ton", box_mm=(609.6, 304.8)),
+        part("P09", inch=False, outline="{svg: \"M 0 0 L 240 0 L 240 120 C 240 200 180 230 120 230 "
+             "C 60 230 0 200 0 120 Z\", units: mm, is: die}", alloy="2024-T3", t_mm=0.635, flange_mm=10.0,
+             radius_factor=1.2, relief="flutes", die=routed("hdpe", 10.0, 6.0), force="30 tonne",
+             box_mm=(400.0, 350.0)),
+        part("P10", inch=False, outline=f"{{points: {_rounded_rectangle(380, 260, 60)}, is: mold-line}}",
+             alloy="6061-T4", t_mm=0.8, flange_mm=12.0, radius_factor=1.0, relief="flutes",
+             die=_die("petg", 12.0, 0, (250, 210), 6.0, False), force="40 tonne", box_mm=(600.0, 400.0)),
+        part("P11", inch=True, outline="{points: [[0, 0], [8, 0], [8, 3], [0, 3]], is: mold-line}",
+             flanges="[{from: [0, 0], to: [8, 0]}, {from: [8, 3], to: [0, 3]}]", alloy="2024-T3", t_mm=0.635,
+             flange_mm=12.7, radius_factor=1.2, relief="flutes", die=routed("solid-surface", 12.7, 6.35, True),
+             force="20 ton", box_mm=(609.6, 304.8)),
+        part("P12", inch=False, outline="{svg: \"" + _circle_path(0, 0, 110) + " M -40 -20 L 40 -20 L 40 20 "
+             "L -40 20 Z\", units: mm, is: mold-line}", alloy="5052-H32", t_mm=0.8, flange_mm=10.0,
+             radius_factor=2.0, relief="flutes", die=routed("fibreboard", 10.0, 6.0), force="20 ton",
+             box_mm=(400.0, 300.0)),
+    ]
 
 
 def _tail(name: str, die: str) -> Scenario:

@@ -1,4 +1,4 @@
-"""``check`` predicts ``build``: over a corpus of realistic specs, piece by piece.
+"""``check`` predicts ``build``: over a corpus of realistic specs (ribs, wings and drawn parts), piece by piece.
 
 Every spec of ``tests/scenarios.py`` (invented ribs and wings: see its docstring for what they cover) is checked
 (``api.analyse``: no kernel) and built (``api.build``: the solid kernel, two worker processes, the default STL
@@ -164,3 +164,11 @@ def test_the_corpus_covers_what_it_says(tmp_path: Path) -> None:
     assert any(w.sweep_deg for w in wings) and any(w.overrides for w in wings)
     assert any(w.root_chord_mm != w.tip_chord_mm for w in wings)
     assert any(sp.root_at != sp.tip_at for w in wings for sp in w.spars)
+    # drawn parts: points and SVG outlines, mold line and die, partial and mirrored flanges, flanged holes, cut-outs
+    drawn = [s.drawn for s in specs if getattr(s, "drawn", None) is not None]
+    assert len(drawn) >= 10
+    assert {d.part.outline_is for d in drawn} == {"mold-line", "die"}
+    assert any(d.flanged_holes and d.part.holes for d in drawn)
+    assert any(h.circle is None for d in drawn for h in d.part.holes)  # a cut-out
+    assert any(r.flange.direction == "up" for d in drawn for r in d.part.runs)
+    assert any(len(d.part.runs) > 1 for d in drawn)

@@ -38,6 +38,7 @@ def part_geometry(spec: RibSpec) -> RibGeometry:
         warnings.append(Finding(
             "cutout-not-flanged", f"{len(piece.cutouts)} inner contour(s) are not round: they are cut plain (the "
             "hole-flange model is for round holes)", key="holes"))
+    warnings = [w.about(spec.id, spec.positions, rib_id=spec.id) for w in warnings]
     geometry = replace(piece.geometry, cutouts=piece.cutouts)
     mold = drawn.part.outline.points
     return RibGeometry(spec.id, spec.chord_mm, mold, mold, geometry.outline, (geometry,), tuple(warnings))

@@ -112,7 +112,8 @@ def _drawn(r: Reader, root: dict[str, YNode], spec_dir: Path, shared: Shared, fl
     try:
         drawing, label = _read_drawing(r, source, fields, spec_dir, join_tol, layers, run_nodes, pin_layer)
     except DrawingError as error:
-        r.problem(fields[source], join("outline", source), str(error))
+        key = join("outline", source)
+        r.problem(fields[source], key, str(error).removeprefix(f"{key}: "))
         return None
     if drawing is None:
         return None
@@ -147,7 +148,7 @@ def _read_drawing(r: Reader, source: str, fields: dict[str, YNode], spec_dir: Pa
         if unit is None:
             return None, ""
         try:
-            drawing = read_points(fields["points"].plain(), DRAWING_UNITS[unit], unit, "outline.points", r.file)
+            drawing = read_points(fields["points"].plain(), DRAWING_UNITS[unit], unit, "outline.points")
         except SpecError as error:
             points = fields["points"]
             for problem in error.problems:
@@ -164,7 +165,7 @@ def _read_drawing(r: Reader, source: str, fields: dict[str, YNode], spec_dir: Pa
         text = r.text(fields["svg"], "outline.svg")
         if unit is None or text is None:
             return None, ""
-        return read_svg_path(text, unit, name=f"{Path(r.file).name}: outline.svg", join_tol_mm=join_tol), "SVG path"
+        return read_svg_path(text, unit, name="outline.svg", join_tol_mm=join_tol), "SVG path"
     path = _drawing_file(r, fields["file"], spec_dir)
     unit = r.choice(units_node, "outline.units", tuple(DRAWING_UNITS)) if units_node else None
     if path is None or (units_node is not None and unit is None):
@@ -235,6 +236,7 @@ def _runs(r: Reader, run_nodes: list[YNode], flange, drawing: Drawing) -> list[F
     if not run_nodes:
         return [FlangeRunSpec(AllEdges(), shape, "flanges")]
     scale = drawing.place.mm_per_unit
+    flip = -1.0 if drawing.place.y_down else 1.0  # an SVG's y points down; the part is read with y up
     runs = []
     for i, item in enumerate(run_nodes):
         path, fields = join("flanges", i), item.value
@@ -243,14 +245,14 @@ def _runs(r: Reader, run_nodes: list[YNode], flange, drawing: Drawing) -> list[F
         if "layer" in fields:
             runs.append(FlangeRunSpec(OnLayer(str(fields["layer"].value)), run_shape, path))
             continue
-        ends = [_point(r, fields[k], join(path, k), scale) for k in ("from", "to")]
+        ends = [_point(r, fields[k], join(path, k), scale, flip) for k in ("from", "to")]
         if None in ends:
             continue
         runs.append(FlangeRunSpec(Between(ends[0], ends[1]), run_shape, path))  # type: ignore[arg-type]
     return None if len(runs) < len(run_nodes) else runs
 
 
-def _point(r: Reader, node: YNode, path: str, scale: float) -> tuple[float, float] | None:
+def _point(r: Reader, node: YNode, path: str, scale: float, flip: float) -> tuple[float, float] | None:
     items = r.sequence(node, path, 2, 2)
     if items is None:
         return None
@@ -259,4 +261,4 @@ def _point(r: Reader, node: YNode, path: str, scale: float) -> tuple[float, floa
         r.problem(node, path, f"expected a point [x, y] of two finite numbers in the drawing's unit, found "
                               f"{node.plain()!r}")
         return None
-    return float(values[0]) * scale, float(values[1]) * scale
+    return float(values[0]) * scale, float(values[1]) * scale * flip

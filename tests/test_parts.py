@@ -1,0 +1,288 @@
+"""Drawn parts (``kind: part``) through the whole pipeline: spec, analysis, blank, die, build.
+
+Checks against outside sources:
+
+* the die outline of a drawn mold line against shapely's (GEOS) inward buffer of the mold line, the drawn mold line
+  itself flattened by ezdxf's own path tools (``ezdxf.path.make_path(...).flattening``), not by our reader;
+* the blank against Steiner's formula for the area of an outer parallel body of a convex figure,
+  A(d) = A + P·d + π·d², with the flange's developed width from FAA-H-8083-31 ch. 4 (BA = θ(R + kT), SB = R + T);
+* the contoured-flange strain at each corner of a rounded rectangle with concave corners against the closed forms
+  e = w/(ρ + w) (shrink on a convex plan radius ρ) and e = w/(ρ − w) (stretch on a concave one), derived from the
+  plan geometry of a flange of width w (the edge circle goes from ρ + w to ρ, or from ρ − w to ρ);
+* STEP read back and checked by the kernel's own analyser, the STL by trimesh (watertight), the DXF by ezdxf's
+  auditor.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+from pathlib import Path
+
+import ezdxf
+import numpy as np
+import pytest
+from ezdxf.path import make_path
+from shapely.geometry import Polygon
+from testing import SPECS, assert_valid_ccw_outline, loop_distance
+
+from diegen import api
+from diegen.cli import main
+from diegen.errors import SpecError
+from diegen.spec import parse_spec
+
+DEMO_PARTS = [SPECS / "demo-former.yaml", SPECS / "demo-nose-rib.yaml", SPECS / "demo-gusset.yaml"]
+QUARTER = math.tan(math.radians(90.0) / 4.0)  # DXF bulge of a quarter circle, tan(θ/4)
+
+SHARED = """diegen: 1
+kind: part
+id: X1
+units: mm
+sheet: {alloy: 2024-T3, thickness: 0.8}
+flange: {height: 12, bend_radius: 3}
+die: {material: solid-surface, stock_thickness: 19, cutter_diameter: 6}
+press: {force: 20 ton, box: [400, 300], rubber: {durometer: 55, thickness: 60}}
+"""
+
+
+def _parse(text: str, spec_dir: Path = SPECS):
+    return parse_spec(text, "part.yaml", spec_dir)
+
+
+def part_spec(outline: str, more: str = ""):
+    return _parse(SHARED + f"outline: {outline}\n" + more)
+
+
+def only_piece(spec):
+    analysis = api.analyse(spec)
+    (piece,) = analysis.pieces
+    return analysis, piece
+
+
+# -- the demo parts ------------------------------------------------------------------------------------------------
+
+
+@pytest.mark.parametrize("path", DEMO_PARTS, ids=lambda p: p.stem)
+def test_the_demo_parts_read_analyse_and_pass_check(path: Path, capsys) -> None:
+    spec = api.load(path)
+    assert spec.kind == "part" and spec.drawn is not None
+    _, piece = only_piece(spec)
+    assert piece.die is not None and piece.die.refusal is None
+    assert_valid_ccw_outline(piece.piece.outline, f"{path.stem} die outline")
+    assert main(["check", str(path)]) == 0
+    assert f"part {spec.id}" in capsys.readouterr().out
+
+
+def test_demo_former_die_is_the_dxf_mold_line_offset_inward_by_the_sheet() -> None:
+    """Issue check: the die outline equals shapely's inward buffer of the drawn mold line by the sheet, within
+    0.05 mm; the mold line here is flattened by ezdxf itself from the drawing's LWPOLYLINE (bulges)."""
+    spec = api.load(SPECS / "demo-former.yaml")
+    doc = ezdxf.readfile(SPECS / "drawings" / "bw418-former-f5.dxf")
+    (outline,) = doc.modelspace().query('LWPOLYLINE[layer=="OUTLINE"]')
+    mold = [(v.x, v.y) for v in make_path(outline).flattening(0.001)]
+    expected = Polygon(mold).buffer(-spec.shared.sheet.thickness_mm, quad_segs=256)
+    _, piece = only_piece(spec)
+    assert loop_distance(piece.piece.outline, list(expected.exterior.coords)[:-1], step_mm=0.5) <= 0.05
+    assert Polygon(piece.piece.outline).area == pytest.approx(expected.area, rel=2e-4)
+    # the flanged hole: Ø100 drawn, so the die bore is d + 2t and the pilot smaller than the hole (it flanges out)
+    (hole,) = piece.holes
+    assert hole.d_mm == pytest.approx(100.0) and hole.bore_d_mm == pytest.approx(100.0 + 2 * 0.8)
+    assert hole.pilot_d_mm < hole.d_mm
+    assert [(p.x, p.y) for p in piece.piece.pins] == [(-45.0, 40.0), (45.0, 40.0)]  # as drawn on layer PINS
+
+
+def test_an_outline_given_as_the_die_is_taken_as_it_is() -> None:
+    spec = part_spec("{points: [[0, 0], [200, 0], [200, 120], [0, 120]], is: die}")
+    _, piece = only_piece(spec)
+    assert Polygon(piece.piece.outline).area == pytest.approx(200 * 120, rel=1e-12)
+    assert len(piece.piece.relief_points) == 4  # four flanged corners, each relieved in the blank
+
+
+# -- strain and blank against closed forms ---------------------------------------------------------------------
+
+
+def rounded_with_concave_corners(width: float = 300.0, height: float = 200.0, convex: float = 40.0,
+                                 concave: float = 60.0) -> str:
+    """Points with bulges: bottom corners rounded convex to ``convex``, top corners cut concave by quarter circles
+    of radius ``concave`` centred on the rectangle's corners (counter-clockwise)."""
+    w, h, a, c = width, height, convex, concave
+    pts = [(a, 0, 0.0), (w - a, 0, QUARTER), (w, a, 0.0), (w, h - c, -QUARTER), (w - c, h, 0.0), (c, h, -QUARTER),
+           (0, h - c, 0.0), (0, a, QUARTER)]
+    return "[" + ", ".join(f"[{x:g}, {y:g}, {b:.12f}]" for x, y, b in pts) + "]"
+
+
+def test_strain_at_each_corner_of_a_rounded_rectangle_with_concave_corners_matches_the_closed_forms() -> None:
+    """Issue check: mid-way round each convex corner the shrink is w/(ρ + w), ρ = 40 − t (the die is the mold
+    line less the sheet); mid-way round each concave corner the stretch is w/(ρ − w), ρ = 60 + t; w is the
+    flange's developed width (FAA-H-8083-31 ch. 4, recomputed here)."""
+    t, height, radius = 0.8, 12.0, 3.0
+    spec = part_spec(f"{{points: {rounded_with_concave_corners()}, is: mold-line}}")
+    _, piece = only_piece(spec)
+    k = piece.layout.k_factor
+    w = (math.pi / 2) * (radius + k * t) + (height - (radius + t))  # BA + (H − SB)
+    assert piece.layout.developed_width_mm == pytest.approx(w, rel=1e-9)
+    samples = []  # (x, y, strain) of every strain sample along the flanged runs
+    for run in piece.runs:
+        pts = np.asarray(piece.piece.plain_runs[run.run_index].points)
+        along = np.r_[0.0, np.cumsum(np.hypot(*np.diff(pts, axis=0).T))]
+        s = np.asarray(run.profile.s_mm)
+        samples += zip(np.interp(s, along, pts[:, 0]), np.interp(s, along, pts[:, 1]), run.profile.strain)
+    samples = np.asarray(samples)
+
+    def strain_at(x: float, y: float) -> float:
+        return float(samples[np.argmin(np.hypot(samples[:, 0] - x, samples[:, 1] - y)), 2])
+
+    half = math.sqrt(0.5)
+    for cx in (40.0, 260.0):  # convex corners: centre (cx, 40), die radius 40 − t, shrink (negative) w/(ρ + w)
+        rho = 40.0 - t
+        x = cx + (rho * half if cx > 150 else -rho * half)
+        assert -strain_at(x, 40.0 - rho * half) == pytest.approx(w / (rho + w), rel=0.01)
+    for cx in (0.0, 300.0):  # concave corners: centre (cx, 200), die radius 60 + t, stretch (positive) w/(ρ − w)
+        rho = 60.0 + t
+        x = cx + (rho * half if cx < 150 else -rho * half)
+        assert strain_at(x, 200.0 - rho * half) == pytest.approx(w / (rho - w), rel=0.01)
+    # concave corners stretch the flange past the 2024-T3 limit: the verdict says so, never "formable"
+    assert piece.flange.verdict == "not-formable"
+    assert any(f.code == "stretch-over-limit" for f in piece.warnings)
+
+
+def test_the_blank_of_a_convex_part_is_the_die_offset_by_the_developed_flange() -> None:
+    """Steiner's formula for an outer parallel body of a convex figure, A + P·d + π·d², with d the developed flange
+    width less the die radius's tangent inset R_die·tan(θ_die/2) (the die's top edge to the web's bend line)."""
+    spec = part_spec("{points: [[30, 0], [270, 0, %.12f], [300, 30], [300, 170, %.12f], [270, 200], [30, 200, %.12f],"
+                     " [0, 170], [0, 30, %.12f]], is: mold-line}" % ((QUARTER,) * 4))
+    _, piece = only_piece(spec)
+    sb = piece.springback
+    d = piece.layout.developed_width_mm - sb.die_radius_mm * math.tan(math.radians(sb.die_angle_deg) / 2)
+    die = Polygon(piece.piece.outline)
+    steiner = die.area + die.length * d + math.pi * d**2
+    blank = Polygon(piece.blank.outer, piece.blank.inner)
+    assert blank.area == pytest.approx(steiner, rel=2e-4)
+    assert piece.piece.relief_points == ()  # one smooth flanged run: no corner to relieve
+
+
+def test_cut_edges_stop_the_blank_and_a_non_round_cutout_is_cut_from_it() -> None:
+    """An SVG rectangle (y down, so its top edge is y = 0) with a flange on the top edge only (from its right end
+    counter-clockwise to its left end, as seen on screen) and a rectangular cut-out."""
+    svg = ("M 0 0 L 240 0 L 240 160 L 0 160 Z M 80 50 L 160 50 L 160 110 L 80 110 Z")
+    spec = part_spec(f"{{svg: \"{svg}\", units: mm, is: die}}", "flanges: [{from: [240, 0], to: [0, 0]}]\n")
+    _, piece = only_piece(spec)
+    xs, ys = zip(*piece.blank.outer)
+    assert (min(xs), max(xs), min(ys)) == pytest.approx((0.0, 240.0, -160.0), abs=1e-6)  # cut edges flush
+    d = piece.layout.developed_width_mm - piece.springback.die_radius_mm * math.tan(
+        math.radians(piece.springback.die_angle_deg) / 2)
+    assert max(ys) == pytest.approx(d, abs=1e-6)  # the one flanged edge, developed outward
+    (cutout,) = piece.blank.inner
+    assert Polygon(cutout).area == pytest.approx(80 * 60, rel=1e-9)
+    assert Polygon(piece.blank.outer, piece.blank.inner).area == pytest.approx(240 * (160 + d) - 80 * 60, rel=1e-9)
+
+
+def test_flanges_bending_up_mirror_the_die_and_say_so() -> None:
+    spec = api.load(SPECS / "demo-gusset.yaml")
+    analysis, piece = only_piece(spec)
+    assert max(x for x, _ in piece.piece.outline) < 0.0  # x → −x
+    assert [w.code for w in analysis.geometry.warnings] == ["part-mirrored"]
+    assert analysis.geometry.warnings[0].line is not None  # located at the spec's flanges key
+
+
+# -- spec mistakes: located, explained, nothing written --------------------------------------------------------
+
+BAD = [
+    ("{file: drawings/bw418-former-f5.dxf, layer: OUTLNE, is: mold-line}", "", "outline.file",
+     "no outline on layer 'OUTLNE' (did you mean 'OUTLINE'?)"),
+    ("{file: drawings/missing.dxf, is: mold-line}", "", "outline.file", "drawing not found"),
+    ("{file: drawings/bw418-former-f5.dxf, layer: OUTLINE}", "", "outline.is", "missing required key 'is'"),
+    ("{file: drawings/bw418-former-f5.dxf, layer: OUTLINE, is: mold-line}", "flanges: [{from: [0, 500], to: [90, 0]}]",
+     "flanges[0]", "the nearest outline point is (0.000, 240.000) mm"),
+    ("{file: drawings/bw418-former-f5.dxf, layer: OUTLINE, is: mold-line}", "flanges: [{layer: FLANGE, height: 10}]",
+     "flanges[0].height", "a flange run of its own height is not supported"),
+    ("{points: [[0, 0], [100, 0], [0, 100], [100, 100]], is: die}", "", "outline.points",
+     "crosses or touches itself at (50.000, 50.000) mm"),
+    ("{points: [[0, 0], [100, a], [0, 100]], is: die}", "", "outline.points[1]", "expected y as a finite number"),
+    ("{svg: \"M 0 0 H 100 V 100 Z\", is: die}", "", "outline.units", "SVG path data has no unit"),
+    ("{svg: \"M 0 0 H 100 V 100\", units: mm, is: die}", "", "outline.svg", "is not closed"),
+    ("{points: [[0, 0], [100, 0], [100, 100], [0, 100]], is: die}", "flanges: [{layer: FLANGE}]", "flanges[0]",
+     "no outline edge is on layer 'FLANGE'"),
+    ("{file: drawings/bw418-former-f5.dxf, points: [], is: die}", "", "outline", "expected exactly one of 'file'"),
+    ("{points: [[0, 0], [100, 0], [100, 100], [0, 100]], is: die}", "flanges: [{from: [0, 0]}]", "flanges[0]",
+     "both 'from' and 'to'"),
+    ("{points: [[0, 0], [100, 0], [100, 100], [0, 100]], is: sideways}", "", "outline.is",
+     "expected one of mold-line, die"),
+]
+
+
+@pytest.mark.parametrize(("outline", "more", "key", "says"), BAD, ids=[b[2] + ":" + b[3][:24] for b in BAD])
+def test_mistakes_in_a_part_spec_are_located_and_explained(outline: str, more: str, key: str, says: str) -> None:
+    text = SHARED + f"outline: {outline}\n" + (more + "\n" if more else "")
+    with pytest.raises(SpecError) as caught:
+        _parse(text, SPECS)
+    problems = caught.value.problems
+    assert any(p.key == key and says in p.message and p.line is not None and p.column is not None
+               for p in problems), [str(p) for p in problems]
+
+
+def test_a_bad_drawing_exits_2_and_writes_nothing(tmp_path: Path, capsys) -> None:
+    spec = tmp_path / "bad.yaml"
+    (tmp_path / "drawings").mkdir()
+    doc = ezdxf.new("R2010")
+    doc.header["$INSUNITS"] = 4
+    msp = doc.modelspace()
+    for a, b in (((0, 0), (100, 0)), ((100, 0), (100, 80)), ((100, 80), (0, 80)), ((0, 80), (0, 3))):  # a 3 mm gap
+        msp.add_line(a, b)
+    doc.saveas(tmp_path / "drawings" / "open.dxf")
+    spec.write_text(SHARED + "outline: {file: drawings/open.dxf, is: mold-line}\n")
+    assert main(["build", str(spec), "-o", str(tmp_path / "out")]) == 2
+    err = capsys.readouterr().err
+    assert "bad.yaml:9:" in err and "outline.file" in err and "open.dxf" in err and "3.000 mm" in err
+    assert not (tmp_path / "out").exists()
+
+
+def test_a_hole_too_near_a_flange_is_refused_at_the_outline_key(tmp_path: Path, capsys) -> None:
+    svg = "M 0 0 L 200 0 L 200 120 L 0 120 Z " + "M 2 60 A 20 20 0 1 0 42 60 A 20 20 0 1 0 2 60 Z"
+    spec = tmp_path / "near.yaml"
+    spec.write_text(SHARED + f"outline: {{svg: \"{svg}\", units: mm, is: die}}\n")
+    assert main(["check", str(spec)]) == 2
+    err = capsys.readouterr().err
+    assert "near.yaml:9:" in err and "outline" in err and "flanged edge" in err
+
+
+# -- the starter ---------------------------------------------------------------------------------------------------
+
+
+@pytest.mark.parametrize("units", ["in", "mm"])
+def test_the_part_starter_passes_check(tmp_path: Path, units: str) -> None:
+    path = api.write_starter("part", tmp_path / "starter.yaml", units=units)
+    spec = api.load(path)
+    assert spec.kind == "part" and spec.units == units
+    _, piece = only_piece(spec)
+    assert piece.die.refusal is None
+
+
+# -- built: die solid, mesh, drawings --------------------------------------------------------------------------
+
+
+@pytest.mark.slow
+@pytest.mark.solid
+def test_the_demo_former_builds_a_valid_solid_a_watertight_mesh_and_clean_drawings(tmp_path: Path) -> None:
+    trimesh = pytest.importorskip("trimesh")
+    from OCP.BRepCheck import BRepCheck_Analyzer
+
+    from diegen.die.occ.validate import read_step, volume_mm3
+
+    spec = api.load(SPECS / "demo-former.yaml")
+    result = api.build(spec, tmp_path, jobs=1)
+    assert not result.failed, [o.error for o in result.failed]
+    folder = tmp_path / spec.id / spec.id
+    report = json.loads((folder / f"{spec.id}-report.json").read_text())
+    assert report["drawing"].startswith("bw418-former-f5.dxf") and "airfoil" not in report
+    shape = read_step(folder / f"{spec.id}-die.step")
+    assert BRepCheck_Analyzer(shape).IsValid()
+    mesh = trimesh.load(folder / f"{spec.id}-die.stl")
+    assert mesh.is_watertight and mesh.volume == pytest.approx(volume_mm3(shape), rel=0.005)
+    # the die is its outline's area less the hole's bore, times its height, less what the over-bent wall, the top
+    # round and the flutes take off (a few per cent of it)
+    (hole,) = report["holes"]
+    prism = (report["die"]["area_mm2"] - math.pi / 4 * hole["bore_d_mm"] ** 2) * report["die"]["height_mm"]
+    assert 0.93 * prism < volume_mm3(shape) < prism
+    for name in ("die", "blank"):
+        assert not ezdxf.readfile(folder / f"{spec.id}-{name}.dxf").audit().has_errors
