@@ -14,7 +14,7 @@ from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
 from diegen.errors import OutputError
-from diegen.pipeline.jobs import Analysis, RibJob, WingAnalysis, analyse_spec, rib_analyses, rib_jobs
+from diegen.pipeline.jobs import Analysis, GroupAnalysis, RibJob, analyse_spec, rib_analyses, rib_jobs
 from diegen.spec import Spec, load_spec
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -23,7 +23,7 @@ if TYPE_CHECKING:  # pragma: no cover
 
 
 def load(path: str | Path) -> Spec:
-    """Load and validate a rib or wing spec (raises :class:`diegen.errors.SpecError`)."""
+    """Load and validate a rib, wing, part or set spec (raises :class:`diegen.errors.SpecError`)."""
     return load_spec(path)
 
 
@@ -38,11 +38,11 @@ def report_json(analysis: Analysis) -> dict[str, Any]:
     from diegen.findings import once
     from diegen.reports.document import SAFETY, piece_json, rib_json
 
-    if not isinstance(analysis, WingAnalysis):
+    if not isinstance(analysis, GroupAnalysis):
         return rib_json(analysis)
     from diegen import __version__
 
-    return {"diegen_version": __version__, "spec": analysis.spec.id, "kind": "wing", "models": MODELS,
+    return {"diegen_version": __version__, "spec": analysis.spec.id, "kind": analysis.spec.kind, "models": MODELS,
             "safety": SAFETY,
             "warnings": [w.as_json() for w in once(w for r in analysis.ribs for w in r.geometry.warnings)],
             "parts": [piece_json(r, p) for r in analysis.ribs for p in r.pieces]}
@@ -128,5 +128,19 @@ def diff_text(old: Spec, new: Spec) -> str:
     return diff_specs(old, new)
 
 
-__all__ = ["Analysis", "RibJob", "WingAnalysis", "analyse", "build", "diff_text", "load", "refused_pieces",
-           "report_json", "report_text", "rib_jobs", "warning_count", "write_plots", "write_starter"]
+__all__ = [
+    "Analysis",
+    "GroupAnalysis",
+    "RibJob",
+    "analyse",
+    "build",
+    "diff_text",
+    "load",
+    "refused_pieces",
+    "report_json",
+    "report_text",
+    "rib_jobs",
+    "warning_count",
+    "write_plots",
+    "write_starter",
+]

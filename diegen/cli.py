@@ -44,13 +44,14 @@ def _parser() -> argparse.ArgumentParser:
     sub = parser.add_subparsers(dest="command", metavar="COMMAND", required=True)
 
     check = sub.add_parser("check", help="validate a spec and print the geometry and forming report (no solids)")
-    check.add_argument("spec", type=Path, help="rib or wing spec (YAML)")
+    check.add_argument("spec", type=Path, help="rib, wing, part or set spec (YAML)")
     check.add_argument("--json", action="store_true", help="print one JSON document instead of the text report")
     check.add_argument("--plot", action="store_true", help="also write a PNG plot of each piece")
     check.add_argument("-o", "--out", type=Path, default=Path("out"), help="output folder for --plot (default: out)")
 
     build = sub.add_parser("build", help="write dies (STEP/STL), blanks (DXF/SVG/PDF), reports and shop sheets")
-    build.add_argument("spec", type=Path, help="rib or wing spec (YAML)")
+    build.add_argument("spec", type=Path, nargs="+",
+                       help="rib, wing, part or set spec (YAML); several are each read before any is built")
     build.add_argument("-o", "--out", type=Path, default=Path("out"), help="output folder (default: out)")
     build.add_argument("--force", action="store_true", help="rebuild pieces whose inputs did not change")
     build.add_argument("-j", "--jobs", type=_jobs, default=None, help="parallel worker processes (default: cores)")
@@ -110,11 +111,14 @@ def _run(args: argparse.Namespace) -> int:
         print(api.diff_text(api.load(args.old), api.load(args.new)))
         return EXIT_OK
     if args.command == "build":
-        spec = api.load(args.spec)
+        specs = [api.load(path) for path in args.spec]  # every spec valid before anything is written
         show = not args.quiet and sys.stderr.isatty()
-        result = api.build(spec, args.out, force=args.force, jobs=args.jobs, progress=show)
-        print(result.summary())
-        return EXIT_FAILED_PIECES if result.failed else EXIT_OK
+        failed = False
+        for spec in specs:
+            result = api.build(spec, args.out, force=args.force, jobs=args.jobs, progress=show)
+            print(result.summary())
+            failed = failed or bool(result.failed)
+        return EXIT_FAILED_PIECES if failed else EXIT_OK
     raise AssertionError(args.command)
 
 

@@ -286,3 +286,90 @@ def test_the_demo_former_builds_a_valid_solid_a_watertight_mesh_and_clean_drawin
     assert 0.93 * prism < volume_mm3(shape) < prism
     for name in ("die", "blank"):
         assert not ezdxf.readfile(folder / f"{spec.id}-{name}.dxf").audit().has_errors
+
+
+# -- sets --------------------------------------------------------------------------------------------------------
+
+
+def test_the_demo_fuselage_set_lists_its_specs_and_one_part_per_frame_drawing() -> None:
+    spec = api.load(SPECS / "demo-fuselage.yaml")
+    assert spec.kind == "set"
+    ids = [m.id for m in spec.members]
+    assert ids == ["BW418-F5", "BW418-G2", "BW418-T2-nose", "BW418-fuselage-F3", "BW418-fuselage-F4",
+                   "BW418-fuselage-F6"]
+    frame = spec.members[3]
+    assert frame.drawn is not None and frame.drawn.flanged_holes and frame.file == spec.file
+    # a frame's keys are found in the set's `drawings` section
+    file, line, _ = frame.positions.where("flange.bend_radius")
+    assert file == spec.file and "flange:" in (SPECS / "demo-fuselage.yaml").read_text().splitlines()[line - 1]
+    analysis = api.analyse(spec)
+    assert [r.spec.id for r in analysis.ribs] == ids and not api.refused_pieces(analysis)
+    report = api.report_json(analysis)
+    assert report["kind"] == "set" and len(report["parts"]) == 6
+
+
+def _set_folder(tmp_path: Path) -> Path:
+    """A copy of the demo fuselage set (its specs and drawings) to change."""
+    import shutil
+
+    tmp_path.mkdir(parents=True, exist_ok=True)
+    for name in ("demo-fuselage.yaml", "demo-former.yaml", "demo-gusset.yaml", "demo-nose-rib.yaml"):
+        shutil.copy(SPECS / name, tmp_path / name)
+    shutil.copytree(SPECS / "drawings", tmp_path / "drawings")
+    return tmp_path / "demo-fuselage.yaml"
+
+
+def test_a_set_rebuilds_only_the_frame_whose_drawing_changed_and_drops_a_removed_one(tmp_path: Path,
+                                                                                     fake_solids) -> None:
+    path = _set_folder(tmp_path / "specs")
+    out = tmp_path / "out"
+    first = api.build(api.load(path), out, jobs=1, die_writer=fake_solids)
+    assert [o.status for o in first.outcomes] == ["built"] * 6
+    assert [o.status for o in api.build(api.load(path), out, jobs=1, die_writer=fake_solids).outcomes] == \
+        ["unchanged"] * 6
+    frames = path.parent / "drawings" / "frames"
+    doc = ezdxf.readfile(frames / "F4.dxf")
+    (hole,) = doc.modelspace().query("CIRCLE")
+    hole.dxf.radius = 45.0
+    doc.saveas(frames / "F4.dxf")
+    (frames / "F6.dxf").unlink()
+    again = api.build(api.load(path), out, jobs=1, die_writer=fake_solids)
+    status = {o.part_id: o.status for o in again.outcomes}
+    assert status == {"BW418-F5": "unchanged", "BW418-G2": "unchanged", "BW418-T2-nose": "unchanged",
+                      "BW418-fuselage-F3": "unchanged", "BW418-fuselage-F4": "built"}
+    assert again.removed == ["BW418-fuselage-F6"] and not (out / "BW418-fuselage" / "BW418-fuselage-F6").exists()
+    report = json.loads((out / "BW418-fuselage" / "BW418-fuselage-F4" / "BW418-fuselage-F4-report.json").read_text())
+    assert report["holes"][0]["d_mm"] == pytest.approx(90.0)
+
+
+SET_HEAD = "diegen: 1\nkind: set\nid: S1\nunits: mm\n"
+
+
+@pytest.mark.parametrize(("body", "key", "says"), [
+    ("specs: [nothing-*.yaml]\n", "specs[0]", "no spec file matches 'nothing-*.yaml'"),
+    ("specs: [demo-wing.yaml]\n", "specs[0]", "demo-wing.yaml is a wing spec: a set holds parts and ribs"),
+    ("specs: [demo-gusset.yaml, demo-gusset.yaml]\n", "specs[1]", "two members have the id 'BW418-G2'"),
+    ("title: nothing listed\n", "specs", "expected 'specs'"),
+    ("drawings: {files: drawings/frames/*.dxf, outline: {file: x.dxf, is: die}}\n", "drawings.outline.file",
+     "'file' is not taken here"),
+    ("drawings: {files: drawings/frames/*.dxf, outline: {is: die}}\n", "drawings.sheet",
+     "missing required key 'sheet'"),
+    ("drawings: {files: \"drawings/*.svg\", outline: {is: die}}\n", "drawings.files", "no drawing matches"),
+], ids=["no-match", "wing", "duplicate", "empty", "outline-file", "drawings-keys", "no-drawing"])
+def test_mistakes_in_a_set_are_located_in_the_set(body: str, key: str, says: str) -> None:
+    with pytest.raises(SpecError) as caught:
+        parse_spec(SET_HEAD + body, str(SPECS / "set.yaml"), SPECS)
+    assert any(p.key == key and says in p.message for p in caught.value.problems), \
+        [str(p) for p in caught.value.problems]
+
+
+def test_a_members_own_mistake_is_reported_in_its_own_file_and_a_set_in_a_set_is_refused(tmp_path: Path) -> None:
+    bad_part = SHARED.replace("id: X1", "id: X2") + "outline: {points: [[0, 0]], is: die}\n"
+    (tmp_path / "bad-part.yaml").write_text(bad_part)
+    (tmp_path / "inner.yaml").write_text(SET_HEAD.replace("S1", "S2") + "specs: [bad-part.yaml]\n")
+    (tmp_path / "outer.yaml").write_text(SET_HEAD + "specs: [bad-part.yaml, inner.yaml]\n")
+    with pytest.raises(SpecError) as caught:
+        api.load(tmp_path / "outer.yaml")
+    where = {(Path(p.file).name, p.key) for p in caught.value.problems}
+    assert ("bad-part.yaml", "outline.points") in where
+    assert ("inner.yaml", "kind") in where

@@ -189,7 +189,7 @@ def build_spec(spec: Spec, out: Path, die_writer: DieWriter, warm_up: Callable[[
     with BuildLock(folder), confined_to(folder) as root:
         remove_stale_temporaries(folder)
         manifest = Manifest.load(folder / MANIFEST)
-        kind = "wing" if isinstance(spec, WingSpec) else spec.kind
+        kind = spec.kind
         changed = (manifest.spec, manifest.kind) != (spec.id, kind)
         manifest.spec, manifest.kind = spec.id, kind
         outcomes: list[PieceOutcome] = []
@@ -214,7 +214,7 @@ def build_spec(spec: Spec, out: Path, die_writer: DieWriter, warm_up: Callable[[
                 rib_warnings.extend(Finding.from_json(w) for w in rib_entry.warnings)
                 warnings.extend(Finding.from_json(w) for p in rib_entry.pieces for w in manifest.pieces[p].warnings)
                 continue
-            with refusals_located(spec):
+            with refusals_located(job.rib):
                 rib = analysed(job.rib, job.section)
             analyses.append(rib)
             rib_warnings.extend(rib.geometry.warnings)

@@ -9,10 +9,10 @@ import numpy as np
 
 from diegen.analysis import RibAnalysis
 from diegen.locate import analyse_located, refusals_located
-from diegen.spec.model import RibSpec, WingSpec
+from diegen.spec.model import RibSpec, SetSpec, WingSpec
 from diegen.wing import RibStation, rib_spec, section_at, stations
 
-Spec = RibSpec | WingSpec
+Spec = RibSpec | WingSpec | SetSpec
 
 
 @dataclass(frozen=True)
@@ -25,20 +25,23 @@ class RibJob:
 
 
 @dataclass(frozen=True)
-class WingAnalysis:
-    """Every rib of a wing, analysed, in station order."""
+class GroupAnalysis:
+    """Every rib of a wing, in station order, or every part and rib of a set, in the set's order, analysed."""
 
-    spec: WingSpec
+    spec: WingSpec | SetSpec
     ribs: tuple[RibAnalysis, ...]
 
 
-Analysis = RibAnalysis | WingAnalysis
+Analysis = RibAnalysis | GroupAnalysis
 
 
 def rib_jobs(spec: Spec) -> Iterator[RibJob]:
-    """Every rib of ``spec``, root first for a wing."""
+    """Every rib (or part) of ``spec``, root first for a wing, in the set's order for a set."""
     if isinstance(spec, RibSpec):
         yield RibJob(spec)
+        return
+    if isinstance(spec, SetSpec):
+        yield from (RibJob(member) for member in spec.members)
         return
     for station in stations(spec):
         yield RibJob(rib_spec(spec, station), section_at(spec, station), station)
@@ -49,12 +52,12 @@ def analyse_spec(spec: Spec) -> Analysis:
     with refusals_located(spec):
         if isinstance(spec, RibSpec):
             return analyse_located(spec)
-        return WingAnalysis(spec, tuple(analyse_located(job.rib, job.section) for job in rib_jobs(spec)))
+        return GroupAnalysis(spec, tuple(analyse_located(job.rib, job.section) for job in rib_jobs(spec)))
 
 
 def rib_analyses(analysis: Analysis) -> tuple[RibAnalysis, ...]:
     """The analysed ribs of a rib or wing analysis."""
-    return analysis.ribs if isinstance(analysis, WingAnalysis) else (analysis,)
+    return analysis.ribs if isinstance(analysis, GroupAnalysis) else (analysis,)
 
 
-__all__ = ["Analysis", "RibJob", "Spec", "WingAnalysis", "analyse_spec", "rib_analyses", "rib_jobs"]
+__all__ = ["Analysis", "GroupAnalysis", "RibJob", "Spec", "analyse_spec", "rib_analyses", "rib_jobs"]

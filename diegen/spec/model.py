@@ -33,6 +33,7 @@ __all__ = [
     "RibOverride",
     "RibSpec",
     "Rubber",
+    "SetSpec",
     "Shared",
     "Sheet",
     "Spar",
@@ -294,5 +295,32 @@ class WingSpec:
     unit_warnings: tuple[Problem, ...] = field(default=(), compare=False, repr=False)  # see diegen.spec.plausible
     paper: str = "a4"  # paper size of the PDFs: "a4" or "letter"
 
+    @property
+    def kind(self) -> str:
+        return "wing"
 
-Spec = RibSpec | WingSpec
+
+@dataclass(frozen=True)
+class SetSpec:
+    """Parts and ribs built together into one folder (``kind: set``): a fuselage's formers, a tail's ribs.
+
+    ``members`` are one-piece-set specs as they would load alone: those a set lists by file, and one part per
+    drawing its ``drawings`` section matches (each read with that section's keys, its id the set's id and the
+    drawing's file name).
+    """
+
+    id: str
+    units: str
+    members: tuple[RibSpec, ...]
+    file: str = ""
+    title: str = ""
+    positions: SpecPositions = field(default=SpecPositions(), compare=False, repr=False)
+    unit_warnings: tuple[Problem, ...] = field(default=(), compare=False, repr=False)
+    paper: str = "a4"
+
+    @property
+    def kind(self) -> str:
+        return "set"
+
+
+Spec = RibSpec | WingSpec | SetSpec

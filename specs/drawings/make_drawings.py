@@ -32,23 +32,35 @@ def _bulge(a: tuple[float, float], b: tuple[float, float], centre: tuple[float, 
     return math.tan(sweep / 4)
 
 
-def former() -> None:
-    """Fuselage former F5 (mm): a convex top arc, flared sides, a shallow concave saddle over the keel, a flanged
-    lightening hole and two drawn tooling-pin spots; the outline is the finished part's mold line."""
+def frame(name: str, bottom: float, top: float, side: float, crown: float, hole_d: float, hole_y: float,
+          pin_x: float, title: str) -> None:
+    """A fuselage frame (mm), drawn as the finished part's mold line: a convex crown arc from (±top, side) up to
+    (0, crown), sides flaring from (±bottom, 0), a shallow concave saddle (radius 300 mm) over the keel between
+    (±bottom, 0), a lightening hole of ``hole_d`` at (0, ``hole_y``) and two tooling-pin spots at (±pin_x, 40)."""
     doc = _document("mm")
     msp = doc.modelspace()
-    top_centre = (0.0, 133.75)  # the circle through (±105, 150) and (0, 240)
-    saddle_centre = (0.0, -math.sqrt(300.0**2 - 90.0**2))  # radius 300 through (±90, 0): rises 13.8 mm mid-way
-    points = [(-90.0, 0.0), (90.0, 0.0), (105.0, 150.0), (-105.0, 150.0)]
+    # the crown: the circle through (±top, side) and (0, crown), its centre on the y axis
+    centre_y = (crown**2 - side**2 - top**2) / (2 * (crown - side))
+    saddle_centre = (0.0, -math.sqrt(300.0**2 - bottom**2))  # rises mid-way by 300 − √(300² − bottom²)
+    points = [(-bottom, 0.0), (bottom, 0.0), (top, side), (-top, side)]
     bulges = [_bulge(points[0], points[1], saddle_centre, ccw=False), 0.0,
-              _bulge(points[2], points[3], top_centre, ccw=True), 0.0]
+              _bulge(points[2], points[3], (0.0, centre_y), ccw=True), 0.0]
     msp.add_lwpolyline([(x, y, 0, 0, b) for (x, y), b in zip(points, bulges)], format="xyseb", close=True,
                        dxfattribs={"layer": "OUTLINE"})
-    msp.add_circle((0.0, 120.0), 50.0, dxfattribs={"layer": "OUTLINE"})
-    for x in (-45.0, 45.0):
+    msp.add_circle((0.0, hole_y), hole_d / 2, dxfattribs={"layer": "OUTLINE"})
+    for x in (-pin_x, pin_x):
         msp.add_point((x, 40.0), dxfattribs={"layer": "PINS"})
-    msp.add_text("BW-418 former F5, mold line", dxfattribs={"layer": "NOTES", "height": 4}).set_placement((-60, -30))
-    doc.saveas(HERE / "bw418-former-f5.dxf")
+    msp.add_text(f"{title}, mold line", dxfattribs={"layer": "NOTES", "height": 4}).set_placement((-60, -30))
+    doc.saveas(HERE / name)
+
+
+def frames() -> None:
+    """The demo fuselage's frames: F5 (the single-part demo spec) and the frames F3, F4 and F6 of the set."""
+    frame("bw418-former-f5.dxf", 90.0, 105.0, 150.0, 240.0, 100.0, 120.0, 45.0, "BW-418 former F5")
+    (HERE / "frames").mkdir(exist_ok=True)
+    frame("frames/F3.dxf", 100.0, 115.0, 160.0, 250.0, 110.0, 125.0, 50.0, "BW-418 frame F3")
+    frame("frames/F4.dxf", 96.0, 110.0, 155.0, 245.0, 100.0, 122.0, 48.0, "BW-418 frame F4")
+    frame("frames/F6.dxf", 78.0, 92.0, 130.0, 205.0, 80.0, 105.0, 40.0, "BW-418 frame F6")
 
 
 def nose_rib() -> None:
@@ -74,5 +86,5 @@ def nose_rib() -> None:
 
 
 if __name__ == "__main__":
-    former()
+    frames()
     nose_rib()
