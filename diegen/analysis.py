@@ -298,7 +298,8 @@ def _judge_flange(spec: RibSpec, runs: list[FlangeRun], flutes: tuple[relief_mod
     if worst > shrink_limit:
         if relief != "notches":
             remedies.append("V-notches in the blank (relief: notches) where the shrink is worst")
-        remedies.append("a lower flange, or one cut back where it shrinks most (the leading edge of a nose)")
+        remedies.append("a lower flange, or one cut back where it shrinks most" +
+                        (" (the leading edge of a nose)" if spec.drawn is None else ""))
         if not alloy.endswith(("-O", "-W")):
             remedies.append(f"form it in O or W temper and heat treat it to {alloy} afterwards, to the alloy's "
                             "heat-treatment specification")

@@ -88,14 +88,15 @@ def asked_die_input(spec: Any, piece: Any) -> DieInput:
     )
 
 
-def marks_note(asked: tuple[str, ...], marked: tuple[str, ...]) -> str:
+def marks_note(asked: tuple[str, ...], marked: tuple[str, ...], forward: str = "the leading edge") -> str:
+    """What the bottom face carries; ``forward`` is what the arrow (towards −x) points to."""
     if marked == asked:
-        return ENGRAVING_NOTE
+        return ENGRAVING_NOTE.replace("the leading edge", forward)
     if marked:
         return (f"No room on the bottom face for all the marks: only {', '.join(marked)} and the arrow are engraved; "
                 f"write {', '.join(line for line in asked if line not in marked)} on it by hand.")
-    return (f"No room on the bottom face for the marks: write {', '.join(asked)} and an arrow pointing to the leading "
-            "edge on it by hand.")
+    return (f"No room on the bottom face for the marks: write {', '.join(asked)} and an arrow pointing to {forward} "
+            "on it by hand.")
 
 
 def pin_note(die: DieInput) -> str | None:

@@ -50,7 +50,8 @@ def write_die_files(rib: Any, piece: Any, folder: Path, claimed: bool = False) -
     drawing = die_drawing(marked, model, marks, layout, joggles, f"{rib.spec.kind} {rib.spec.id}, {source}")
     write_die_dxf(drawing, folder / names[2])
     write_die_svg(drawing, folder / names[3])
-    notes = [marks_note(die.engraving, marks.lines)]
+    forward = "the leading edge" if rib.spec.drawn is None else "the drawing's −x side"
+    notes = [marks_note(die.engraving, marks.lines, forward)]
     if pin_note(die):
         notes.insert(0, pin_note(die))
     if piece.die_layers > 1 and die_making(shared.die) != "printed":
