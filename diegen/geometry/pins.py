@@ -70,14 +70,16 @@ def auto_pins(piece: Polygon, bend_radius: float, margin: float, diameter: float
                if deepest < need else "the lightening holes leave no such spot")
         raise GeometryError(f"the {piece_name} piece has no web left for tooling pins of {diameter:.2f} mm "
                             f"(bend radius {bend_radius:.2f} mm + margin {margin:.2f} mm from the bend line and "
-                            "holes): "
-                            f"{why}")
+                            f"holes): {why}; use thinner dowels (dowel_diameter), a smaller hole_rules.edge_margin, "
+                            "fewer or smaller holes, or tooling pins placed by hand")
     minx, _, maxx, _ = room.bounds
     inset = min(2.0, 0.1 * (maxx - minx))
     xs = np.linspace(minx + inset, maxx - inset, SCAN_LINES)
     spots = _first_spots(room, xs) + _first_spots(room, xs[::-1])[::-1]
     if len(spots) < 2 or spots[-1][0] - spots[0][0] < 2 * diameter:
-        raise GeometryError(f"the {piece_name} piece has no room for two tooling pins {2 * diameter:.1f} mm apart")
+        raise GeometryError(f"the {piece_name} piece has no room for two tooling pins {2 * diameter:.1f} mm apart: "
+                            "use thinner dowels (dowel_diameter) or a smaller hole_rules.edge_margin, or clamp the "
+                            "blank to the die by hand")
     chosen = [spots[0], spots[-1]]
     if spots[-1][0] - spots[0][0] > LONG_PIECE_MM:
         middle = 0.5 * (spots[0][0] + spots[-1][0])

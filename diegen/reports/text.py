@@ -25,7 +25,8 @@ def piece_text(rib: RibAnalysis, p: PieceAnalysis) -> str:
     whole = (f"{rib.geometry.chord_mm:.1f} mm chord" if rib.spec.drawn is None
              else f"the drawing's {rib.geometry.chord_mm:.1f} mm")
     lines = [
-        f"== {g.part_id} ({g.name} piece)  x {g.x_range_mm[0]:.1f}–{g.x_range_mm[1]:.1f} mm of {whole}",
+        f"== {g.part_id} ({g.name + ' piece' if rib.spec.drawn is None else 'drawn part'})  x "
+        f"{g.x_range_mm[0]:.1f}–{g.x_range_mm[1]:.1f} mm of {whole}",
         f"  die outline   length {_len(g.length_mm, u)}, area {g.area_mm2:.0f} mm², depth {g.depth_range_mm[0]:.1f}–"
         f"{g.depth_range_mm[1]:.1f} mm, height {_len(p.die_height_mm, u)} ({p.die_layers} layer(s) of stock)",
         *([f"  DIE REFUSED   {p.die.refusal}"] if p.die is not None and p.die.refusal else []),

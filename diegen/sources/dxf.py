@@ -73,7 +73,7 @@ def drawing_units(header_code: int | None, units: str | None, source: str) -> tu
         if given is None:
             raise DrawingError(f"{source}: the drawing does not say its units (header $INSUNITS is "
                                f"{'missing' if header_code is None else '0, unitless'}): give its units "
-                               "(mm or in)")
+                               "(outline.units: mm or in)")
         return given
     if header_code not in INSUNITS:
         known = ", ".join(f"{code} ({name})" for code, (name, _) in INSUNITS.items())
