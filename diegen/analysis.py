@@ -213,7 +213,7 @@ def analyse_rib(spec: RibSpec, section: np.ndarray | None = None) -> RibAnalysis
     springback = springback_for(spec, alloy)
     minimum = check_radius(spec, springback)
     if spec.drawn is not None:
-        geometry = part_geometry(spec)
+        geometry = part_geometry(spec, die_inset_mm=die_inset_mm(spec, springback))
     else:
         geometry = rib_geometry(spec, section, die_inset_mm=die_inset_mm(spec, springback),
                                 stretch_limit=alloy.stretch_limit)

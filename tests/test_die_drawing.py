@@ -46,7 +46,7 @@ def _drawing(rib, piece):
     layout = tile_plan(rib, piece)
     model = outline_model(die)
     marks = fit_marks(die, model, DEFAULT_SETTINGS)
-    joggles = [(j.surface, j.x_start_mm, j.x_end_mm, j.depth_mm, j.ramp_mm) for j in piece.piece.joggles]
+    joggles = [(j.surface, j.x_start_mm, j.x_end_mm, j.depth_mm, j.ramp_mm, j.path) for j in piece.piece.joggles]
     return die, die_drawing(replace(die, engraving=marks.lines), model, marks, layout, joggles, "test"), marks
 
 

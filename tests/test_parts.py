@@ -82,8 +82,9 @@ def test_demo_former_die_is_the_dxf_mold_line_offset_inward_by_the_sheet() -> No
     mold = [(v.x, v.y) for v in make_path(outline).flattening(0.001)]
     expected = Polygon(mold).buffer(-spec.shared.sheet.thickness_mm, quad_segs=256)
     _, piece = only_piece(spec)
-    assert loop_distance(piece.piece.outline, list(expected.exterior.coords)[:-1], step_mm=0.5) <= 0.05
-    assert Polygon(piece.piece.outline).area == pytest.approx(expected.area, rel=2e-4)
+    plain = [p for run in piece.piece.plain_runs for p in run.points[:-1]]  # the outline without its joggle
+    assert loop_distance(plain, list(expected.exterior.coords)[:-1], step_mm=0.5) <= 0.05
+    assert Polygon(plain).area == pytest.approx(expected.area, rel=2e-4)
     # the flanged hole: Ø100 drawn, so the die bore is d + 2t and the pilot smaller than the hole (it flanges out)
     (hole,) = piece.holes
     assert hole.d_mm == pytest.approx(100.0) and hole.bore_d_mm == pytest.approx(100.0 + 2 * 0.8)
@@ -286,6 +287,11 @@ def test_the_demo_former_builds_a_valid_solid_a_watertight_mesh_and_clean_drawin
     assert 0.93 * prism < volume_mm3(shape) < prism
     for name in ("die", "blank"):
         assert not ezdxf.readfile(folder / f"{spec.id}-{name}.dxf").audit().has_errors
+    # the longeron's joggle: in the report, and drawn on its own layer of the die drawing
+    (joggle,) = report["die"]["joggles"]
+    assert joggle["depth_mm"] == pytest.approx(1.6) and joggle["joggle"] == 0
+    drawing = ezdxf.readfile(folder / f"{spec.id}-die.dxf")
+    assert len(drawing.modelspace().query('LWPOLYLINE[layer=="JOGGLE-RECESSES"]')) == 1
 
 
 # -- sets --------------------------------------------------------------------------------------------------------
@@ -373,3 +379,54 @@ def test_a_members_own_mistake_is_reported_in_its_own_file_and_a_set_in_a_set_is
     where = {(Path(p.file).name, p.key) for p in caught.value.problems}
     assert ("bad-part.yaml", "outline.points") in where
     assert ("inner.yaml", "kind") in where
+
+
+# -- joggles -------------------------------------------------------------------------------------------------------
+
+
+def test_a_joggle_steps_the_die_wall_in_by_its_depth_with_the_quintic_run_outs() -> None:
+    """Over the full-depth zone every die outline point lies the depth inside the outline without the joggle
+    (shapely distance); along a run-out the inset follows 10u³ − 15u⁴ + 6u⁵ of the way along it (the quintic
+    'smootherstep', zero slope and curvature at both ends); outside, the outline is untouched.  The flange's strain
+    is judged on the outline without the recess, so it is the same as with no joggle."""
+    from shapely.geometry import LineString, Point
+
+    rect = "{points: [[0, 0], [300, 0], [300, 200], [0, 200]], is: die}"
+    plain_spec = part_spec(rect)
+    spec = part_spec(rect, "joggles: [{from: [100, 0], to: [160, 0], depth: 1.6}]\n")
+    _, plain_piece = only_piece(plain_spec)
+    _, piece = only_piece(spec)
+    (joggle,) = piece.piece.joggles
+    depth, ramp = 1.6, joggle.ramp_mm
+    assert ramp >= 4.0 * depth  # at least joggle_runout (default 4) times the depth
+    bottom = LineString([(0, 0), (300, 0)])
+    for x, y in piece.piece.outline:
+        if abs(y) > 5.0 or not 1.0 < x < 299.0:
+            continue  # the other sides
+        inset = bottom.distance(Point(x, y))
+        if 100.0 <= x <= 160.0:
+            assert inset == pytest.approx(depth, abs=1e-9)
+        elif 100.0 - ramp < x < 100.0 or 160.0 < x < 160.0 + ramp:
+            u = 1.0 - (100.0 - x) / ramp if x < 100.0 else 1.0 - (x - 160.0) / ramp
+            assert inset == pytest.approx(depth * (10 * u**3 - 15 * u**4 + 6 * u**5), abs=1e-9)
+        else:
+            assert inset == pytest.approx(0.0, abs=1e-9)
+    assert Polygon(piece.piece.outline).area == pytest.approx(
+        300 * 200 - depth * (60.0 + ramp), rel=1e-4)  # each run-out takes half its length × depth (the quintic's mean)
+    assert piece.max_shrink == pytest.approx(plain_piece.max_shrink, abs=1e-12)
+    assert piece.flange.verdict == plain_piece.flange.verdict
+
+
+@pytest.mark.parametrize(("joggle", "says"), [
+    ("{from: [280, 0], to: [300, 60], depth: 1.6}", "does not run counter-clockwise along one stretch"),
+    ("{from: [2, 0], to: [40, 0], depth: 1.6}", "reaches past the run's end"),
+    ("{from: [100, 50], to: [160, 50], depth: 1.6}", "from the die outline"),
+    ("{from: [100, 200], to: [160, 200], depth: 1.6}", "does not run counter-clockwise"),
+], ids=["across-a-corner", "into-a-corner", "off-the-outline", "backwards"])
+def test_a_joggle_that_cannot_be_cut_is_refused_at_its_key(joggle: str, says: str, tmp_path: Path, capsys) -> None:
+    spec = tmp_path / "jog.yaml"
+    spec.write_text(SHARED + "outline: {points: [[0, 0], [300, 0], [300, 200], [0, 200]], is: die}\n"
+                    f"joggles: [{joggle}]\n")
+    assert main(["check", str(spec)]) == 2
+    err = capsys.readouterr().err
+    assert "jog.yaml:10:" in err and "joggles[0]" in err and says in err, err

@@ -164,13 +164,14 @@ def _stretch_between(ring: Sequence[Point], x0: float, x1: float, upper: bool) -
 
 
 def die_drawing(die: DieInput, model: OutlineModel, marks: PlacedMarks, tiles: TileLayout | None = None,
-                joggles: Sequence[tuple[str, float, float, float, float]] = (), title: str = "",
+                joggles: Sequence[tuple[str, float, float, float, float, tuple[Point, ...]]] = (), title: str = "",
                 settings: BuildSettings = DEFAULT_SETTINGS) -> DieDrawing:
     """The drawing of ``die`` (its outline model ``model``, its laid-out ``marks``, its print-bed ``tiles``).
 
-    ``joggles``: (surface "upper"/"lower", x_start, x_end, depth, ramp) in mm, the full-depth zone and the
-    run-out at each open end; ``title``: a line naming where the die comes from.  The alignment dowels across
-    the tile joints are drawn in plan, each running along X into both tiles.
+    ``joggles``: (surface "upper"/"lower", x_start, x_end, depth, ramp, path) in mm, the full-depth zone and the
+    run-out at each open end — or, for a drawn part's joggle (surface "outline"), ``path``, the recessed stretch;
+    ``title``: a line naming where the die comes from.  The alignment dowels across the tile joints are drawn in
+    plan, each running along X into both tiles.
     """
     flat = _ring(model.offset(top_face_inset_mm(die), spacing_mm=SAMPLE_MM))
     top = _ring(model.offset(0.0, spacing_mm=SAMPLE_MM))
@@ -186,7 +187,16 @@ def die_drawing(die: DieInput, model: OutlineModel, marks: PlacedMarks, tiles: T
     h = TEXT_MM
     xmin, ymin, xmax, ymax = (min(p[0] for p in top), min(p[1] for p in top), max(p[0] for p in top),
                               max(p[1] for p in top))
-    for k, (surface, x0, x1, depth, ramp) in enumerate(joggles, start=1):
+    for k, (surface, x0, x1, depth, ramp, path) in enumerate(joggles, start=1):
+        if surface == "outline":
+            stretch = tuple((_plain(x), _plain(y)) for x, y in path)
+            polylines.append(Polyline(JOGGLES.name, stretch, False))
+            mid = stretch[len(stretch) // 2]
+            texts.append(Text(JOGGLES.name, _plain(mid[0] - h), _plain(mid[1] - 2.5 * h), h, f"J{k}"))
+            table.append(f"J{k}: JOGGLE RECESS {depth:.2f} DEEP IN THE WALL ALONG THE MARKED STRETCH, FROM "
+                         f"({stretch[0][0]:.1f}, {stretch[0][1]:.1f}) TO ({stretch[-1][0]:.1f}, {stretch[-1][1]:.1f}), "
+                         f"RUN-OUTS {ramp:.1f} LONG")
+            continue
         stretch = _stretch_between(top, x0 - ramp, x1 + ramp, surface == "upper")
         if stretch:
             polylines.append(Polyline(JOGGLES.name, stretch, False))

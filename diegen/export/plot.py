@@ -113,6 +113,7 @@ def _limits(points: list[np.ndarray], circles: list[tuple[float, float, float]])
 
 
 # --------------------------------------------------------------------------------------------- geometry plot
+DRAWN_LABELS = {"airfoil": "outline as drawn", "joggle zones": "joggles"}  # a drawn part's names for the legend
 class _GeometryPicture(_Picture):
     """Airfoil, outer mold line, die outline, joggles, holes, pins, relief points and flutes of one piece."""
 
@@ -137,7 +138,7 @@ class _GeometryPicture(_Picture):
             (Line2D([], [], ls="none", marker="o", color="tab:purple", mfc="none"), "lightening holes"),
             (Line2D([], [], ls="none", marker="o", color="tab:red"), "tooling pins"),
         ]
-        self.legends: dict[bool, Any] = {}
+        self.legends: dict[tuple[bool, bool], Any] = {}
 
     def draw(self, rib_analysis: Any, piece_analysis: Any, path: str | Path) -> Path:
         from matplotlib.patches import Rectangle
@@ -146,12 +147,17 @@ class _GeometryPicture(_Picture):
         g = piece_analysis.piece
         rib = rib_analysis.geometry
         blank = piece_analysis.blank
+        drawn = getattr(rib_analysis.spec, "drawn", None) is not None  # a part: its drawn outline, no airfoil
         self.line(ax, *_closed(rib.section).T, color="0.6", lw=0.8)
-        self.line(ax, *_closed(rib.oml).T, color="tab:blue", lw=0.8, ls="--")
+        if not drawn:
+            self.line(ax, *_closed(rib.oml).T, color="tab:blue", lw=0.8, ls="--")
         self.line(ax, *_closed(blank.outer).T, color="tab:green", lw=0.9)
         outline = _closed(g.outline)
         self.line(ax, *outline.T, color="k", lw=1.6)
         for j in g.joggles:
+            if j.surface == "outline":  # a drawn part's joggle: the recessed stretch itself
+                self.line(ax, *np.asarray(j.path).T, color="tab:orange", lw=3.0, alpha=0.5)
+                continue
             band = Rectangle((j.x_start_mm, 0.0), j.x_end_mm - j.x_start_mm, 1.0, transform=ax.get_xaxis_transform(),
                              color="tab:orange", alpha=0.15, lw=0)
             ax.add_patch(band)
@@ -168,10 +174,12 @@ class _GeometryPicture(_Picture):
         _blank_cuts(self, ax, blank)
 
         has_relief = bool(g.relief_points)
-        if has_relief not in self.legends:
-            shown = [(h, label) for h, label in self.handles if has_relief or label != "bend relief"]
-            self.legends[has_relief] = ax.legend(*zip(*shown), loc="upper right", fontsize=7, ncol=2)
-        ax.legend_ = self.legends[has_relief]
+        if (has_relief, drawn) not in self.legends:
+            shown = [(h, DRAWN_LABELS.get(label, label) if drawn else label) for h, label in self.handles
+                     if (has_relief or label != "bend relief") and not (drawn and label == "outer mold line")]
+            self.legends[has_relief, drawn] = ax.legend(*zip(*shown), loc="upper right", fontsize=7, ncol=2)
+        ax.legend_ = self.legends[has_relief, drawn]
+        ax.set_xlabel("x as drawn (mm)" if drawn else "x from the leading edge (mm)")
         x0, x1 = g.x_range_mm
         pad = 15.0
         ax.set_xlim(x0 - pad, x1 + pad)

@@ -34,14 +34,20 @@ class Run:
 
 @dataclass(frozen=True)
 class Joggle:
-    """A recess of the die wall where the rib flange laps a spar cap."""
+    """A recess of the die wall where the flange laps a spar cap (a rib) or a passing member (a drawn part).
 
-    spar: int  # index into the spec's spars
-    surface: Literal["upper", "lower"]
+    A rib's joggle is placed by chord position on its upper or lower wall; a drawn part's (``surface`` "outline")
+    by ``path``, the recessed stretch of the die outline, run-outs included (``spar`` is then its index in the
+    spec's ``joggles``, and the x fields are unused).
+    """
+
+    spar: int  # index into the spec's spars (a part: into its joggles)
+    surface: Literal["upper", "lower", "outline"]
     x_start_mm: float  # full-depth zone, along the chord
     x_end_mm: float
     depth_mm: float
     ramp_mm: float  # run-out length at each open end of the zone
+    path: Points = ()
 
 
 @dataclass(frozen=True)

@@ -77,6 +77,15 @@ def blank_numbers(blank: BlankDrawing) -> dict[str, float]:
     return {"area_mm2": _r(blank.net_area(), 1), "perimeter_mm": _r(outer.length, 2)}
 
 
+def _joggle_json(j) -> dict[str, Any]:
+    """A rib's joggle by spar, wall and chord range; a drawn part's by its index and the recessed stretch's ends."""
+    if j.surface == "outline":
+        return {"joggle": j.spar, "from_mm": [_r(v) for v in j.path[0]], "to_mm": [_r(v) for v in j.path[-1]],
+                "depth_mm": _r(j.depth_mm), "ramp_mm": _r(j.ramp_mm)}
+    return {"spar": j.spar, "surface": j.surface, "x_start_mm": _r(j.x_start_mm), "x_end_mm": _r(j.x_end_mm),
+            "depth_mm": _r(j.depth_mm), "ramp_mm": _r(j.ramp_mm)}
+
+
 def piece_json(rib: RibAnalysis, p: PieceAnalysis) -> dict[str, Any]:
     """The report of one piece (the keys ``diegen check --json`` documents)."""
     g = p.piece
@@ -128,9 +137,7 @@ def piece_json(rib: RibAnalysis, p: PieceAnalysis) -> dict[str, Any]:
             "material": rib.spec.shared.die.material,
             "buildable": p.die is None or p.die.buildable,
             "refusal": None if p.die is None else p.die.refusal,
-            "joggles": [{"spar": j.spar, "surface": j.surface, "x_start_mm": _r(j.x_start_mm),
-                         "x_end_mm": _r(j.x_end_mm),
-                         "depth_mm": _r(j.depth_mm), "ramp_mm": _r(j.ramp_mm)} for j in g.joggles],
+            "joggles": [_joggle_json(j) for j in g.joggles],
             "making": die_making(rib.spec.shared.die),
             "drawing_files": [f"{g.part_id}-die.dxf", f"{g.part_id}-die.svg"],
             **print_json(rib, p),

@@ -172,8 +172,9 @@ def _wall_features(piece: PieceAnalysis, shared, step: _Steps, flute_tool: str, 
     g = piece.piece
     lines = []
     if g.joggles:
+        depth = "the cap thickness" if g.joggles[0].surface != "outline" else "the joggle's depth"
         lines.append(step(f"Joggle recesses ({len(g.joggles)}, layer `{JOGGLES.name}`): stepped into the wall by "
-                          "the cap thickness with S-shaped run-outs; they are part of the outline and cut with it."))
+                          f"{depth} with S-shaped run-outs; they are part of the outline and cut with it."))
     if piece.flutes:
         sizes: dict[tuple[float, float], list] = {}
         for f in piece.flutes:

@@ -47,6 +47,11 @@ def piece_text(rib: RibAnalysis, p: PieceAnalysis) -> str:
     else:
         lines.append(f"  relief        none needed (policy: {rib.spec.shared.relief})")
     for j in g.joggles:
+        if j.surface == "outline":
+            (x0, y0), (x1, y1) = j.path[0], j.path[-1]
+            lines.append(f"  joggle        joggles[{j.spar}]: {j.depth_mm:.2f} mm deep from ({x0:.1f}, {y0:.1f}) to "
+                         f"({x1:.1f}, {y1:.1f}) mm, ramps {j.ramp_mm:.1f} mm included")
+            continue
         lines.append(f"  joggle        spar {j.spar + 1} {j.surface}: {j.depth_mm:.2f} mm deep over x "
                      f"{j.x_start_mm:.1f}–"
                      f"{j.x_end_mm:.1f} mm, ramps {j.ramp_mm:.1f} mm")

@@ -21,7 +21,7 @@ fills a :class:`~diegen.geometry.types.PieceGeometry` the forming analysis, blan
 from __future__ import annotations
 
 import math
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 from dataclasses import replace
 
 import numpy as np
@@ -34,6 +34,7 @@ from diegen.geometry import pins as pin_rules
 from diegen.geometry.polygon import as_points, offset_inward, vertical_extents
 from diegen.geometry.types import Hole, PieceGeometry, Pin, Point, Points, Run
 from diegen.sources.contour import CHORD_TOL_MM, Contour, Place, contour_names, split_edge, turn_angle
+from diegen.sources.joggle import JoggleSpec, recess
 from diegen.sources.model import (
     OUTLINE_IS,
     AllEdges,
@@ -227,7 +228,8 @@ def _chosen_edges(outer: Contour, spec: FlangeRunSpec, index: int, ends: tuple[P
 
 def drawn_piece(part: DrawnPart, *, part_id: str, sheet_thickness_mm: float, pin_diameter_mm: float,
                 hole_flange_height_mm: float | None = None, edge_margin_mm: float = 6.0,
-                auto_pins: bool = True) -> DrawnPiece:
+                auto_pins: bool = True, joggles: Sequence[JoggleSpec] = (),
+                ramp_of: Callable[[float], float] = lambda depth: 4.0 * depth) -> DrawnPiece:
     """The drawn part as the geometry layer's piece (mm).
 
     The die outline is the outline (``die``) or the outline offset inward by ``sheet_thickness_mm``
@@ -236,8 +238,11 @@ def drawn_piece(part: DrawnPart, *, part_id: str, sheet_thickness_mm: float, pin
     ``edge_margin_mm`` clear of the flange bend line and the holes.  When every flange bends up, the piece
     is the drawing's mirror image (x → −x) so the flanges fold down over the die.
 
-    Raises :class:`GeometryError` for flanges bending both ways, an offset that leaves nothing or splits
-    the part, a hole that reaches the flange bend or outside the die, a pin without room.
+    ``joggles`` are recessed into the die outline (see :mod:`diegen.sources.joggle`), ``ramp_of(depth)`` giving
+    their run-out length (mm); the strain is judged on the outline without them (``plain_runs``).
+
+    Raises :class:`GeometryError` for flanges bending both ways, a joggle off one flanged run, an offset that
+    leaves nothing or splits the part, a hole that reaches the flange bend or outside the die, a pin without room.
     """
     place = part.place
     flanges = part.edge_flanges()
@@ -269,13 +274,14 @@ def drawn_piece(part: DrawnPart, *, part_id: str, sheet_thickness_mm: float, pin
     pts, s, vertex_marks = _place_marks(die_pts, die_s, marks, total, inset)
     pts, s, vertex_marks = _drop_inserted_points(pts, s, vertex_marks, offsets, mold, total)
     straight = _straight_segments(pts, s, offsets, mold, total)
-    runs, run_flanges, reliefs = _runs(pts, s, vertex_marks, straight, offsets, flanges, total)
+    plain, run_flanges, reliefs = _runs(pts, s, vertex_marks, straight, offsets, flanges, total)
+    runs, recesses = recess(plain, joggles, ramp_of, place) if joggles else (plain, ())
     die_poly = Polygon([p for run in runs for p in run.points[:-1]])
     holes, cutouts = _holes(part, die_poly, runs, bend_radius, hole_flange_height_mm, place)
     pins = _pins(part, die_poly, holes, bend_radius, edge_margin_mm, pin_diameter_mm, auto_pins, part_id, place)
     minx, _, maxx, _ = die_poly.bounds
-    geometry = PieceGeometry(PIECE_NAME, part_id, (float(minx), float(maxx)), runs, (), holes, pins, reliefs,
-                             _depth_range(die_poly), runs)
+    geometry = PieceGeometry(PIECE_NAME, part_id, (float(minx), float(maxx)), runs, recesses, holes, pins, reliefs,
+                             _depth_range(die_poly), plain)
     if mirrored:
         geometry, run_flanges, cutouts = _mirror(geometry, run_flanges, cutouts)
     return DrawnPiece(geometry, run_flanges, mirrored, cutouts)
@@ -584,8 +590,10 @@ def _mirror(geometry: PieceGeometry, run_flanges: tuple[Flange | None, ...],
         return tuple((-x, y) for x, y in reversed(points))
 
     runs = tuple(Run(r.kind, flip(r.points), r.flanged) for r in reversed(geometry.runs))
+    plain = tuple(Run(r.kind, flip(r.points), r.flanged) for r in reversed(geometry.plain_runs))
     x0, x1 = geometry.x_range_mm
-    mirrored = replace(geometry, x_range_mm=(-x1, -x0), runs=runs, plain_runs=runs,
+    mirrored = replace(geometry, x_range_mm=(-x1, -x0), runs=runs, plain_runs=plain,
+                       joggles=tuple(replace(j, path=flip(j.path)) for j in geometry.joggles),
                        holes=tuple(replace(h, x=-h.x) for h in geometry.holes),
                        pins=tuple(replace(p, x=-p.x) for p in geometry.pins),
                        relief_points=tuple((-x, y) for x, y in geometry.relief_points))

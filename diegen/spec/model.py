@@ -215,6 +215,7 @@ class DrawnOutline:
     part: Any  # a diegen.sources.model.DrawnPart (not imported: the drawing readers sit above the spec's model)
     flanged_holes: bool  # round holes get a flange of hole_rules.flange_height
     label: str
+    joggles: tuple[Any, ...] = ()  # diegen.sources.joggle.JoggleSpec: recesses where a member passes
 
 
 @dataclass(frozen=True)

@@ -28,6 +28,7 @@ from diegen.sources import (
     read_points,
     read_svg_path,
 )
+from diegen.sources.joggle import JoggleSpec
 from diegen.sources.model import DIRECTIONS, OUTLINE_IS
 from diegen.sources.units import DRAWING_UNITS, SVG_UNITS
 from diegen.spec.model import DrawnOutline, Holes, Pins, RibSpec, Shared
@@ -37,9 +38,11 @@ from diegen.spec.yamltree import YNode
 __all__ = ["MAX_DRAWING_BYTES", "PART_KEYS", "PART_SHARED_KEYS", "read_part"]
 
 MAX_DRAWING_BYTES = 20 * 1024 * 1024  # project limit: a part drawing larger than this is not one part
-PART_SHARED_KEYS = ("sheet", "flange", "hole_rules", "dowel_diameter", "relief", "die", "press")
-PART_KEYS = ("diegen", "kind", "id", "units", "title", "paper", "outline", "flanges", "holes", "pins",
+PART_SHARED_KEYS = ("sheet", "flange", "hole_rules", "dowel_diameter", "relief", "die", "press", "joggle_runout")
+PART_KEYS = ("diegen", "kind", "id", "units", "title", "paper", "outline", "flanges", "holes", "pins", "joggles",
              *PART_SHARED_KEYS)
+MAX_JOGGLES = 20
+MAX_JOGGLE_DEPTH_MM = 10.0  # project limit: deeper is no joggle but a step in the part
 OUTLINE_KEYS = ("file", "layer", "units", "svg", "points", "is", "join_tolerance")
 RUN_KEYS = ("layer", "from", "to", "direction", "height", "bend_radius", "angle")
 # One form block, one flange shape: a run's own shape is not modelled yet (the die radius, over-bend, developed
@@ -127,8 +130,30 @@ def _drawn(r: Reader, root: dict[str, YNode], spec_dir: Path, shared: Shared, fl
                   (node, "outline"))
         r.problem(at[0], at[1], str(error))
         return None
+    joggles = _joggles(r, root.get("joggles"), drawing)
+    if joggles is None:
+        return None
     shown = "mold line" if outline_is == "mold-line" else "die outline"
-    return DrawnOutline(part, flanged_holes, f"{label}, {shown}")
+    return DrawnOutline(part, flanged_holes, f"{label}, {shown}", joggles)
+
+
+def _joggles(r: Reader, node: YNode | None, drawing: Drawing) -> tuple[JoggleSpec, ...] | None:
+    """The joggles asked for: from/to in the drawing's unit and frame, depth a length in the spec's units."""
+    if node is None:
+        return ()
+    scale = drawing.place.mm_per_unit
+    flip = -1.0 if drawing.place.y_down else 1.0
+    joggles = []
+    for i, item in enumerate(r.sequence(node, "joggles", 1, MAX_JOGGLES) or ()):
+        path = join("joggles", i)
+        fields = r.mapping(item, path, ("from", "to", "depth"), ("from", "to", "depth"))
+        if fields is None:
+            continue
+        ends = [_point(r, fields[k], join(path, k), scale, flip) for k in ("from", "to")]
+        depth = r.length(fields["depth"], join(path, "depth"), high=MAX_JOGGLE_DEPTH_MM)
+        if None not in ends and depth is not None:
+            joggles.append(JoggleSpec(ends[0], ends[1], depth, path))  # type: ignore[arg-type]
+    return None if r.problems else tuple(joggles)
 
 
 def _layers(r: Reader, node: YNode | None) -> list[str] | None:

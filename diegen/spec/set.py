@@ -23,7 +23,7 @@ __all__ = ["DRAWINGS_KEYS", "MAX_MEMBERS", "SET_KEYS", "read_set"]
 MAX_MEMBERS = 200  # specs and drawings of one set (as many as a wing's ribs)
 SET_KEYS = ("diegen", "kind", "id", "units", "title", "paper", "specs", "drawings")
 DRAWINGS_KEYS = ("files", "outline", "flanges", "holes", "pins", "sheet", "flange", "hole_rules", "dowel_diameter",
-                 "relief", "die", "press")
+                 "relief", "joggle_runout", "die", "press")
 
 
 def read_set(r: Reader, root: dict[str, YNode], spec_dir: Path, load_member: Callable[[Path], Spec],

@@ -46,7 +46,7 @@ def write_die_files(rib: Any, piece: Any, folder: Path, claimed: bool = False) -
     tile_names: list[str] = []
     if layout is not None and len(layout.tiles) > 1:
         tile_names = _write_tiles(solid, layout, part, folder, claimed, tolerance)
-    joggles = [(j.surface, j.x_start_mm, j.x_end_mm, j.depth_mm, j.ramp_mm) for j in piece.piece.joggles]
+    joggles = [(j.surface, j.x_start_mm, j.x_end_mm, j.depth_mm, j.ramp_mm, j.path) for j in piece.piece.joggles]
     drawing = die_drawing(marked, model, marks, layout, joggles, f"{rib.spec.kind} {rib.spec.id}, {source}")
     write_die_dxf(drawing, folder / names[2])
     write_die_svg(drawing, folder / names[3])
