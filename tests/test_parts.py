@@ -15,6 +15,7 @@ Checks against outside sources:
 
 from __future__ import annotations
 
+import csv
 import json
 import math
 from pathlib import Path
@@ -346,6 +347,13 @@ def test_a_set_rebuilds_only_the_frame_whose_drawing_changed_and_drops_a_removed
     assert again.removed == ["BW418-fuselage-F6"] and not (out / "BW418-fuselage" / "BW418-fuselage-F6").exists()
     report = json.loads((out / "BW418-fuselage" / "BW418-fuselage-F4" / "BW418-fuselage-F4-report.json").read_text())
     assert report["holes"][0]["d_mm"] == pytest.approx(90.0)
+    # the set's summary: a row a piece, in the set's order, with what this build did (read with the csv module)
+    with open(out / "BW418-fuselage" / "summary.csv", newline="") as f:
+        rows = list(csv.DictReader(f))
+    assert [(r["rib"], r["part_id"], r["status"]) for r in rows] == [
+        ("1", "BW418-F5", "unchanged"), ("2", "BW418-G2", "unchanged"), ("3", "BW418-T2-nose", "unchanged"),
+        ("4", "BW418-fuselage-F3", "unchanged"), ("5", "BW418-fuselage-F4", "built")]
+    assert rows[4]["section"].startswith("F4.dxf") and rows[4]["station_mm"] == ""
 
 
 SET_HEAD = "diegen: 1\nkind: set\nid: S1\nunits: mm\n"

@@ -25,7 +25,7 @@ from diegen.pipeline.manifest import MANIFEST, Manifest, PieceRecord, RibRecord
 from diegen.pipeline.outputs import DieWriter
 from diegen.pipeline.workers import PieceTask, Progress, TaskResult, analysed, run_tasks
 from diegen.reports.document import piece_json
-from diegen.spec.model import WingSpec
+from diegen.spec.model import SetSpec, WingSpec
 
 
 @dataclass
@@ -262,12 +262,13 @@ def build_spec(spec: Spec, out: Path, die_writer: DieWriter, warm_up: Callable[[
             manifest.save()
         order = manifest.part_order()
         outcomes.sort(key=lambda o: order.get(o.part_id, 0))
-        if isinstance(spec, WingSpec):
-            from diegen.reports.summary import update_summary_status, write_wing_summary
+        if isinstance(spec, (WingSpec, SetSpec)):
+            from diegen.reports.summary import update_summary_status, write_set_summary, write_wing_summary
 
             status = {o.part_id: o.status for o in outcomes}
             if tasks or refused or changed or removed or not update_summary_status(folder, status):
-                write_wing_summary(spec, [analysed(job.rib, job.section) for job in jobs_of_spec], folder, status)
+                write = write_wing_summary if isinstance(spec, WingSpec) else write_set_summary
+                write(spec, [analysed(job.rib, job.section) for job in jobs_of_spec], folder, status)
     return BuildResult(folder, outcomes, once(rib_warnings) + warnings, removed, left)
 
 

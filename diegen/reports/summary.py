@@ -1,4 +1,5 @@
-"""The wing summary: ``summary.csv`` (a row a piece) and ``summary.pdf`` (planform, table, a page a piece)."""
+"""The wing summary: ``summary.csv`` (a row a piece) and ``summary.pdf`` (planform, table, a page a piece); a set's
+``summary.csv``."""
 
 from __future__ import annotations
 
@@ -15,7 +16,7 @@ import numpy as np
 from diegen.analysis import PieceAnalysis, RibAnalysis
 from diegen.fileio import write_text, write_with
 from diegen.numbers import plain
-from diegen.spec.model import WingSpec
+from diegen.spec.model import SetSpec, WingSpec
 from diegen.wing import chord_at, leading_edge_at, stations
 
 COLUMNS = ("rib", "station_mm", "chord_mm", "section", "piece", "part_id", "status", "die_length_mm", "die_depth_mm",
@@ -24,17 +25,21 @@ COLUMNS = ("rib", "station_mm", "chord_mm", "section", "piece", "part_id", "stat
            "max_stretch", "flutes", "notches", "press_verdict", "warnings")
 
 
-def summary_rows(spec: WingSpec, ribs: Sequence[RibAnalysis],
+def summary_rows(spec: WingSpec | SetSpec, ribs: Sequence[RibAnalysis],
                  status: Mapping[str, str] | None = None) -> list[dict[str, Any]]:
-    """A row a piece; ``status``: what the build did with each part (built, unchanged, failed; '' when unknown)."""
-    by_rib = {f"{spec.id}-R{s.number:02d}": s for s in stations(spec)}
+    """A row a piece; ``status``: what the build did with each part (built, unchanged, failed; '' when unknown).
+
+    A set's rows number its members in order (``rib``) and have no station; ``chord_mm`` of a part is the drawing's
+    extent in x."""
+    by_rib = {f"{spec.id}-R{s.number:02d}": (s.number, round(s.y_mm, 1)) for s in stations(spec)} \
+        if isinstance(spec, WingSpec) else {m.id: (k, "") for k, m in enumerate(spec.members, start=1)}
     rows = []
     for rib in ribs:
-        station = by_rib[rib.spec.id]
+        number, station = by_rib[rib.spec.id]
         for p in rib.pieces:
             outline, blank = np.asarray(p.piece.outline), np.asarray(p.blank.outer)
             rows.append({
-                "rib": station.number, "station_mm": round(station.y_mm, 1), "chord_mm": round(rib.spec.chord_mm, 1),
+                "rib": number, "station_mm": station, "chord_mm": round(rib.spec.chord_mm, 1),
                 "section": rib.spec.section_label, "piece": p.piece.name, "part_id": p.piece.part_id,
                 "status": (status or {}).get(p.piece.part_id, ""),
                 "die_length_mm": round(float(np.ptp(outline[:, 0])), 1),
@@ -86,6 +91,13 @@ def update_summary_status(folder: Path, status: Mapping[str, str]) -> bool:
 
 # Landscape pages, in inches: A4 297 × 210 mm (ISO 216), Letter 11 × 8.5 in.
 PAGE_IN = {"a4": (297.0 / 25.4, 210.0 / 25.4), "letter": (11.0, 8.5)}
+
+
+def write_set_summary(spec: SetSpec, ribs: Sequence[RibAnalysis], folder: Path,
+                      status: Mapping[str, str] | None = None) -> list[Path]:
+    """Write a set's ``summary.csv`` (a row a piece of every member, in the set's order) into ``folder``."""
+    write_text(folder / "summary.csv", _csv_text(summary_rows(spec, ribs, status)))
+    return [folder / "summary.csv"]
 
 
 def write_wing_summary(spec: WingSpec, ribs: Sequence[RibAnalysis], folder: Path,
