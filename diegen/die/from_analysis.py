@@ -7,6 +7,7 @@ dowel in plastics and solid-surface stock) and ``pin_depth_mm`` deep.
 
 from __future__ import annotations
 
+import math
 from dataclasses import replace
 from typing import Any
 
@@ -21,6 +22,30 @@ ENGRAVING_NOTE = "Marks on the bottom face: part id, sheet, and an arrow pointin
 def pin_depth_mm(dowel_d_mm: float, die_height_mm: float) -> float:
     """Dowel hole depth (mm): three diameters, at least 10 mm, leaving 3 mm of floor."""
     return min(die_height_mm - 3.0, max(3.0 * dowel_d_mm, 10.0))
+
+
+def flute_length_mm(piece: Any, spec_height_mm: float) -> float:
+    """How far down the die wall the flutes taper to full depth (mm): the flange height (``piece``: PieceAnalysis).
+
+    The die model has one taper for all its flutes.  Where a part's flute-bearing runs differ in height it is the
+    lowest of them, so every flute is at full depth at its own flange's edge, the depth its gather was sized for;
+    a flute in a taller run then reaches full depth higher up its flange and keeps it to the edge, gathering
+    more metal than the model counts there (design choice: erring on more gather, never less).
+    """
+    heights = [height_of_run(piece, f.s_mm, spec_height_mm) for f in piece.flutes]
+    return min(heights, default=spec_height_mm)
+
+
+def height_of_run(piece: Any, s_mm: float, spec_height_mm: float) -> float:
+    """The flange height (mm) of the run of the analysed ``piece`` that ``s_mm`` along the outline lies on."""
+    offset = 0.0
+    found = spec_height_mm
+    for run in piece.piece.runs:
+        if s_mm + 1e-9 < offset:
+            break
+        found = run.height_mm(spec_height_mm)
+        offset += sum(math.dist(a, b) for a, b in zip(run.points[:-1], run.points[1:]))
+    return found
 
 
 def die_making(die_spec: Any) -> str:
@@ -77,7 +102,7 @@ def asked_die_input(spec: Any, piece: Any) -> DieInput:
         undercut_deg=piece.springback.overbend_deg,
         cutter_radius_mm=tool.inside_radius_mm,
         flutes=tuple(DieFlute(f.s_mm, f.width_mm, f.depth_mm) for f in piece.flutes),
-        flute_length_mm=shared.flange.height_mm,
+        flute_length_mm=flute_length_mm(piece, shared.flange.height_mm),
         bores=tuple(DieBore(h.x, h.y, h.d + 2.0 * shared.sheet.thickness_mm) for h in g.holes if h.flanged),
         pins=tuple(DiePin(p.x, p.y, p.d - PIN_INTERFERENCE_MM, pin_depth_mm(p.d, height)) for p in g.pins),
         engraving=(g.part_id, f"{shared.sheet.alloy} {shared.sheet.thickness_mm:.2f} mm"),

@@ -22,14 +22,20 @@ Points = tuple[Point, ...]
 class Run:
     """A stretch of a die outline: a smooth contour or a straight end face.
 
-    ``flanged`` is False for a cut end (the tail's aft end) that gets no flange.
-    Consecutive runs share their end points; all runs of a piece form one closed
+    ``flanged`` is False for a cut end (the tail's aft end) that gets no flange.  ``flange_height_mm`` is the
+    run's own mold-line flange height (a drawn part's flange run of its own height); None for the spec's
+    ``flange.height`` (every rib run).  Consecutive runs share their end points; all runs of a piece form one closed
     counter-clockwise loop.
     """
 
     kind: Literal["curve", "line"]
     points: Points
     flanged: bool = True
+    flange_height_mm: float | None = None
+
+    def height_mm(self, spec_height_mm: float) -> float:
+        """The run's flange height (mm): its own, or the spec's ``spec_height_mm``."""
+        return spec_height_mm if self.flange_height_mm is None else self.flange_height_mm
 
 
 @dataclass(frozen=True)

@@ -459,7 +459,7 @@ def _runs(pts: list[Point], s: list[float], flags: list[tuple[bool, bool]], stra
         loop = [*pts, pts[0]]
         mid = s[n // 2] % total
         flange = _flange_at(mid, offsets, flanges)
-        return (Run("curve", _densify(loop, straight), flange is not None),), (flange,), ()
+        return (Run("curve", _densify(loop, straight), flange is not None, _height(flange)),), (flange,), ()
     pieces = []
     for j, a in enumerate(cuts):
         b = cuts[(j + 1) % len(cuts)]
@@ -469,7 +469,7 @@ def _runs(pts: list[Point], s: list[float], flags: list[tuple[bool, bool]], stra
     runs, run_flanges = [], []
     for _, _, points, mid, along in pieces:
         flange = _flange_at(mid, offsets, flanges)
-        runs.append(_run(points, along, flange is not None))
+        runs.append(replace(_run(points, along, flange is not None), flange_height_mm=_height(flange)))
         run_flanges.append(flange)
     reliefs = []
     for j, (a, _, _, _, _) in enumerate(pieces):
@@ -479,6 +479,11 @@ def _runs(pts: list[Point], s: list[float], flags: list[tuple[bool, bool]], stra
             if turn >= CORNER_TURN_DEG:
                 reliefs.append(pts[a])
     return tuple(runs), tuple(run_flanges), tuple(reliefs)
+
+
+def _height(flange: Flange | None) -> float | None:
+    """A run's own flange height on the geometry layer's run (None for a cut edge)."""
+    return None if flange is None else flange.height_mm
 
 
 def _direction(a: Point, b: Point) -> Point:
@@ -583,7 +588,7 @@ def _mirror(geometry: PieceGeometry, run_flanges: tuple[Flange | None, ...],
     def flip(points: Points) -> Points:
         return tuple((-x, y) for x, y in reversed(points))
 
-    runs = tuple(Run(r.kind, flip(r.points), r.flanged) for r in reversed(geometry.runs))
+    runs = tuple(replace(r, points=flip(r.points)) for r in reversed(geometry.runs))
     x0, x1 = geometry.x_range_mm
     mirrored = replace(geometry, x_range_mm=(-x1, -x0), runs=runs, plain_runs=runs,
                        holes=tuple(replace(h, x=-h.x) for h in geometry.holes),

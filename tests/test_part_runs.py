@@ -1,0 +1,161 @@
+"""Flange runs of a drawn part with heights of their own (``flanges: [{..., height: H}]``).
+
+Checks against outside sources:
+
+* each flanged run's developed width from FAA-H-8083-31 ch. 4, recomputed here: BA = θ(R + kT), SB = R + T for a
+  90° bend, developed = BA + (H − SB); the blank edge stands that less the die radius's tangent inset R_die·tan(θ/2)
+  outside the die outline (the die's top edge to the web's bend line: the tangent length of a circular arc);
+* the contoured-flange strain mid-way round a convex plan arc of radius ρ against the closed form w/(ρ + w), w the
+  run's own developed width (a flange of width w on a circle of radius ρ has its edge go from ρ + w to ρ);
+* areas by shapely (GEOS) against the closed form of a rectangle grown on two sides;
+* the die height: whole layers of stock for the tallest flange plus 3 mm clearance (common practice, no source:
+  the clearance lets the rubber wrap the die).
+"""
+
+from __future__ import annotations
+
+import json
+import math
+from pathlib import Path
+
+import pytest
+from shapely.geometry import Point, Polygon
+from test_parts import SHARED, _parse, only_piece, part_spec
+
+from diegen import api
+from diegen.die.from_analysis import die_input
+
+T, R, STOCK = 0.8, 3.0, 19.0  # SHARED: 0.8 mm sheet, 3 mm bend radius, 12 mm flange, 19 mm die stock
+
+
+def developed(height: float, k: float, t: float = T, radius: float = R) -> float:
+    """FAA-H-8083-31 ch. 4: BA = θ(R + kT) with θ = π/2, SB = R + T, developed = BA + (H − SB)."""
+    return (math.pi / 2) * (radius + k * t) + (height - (radius + t))
+
+
+def tangent_inset(piece) -> float:
+    sb = piece.springback
+    return sb.die_radius_mm * math.tan(math.radians(sb.die_angle_deg) / 2)
+
+
+def test_a_rectangle_flanged_on_two_opposite_edges_at_two_heights() -> None:
+    """Die outline 240 × 160 mm (``is: die``): the bottom edge flanged 8 mm high (its own height), the top edge at
+    the flange section's 12 mm, the ends cut.  Each flanged side of the blank stands that run's developed width less
+    the tangent inset beyond the die outline; the cut ends are flush; the area is 240 × (160 + d₁ + d₂)."""
+    spec = part_spec("{points: [[0, 0], [240, 0], [240, 160], [0, 160]], is: die}",
+                     "flanges: [{from: [0, 0], to: [240, 0], height: 8}, {from: [240, 160], to: [0, 160]}]\n")
+    _, piece = only_piece(spec)
+    k = piece.layout.k_factor
+    inset = tangent_inset(piece)
+    d_low, d_high = developed(8.0, k) - inset, developed(12.0, k) - inset
+    xs, ys = zip(*piece.blank.outer)
+    assert min(ys) == pytest.approx(-d_low, abs=1e-6)
+    assert max(ys) == pytest.approx(160.0 + d_high, abs=1e-6)
+    assert (min(xs), max(xs)) == pytest.approx((0.0, 240.0), abs=1e-6)  # cut ends flush
+    assert Polygon(piece.blank.outer).area == pytest.approx(240.0 * (160.0 + d_low + d_high), rel=1e-9)
+    assert [h.height_mm for h in piece.heights] == [8.0, 12.0]
+    assert [h.layout.developed_width_mm for h in piece.heights] == pytest.approx(
+        [developed(8.0, k), developed(12.0, k)], rel=1e-12)
+    assert piece.piece.relief_points == ()  # each flanged edge meets only cut edges
+    # one press leg per height (the press check folds each flange of its own height)
+    assert sorted(r.leg.leg_mm for r in piece.press.legs if r.leg.kind == "perimeter") == [8.0, 12.0]
+
+
+STADIUM = "{points: [[0, 0], [200, 0, 1], [200, 200], [0, 200, 1]], is: die}"  # half circles of radius 100 at each end
+
+
+def stadium(right: float, left: float, more: str = "") -> str:
+    """Flange runs of the stadium: the bottom straight at the flange section's height, the right half circle
+    ``right`` mm high, the left one ``left`` mm high, the top straight cut."""
+    return ("flanges: [{from: [0, 0], to: [200, 0]}, "
+            f"{{from: [200, 0], to: [200, 200], height: {right}}}, {{from: [0, 200], to: [0, 0], height: {left}}}]\n"
+            + more)
+
+
+def test_strain_on_each_arc_follows_its_own_flange_width() -> None:
+    """Mid-way round each half circle (plan radius ρ = 100 mm, the die outline) the shrink is w/(ρ + w) with w the
+    run's own developed width: 20 mm high on the right, 8 mm on the left."""
+    spec = part_spec(STADIUM, stadium(20, 8, "relief: none\n"))
+    _, piece = only_piece(spec)
+    k = piece.layout.k_factor
+    by_height = {run.height_mm: run for run in piece.runs}
+    assert sorted(by_height) == [8.0, 20.0]
+    for height in (8.0, 20.0):
+        run = by_height[height]
+        w = developed(height, k)
+        mid = len(run.profile.strain) // 2
+        assert -float(run.profile.strain[mid]) == pytest.approx(w / (100.0 + w), rel=0.01)
+        limit = next(h.shrink_limit for h in piece.heights if h.height_mm == height)
+        assert run.shrink_limit == limit
+    # the lower flange's wrinkle limit is the higher one (it scales with (t/h)², relief.wrinkle_limit)
+    limits = {h.height_mm: h.shrink_limit for h in piece.heights}
+    assert limits[8.0] >= limits[12.0] >= limits[20.0]
+
+
+def test_the_blank_steps_where_two_heights_meet_without_a_corner() -> None:
+    """At (200, 0) the bottom straight (12 mm) runs smoothly into the right half circle (20 mm): the blank edge
+    steps along the normal there, from the 12 mm flange's edge to the 20 mm one's; no relief hole (design choice)."""
+    spec = part_spec(STADIUM, stadium(20, 8))
+    _, piece = only_piece(spec)
+    k, inset = piece.layout.k_factor, tangent_inset(piece)
+    d12, d20 = developed(12.0, k) - inset, developed(20.0, k) - inset
+    blank = Polygon(piece.blank.outer, piece.blank.inner)
+    assert piece.piece.relief_points == ()
+    assert not piece.blank.cut_circles  # no relief holes (and no holes)
+    middle = -(d12 + d20) / 2.0
+    assert not blank.contains(Point(199.5, middle))  # beside the lower flange: beyond its edge
+    assert blank.contains(Point(200.5, middle))  # beside the higher flange: still flange
+    assert blank.exterior.distance(Point(200.0, -d12)) == pytest.approx(0.0, abs=1e-6)  # the step's two ends
+    assert blank.exterior.distance(Point(200.0, -d20)) == pytest.approx(0.0, abs=1e-6)
+    _, ys = zip(*piece.blank.outer)
+    assert min(ys) == pytest.approx(-d20, abs=1e-3)  # the arc's lowest point (its start) carries the higher flange
+
+
+def test_the_die_stands_on_the_tallest_flange_and_its_flutes_reach_each_flange_edge() -> None:
+    """Die height: whole 19 mm layers for the tallest flange + 3 mm; the flutes' taper ends at the lowest fluted
+    flange's edge, so every flute has its full depth at its own flange's edge."""
+    spec = part_spec(STADIUM, stadium(20, 8, "relief: flutes\n"))
+    analysis, piece = only_piece(spec)
+    layers = math.ceil((20.0 + 3.0) / STOCK)
+    assert (piece.die_layers, piece.die_height_mm) == (layers, layers * STOCK)
+    assert piece.flutes, "both half circles shrink past their limits"
+    die = die_input(analysis, piece)
+    assert die.height_mm == layers * STOCK
+    assert die.flute_length_mm == 8.0
+    flute_legs = sorted(r.leg.leg_mm for r in piece.press.legs if r.leg.kind == "flute")
+    assert flute_legs == [8.0, 20.0]
+    # one height on every run: the die stands on it alone (19 mm, one layer, for 12 mm + 3 mm)
+    _, plain = only_piece(part_spec(STADIUM, "relief: flutes\n"))
+    assert (plain.die_layers, plain.die_height_mm) == (1, STOCK)
+
+
+def test_reports_state_each_runs_height(tmp_path: Path) -> None:
+    spec_file = tmp_path / "runs.yaml"
+    spec_file.write_text(SHARED + f"outline: {STADIUM}\n" + stadium(20, 8, "relief: flutes\n"))
+    spec = api.load(spec_file)
+    analysis = api.analyse(spec)
+    document, text = api.report_json(analysis), api.report_text(analysis)
+    (piece_doc,) = document["parts"]
+    runs = piece_doc["flange"]["runs"]
+    assert sorted(r["height_mm"] for r in runs) == [8.0, 12.0, 20.0]
+    assert all(r["developed_width_mm"] > 0 and r["shrink_limit"] > 0 for r in runs)
+    json.dumps(document)
+    assert "8.0 mm" in text and "20.0 mm" in text
+
+
+def test_one_height_everywhere_has_no_per_run_report() -> None:
+    spec = part_spec(STADIUM)
+    _, piece = only_piece(spec)
+    assert not piece.mixed_heights
+
+
+def test_a_run_height_in_inches_is_read_in_the_spec_units() -> None:
+    text = SHARED.replace("units: mm", "units: in").replace("{height: 12, bend_radius: 3}",
+                                                           "{height: 0.5, bend_radius: 0.125}")
+    text = text.replace("thickness: 0.8}", "thickness: 0.032}").replace("stock_thickness: 19", "stock_thickness: 0.75")
+    text = text.replace("box: [400, 300]", "box: [16, 12]").replace("thickness: 60}", "thickness: 2.5}")
+    text = text.replace("cutter_diameter: 6", "cutter_diameter: 0.25")
+    spec = _parse(text + "outline: {points: [[0, 0], [8, 0], [8, 6], [0, 6]], is: die}\n"
+                  "flanges: [{from: [0, 0], to: [8, 0], height: 0.375}, {from: [8, 6], to: [0, 6]}]\n")
+    _, piece = only_piece(spec)
+    assert [h.height_mm for h in piece.heights] == pytest.approx([0.375 * 25.4, 0.5 * 25.4], rel=1e-12)
