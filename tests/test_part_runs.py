@@ -24,6 +24,7 @@ from test_parts import SHARED, _parse, only_piece, part_spec
 
 from diegen import api
 from diegen.die.from_analysis import die_input
+from diegen.reports.sheet import shop_sheet
 
 T, R, STOCK = 0.8, 3.0, 19.0  # SHARED: 0.8 mm sheet, 3 mm bend radius, 12 mm flange, 19 mm die stock
 
@@ -140,7 +141,12 @@ def test_reports_state_each_runs_height(tmp_path: Path) -> None:
     assert sorted(r["height_mm"] for r in runs) == [8.0, 12.0, 20.0]
     assert all(r["developed_width_mm"] > 0 and r["shrink_limit"] > 0 for r in runs)
     json.dumps(document)
-    assert "8.0 mm" in text and "20.0 mm" in text
+    assert "8.0 mm high" in text and "20.0 mm high" in text
+    assert piece_doc["die"]["flute_length_mm"] == 8.0  # both half circles carry flutes
+    (rib,) = analysis.ribs if hasattr(analysis, "ribs") else (analysis,)
+    sheet = shop_sheet(rib, rib.pieces[0])
+    assert "flange runs of their own heights, 8.00 mm" in sheet and "20.00 mm" in sheet
+    assert "the blank's edge steps where two heights meet" in sheet
 
 
 def test_one_height_everywhere_has_no_per_run_report() -> None:
@@ -159,3 +165,50 @@ def test_a_run_height_in_inches_is_read_in_the_spec_units() -> None:
                   "flanges: [{from: [0, 0], to: [8, 0], height: 0.375}, {from: [8, 6], to: [0, 6]}]\n")
     _, piece = only_piece(spec)
     assert [h.height_mm for h in piece.heights] == pytest.approx([0.375 * 25.4, 0.5 * 25.4], rel=1e-12)
+
+
+def test_a_run_height_that_looks_written_in_the_other_unit_is_flagged() -> None:
+    """A 0.5 (mm) flange run in a millimetre spec looks like half an inch: the same warning as ``flange.height``
+    (usual range 3–100 mm, common practice, no source)."""
+    spec = part_spec("{points: [[0, 0], [240, 0], [240, 160], [0, 160]], is: die}",
+                     "flanges: [{from: [0, 0], to: [240, 0], height: 0.5}, {from: [240, 160], to: [0, 160]}]\n")
+    assert any(w.key == "flanges[0].height" for w in spec.unit_warnings)
+
+
+def test_a_mirrored_part_keeps_each_runs_height_on_its_edge() -> None:
+    """Every flange bends up: the die is the drawing's mirror image (x → −x); the 8 mm run stays on the bottom edge."""
+    spec = part_spec("{points: [[0, 0], [240, 0], [240, 160], [0, 160]], is: die}",
+                     "flanges: [{from: [0, 0], to: [240, 0], height: 8, direction: up}, "
+                     "{from: [240, 160], to: [0, 160], direction: up}]\n")
+    _, piece = only_piece(spec)
+    k, inset = piece.layout.k_factor, tangent_inset(piece)
+    xs, ys = zip(*piece.blank.outer)
+    assert (min(xs), max(xs)) == pytest.approx((-240.0, 0.0), abs=1e-6)
+    assert min(ys) == pytest.approx(-(developed(8.0, k) - inset), abs=1e-6)
+    assert max(ys) == pytest.approx(160.0 + developed(12.0, k) - inset, abs=1e-6)
+
+
+def test_flutes_and_notches_are_sized_by_their_own_runs_flange() -> None:
+    """Flutes: at most a quarter of their own flange deep (``relief.flute_size``, common practice, no source);
+    notches: cut from their own run's blank edge (the blank edge right beside a notch is cut away)."""
+    fluted = part_spec(STADIUM, stadium(20, 8, "relief: flutes\n"))
+    _, piece = only_piece(fluted)
+    by_side = {side: [f for f in piece.flutes if (f.s_mm < piece.piece.length_mm / 2) == (side == "right")]
+               for side in ("right", "left")}
+    assert by_side["right"] and by_side["left"]
+    assert max(f.depth_mm for f in by_side["left"]) <= 0.25 * 8.0 + 1e-9
+    assert max(f.depth_mm for f in by_side["right"]) > 0.25 * 8.0  # the 20 mm flange takes deeper flutes
+    notched = part_spec(STADIUM, stadium(20, 8, "relief: notches\n"))
+    _, piece = only_piece(notched)
+    assert piece.notches
+    k, inset = piece.layout.k_factor, tangent_inset(piece)
+    ring = Polygon(piece.piece.outline).exterior
+    blank = Polygon(piece.blank.outer, piece.blank.inner)
+    for notch in piece.notches:
+        p = ring.interpolate(notch.s_mm)
+        centre = (200.0, 100.0) if p.x > 100.0 else (0.0, 100.0)  # the half circle's centre
+        height = 20.0 if p.x > 100.0 else 8.0
+        d = developed(height, k) - inset
+        u = ((p.x - centre[0]) / 100.0, (p.y - centre[1]) / 100.0)  # outward normal of the half circle
+        just_inside_edge = Point(p.x + u[0] * (d - 0.2), p.y + u[1] * (d - 0.2))
+        assert not blank.contains(just_inside_edge), (notch.s_mm, height)

@@ -34,7 +34,7 @@ def _flange_heights(piece: PieceAnalysis, shared) -> str:
         return f"flange {_both(shared.flange.height_mm)}"
     each = ", ".join(f"{_both(h.height_mm)} ({len(h.run_indexes)} run{'s' if len(h.run_indexes) > 1 else ''})"
                      for h in piece.heights)
-    return f"flange runs of their own heights: {each}; the blank's edge steps where two heights meet"
+    return f"flange runs of their own heights, {each},"
 
 
 def _both(mm: float) -> str:
@@ -75,7 +75,8 @@ def _header(rib: RibAnalysis, piece: PieceAnalysis) -> list[str]:
         "",
         what +
         f"Sheet **{piece.alloy.name} {_both(shared.sheet.thickness_mm)}**; {_flange_heights(piece, shared)} "
-        f"at inside radius {_both(sb.part_radius_mm)}.",
+        f"at inside radius {_both(sb.part_radius_mm)}" + (
+            "; the blank's edge steps where two heights meet" if piece.mixed_heights else "") + ".",
         "",
         "> **Caution.** " + SAFETY,
         "",

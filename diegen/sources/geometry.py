@@ -19,7 +19,11 @@ __all__ = ["part_geometry"]
 
 
 def part_geometry(spec: RibSpec) -> RibGeometry:
-    """The die outline, flange runs, holes, cut-outs and pins of the part ``spec`` draws (mm), as one piece."""
+    """The die outline, flange runs, holes, cut-outs and pins of the part ``spec`` draws (mm), as one piece.
+
+    Each flanged run carries its own flange height (``Run.flange_height_mm``, from the drawn part's flange runs:
+    ``DrawnPiece.run_flanges``), which the analysis, blank and die follow.
+    """
     drawn, shared = spec.drawn, spec.shared
     assert drawn is not None, "part_geometry takes a kind: part spec"
     rules = shared.holes.rules

@@ -13,6 +13,8 @@ fills a :class:`~diegen.geometry.types.PieceGeometry` the forming analysis, blan
   (project limit: a gentler turn is left inside its run, where the contoured-flange strain, windowed
   over one flange width, sees it as a tight curve); a concave corner of a mold-line outline becomes a
   round of the sheet thickness in the die outline and so is no corner of the die;
+* each flanged run carries its flange's mold-line height (a run of its own height, or the spec's); a cut
+  edge carries none;
 * relief points are the die's corners where a flanged run meets another flanged run;
 * round holes become holes (plain, or flanged to a given height), other inner contours cutouts;
   drawn pin spots become pins (or pins are placed as for a rib when none are drawn).
