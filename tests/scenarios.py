@@ -300,7 +300,7 @@ def parts() -> list[Scenario]:
         # straight between them (smooth junctions: the blank steps), and a bent-up channel of two heights
         part("P13", inch=False, outline="{points: [[0, 0], [160, 0, 1], [160, 140], [0, 140, 1]], is: die}",
              flanges="[{from: [0, 0], to: [160, 0]}, {from: [160, 0], to: [160, 140], height: 18}, "
-                     "{from: [0, 140], to: [0, 0], height: 8}]", alloy="2024-O", t_mm=0.8, flange_mm=12.0,
+                     "{from: [0, 140], to: [0, 0], height: 8}]", alloy="2024-T3", t_mm=0.8, flange_mm=12.0,
              radius_factor=1.2, relief="flutes", die=routed("solid-surface", 18.0, 6.0), force="40 ton",
              box_mm=(500.0, 350.0)),
         part("P14", inch=True, outline="{points: [[0, 0], [8, 0], [8, 3], [0, 3]], is: mold-line}",

@@ -24,6 +24,8 @@ from test_parts import SHARED, _parse, only_piece, part_spec
 
 from diegen import api
 from diegen.die.from_analysis import die_input
+from diegen.die.model import flute_scale, loft_sections, outline_model
+from diegen.die.outline import flute_taper_ratio
 from diegen.reports.sheet import shop_sheet
 
 T, R, STOCK = 0.8, 3.0, 19.0  # SHARED: 0.8 mm sheet, 3 mm bend radius, 12 mm flange, 19 mm die stock
@@ -113,8 +115,8 @@ def test_the_blank_steps_where_two_heights_meet_without_a_corner() -> None:
 
 
 def test_the_die_stands_on_the_tallest_flange_and_its_flutes_reach_each_flange_edge() -> None:
-    """Die height: whole 19 mm layers for the tallest flange + 3 mm; the flutes' taper ends at the lowest fluted
-    flange's edge, so every flute has its full depth at its own flange's edge."""
+    """Die height: whole 19 mm layers for the tallest flange + 3 mm; each flute tapers from nothing at the top to
+    full depth at its own flange's edge (8 or 20 mm down), and the die's sections hold that."""
     spec = part_spec(STADIUM, stadium(20, 8, "relief: flutes\n"))
     analysis, piece = only_piece(spec)
     layers = math.ceil((20.0 + 3.0) / STOCK)
@@ -122,7 +124,16 @@ def test_the_die_stands_on_the_tallest_flange_and_its_flutes_reach_each_flange_e
     assert piece.flutes, "both half circles shrink past their limits"
     die = die_input(analysis, piece)
     assert die.height_mm == layers * STOCK
-    assert die.flute_length_mm == 8.0
+    assert die.flute_length_mm == 20.0  # the tallest fluted flange
+    heights = {f.length_mm for f in die.flutes}
+    assert heights == {8.0, 20.0}
+    for flute in die.flutes:  # the flute in the 8 mm run is at full depth 8 mm down, half depth 4 mm down
+        own = flute.length_mm
+        ratio = flute_taper_ratio(die.flute_length_mm, flute)
+        assert min(flute_scale(die, own) * ratio, 1.0) == pytest.approx(1.0)
+        assert min(flute_scale(die, own / 2) * ratio, 1.0) == pytest.approx(0.5)
+    _, wall = loft_sections(die)
+    assert {8.0, 20.0} <= {round(s.depth_mm, 9) for s in wall}  # the ruled wall has a section where each taper ends
     flute_legs = sorted(r.leg.leg_mm for r in piece.press.legs if r.leg.kind == "flute")
     assert flute_legs == [8.0, 20.0]
     # one height on every run: the die stands on it alone (19 mm, one layer, for 12 mm + 3 mm)
@@ -142,7 +153,7 @@ def test_reports_state_each_runs_height(tmp_path: Path) -> None:
     assert all(r["developed_width_mm"] > 0 and r["shrink_limit"] > 0 for r in runs)
     json.dumps(document)
     assert "8.0 mm high" in text and "20.0 mm high" in text
-    assert piece_doc["die"]["flute_length_mm"] == 8.0  # both half circles carry flutes
+    assert piece_doc["die"]["flute_lengths_mm"] == [8.0, 20.0]  # both half circles carry flutes
     (rib,) = analysis.ribs if hasattr(analysis, "ribs") else (analysis,)
     sheet = shop_sheet(rib, rib.pieces[0])
     assert "flange runs of their own heights, 8.00 mm" in sheet and "20.00 mm" in sheet
@@ -212,3 +223,25 @@ def test_flutes_and_notches_are_sized_by_their_own_runs_flange() -> None:
         u = ((p.x - centre[0]) / 100.0, (p.y - centre[1]) / 100.0)  # outward normal of the half circle
         just_inside_edge = Point(p.x + u[0] * (d - 0.2), p.y + u[1] * (d - 0.2))
         assert not blank.contains(just_inside_edge), (notch.s_mm, height)
+
+
+def test_each_flute_in_the_die_section_is_as_deep_as_its_own_taper() -> None:
+    """The die's horizontal section 4 mm below the top face (no wall inset): a flute in the 8 mm flange is sunk to
+    half its depth, one in the 20 mm flange to a fifth (the taper is linear from the top face to its flange's edge);
+    measured as the largest distance of the groove's points from the die outline (shapely)."""
+    spec = part_spec(STADIUM, stadium(20, 8, "relief: flutes\n"))
+    analysis, piece = only_piece(spec)
+    die = die_input(analysis, piece)
+    model = outline_model(die)
+    pieces = model.offset(0.0, flute_scale=flute_scale(die, 4.0))
+    ring = Polygon(piece.piece.outline).exterior
+    grooves = [p for p, span in zip(pieces, model.spans, strict=True) if span.kind == "groove"]
+    assert len(grooves) == len(die.flutes)
+    seen = set()
+    for groove, g in zip(grooves, model.grooves, strict=True):
+        sink = max(ring.distance(Point(p)) for p in groove.points)
+        own = die.flute_length_mm / g.taper_ratio  # the flute's own taper length
+        # 2 %: the groove is sampled at fixed fractions, not necessarily at its deepest point (0.5 against 0.2)
+        assert sink == pytest.approx(g.depth * min(4.0 / own, 1.0), rel=0.02)
+        seen.add(round(own, 6))
+    assert seen == {8.0, 20.0}

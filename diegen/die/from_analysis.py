@@ -25,15 +25,15 @@ def pin_depth_mm(dowel_d_mm: float, die_height_mm: float) -> float:
 
 
 def flute_length_mm(piece: Any, spec_height_mm: float) -> float:
-    """How far down the die wall the flutes taper to full depth (mm): the flange height (``piece``: PieceAnalysis).
+    """How far down the die wall the flutes taper to full depth (mm): the flange height, or where a part's
+    flute-bearing runs differ in height the tallest of them (``piece``: PieceAnalysis); each flute then tapers to
+    its own flange's height (:func:`flute_lengths_mm`)."""
+    return max(flute_lengths_mm(piece, spec_height_mm), default=spec_height_mm)
 
-    The die model has one taper for all its flutes.  Where a part's flute-bearing runs differ in height it is the
-    lowest of them, so every flute is at full depth at its own flange's edge, the depth its gather was sized for;
-    a flute in a taller run then reaches full depth higher up its flange and keeps it to the edge, gathering
-    more metal than the model counts there (design choice: erring on more gather, never less).
-    """
-    heights = [height_of_run(piece, f.s_mm, spec_height_mm) for f in piece.flutes]
-    return min(heights, default=spec_height_mm)
+
+def flute_lengths_mm(piece: Any, spec_height_mm: float) -> list[float]:
+    """Each flute's taper length (mm): the height of the flange it stands in."""
+    return [height_of_run(piece, f.s_mm, spec_height_mm) for f in piece.flutes]
 
 
 def height_of_run(piece: Any, s_mm: float, spec_height_mm: float) -> float:
@@ -46,6 +46,14 @@ def height_of_run(piece: Any, s_mm: float, spec_height_mm: float) -> float:
         found = run.height_mm(spec_height_mm)
         offset += sum(math.dist(a, b) for a, b in zip(run.points[:-1], run.points[1:]))
     return found
+
+
+def _die_flutes(piece: Any, spec_height_mm: float) -> tuple[DieFlute, ...]:
+    """The piece's flutes for the die; each with its own taper length where the fluted flanges differ in height."""
+    lengths = flute_lengths_mm(piece, spec_height_mm)
+    if len(set(lengths)) <= 1:
+        return tuple(DieFlute(f.s_mm, f.width_mm, f.depth_mm) for f in piece.flutes)
+    return tuple(DieFlute(f.s_mm, f.width_mm, f.depth_mm, length) for f, length in zip(piece.flutes, lengths))
 
 
 def die_making(die_spec: Any) -> str:
@@ -101,7 +109,7 @@ def asked_die_input(spec: Any, piece: Any) -> DieInput:
         top_radius_mm=piece.springback.die_radius_mm,
         undercut_deg=piece.springback.overbend_deg,
         cutter_radius_mm=tool.inside_radius_mm,
-        flutes=tuple(DieFlute(f.s_mm, f.width_mm, f.depth_mm) for f in piece.flutes),
+        flutes=_die_flutes(piece, shared.flange.height_mm),
         flute_length_mm=flute_length_mm(piece, shared.flange.height_mm),
         bores=tuple(DieBore(h.x, h.y, h.d + 2.0 * shared.sheet.thickness_mm) for h in g.holes if h.flanged),
         pins=tuple(DiePin(p.x, p.y, p.d - PIN_INTERFERENCE_MM, pin_depth_mm(p.d, height)) for p in g.pins),

@@ -11,7 +11,7 @@ from typing import Any
 from diegen import __version__
 from diegen.analysis import MODELS, PieceAnalysis, RibAnalysis
 from diegen.blank.drawing import BlankDrawing
-from diegen.die.from_analysis import die_making, flute_length_mm, tile_plan
+from diegen.die.from_analysis import die_making, flute_lengths_mm, tile_plan
 from diegen.die.tiles import tile_files
 from diegen.errors import GeometryError
 from diegen.findings import once
@@ -140,7 +140,8 @@ def piece_json(rib: RibAnalysis, p: PieceAnalysis) -> dict[str, Any]:
             "area_mm2": _r(g.area_mm2, 1),
             "height_mm": _r(p.die_height_mm),
             "layers": p.die_layers,
-            **({"flute_length_mm": _r(flute_length_mm(p, flange.height_mm))} if p.mixed_heights and p.flutes else {}),
+            **({"flute_lengths_mm": sorted({_r(v) for v in flute_lengths_mm(p, flange.height_mm)})}
+               if p.mixed_heights and p.flutes else {}),
             "material": rib.spec.shared.die.material,
             "buildable": p.die is None or p.die.buildable,
             "refusal": None if p.die is None else p.die.refusal,

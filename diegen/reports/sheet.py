@@ -16,7 +16,7 @@ from diegen.die.drawing import (
     TOP_FLAT,
     TOP_OUTLINE,
 )
-from diegen.die.from_analysis import die_making, flute_length_mm
+from diegen.die.from_analysis import die_making, flute_lengths_mm
 from diegen.forming.relief import flute_arc_radius
 from diegen.numbers import without_negative_zeros
 from diegen.reports.document import PRINT_ORIENTATION, SAFETY, print_json, section_label
@@ -192,9 +192,9 @@ def _wall_features(piece: PieceAnalysis, shared, step: _Steps, flute_tool: str, 
                           f"{flute_arc_radius(same[0].width_mm, same[0].depth_mm):.1f} mm)"
                           for (w, d), same in sizes.items())
         lip = max(f.lip_radius_mm for f in piece.flutes)
-        full = _both(flute_length_mm(piece, shared.flange.height_mm)) + (
-            " down (the lowest fluted flange's edge; a flute in a taller flange keeps full depth below it)"
-            if piece.mixed_heights else " down")
+        lengths = sorted(set(flute_lengths_mm(piece, shared.flange.height_mm)))
+        full = (_both(shared.flange.height_mm) + " down" if not piece.mixed_heights else
+                "its own flange's edge (" + ", ".join(_both(v) for v in lengths) + " down)")
         lines.append(step(f"**Flutes ({len(piece.flutes)}, layer `{FLUTES.name}`)**: grooves tapering from nothing at "
                           f"the top edge to full depth at {full}: {kinds} "
                           f"({flute_tool}). Round each flute's lips (where the groove meets the wall) to at least "
