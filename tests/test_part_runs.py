@@ -245,3 +245,30 @@ def test_each_flute_in_the_die_section_is_as_deep_as_its_own_taper() -> None:
         assert sink == pytest.approx(g.depth * min(4.0 / own, 1.0), rel=0.02)
         seen.add(round(own, 6))
     assert seen == {8.0, 20.0}
+
+
+def test_each_run_is_judged_against_its_own_wrinkle_limit() -> None:
+    """With no relief the residual is the shrink itself.  The wrinkle limits scale as (t/h)² (the plastic buckling
+    strain of a plate with one free edge: E. Z. Stowell, NACA TN 1556, 1948; the project's model applies it between
+    its bounds): 12 mm against 20 mm gives (20/12)².  The verdict takes the run whose shrink is the largest fraction
+    of its own limit, and reports that run's shrink and limit."""
+    spec = part_spec(STADIUM, stadium(20, 8, "relief: none\n"))
+    _, piece = only_piece(spec)
+    limits = {h.height_mm: h.shrink_limit for h in piece.heights}
+    assert limits[12.0] / limits[20.0] == pytest.approx((20.0 / 12.0) ** 2, rel=1e-12)
+    worst = max(piece.runs, key=lambda r: float(-r.profile.strain.min()) / r.shrink_limit)
+    assert piece.flange.shrink_limit == worst.shrink_limit
+    assert piece.flange.residual_shrink == pytest.approx(float(-worst.profile.strain.min()), rel=1e-12)
+    assert worst.height_mm == 20.0  # the taller flange on the same plan radius: more shrink, lower limit
+
+
+def test_a_printed_die_stands_on_the_tallest_flange() -> None:
+    """A printed die is printed to the tallest flange + 3 mm, in whole millimetres, where that is more than its
+    stock thickness (20 + 3 = 23 mm against 10 mm)."""
+    text = SHARED.replace("die: {material: solid-surface, stock_thickness: 19, cutter_diameter: 6}",
+                          "die: {material: pla, stock_thickness: 10, cutter_diameter: 6}")
+    spec = _parse(text + f"outline: {STADIUM}\n" + stadium(20, 8))
+    _, piece = only_piece(spec)
+    assert (piece.die_layers, piece.die_height_mm) == (1, 23.0)
+    assert any(w.code == "print-height-raised" and "tallest flange height 20.0 mm" in w.message
+               for w in piece.warnings)
