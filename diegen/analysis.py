@@ -127,8 +127,9 @@ class PieceAnalysis:
 
     @property
     def mixed_heights(self) -> bool:
-        """Whether the piece's flanged runs differ in height."""
-        return len(self.heights) > 1
+        """Whether the piece's flanged runs have heights of their own: they differ, or all differ from the spec's
+        ``flange.height`` (the reports then state each run's height)."""
+        return len(self.heights) > 1 or any(h.height_mm != self.layout.height_mm for h in self.heights)
 
     @property
     def max_shrink(self) -> float:
@@ -474,9 +475,9 @@ def _blank(piece: PieceGeometry, springback: Springback, layout: FlangeLayout, n
            holes: list[HoleCheck], alloy: materials.SheetAlloy, t: float, heights: tuple[RunHeight, ...],
            spec_height_mm: float) -> BlankDrawing:
     tangent_inset = springback.die_radius_mm * math.tan(math.radians(springback.die_angle_deg) / 2)
-    offset = layout.developed_width_mm - tangent_inset
     # each flanged run's edge stands its own flange's developed width less the tangent inset outside the die outline
     own = {h.height_mm: h.layout.developed_width_mm - tangent_inset for h in heights}
+    offset = own[heights[0].height_mm] if len(heights) == 1 else layout.developed_width_mm - tangent_inset
     run_offsets = None
     if len(heights) > 1:
         run_offsets = tuple(own[run.height_mm(spec_height_mm)] if run.flanged else 0.0 for run in piece.runs)

@@ -272,3 +272,17 @@ def test_a_printed_die_stands_on_the_tallest_flange() -> None:
     assert (piece.die_layers, piece.die_height_mm) == (1, 23.0)
     assert any(w.code == "print-height-raised" and "tallest flange height 20.0 mm" in w.message
                for w in piece.warnings)
+
+
+def test_a_part_whose_only_flange_has_its_own_height() -> None:
+    """One flanged edge 8 mm high (the flange section says 12 mm), the rest cut: the blank stands that run's
+    developed width less the tangent inset out (FAA-H-8083-31 ch. 4), the reports name the 8 mm height."""
+    spec = part_spec("{points: [[0, 0], [240, 0], [240, 160], [0, 160]], is: die}",
+                     "flanges: [{from: [0, 0], to: [240, 0], height: 8}]\n")
+    analysis, piece = only_piece(spec)
+    k, inset = piece.layout.k_factor, tangent_inset(piece)
+    _, ys = zip(*piece.blank.outer)
+    assert (min(ys), max(ys)) == pytest.approx((-(developed(8.0, k) - inset), 160.0), abs=1e-6)
+    assert piece.mixed_heights and [h.height_mm for h in piece.heights] == [8.0]
+    assert "8.0 mm high" in api.report_text(analysis)
+    assert (piece.die_layers, piece.die_height_mm) == (1, STOCK)

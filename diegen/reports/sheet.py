@@ -76,7 +76,7 @@ def _header(rib: RibAnalysis, piece: PieceAnalysis) -> list[str]:
         what +
         f"Sheet **{piece.alloy.name} {_both(shared.sheet.thickness_mm)}**; {_flange_heights(piece, shared)} "
         f"at inside radius {_both(sb.part_radius_mm)}" + (
-            "; the blank's edge steps where two heights meet" if piece.mixed_heights else "") + ".",
+            "; the blank's edge steps where two heights meet" if len(piece.heights) > 1 else "") + ".",
         "",
         "> **Caution.** " + SAFETY,
         "",
