@@ -281,13 +281,6 @@ def _height_of(heights: tuple[RunHeight, ...], height_mm: float) -> RunHeight:
     return next(h for h in heights if h.height_mm == height_mm)
 
 
-def height_at(piece: PieceGeometry, s_mm: float, spec_height_mm: float) -> float:
-    """The flange height (mm) of the run ``s_mm`` along the piece's outline lies on."""
-    offsets = _run_offsets(piece)
-    index = max(0, int(np.searchsorted(offsets, s_mm % max(piece.length_mm, 1e-9), side="right")) - 1)
-    return piece.runs[min(index, len(piece.runs) - 1)].height_mm(spec_height_mm)
-
-
 def _flange_runs(spec: RibSpec, piece: PieceGeometry, alloy: materials.SheetAlloy,
                  heights: tuple[RunHeight, ...]) -> list[FlangeRun]:
     """Strain along every flanged curve of the piece (over its own flange's developed width), with its runs past
@@ -399,9 +392,10 @@ def _press(spec: RibSpec, piece: PieceGeometry, springback: Springback, flutes: 
     # one leg per flange height (a part's flange runs of heights of their own), the flutes' per height they stand in
     legs = [press_model.FlangeLeg("perimeter flange" + ("" if len(heights) == 1 else f" {h.height_mm:g} mm"),
                                   "perimeter", h.height_mm, radius) for h in heights]
-    fluted = sorted({height_at(piece, f.s_mm, shared.flange.height_mm) for f in flutes})
+    flute_heights = [piece.flange_height_at(f.s_mm, shared.flange.height_mm) for f in flutes]
+    fluted = sorted(set(flute_heights))
     for h in fluted:
-        lip = min(f.lip_radius_mm or radius for f in flutes if height_at(piece, f.s_mm, shared.flange.height_mm) == h)
+        lip = min(f.lip_radius_mm or radius for f, own in zip(flutes, flute_heights) if own == h)
         legs.append(press_model.FlangeLeg("flutes" + ("" if len(fluted) == 1 else f" {h:g} mm"), "flute", h, lip))
     legs += [press_model.FlangeLeg(f"hole flange Ø{h.d_mm:.0f} mm", "hole", h.flange_height_mm, radius)
              for h in holes if h.flange_height_mm > 0.0]
@@ -482,7 +476,7 @@ def _blank(piece: PieceGeometry, springback: Springback, layout: FlangeLayout, n
     if len(heights) > 1:
         run_offsets = tuple(own[run.height_mm(spec_height_mm)] if run.flanged else 0.0 for run in piece.runs)
     cuts = [notch_polygon(piece, n.s_mm, n.opening_mm, n.depth_mm,
-                          offset if run_offsets is None else own[height_at(piece, n.s_mm, spec_height_mm)])
+                          offset if run_offsets is None else own[piece.flange_height_at(n.s_mm, spec_height_mm)])
             for n in notches]
     blank = develop_blank(piece, offset_mm=offset, die_radius_mm=springback.die_radius_mm,
                           tangent_inset_mm=tangent_inset, thickness_mm=t,
@@ -530,4 +524,4 @@ def _shift(item, offset: float):
 
 __all__ = ["GRAIN_ANGLE_DEG", "MODELS", "STOCK_CLEARANCE_MM", "FlangeJudgement", "FlangeRun", "HoleCheck",
            "PieceAnalysis", "RibAnalysis", "RunHeight", "analyse_rib", "bend_sheet", "check_radius", "die_inset_mm",
-           "die_layers", "height_at", "springback_for", "tallest_flange_mm"]
+           "die_layers", "springback_for", "tallest_flange_mm"]

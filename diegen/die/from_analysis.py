@@ -7,7 +7,6 @@ dowel in plastics and solid-surface stock) and ``pin_depth_mm`` deep.
 
 from __future__ import annotations
 
-import math
 from dataclasses import replace
 from typing import Any
 
@@ -33,19 +32,7 @@ def flute_length_mm(piece: Any, spec_height_mm: float) -> float:
 
 def flute_lengths_mm(piece: Any, spec_height_mm: float) -> list[float]:
     """Each flute's taper length (mm): the height of the flange it stands in."""
-    return [height_of_run(piece, f.s_mm, spec_height_mm) for f in piece.flutes]
-
-
-def height_of_run(piece: Any, s_mm: float, spec_height_mm: float) -> float:
-    """The flange height (mm) of the run of the analysed ``piece`` that ``s_mm`` along the outline lies on."""
-    offset = 0.0
-    found = spec_height_mm
-    for run in piece.piece.runs:
-        if s_mm + 1e-9 < offset:
-            break
-        found = run.height_mm(spec_height_mm)
-        offset += sum(math.dist(a, b) for a, b in zip(run.points[:-1], run.points[1:]))
-    return found
+    return [piece.piece.flange_height_at(f.s_mm, spec_height_mm) for f in piece.flutes]
 
 
 def _die_flutes(piece: Any, spec_height_mm: float) -> tuple[DieFlute, ...]:
