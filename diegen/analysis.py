@@ -63,6 +63,18 @@ class FlangeRun:
     profile: StrainProfile = field(compare=False)
     shrink_runs: tuple[relief_model.ShrinkRun, ...]
     stretch_runs: tuple[relief_model.StretchRun, ...]
+    height_mm: float = 0.0  # the run's mold-line flange height
+    shrink_limit: float = 0.0  # the wrinkle limit of a flange of that height
+
+
+@dataclass(frozen=True)
+class RunHeight:
+    """The flanged runs of a piece that share one flange height: their developed width and wrinkle limit."""
+
+    height_mm: float
+    layout: FlangeLayout
+    shrink_limit: float
+    run_indexes: tuple[int, ...]  # into the piece's runs
 
 
 @dataclass(frozen=True)
@@ -109,6 +121,15 @@ class PieceAnalysis:
     die_layers: int
     warnings: tuple[Finding, ...]
     die: DiePlan | None = None  # the die the builder will make, or why it cannot (diegen.die.plan)
+    # one entry per flange height of the piece's flanged runs, lowest first (several for a part whose flange runs
+    # have heights of their own; ``layout`` is the spec's flange)
+    heights: tuple[RunHeight, ...] = ()
+
+    @property
+    def mixed_heights(self) -> bool:
+        """Whether the piece's flanged runs have heights of their own: they differ, or all differ from the spec's
+        ``flange.height`` (the reports then state each run's height)."""
+        return len(self.heights) > 1 or any(h.height_mm != self.layout.height_mm for h in self.heights)
 
     @property
     def max_shrink(self) -> float:
@@ -135,14 +156,22 @@ def die_layers(stock_mm: float, flange_height_mm: float) -> int:
     return max(1, math.ceil((flange_height_mm + STOCK_CLEARANCE_MM) / stock_mm - 1e-9))
 
 
+def tallest_flange_mm(spec: RibSpec) -> float:
+    """The tallest flange the die forms (mm): the spec's ``flange.height``, or for a part whose flange runs have
+    heights of their own, the tallest run."""
+    if spec.drawn is None or not spec.drawn.part.runs:
+        return spec.shared.flange.height_mm
+    return max(run.flange.height_mm for run in spec.drawn.part.runs)
+
+
 def die_build_up(spec: RibSpec) -> tuple[int, float]:
     """(layers of stock, die height in mm) of the spec's die.
 
-    A routed or machined die is stacked from whole layers of stock, enough for the flange plus clearance.  A
-    printed die is one piece, printed to ``die.stock_thickness`` high, or to the flange height plus clearance
+    A routed or machined die is stacked from whole layers of stock, enough for the tallest flange plus clearance.
+    A printed die is one piece, printed to ``die.stock_thickness`` high, or to the tallest flange plus clearance
     (rounded up to a whole millimetre) where that is more.
     """
-    die, flange = spec.shared.die, spec.shared.flange.height_mm
+    die, flange = spec.shared.die, tallest_flange_mm(spec)
     if materials.die_making(die.material, die.print_bed_mm) == "printed":
         return 1, max(die.stock_thickness_mm, float(math.ceil(flange + STOCK_CLEARANCE_MM - 1e-9)))
     layers = die_layers(die.stock_thickness_mm, flange)
@@ -232,16 +261,39 @@ def _run_offsets(piece: PieceGeometry) -> list[float]:
     return offsets
 
 
-def _flange_runs(spec: RibSpec, piece: PieceGeometry, alloy: materials.SheetAlloy, layout: FlangeLayout,
-                 shrink_limit: float) -> list[FlangeRun]:
-    """Strain along every flanged curve of the piece, with its runs past the limits."""
+def _run_heights(spec: RibSpec, piece: PieceGeometry, alloy: materials.SheetAlloy,
+                 layout: FlangeLayout) -> tuple[RunHeight, ...]:
+    """The piece's flanged runs grouped by flange height, each height with its own layout and wrinkle limit."""
+    flange, t = spec.shared.flange, spec.shared.sheet.thickness_mm
+    by_height: dict[float, list[int]] = {}
+    for index, run in enumerate(piece.runs):
+        if run.flanged:
+            by_height.setdefault(run.height_mm(flange.height_mm), []).append(index)
+    if not by_height:
+        by_height[flange.height_mm] = []
+    return tuple(RunHeight(h, layout if h == flange.height_mm else
+                           flange_layout(h, flange.bend_radius_mm, t, alloy.k_factor),
+                           relief_model.wrinkle_limit(alloy.shrink_limit, h, t), tuple(indexes))
+                 for h, indexes in sorted(by_height.items()))
+
+
+def _height_of(heights: tuple[RunHeight, ...], height_mm: float) -> RunHeight:
+    return next(h for h in heights if h.height_mm == height_mm)
+
+
+def _flange_runs(spec: RibSpec, piece: PieceGeometry, alloy: materials.SheetAlloy,
+                 heights: tuple[RunHeight, ...]) -> list[FlangeRun]:
+    """Strain along every flanged curve of the piece (over its own flange's developed width), with its runs past
+    its own flange's limits."""
     runs = []
     for index, (run, offset) in enumerate(zip(piece.plain_runs, _run_offsets(piece), strict=False)):
         if run.kind != "curve" or not run.flanged:
             continue
-        profile = strain_along(np.asarray(run.points), layout.developed_width_mm, closed=False)
-        runs.append(FlangeRun(index, offset, profile, relief_model.shrink_runs(profile, shrink_limit),
-                              relief_model.stretch_runs(profile, alloy.stretch_limit)))
+        own = _height_of(heights, run.height_mm(spec.shared.flange.height_mm))
+        profile = strain_along(np.asarray(run.points), own.layout.developed_width_mm, closed=False)
+        runs.append(FlangeRun(index, offset, profile, relief_model.shrink_runs(profile, own.shrink_limit),
+                              relief_model.stretch_runs(profile, alloy.stretch_limit), own.height_mm,
+                              own.shrink_limit))
     return runs
 
 
@@ -281,16 +333,22 @@ def _holes(spec: RibSpec, piece: PieceGeometry, alloy: materials.SheetAlloy) -> 
 def _judge_flange(spec: RibSpec, runs: list[FlangeRun], flutes: tuple[relief_model.Flute, ...],
                   notches: tuple[relief_model.Notch, ...], holes: list[HoleCheck], shrink_limit: float
                   ) -> tuple[FlangeJudgement, list[Finding]]:
-    """Residual shrink window by window after relief, the verdict, and the remedies that apply, in order."""
-    worst, at = 0.0, None
+    """Residual shrink window by window after relief, the verdict, and the remedies that apply, in order.
+
+    Each run's residual is judged against its own flange's wrinkle limit (``shrink_limit`` is the piece's when all
+    its flanges are of one height); the worst run is the one whose residual is the largest fraction of its limit.
+    """
+    worst, at, worst_ratio = 0.0, None, 0.0
     profiles = []
     for run in runs:
         local = [(f.s_mm - run.s_offset_mm, f.width_mm, f.gather_mm) for f in flutes]
         local += [(n.s_mm - run.s_offset_mm, n.opening_mm, n.opening_mm) for n in notches]
         left = relief_model.residual_shrink(run.profile, local)
         profiles.append(left)
-        if left.size and float(left.max()) > worst:
+        limit = run.shrink_limit or shrink_limit
+        if left.size and float(left.max()) / limit > worst_ratio:
             worst, at = float(left.max()), run.s_offset_mm + float(run.profile.s_mm[int(left.argmax())])
+            worst_ratio, shrink_limit = worst / limit, limit
     stretch_bad = any(r.stretch_runs for r in runs) or not all(h.ok for h in holes)
     relief = spec.shared.relief
     alloy = spec.shared.sheet.alloy
@@ -325,16 +383,20 @@ def _judge_flange(spec: RibSpec, runs: list[FlangeRun], flutes: tuple[relief_mod
 
 
 def _press(spec: RibSpec, piece: PieceGeometry, springback: Springback, flutes: tuple[relief_model.Flute, ...],
-           holes: list[HoleCheck], die_height_mm: float) -> press_model.PressCheck:
+           holes: list[HoleCheck], die_height_mm: float, heights: tuple[RunHeight, ...]) -> press_model.PressCheck:
     shared = spec.shared
     alloy = materials.sheet_alloy(shared.sheet.alloy)
     die = materials.die_material(shared.die.material)
     minx, miny, maxx, maxy = _bounds(piece)
     radius = springback.die_radius_mm
-    legs = [press_model.FlangeLeg("perimeter flange", "perimeter", shared.flange.height_mm, radius)]
-    if flutes:
-        lip = min(f.lip_radius_mm or radius for f in flutes)
-        legs.append(press_model.FlangeLeg("flutes", "flute", shared.flange.height_mm, lip))
+    # one leg per flange height (a part's flange runs of heights of their own), the flutes' per height they stand in
+    legs = [press_model.FlangeLeg("perimeter flange" + ("" if len(heights) == 1 else f" {h.height_mm:g} mm"),
+                                  "perimeter", h.height_mm, radius) for h in heights]
+    flute_heights = [piece.flange_height_at(f.s_mm, shared.flange.height_mm) for f in flutes]
+    fluted = sorted(set(flute_heights))
+    for h in fluted:
+        lip = min(f.lip_radius_mm or radius for f, own in zip(flutes, flute_heights) if own == h)
+        legs.append(press_model.FlangeLeg("flutes" + ("" if len(fluted) == 1 else f" {h:g} mm"), "flute", h, lip))
     legs += [press_model.FlangeLeg(f"hole flange Ø{h.d_mm:.0f} mm", "hole", h.flange_height_mm, radius)
              for h in holes if h.flange_height_mm > 0.0]
     press = shared.press
@@ -363,9 +425,10 @@ def _analyse_piece(spec: RibSpec, piece: PieceGeometry, alloy: materials.SheetAl
                    springback: Springback, layout: FlangeLayout) -> PieceAnalysis:
     shared = spec.shared
     t = shared.sheet.thickness_mm
-    shrink_limit = relief_model.wrinkle_limit(alloy.shrink_limit, shared.flange.height_mm, t)
-    runs = _flange_runs(spec, piece, alloy, layout, shrink_limit)
-    flutes, notches, notes, warnings = _relief(spec, piece, runs, layout, springback)
+    heights = _run_heights(spec, piece, alloy, layout)
+    shrink_limit = heights[-1].shrink_limit  # the tallest flange's (the lowest), for a piece without flanged curves
+    runs = _flange_runs(spec, piece, alloy, heights)
+    flutes, notches, notes, warnings = _relief(spec, piece, runs, heights, springback)
     warnings += _stretch_findings(runs, alloy)
     if shared.relief == "none":
         for run in runs:
@@ -373,40 +436,52 @@ def _analyse_piece(spec: RibSpec, piece: PieceGeometry, alloy: materials.SheetAl
                 where = run.s_offset_mm + shrink.s_start_mm
                 warnings.append(Finding(
                     "shrink-without-relief", f"shrink {-shrink.peak_strain:.3f} above the limit "
-                    f"{shrink_limit:.3f} over {shrink.length_mm:.0f} mm from {where:.0f} mm along the outline "
+                    f"{run.shrink_limit:.3f} over {shrink.length_mm:.0f} mm from {where:.0f} mm along the outline "
                     "and relief is 'none': expect wrinkles", key="relief", s_mm=where))
     holes, hole_findings = _holes(spec, piece, alloy)
     warnings += hole_findings
     judgement, judged = _judge_flange(spec, runs, flutes, notches, holes, shrink_limit)
     warnings += judged
     layers, height = die_build_up(spec)
-    press = _press(spec, piece, springback, flutes, holes, height)
+    press = _press(spec, piece, springback, flutes, holes, height, heights)
+    tallest = tallest_flange_mm(spec)
     warnings += _press_findings(press, springback)
     if height > shared.die.stock_thickness_mm + 1e-9 and layers == 1:
         warnings.append(Finding(
             "print-height-raised", f"die.stock_thickness {shared.die.stock_thickness_mm:.1f} mm is lower than the "
-            f"flange height {shared.flange.height_mm:.1f} mm + {STOCK_CLEARANCE_MM:.0f} mm clearance: the die is "
+            f"{'tallest ' if len(heights) > 1 else ''}flange height {tallest:.1f} mm + {STOCK_CLEARANCE_MM:.0f} mm "
+            "clearance: the die is "
             f"printed {height:.0f} mm high", key="die.stock_thickness"))
     if layers > 1:
         warnings.append(Finding(
-            "die-laminated", f"die stock {shared.die.stock_thickness_mm:.1f} mm is thinner than the flange height "
-            f"{shared.flange.height_mm:.1f} mm + {STOCK_CLEARANCE_MM:.0f} mm clearance: laminate {layers} layers "
+            "die-laminated", f"die stock {shared.die.stock_thickness_mm:.1f} mm is thinner than the "
+            f"{'tallest ' if len(heights) > 1 else ''}flange height {tallest:.1f} mm + {STOCK_CLEARANCE_MM:.0f} mm "
+            f"clearance: laminate {layers} layers "
             f"({height:.1f} mm)", key="die.stock_thickness"))
-    blank = _blank(piece, springback, layout, notches, holes, alloy, t)
+    blank = _blank(piece, springback, layout, notches, holes, alloy, t, heights, shared.flange.height_mm)
     return PieceAnalysis(piece, alloy, minimum, springback, layout, tuple(runs), flutes, notches, notes, judgement,
                          tuple(holes), press, blank, height, layers,
-                         tuple(w.about(piece.part_id, spec.positions, rib_id=spec.id) for w in warnings))
+                         tuple(w.about(piece.part_id, spec.positions, rib_id=spec.id) for w in warnings),
+                         heights=heights)
 
 
 def _blank(piece: PieceGeometry, springback: Springback, layout: FlangeLayout, notches: tuple[relief_model.Notch, ...],
-           holes: list[HoleCheck], alloy: materials.SheetAlloy, t: float) -> BlankDrawing:
+           holes: list[HoleCheck], alloy: materials.SheetAlloy, t: float, heights: tuple[RunHeight, ...],
+           spec_height_mm: float) -> BlankDrawing:
     tangent_inset = springback.die_radius_mm * math.tan(math.radians(springback.die_angle_deg) / 2)
-    offset = layout.developed_width_mm - tangent_inset
-    cuts = [notch_polygon(piece, n.s_mm, n.opening_mm, n.depth_mm, offset) for n in notches]
+    # each flanged run's edge stands its own flange's developed width less the tangent inset outside the die outline
+    own = {h.height_mm: h.layout.developed_width_mm - tangent_inset for h in heights}
+    offset = own[heights[0].height_mm] if len(heights) == 1 else layout.developed_width_mm - tangent_inset
+    run_offsets = None
+    if len(heights) > 1:
+        run_offsets = tuple(own[run.height_mm(spec_height_mm)] if run.flanged else 0.0 for run in piece.runs)
+    cuts = [notch_polygon(piece, n.s_mm, n.opening_mm, n.depth_mm,
+                          offset if run_offsets is None else own[piece.flange_height_at(n.s_mm, spec_height_mm)])
+            for n in notches]
     blank = develop_blank(piece, offset_mm=offset, die_radius_mm=springback.die_radius_mm,
                           tangent_inset_mm=tangent_inset, thickness_mm=t,
                           material=f"{alloy.name}, {t:.3f} mm", pilot_diameters=[h.pilot_d_mm for h in holes],
-                          notch_cuts=cuts)
+                          notch_cuts=cuts, run_offsets_mm=run_offsets)
     return replace(blank, grain_angle_deg=GRAIN_ANGLE_DEG)
 
 
@@ -415,7 +490,7 @@ def _bounds(piece: PieceGeometry) -> tuple[float, float, float, float]:
     return float(pts[:, 0].min()), float(pts[:, 1].min()), float(pts[:, 0].max()), float(pts[:, 1].max())
 
 
-def _relief(spec: RibSpec, piece: PieceGeometry, runs: list[FlangeRun], layout: FlangeLayout,
+def _relief(spec: RibSpec, piece: PieceGeometry, runs: list[FlangeRun], heights: tuple[RunHeight, ...],
             springback: Springback) -> tuple[tuple, tuple, tuple[str, ...], list[Finding]]:
     """Flutes (placed by the local excess, lips rounded to the die radius), notches, their notes, and findings
     for relief that does not fit."""
@@ -428,7 +503,7 @@ def _relief(spec: RibSpec, piece: PieceGeometry, runs: list[FlangeRun], layout: 
     for run in runs:
         for shrink in run.shrink_runs:
             if shared.relief == "flutes":
-                found = relief_model.flutes(shrink, shared.flange.height_mm, t, springback.die_radius_mm,
+                found = relief_model.flutes(shrink, run.height_mm, t, springback.die_radius_mm,
                                             strain=run.profile, lip_radius=springback.die_radius_mm)
                 flutes.extend(_shift(f, run.s_offset_mm) for f in found.flutes)
                 notes.append(found.note)
@@ -436,7 +511,8 @@ def _relief(spec: RibSpec, piece: PieceGeometry, runs: list[FlangeRun], layout: 
                     warnings.append(Finding("relief-short", found.note, key="relief",
                                             s_mm=run.s_offset_mm + shrink.s_start_mm))
             elif shared.relief == "notches":
-                found_n = relief_model.notches(shrink, layout.developed_width_mm, t, shared.flange.bend_radius_mm)
+                width = _height_of(heights, run.height_mm).layout.developed_width_mm
+                found_n = relief_model.notches(shrink, width, t, shared.flange.bend_radius_mm)
                 notches.extend(_shift(n, run.s_offset_mm) for n in found_n.notches)
                 notes.append(found_n.note)
     return tuple(flutes), tuple(notches), tuple(notes), warnings
@@ -447,5 +523,5 @@ def _shift(item, offset: float):
 
 
 __all__ = ["GRAIN_ANGLE_DEG", "MODELS", "STOCK_CLEARANCE_MM", "FlangeJudgement", "FlangeRun", "HoleCheck",
-           "PieceAnalysis", "RibAnalysis", "analyse_rib", "bend_sheet", "check_radius", "die_inset_mm", "die_layers",
-           "springback_for"]
+           "PieceAnalysis", "RibAnalysis", "RunHeight", "analyse_rib", "bend_sheet", "check_radius", "die_inset_mm",
+           "die_layers", "springback_for", "tallest_flange_mm"]

@@ -296,6 +296,18 @@ def parts() -> list[Scenario]:
              "L -40 20 Z\", units: mm, is: mold-line}", alloy="5052-H32", t_mm=0.8, flange_mm=10.0,
              radius_factor=2.0, relief="flutes", die=routed("fibreboard", 10.0, 6.0), force="20 ton",
              box_mm=(400.0, 300.0)),
+        # flange runs of their own heights: a stadium whose half circles stand 18 and 8 mm against the 12 mm of the
+        # straight between them (smooth junctions: the blank steps), and a bent-up channel of two heights
+        part("P13", inch=False, outline="{points: [[0, 0], [160, 0, 1], [160, 140], [0, 140, 1]], is: die}",
+             flanges="[{from: [0, 0], to: [160, 0]}, {from: [160, 0], to: [160, 140], height: 18}, "
+                     "{from: [0, 140], to: [0, 0], height: 8}]", alloy="2024-T3", t_mm=0.8, flange_mm=12.0,
+             radius_factor=1.2, relief="flutes", die=routed("solid-surface", 18.0, 6.0), force="40 ton",
+             box_mm=(500.0, 350.0)),
+        part("P14", inch=True, outline="{points: [[0, 0], [8, 0], [8, 3], [0, 3]], is: mold-line}",
+             flanges="[{from: [0, 0], to: [8, 0], direction: up, height: 0.375}, "
+                     "{from: [8, 3], to: [0, 3], direction: up}]", alloy="6061-T4", t_mm=0.813,
+             flange_mm=15.875, radius_factor=1.2, relief="flutes", die=_die("petg", 15.875, 0, None, 6.35, True),
+             force="20 ton", box_mm=(609.6, 304.8)),
     ]
 
 

@@ -196,8 +196,13 @@ BAD = [
     ("{file: drawings/bw418-former-f5.dxf, layer: OUTLINE}", "", "outline.is", "missing required key 'is'"),
     ("{file: drawings/bw418-former-f5.dxf, layer: OUTLINE, is: mold-line}", "flanges: [{from: [0, 500], to: [90, 0]}]",
      "flanges[0]", "the nearest outline point is (0.000, 240.000) mm"),
-    ("{file: drawings/bw418-former-f5.dxf, layer: OUTLINE, is: mold-line}", "flanges: [{layer: FLANGE, height: 10}]",
-     "flanges[0].height", "a flange run of its own height is not supported"),
+    ("{file: drawings/bw418-former-f5.dxf, layer: OUTLINE, is: mold-line}",
+     "flanges: [{layer: FLANGE, height: 10, bend_radius: 3}]",
+     "flanges[0].bend_radius", "a flange run of its own bend radius is not supported"),
+    ("{file: drawings/bw418-former-f5.dxf, layer: OUTLINE, is: mold-line}", "flanges: [{layer: FLANGE, angle: 80}]",
+     "flanges[0].angle", "one form block has one die radius and one over-bend"),
+    ("{file: drawings/bw418-former-f5.dxf, layer: OUTLINE, is: mold-line}", "flanges: [{layer: FLANGE, height: -4}]",
+     "flanges[0].height", "-4"),
     ("{points: [[0, 0], [100, 0], [0, 100], [100, 100]], is: die}", "", "outline.points",
      "crosses or touches itself at (50.000, 50.000) mm"),
     ("{points: [[0, 0], [100, a], [0, 100]], is: die}", "", "outline.points[1]", "expected y as a finite number"),
@@ -438,3 +443,15 @@ def test_a_joggle_that_cannot_be_cut_is_refused_at_its_key(joggle: str, says: st
     assert main(["check", str(spec)]) == 2
     err = capsys.readouterr().err
     assert "jog.yaml:10:" in err and "joggles[0]" in err and says in err, err
+
+
+def test_a_joggle_on_a_run_of_its_own_height_keeps_that_height() -> None:
+    rect = "{points: [[0, 0], [300, 0], [300, 200], [0, 200]], is: die}"
+    spec = part_spec(rect, "flanges: [{from: [0, 0], to: [300, 0], height: 8}, {from: [300, 0], to: [0, 0]}]\n"
+                           "joggles: [{from: [100, 0], to: [160, 0], depth: 1.2}]\n")
+    _, piece = only_piece(spec)
+    (joggle,) = piece.piece.joggles
+    recessed = [r for r in piece.piece.runs if r.kind == "curve" and min(y for _, y in r.points) < 0.5
+                and max(y for _, y in r.points) > 1.0]
+    assert len(recessed) == 1 and recessed[0].flange_height_mm == 8.0
+    assert [r.flange_height_mm for r in piece.piece.runs] == [r.flange_height_mm for r in piece.piece.plain_runs]

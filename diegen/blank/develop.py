@@ -9,6 +9,14 @@ the same before and after springback, so the blank edge stands
 ``developed width − Ri·tan(θi/2)`` outside the die outline.
 
 A run without a flange (a rib tail's cut end, a drawn part's cut edge) stops the blank flush with it.
+
+A drawn part's flange runs may differ in height: each flanged run's blank edge then stands its own flange's
+developed width (less the same tangent inset: one die radius) outside the die outline.  Where two runs of
+different heights meet without a corner, the blank edge steps square, along the die outline's normal at the
+junction, from the taller flange's edge to the lower one's (design choice).  No relief hole goes there: the bend
+line runs on unbroken through the junction and only the flange's free edge steps, so no two bend lines cross
+to tear the sheet as at a corner (design choice; the step's inside corner is a sharp notch in a free edge:
+break it with a file before pressing, common practice, no source).
 Corners where a perimeter flange meets an end flange get a relief: the
 overlapping corner square is cut away and a relief hole is drilled at the
 intersection of the bend tangent lines (FAA-H-8083-31, ch. 4, "folding a box":
@@ -104,16 +112,25 @@ def _tangent_point(piece: PieceGeometry, corner: Point, inset: float) -> Point:
 
 def develop_blank(piece: PieceGeometry, *, offset_mm: float, die_radius_mm: float, tangent_inset_mm: float,
                   thickness_mm: float,
-                  material: str, pilot_diameters: Sequence[float], notch_cuts: Sequence[Polygon] = ()) -> BlankDrawing:
+                  material: str, pilot_diameters: Sequence[float], notch_cuts: Sequence[Polygon] = (),
+                  run_offsets_mm: Sequence[float] | None = None) -> BlankDrawing:
     """The flat blank of ``piece`` (mm).
 
-    ``offset_mm`` is the distance from the die outline to the blank edge;
+    ``offset_mm`` is the distance from the die outline to the blank edge; ``run_offsets_mm``, when given, that
+    distance per run of the piece (its own flange's; a cut run's is ignored) where the flanged runs differ;
     ``tangent_inset_mm`` how far inside the die outline the web's bend tangent line lies (the bend lines);
     ``pilot_diameters`` gives, per hole of the piece, the pilot hole for a
     flanged hole (ignored for plain holes, which are cut to size).
     """
     web = Polygon(piece.outline)
-    blank = web.buffer(offset_mm, quad_segs=QUAD_SEGS, join_style="mitre", mitre_limit=MITRE_LIMIT)
+    flanged_offsets = sorted({o for run, o in zip(piece.runs, run_offsets_mm, strict=True) if run.flanged}
+                             if run_offsets_mm is not None else ())
+    if len(flanged_offsets) > 1:
+        blank = _stepped_flanges(piece, web, run_offsets_mm or (), flanged_offsets)
+        offset_mm = flanged_offsets[-1]
+    else:
+        offset_mm = flanged_offsets[0] if flanged_offsets else offset_mm
+        blank = web.buffer(offset_mm, quad_segs=QUAD_SEGS, join_style="mitre", mitre_limit=MITRE_LIMIT)
     for run in piece.runs:  # a cut edge (no flange) stops the blank flush with it
         if not run.flanged and len(run.points) >= 2:
             blank = blank.difference(_beyond_cut_edge(run, web, offset_mm))
@@ -144,6 +161,24 @@ def develop_blank(piece: PieceGeometry, *, offset_mm: float, die_radius_mm: floa
                         cut_circles=tuple(cut_circles),
                         drill_circles=tuple(Circle(p.x, p.y, p.d) for p in piece.pins),
                         scribe_lines=tuple(scribe), grain_angle_deg=0.0)
+
+
+def _stepped_flanges(piece: PieceGeometry, web: Polygon, run_offsets_mm: Sequence[float],
+                     offsets: Sequence[float]) -> Polygon:
+    """The web with each flanged run's flange band at its own offset: per offset, the web grown by it less the
+    band beyond every flanged run of another offset (the run's outward normals from end to end: flat ends on the
+    normals at its ends), all joined; the edge steps along the normal where runs of two offsets meet."""
+    width = 1.5 * max(offsets) + 1.0
+    bands = []
+    for offset in offsets:
+        band = web.buffer(offset, quad_segs=QUAD_SEGS, join_style="mitre", mitre_limit=MITRE_LIMIT)
+        for run, own in zip(piece.runs, run_offsets_mm, strict=True):
+            if run.flanged and own != offset and len(run.points) >= 2:
+                beyond = LineString(run.points).buffer(-width, quad_segs=QUAD_SEGS, cap_style="flat",
+                                                       single_sided=True)
+                band = band.difference(beyond.difference(web))
+        bands.append(band)
+    return shapely.union_all([web, *bands])
 
 
 def notch_polygon(piece: PieceGeometry, s_mm: float, opening_mm: float, depth_mm: float, offset_mm: float) -> Polygon:

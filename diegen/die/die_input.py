@@ -48,12 +48,14 @@ class DieFlute:
 
     ``s_mm`` is the arc length along the whole outline, measured from its first
     point, of the groove's centre; ``width_mm`` the groove's width at the wall
-    where it is deepest; ``depth_mm`` its full depth into the wall.
+    where it is deepest; ``depth_mm`` its full depth into the wall; ``length_mm`` how far down the wall it tapers
+    to that depth (its own flange's height; 0: the die's ``flute_length_mm``).
     """
 
     s_mm: float
     width_mm: float
     depth_mm: float
+    length_mm: float = 0.0
 
 
 @dataclass(frozen=True)
@@ -87,7 +89,7 @@ class DieInput:
     cutter_radius_mm: float  # no internal concave corner tighter than this (a printed die: the printer's limit)
     # grooves in the wall, depth tapering from 0 at the top (bend line) to full at flange-edge depth
     flutes: tuple[DieFlute, ...] = ()
-    flute_length_mm: float = 0.0  # how far down the wall the flute tapers (the flange height)
+    flute_length_mm: float = 0.0  # how far down the wall the flutes taper (the flange height; the longest flute's)
     bores: tuple[DieBore, ...] = ()
     pins: tuple[DiePin, ...] = ()
     engraving: tuple[str, ...] = ()  # lines engraved on the BOTTOM face, plus an orientation arrow

@@ -30,8 +30,8 @@ from typing import Any
 import numpy as np
 
 from diegen.die.die_input import DieFlute, DieInput
-from diegen.die.model import flute_scale, largest_inset_mm
-from diegen.die.outline import CurveSegment, OutlineModel
+from diegen.die.model import flute_lengths, flute_scale, largest_inset_mm
+from diegen.die.outline import CurveSegment, OutlineModel, flute_taper_ratio
 from diegen.die.rules import die_refusal
 from diegen.die.settings import DEFAULT_SETTINGS, BuildSettings
 from diegen.errors import DiegenError, GeometryError
@@ -205,8 +205,7 @@ def _section_insets(die: DieInput, arc_samples: int = 31, wall_samples: int = 9
         arc.append((p.inset_mm, flute_scale(die, p.depth_mm)))
     top = die_wall.fillet_end_depth_mm(r, a)
     depths = list(np.linspace(top, die.height_mm, wall_samples))
-    if die.flutes and top < die.flute_length_mm < die.height_mm:
-        depths.append(die.flute_length_mm)
+    depths += [length for length in flute_lengths(die) if top < length < die.height_mm]
     wall = [(die_wall.wall_inset_mm(float(d), a), flute_scale(die, float(d))) for d in depths]
     return arc, wall
 
@@ -238,9 +237,11 @@ def _deepest_flute(die: DieInput, model: OutlineModel, flute: DieFlute, insets: 
     h_max = max(u for u, _ in insets) + flute.depth_mm + 1.0
     room = float(_room_along(model, s, h_max).min()) - ROOM_MARGIN_MM
     deepest = flute.depth_mm
+    ratio = flute_taper_ratio(die.flute_length_mm, flute)
     for inset, scale in insets:
-        if scale > 0:
-            deepest = min(deepest, (room - inset) / scale)
+        own = scale if ratio == 1.0 else min(scale * ratio, 1.0)  # the flute's own taper (its own flange's height)
+        if own > 0:
+            deepest = min(deepest, (room - inset) / own)
     return deepest
 
 

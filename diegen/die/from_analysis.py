@@ -23,6 +23,26 @@ def pin_depth_mm(dowel_d_mm: float, die_height_mm: float) -> float:
     return min(die_height_mm - 3.0, max(3.0 * dowel_d_mm, 10.0))
 
 
+def flute_length_mm(piece: Any, spec_height_mm: float) -> float:
+    """How far down the die wall the flutes taper to full depth (mm): the flange height, or where a part's
+    flute-bearing runs differ in height the tallest of them (``piece``: PieceAnalysis); each flute then tapers to
+    its own flange's height (:func:`flute_lengths_mm`)."""
+    return max(flute_lengths_mm(piece, spec_height_mm), default=spec_height_mm)
+
+
+def flute_lengths_mm(piece: Any, spec_height_mm: float) -> list[float]:
+    """Each flute's taper length (mm): the height of the flange it stands in."""
+    return [piece.piece.flange_height_at(f.s_mm, spec_height_mm) for f in piece.flutes]
+
+
+def _die_flutes(piece: Any, spec_height_mm: float) -> tuple[DieFlute, ...]:
+    """The piece's flutes for the die; each with its own taper length where the fluted flanges differ in height."""
+    lengths = flute_lengths_mm(piece, spec_height_mm)
+    if len(set(lengths)) <= 1:
+        return tuple(DieFlute(f.s_mm, f.width_mm, f.depth_mm) for f in piece.flutes)
+    return tuple(DieFlute(f.s_mm, f.width_mm, f.depth_mm, length) for f, length in zip(piece.flutes, lengths))
+
+
 def die_making(die_spec: Any) -> str:
     """How the die of a spec's ``die`` section is made: ``printed``, ``machined`` or ``routed``."""
     from diegen import materials
@@ -76,8 +96,8 @@ def asked_die_input(spec: Any, piece: Any) -> DieInput:
         top_radius_mm=piece.springback.die_radius_mm,
         undercut_deg=piece.springback.overbend_deg,
         cutter_radius_mm=tool.inside_radius_mm,
-        flutes=tuple(DieFlute(f.s_mm, f.width_mm, f.depth_mm) for f in piece.flutes),
-        flute_length_mm=shared.flange.height_mm,
+        flutes=_die_flutes(piece, shared.flange.height_mm),
+        flute_length_mm=flute_length_mm(piece, shared.flange.height_mm),
         bores=tuple(DieBore(h.x, h.y, h.d + 2.0 * shared.sheet.thickness_mm) for h in g.holes if h.flanged),
         pins=tuple(DiePin(p.x, p.y, p.d - PIN_INTERFERENCE_MM, pin_depth_mm(p.d, height)) for p in g.pins),
         engraving=(g.part_id, f"{shared.sheet.alloy} {shared.sheet.thickness_mm:.2f} mm"),

@@ -48,15 +48,22 @@ def largest_inset_mm(die: DieInput) -> float:
 def outline_model(die: DieInput, settings: BuildSettings = DEFAULT_SETTINGS) -> OutlineModel:
     """The checked outline model of ``die`` (raises :class:`GeometryError` for unusable outlines)."""
     check_die_numbers(die)
-    if die.flutes and not 0 < die.flute_length_mm <= die.height_mm:
+    for length in flute_lengths(die):
+        if not 0 < length <= die.height_mm:
+            raise GeometryError(
+                f"die {die.part_id}: flute length {length:g} mm must be positive and no more than the "
+                f"block height {die.height_mm:g} mm (set it to the flange height)"
+            )
+    if die.flutes and max(flute_lengths(die)) > die.flute_length_mm:
         raise GeometryError(
-            f"die {die.part_id}: flute length {die.flute_length_mm:g} mm must be positive and no more than the "
-            f"block height {die.height_mm:g} mm (set it to the flange height)"
-        )
+            f"die {die.part_id}: a flute tapers over {max(flute_lengths(die)):g} mm, more than the die's flute "
+            f"length {die.flute_length_mm:g} mm: set the die's flute length to the longest flute's (its tallest "
+            "fluted flange)")
     try:
         return OutlineModel(die.outline, die.cutter_radius_mm, largest_inset_mm(die),
                             sample_tol_mm=settings.outline_tol_mm, max_spacing_mm=settings.max_spacing_mm,
-                            flutes=die.flutes, limit_text=die.inside_limit_text, min_land_mm=die.min_land_mm)
+                            flutes=die.flutes, limit_text=die.inside_limit_text, min_land_mm=die.min_land_mm,
+                            flute_length_mm=die.flute_length_mm)
     except GeometryError as exc:
         raise GeometryError(f"die {die.part_id}: {exc}") from exc
 
@@ -67,6 +74,14 @@ def flute_scale(die: DieInput, depth_mm: float) -> float:
     if not die.flutes:
         return 0.0
     return min(max(depth_mm, 0.0) / die.flute_length_mm, 1.0)
+
+
+def flute_lengths(die: DieInput) -> list[float]:
+    """Every depth (mm) where a flute's taper reaches full depth, shallowest first: the die's flute length, and
+    each flute's own where it has one."""
+    if not die.flutes:
+        return []
+    return sorted({die.flute_length_mm, *(f.length_mm for f in die.flutes if f.length_mm > 0.0)})
 
 
 def section(die: DieInput, model: OutlineModel, inset_mm: float, depth_mm: float) -> list[OffsetPiece]:
@@ -86,8 +101,9 @@ def loft_sections(die: DieInput, settings: BuildSettings = DEFAULT_SETTINGS
     """
     arc = die_wall.fillet_sections(die.top_radius_mm, die.undercut_deg, settings.fillet_sections)
     depths = [arc[-1].depth_mm]
-    if die.flutes and arc[-1].depth_mm + 0.05 < die.flute_length_mm < die.height_mm - 0.05:
-        depths.append(die.flute_length_mm)  # the flutes' taper ends here: the ruled wall needs a section
+    for length in flute_lengths(die):
+        if arc[-1].depth_mm + 0.05 < length < die.height_mm - 0.05:
+            depths.append(length)  # a flute's taper ends here: the ruled wall needs a section
     depths.append(die.height_mm)
     wall = (arc[-1], *tuple(die_wall.WallSection(die_wall.wall_inset_mm(d, die.undercut_deg), d) for d in depths[1:]))
     return arc, wall
@@ -104,5 +120,5 @@ def bottom_inset_mm(die: DieInput) -> float:
     return die_wall.wall_inset_mm(die.height_mm, die.undercut_deg)
 
 
-__all__ = ["MAX_UNDERCUT_DEG", "bottom_inset_mm", "check_die_numbers", "flute_scale", "largest_inset_mm",
-           "loft_sections", "outline_model", "section", "top_face_inset_mm"]
+__all__ = ["MAX_UNDERCUT_DEG", "bottom_inset_mm", "check_die_numbers", "flute_lengths", "flute_scale",
+           "largest_inset_mm", "loft_sections", "outline_model", "section", "top_face_inset_mm"]

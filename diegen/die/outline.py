@@ -173,6 +173,8 @@ class _Groove:
     radius: float
     depth: float
     half_angle: float
+    # the die's flute length over this flute's own (1: the die's): its taper reaches full depth that much sooner
+    taper_ratio: float = 1.0
 
     @property
     def half_width(self) -> float:
@@ -212,7 +214,8 @@ class OutlineModel:
 
     def __init__(self, runs: tuple[DieRun, ...], cutter_radius_mm: float, max_inset_mm: float,
                  sample_tol_mm: float = 0.001, max_spacing_mm: float = 6.0, flutes: Sequence[DieFlute] = (),
-                 limit_text: str | None = None, min_land_mm: float = MIN_GROOVE_GAP_MM) -> None:
+                 limit_text: str | None = None, min_land_mm: float = MIN_GROOVE_GAP_MM,
+                 flute_length_mm: float = 0.0) -> None:
         self.cutter_radius_mm = cutter_radius_mm
         self.limit_text = limit_text or f"the router cutter radius {cutter_radius_mm:g} mm"
         self.min_land_mm = max(min_land_mm, MIN_GROOVE_GAP_MM)
@@ -225,6 +228,7 @@ class OutlineModel:
         self._check_loop()
         self._check_curvature()
         self._lip_ranges: dict[int, tuple[float, float]] = {}
+        self.flute_length_mm = flute_length_mm
         self.grooves = self._place_grooves(flutes)
         self.spans = self._plan_spans()
 
@@ -378,7 +382,8 @@ class OutlineModel:
                     f"{name} at ({where[0]:.1f}, {where[1]:.1f}) mm is {flute.width_mm:g} mm wide, wider than the "
                     f"{max(hi - lo, 0.0):.1f} mm of curved wall between the corners: make it narrower")
             s_mid = min(max(s_mid, lo + half_width), hi - half_width)
-            grooves.append(_Groove(index, s_mid, radius, depth, half_angle))
+            grooves.append(_Groove(index, s_mid, radius, depth, half_angle,
+                                   flute_taper_ratio(self.flute_length_mm, flute)))
         grooves.sort(key=lambda g: (g.segment, g.s_mid))
         for a, b in zip(grooves, grooves[1:] + grooves[:1] if self.periodic else grooves[1:]):
             if a.segment != b.segment or (a is b):
@@ -548,7 +553,8 @@ class OutlineModel:
         assert g is not None
         phi = (2.0 * span.fractions - 1.0) * g.half_angle
         s = g.s_mid + g.radius * np.sin(phi)
-        sink = flute_scale * (g.radius * np.cos(phi) - (g.radius - g.depth))
+        scale = flute_scale if g.taper_ratio == 1.0 else min(flute_scale * g.taper_ratio, 1.0)
+        sink = scale * (g.radius * np.cos(phi) - (g.radius - g.depth))
         sink[[0, -1]] = 0.0  # the lips lie on the wall exactly
         seg = self.segments[span.segment]
         pts = seg.point(s, 0.0) + (inset + sink)[:, None] * _rot90(seg.tangent(s))
@@ -567,6 +573,14 @@ class OutlineModel:
                 "the piece is too thin there for its wall; lower the top radius or the undercut, "
                 "or end the piece sooner"
             )
+
+
+def flute_taper_ratio(die_flute_length_mm: float, flute: DieFlute) -> float:
+    """The die's flute length over ``flute``'s own (1.0 when it has none or the same): a section's flute scale for the
+    die's length, times this (at most 1), is the flute's own."""
+    if flute.length_mm <= 0.0 or die_flute_length_mm <= 0.0 or flute.length_mm == die_flute_length_mm:
+        return 1.0
+    return die_flute_length_mm / flute.length_mm
 
 
 def _points(pts: FloatArray) -> tuple[tuple[float, float], ...]:

@@ -256,6 +256,9 @@ class _PreviewPicture(_Picture):
             magnitudes.append(np.abs(run.profile.strain[:-1]))
             s = run.s_offset_mm + run.profile.s_mm
             self.line(strain_ax, s, -run.profile.strain, lw=1.0, color=f"C{index % 10}")
+            if piece_analysis.mixed_heights:  # flange runs of their own heights: each run's own wrinkle limit
+                self.line(strain_ax, [s[0], s[-1]], [run.shrink_limit, run.shrink_limit], lw=0.8, ls="--",
+                          color=f"C{index % 10}")
             relieved = piece_analysis.flutes or piece_analysis.notches
             if index < len(piece_analysis.flange.residual_profiles) and relieved:
                 self.line(strain_ax, s, piece_analysis.flange.residual_profiles[index], lw=0.8, ls=":",
@@ -289,6 +292,9 @@ class _PreviewPicture(_Picture):
         self.shrink_limit.set_ydata([limit, limit])
         self.stretch_limit.set_ydata([-stretch, -stretch])
         labels = (f"wrinkle limit {limit:.3f} (dotted: shrink left after relief)", f"stretch limit {stretch:.3f}")
+        if piece_analysis.mixed_heights:
+            labels = (f"wrinkle limit {limit:.3f} of the run judged worst (each run's own dashed in its colour; "
+                      "dotted: shrink left after relief)", labels[1])
         if labels != self.legend_labels:
             strain_ax.legend([self.shrink_limit, self.stretch_limit], labels, fontsize=7, loc="upper right")
             self.legend_labels = labels

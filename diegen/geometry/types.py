@@ -9,6 +9,8 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Literal
 
+import numpy as np
+
 from diegen.findings import Finding
 from diegen.geometry.loops import loop_length, signed_area
 
@@ -22,14 +24,20 @@ Points = tuple[Point, ...]
 class Run:
     """A stretch of a die outline: a smooth contour or a straight end face.
 
-    ``flanged`` is False for a cut end (the tail's aft end) that gets no flange.
-    Consecutive runs share their end points; all runs of a piece form one closed
+    ``flanged`` is False for a cut end (the tail's aft end) that gets no flange.  ``flange_height_mm`` is the
+    run's own mold-line flange height (a drawn part's flange run of its own height); None for the spec's
+    ``flange.height`` (every rib run).  Consecutive runs share their end points; all runs of a piece form one closed
     counter-clockwise loop.
     """
 
     kind: Literal["curve", "line"]
     points: Points
     flanged: bool = True
+    flange_height_mm: float | None = None
+
+    def height_mm(self, spec_height_mm: float) -> float:
+        """The run's flange height (mm): its own, or the spec's ``spec_height_mm``."""
+        return spec_height_mm if self.flange_height_mm is None else self.flange_height_mm
 
 
 @dataclass(frozen=True)
@@ -104,6 +112,17 @@ class PieceGeometry:
     @property
     def area_mm2(self) -> float:
         return signed_area(self.outline)
+
+    def flange_height_at(self, s_mm: float, spec_height_mm: float) -> float:
+        """The flange height (mm) of the run ``s_mm`` along the outline (from its first point) lies on: the run's
+        own, or the spec's ``spec_height_mm``."""
+        start, found = 0.0, self.runs[0]
+        for run in self.runs:
+            if s_mm < start:
+                break
+            found = run
+            start += float(np.sum(np.hypot(*np.diff(np.asarray(run.points, dtype=float), axis=0).T)))
+        return found.height_mm(spec_height_mm)
 
 
 @dataclass(frozen=True)

@@ -5,12 +5,13 @@ Numbers in mm / MPa / degrees; strains as positive fractions.
 
 from __future__ import annotations
 
+import math
 from typing import Any
 
 from diegen import __version__
 from diegen.analysis import MODELS, PieceAnalysis, RibAnalysis
 from diegen.blank.drawing import BlankDrawing
-from diegen.die.from_analysis import die_making, tile_plan
+from diegen.die.from_analysis import die_making, flute_lengths_mm, tile_plan
 from diegen.die.tiles import tile_files
 from diegen.errors import GeometryError
 from diegen.findings import once
@@ -86,6 +87,19 @@ def _joggle_json(j) -> dict[str, Any]:
             "depth_mm": _r(j.depth_mm), "ramp_mm": _r(j.ramp_mm)}
 
 
+def run_heights_json(p: PieceAnalysis) -> list[dict[str, Any]]:
+    """Per flange height of a part whose flange runs differ in height: its developed width, wrinkle limit, how far
+    the blank edge stands outside the die outline, and the die outline's runs (from, to) that carry it."""
+    sb = p.springback
+    inset = sb.die_radius_mm * math.tan(math.radians(sb.die_angle_deg) / 2)
+    runs = p.piece.runs
+    return [{"height_mm": _r(h.height_mm), "developed_width_mm": _r(h.layout.developed_width_mm),
+             "blank_offset_mm": _r(h.layout.developed_width_mm - inset), "shrink_limit": _r(h.shrink_limit, 4),
+             "die_runs": [{"from": [_r(runs[i].points[0][0]), _r(runs[i].points[0][1])],
+                           "to": [_r(runs[i].points[-1][0]), _r(runs[i].points[-1][1])]} for i in h.run_indexes]}
+            for h in p.heights]
+
+
 def piece_json(rib: RibAnalysis, p: PieceAnalysis) -> dict[str, Any]:
     """The report of one piece (the keys ``diegen check --json`` documents)."""
     g = p.piece
@@ -128,12 +142,15 @@ def piece_json(rib: RibAnalysis, p: PieceAnalysis) -> dict[str, Any]:
                         for n in p.notches],
             "relief_policy": rib.spec.shared.relief,
             "relief_notes": list(p.relief_notes),
+            **({"runs": run_heights_json(p)} if p.mixed_heights else {}),
         },
         "die": {
             "outline_length_mm": _r(g.length_mm, 2),
             "area_mm2": _r(g.area_mm2, 1),
             "height_mm": _r(p.die_height_mm),
             "layers": p.die_layers,
+            **({"flute_lengths_mm": sorted({_r(v) for v in flute_lengths_mm(p, flange.height_mm)})}
+               if p.mixed_heights and p.flutes else {}),
             "material": rib.spec.shared.die.material,
             "buildable": p.die is None or p.die.buildable,
             "refusal": None if p.die is None else p.die.refusal,

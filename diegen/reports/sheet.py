@@ -16,7 +16,7 @@ from diegen.die.drawing import (
     TOP_FLAT,
     TOP_OUTLINE,
 )
-from diegen.die.from_analysis import die_making
+from diegen.die.from_analysis import die_making, flute_lengths_mm
 from diegen.forming.relief import flute_arc_radius
 from diegen.numbers import without_negative_zeros
 from diegen.reports.document import PRINT_ORIENTATION, SAFETY, print_json, section_label
@@ -26,6 +26,15 @@ from diegen.units import MM_PER_IN, mpa_to_psi
 # Standard round-over bit radii (common practice, no source): 1/16 to 1/2 in by 1/32 in, and 1 to 12 mm.
 _INCH_ROUND_OVERS = tuple(n / 32 * MM_PER_IN for n in range(2, 17))
 _MM_ROUND_OVERS = tuple(float(r) for r in range(1, 13))
+
+
+def _flange_heights(piece: PieceAnalysis, shared) -> str:
+    """"flange H" for one height, or each height of a part whose flange runs differ, with their run counts."""
+    if not piece.mixed_heights:
+        return f"flange {_both(shared.flange.height_mm)}"
+    each = ", ".join(f"{_both(h.height_mm)} ({len(h.run_indexes)} run{'s' if len(h.run_indexes) > 1 else ''})"
+                     for h in piece.heights)
+    return f"flange runs of their own heights, {each},"
 
 
 def _both(mm: float) -> str:
@@ -65,8 +74,9 @@ def _header(rib: RibAnalysis, piece: PieceAnalysis) -> list[str]:
         f"# Shop sheet — {g.part_id}",
         "",
         what +
-        f"Sheet **{piece.alloy.name} {_both(shared.sheet.thickness_mm)}**; flange {_both(shared.flange.height_mm)} "
-        f"at inside radius {_both(sb.part_radius_mm)}.",
+        f"Sheet **{piece.alloy.name} {_both(shared.sheet.thickness_mm)}**; {_flange_heights(piece, shared)} "
+        f"at inside radius {_both(sb.part_radius_mm)}" + (
+            "; the blank's edge steps where two heights meet" if len(piece.heights) > 1 else "") + ".",
         "",
         "> **Caution.** " + SAFETY,
         "",
@@ -183,8 +193,11 @@ def _wall_features(piece: PieceAnalysis, shared, step: _Steps, flute_tool: str, 
                           f"{flute_arc_radius(same[0].width_mm, same[0].depth_mm):.1f} mm)"
                           for (w, d), same in sizes.items())
         lip = max(f.lip_radius_mm for f in piece.flutes)
+        lengths = sorted(set(flute_lengths_mm(piece, shared.flange.height_mm)))
+        full = (_both(shared.flange.height_mm) + " down" if not piece.mixed_heights else
+                "its own flange's edge (" + ", ".join(_both(v) for v in lengths) + " down)")
         lines.append(step(f"**Flutes ({len(piece.flutes)}, layer `{FLUTES.name}`)**: grooves tapering from nothing at "
-                          f"the top edge to full depth at {_both(shared.flange.height_mm)} down: {kinds} "
+                          f"the top edge to full depth at {full}: {kinds} "
                           f"({flute_tool}). Round each flute's lips (where the groove meets the wall) to at least "
                           f"{_both(lip)} with a file: a sharp lip cracks the sheet."))
     bores = [(h, c) for h, c in zip(g.holes, piece.holes) if h.flanged]

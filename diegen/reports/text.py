@@ -36,6 +36,9 @@ def piece_text(rib: RibAnalysis, p: PieceAnalysis) -> str:
         f"                BA {p.layout.bend_allowance_mm:.3f} mm (k = {p.layout.k_factor:.3f}); aviation formula "
         f"{p.layout.bend_allowance_aviation_mm:.3f} mm; setback {p.layout.setback_mm:.3f} mm; developed flange "
         f"{p.layout.developed_width_mm:.2f} mm",
+        *[f"  flange runs   {h['height_mm']:.1f} mm high: developed {h['developed_width_mm']:.2f} mm, blank edge "
+          f"{h['blank_offset_mm']:.2f} mm outside the die, wrinkle limit {h['shrink_limit']:.3f}, "
+          f"{len(h['die_runs'])} run(s)" for h in d["flange"].get("runs", ())],
         f"                springback: {p.springback.model}",
         f"  flange strain max shrink {p.max_shrink:.3f}, after relief {p.flange.residual_shrink:.3f} (wrinkle limit "
         f"{p.flange.shrink_limit:.3f}), max stretch {p.max_stretch:.3f} (limit {p.alloy.stretch_limit:.3f}) → "

@@ -24,8 +24,10 @@ __all__ = ["part_geometry"]
 def part_geometry(spec: RibSpec, die_inset_mm: float = 0.0) -> RibGeometry:
     """The die outline, flange runs, joggles, holes, cut-outs and pins of the part ``spec`` draws (mm), as one piece.
 
-    ``die_inset_mm`` is the largest inset of the die's wall from its outline: joggle run-outs bend no tighter than
-    it (plus a margin) nor than the cutter radius, as a rib's do (:func:`diegen.geometry.rib.rib_geometry`).
+    Each flanged run carries its own flange height (``Run.flange_height_mm``, from the drawn part's flange runs:
+    ``DrawnPiece.run_flanges``), which the analysis, blank and die follow.  ``die_inset_mm`` is the largest inset
+    of the die's wall from its outline: joggle run-outs bend no tighter than it (plus a margin) nor than the cutter
+    radius, as a rib's do (:func:`diegen.geometry.rib.rib_geometry`).
     """
     drawn, shared = spec.drawn, spec.shared
     assert drawn is not None, "part_geometry takes a kind: part spec"

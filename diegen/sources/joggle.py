@@ -15,7 +15,7 @@ from __future__ import annotations
 
 import math
 from collections.abc import Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 from shapely.geometry import LineString
@@ -116,4 +116,4 @@ def _recessed(run: Run, s0: float, s1: float, depth: float, ramp: float) -> tupl
     moved = xy + inward * inset[:, None]
     points = tuple((float(x), float(y)) for x, y in moved)
     path = tuple(p for p, si in zip(points, s) if a <= si <= b)
-    return Run("curve", points, run.flanged), path
+    return replace(run, kind="curve", points=points), path

@@ -13,6 +13,8 @@ fills a :class:`~diegen.geometry.types.PieceGeometry` the forming analysis, blan
   (project limit: a gentler turn is left inside its run, where the contoured-flange strain, windowed
   over one flange width, sees it as a tight curve); a concave corner of a mold-line outline becomes a
   round of the sheet thickness in the die outline and so is no corner of the die;
+* each flanged run carries its flange's mold-line height (a run of its own height, or the spec's); a cut
+  edge carries none;
 * relief points are the die's corners where a flanged run meets another flanged run;
 * round holes become holes (plain, or flanged to a given height), other inner contours cutouts;
   drawn pin spots become pins (or pins are placed as for a rib when none are drawn).
@@ -465,7 +467,7 @@ def _runs(pts: list[Point], s: list[float], flags: list[tuple[bool, bool]], stra
         loop = [*pts, pts[0]]
         mid = s[n // 2] % total
         flange = _flange_at(mid, offsets, flanges)
-        return (Run("curve", _densify(loop, straight), flange is not None),), (flange,), ()
+        return (Run("curve", _densify(loop, straight), flange is not None, _height(flange)),), (flange,), ()
     pieces = []
     for j, a in enumerate(cuts):
         b = cuts[(j + 1) % len(cuts)]
@@ -475,7 +477,7 @@ def _runs(pts: list[Point], s: list[float], flags: list[tuple[bool, bool]], stra
     runs, run_flanges = [], []
     for _, _, points, mid, along in pieces:
         flange = _flange_at(mid, offsets, flanges)
-        runs.append(_run(points, along, flange is not None))
+        runs.append(replace(_run(points, along, flange is not None), flange_height_mm=_height(flange)))
         run_flanges.append(flange)
     reliefs = []
     for j, (a, _, _, _, _) in enumerate(pieces):
@@ -485,6 +487,11 @@ def _runs(pts: list[Point], s: list[float], flags: list[tuple[bool, bool]], stra
             if turn >= CORNER_TURN_DEG:
                 reliefs.append(pts[a])
     return tuple(runs), tuple(run_flanges), tuple(reliefs)
+
+
+def _height(flange: Flange | None) -> float | None:
+    """A run's own flange height on the geometry layer's run (None for a cut edge)."""
+    return None if flange is None else flange.height_mm
 
 
 def _direction(a: Point, b: Point) -> Point:
@@ -589,8 +596,8 @@ def _mirror(geometry: PieceGeometry, run_flanges: tuple[Flange | None, ...],
     def flip(points: Points) -> Points:
         return tuple((-x, y) for x, y in reversed(points))
 
-    runs = tuple(Run(r.kind, flip(r.points), r.flanged) for r in reversed(geometry.runs))
-    plain = tuple(Run(r.kind, flip(r.points), r.flanged) for r in reversed(geometry.plain_runs))
+    runs = tuple(replace(r, points=flip(r.points)) for r in reversed(geometry.runs))
+    plain = tuple(replace(r, points=flip(r.points)) for r in reversed(geometry.plain_runs))
     x0, x1 = geometry.x_range_mm
     mirrored = replace(geometry, x_range_mm=(-x1, -x0), runs=runs, plain_runs=plain,
                        joggles=tuple(replace(j, path=flip(j.path)) for j in geometry.joggles),

@@ -45,9 +45,9 @@ MAX_JOGGLES = 20
 MAX_JOGGLE_DEPTH_MM = 10.0  # project limit: deeper is no joggle but a step in the part
 OUTLINE_KEYS = ("file", "layer", "units", "svg", "points", "is", "join_tolerance")
 RUN_KEYS = ("layer", "from", "to", "direction", "height", "bend_radius", "angle")
-# One form block, one flange shape: a run's own shape is not modelled yet (the die radius, over-bend, developed
-# width and blank offset are one per piece).
-RUN_SHAPE_KEYS = ("height", "bend_radius", "angle")
+# One form block, one die radius and one over-bend: a run may have its own height (its own developed width, blank
+# offset, wrinkle limit and flute depth), not its own bend radius or angle.
+RUN_SHAPE_KEYS = ("bend_radius", "angle")
 
 
 def read_part(r: Reader, root: dict[str, YNode], spec_dir: Path, read_header, read_paper, read_shared) -> RibSpec:
@@ -243,8 +243,11 @@ def _run_nodes(r: Reader, node: YNode | None) -> list[YNode] | None:
             if key in fields:
                 r.problem(fields[key], join(path, key),
                           f"a flange run of its own {key.replace('_', ' ')} is not supported: every flanged edge of a "
-                          "part takes the 'flange' section's height and bend radius, square (90°) to the web; make "
-                          "edges of another shape a separate part, or form them by hand")
+                          "part takes the 'flange' section's bend radius, square (90°) to the web (one form block "
+                          "has one die radius and one over-bend; a run may have its own height); make edges of "
+                          "another shape a separate part, or form them by hand")
+        if "height" in fields:
+            r.length(fields["height"], join(path, "height"), high=200.0)
         has_layer, has_ends = "layer" in fields, ("from" in fields, "to" in fields)
         if has_layer == any(has_ends) or (any(has_ends) and not all(has_ends)):
             r.problem(item, path, "expected either 'layer' (the outline's edges on that layer) or both 'from' and "
@@ -266,7 +269,8 @@ def _runs(r: Reader, run_nodes: list[YNode], flange, drawing: Drawing) -> list[F
     for i, item in enumerate(run_nodes):
         path, fields = join("flanges", i), item.value
         direction = fields["direction"].value if "direction" in fields else "down"
-        run_shape = replace(shape, direction=direction)
+        height = r.length(fields["height"], join(path, "height"), high=200.0) if "height" in fields else None
+        run_shape = replace(shape, direction=direction, height_mm=shape.height_mm if height is None else height)
         if "layer" in fields:
             runs.append(FlangeRunSpec(OnLayer(str(fields["layer"].value)), run_shape, path))
             continue

@@ -24,6 +24,7 @@ USUAL_MM: dict[str, tuple[float, float]] = {
     "skin_thickness": (0.2, 5.0),
     "sheet.thickness": (0.2, 5.0),
     "flange.height": (3.0, 100.0),
+    "flanges[].height": (3.0, 100.0),  # a drawn part's flange run of its own height
     "flange.bend_radius": (0.25, 30.0),
     "flange.min_tail_depth": (5.0, 300.0),
     "spars[].web": (0.3, 40.0),
