@@ -450,8 +450,28 @@ def test_a_joggle_on_a_run_of_its_own_height_keeps_that_height() -> None:
     spec = part_spec(rect, "flanges: [{from: [0, 0], to: [300, 0], height: 8}, {from: [300, 0], to: [0, 0]}]\n"
                            "joggles: [{from: [100, 0], to: [160, 0], depth: 1.2}]\n")
     _, piece = only_piece(spec)
-    (joggle,) = piece.piece.joggles
+    assert len(piece.piece.joggles) == 1
     recessed = [r for r in piece.piece.runs if r.kind == "curve" and min(y for _, y in r.points) < 0.5
                 and max(y for _, y in r.points) > 1.0]
     assert len(recessed) == 1 and recessed[0].flange_height_mm == 8.0
     assert [r.flange_height_mm for r in piece.piece.runs] == [r.flange_height_mm for r in piece.piece.plain_runs]
+
+
+def test_a_flange_running_smoothly_into_a_cut_edge_keeps_its_full_width_to_the_end() -> None:
+    """A 'D': a flanged half circle (radius 50 mm) running tangentially into a straight cut edge.  The blank keeps
+    the developed flange (d from FAA-H-8083-31 less the die radius's tangent inset) all round the half circle, up
+    to its end, where it ends square on the normal; beyond the cut edge there is no material (shapely tests)."""
+    from shapely.geometry import Point
+
+    spec = part_spec("{points: [[0, 0], [150, 0, 1], [150, 100], [0, 100]], is: die}",
+                     "flanges: [{from: [0, 0], to: [150, 100]}]\n")
+    _, piece = only_piece(spec)
+    sb = piece.springback
+    d = piece.layout.developed_width_mm - sb.die_radius_mm * math.tan(math.radians(sb.die_angle_deg) / 2)
+    blank = Polygon(piece.blank.outer, piece.blank.inner)
+    for degrees in range(-85, 90, 5):  # just inside the flange's outer edge, all round the half circle
+        phi = math.radians(degrees)
+        assert blank.contains(Point(150 + (50 + d - 0.05) * math.cos(phi), 50 + (50 + d - 0.05) * math.sin(phi))), \
+            degrees
+    assert not blank.contains(Point(140.0, 100.5)) and not blank.contains(Point(75.0, 100.5))  # flush along the cut
+    assert not blank.contains(Point(149.0, 100.0 + d / 2))  # the flange ends square at the junction's normal

@@ -54,29 +54,46 @@ def _unit(v: np.ndarray) -> np.ndarray:
     return v / np.linalg.norm(v)
 
 
-def _beyond_cut_edge(run: Run, web: Polygon, offset_mm: float) -> Polygon:
+def _beyond_cut_edge(run: Run, web: Polygon, offset_mm: float, corner_before: bool = True,
+                     corner_after: bool = True) -> Polygon:
     """The blank material beyond a run that has no flange, outside the web.
 
     A straight run cuts along its own line as far as any flange corner can reach (the offset's mitre
     limit); a curved run takes off the band beyond it (wider than the developed flange) and, past each
     of its ends, the side beyond its end tangent, so a neighbouring flange stops flush with the cut edge.
+    Where the outline runs on smoothly into a flanged run (``corner_before``/``corner_after`` False: no
+    corner at that end), the cut stops on the normal there instead: the flange beside it keeps its full width
+    and ends square at the junction (its line extended would shave the flange of the curve it runs into).
     """
     reach = MITRE_LIMIT * offset_mm + 1.0
     pts = np.asarray(run.points, dtype=float)
     a, b = pts[0], pts[-1]
     t0, t1 = _unit(pts[1] - pts[0]), _unit(pts[-1] - pts[-2])
     n0, n1 = t0 @ _TO_RIGHT, t1 @ _TO_RIGHT  # the right normal of a CCW edge points outward
+    back, ahead = (reach if corner_before else 0.0), (reach if corner_after else 0.0)
     if run.kind == "line" and len(pts) == 2:
-        region = Polygon([a - t0 * reach, b + t0 * reach, b + t0 * reach + n0 * reach, a - t0 * reach + n0 * reach])
+        region = Polygon([a - t0 * back, b + t0 * ahead, b + t0 * ahead + n0 * reach, a - t0 * back + n0 * reach])
     else:
         band = LineString(pts).buffer(-(1.5 * offset_mm + 1.0), quad_segs=QUAD_SEGS, cap_style="flat",
                                       single_sided=True)
-        before = Polygon([a - t0 * reach, a, a + n0 * reach, a - t0 * reach + n0 * reach])
-        after = Polygon([b, b + t1 * reach, b + t1 * reach + n1 * reach, b + n1 * reach])
-        region = shapely.union_all([band, before, after])
+        ends = [Polygon([a - t0 * reach, a, a + n0 * reach, a - t0 * reach + n0 * reach])] if corner_before else []
+        ends += [Polygon([b, b + t1 * reach, b + t1 * reach + n1 * reach, b + n1 * reach])] if corner_after else []
+        region = shapely.union_all([band, *ends])
     if region.intersection(web).area > 0.0:
         region = region.difference(web)
     return region
+
+
+SMOOTH_TURN_DEG = 10.0  # project limit (as a drawn part's corners): a gentler turn between two runs is no corner
+
+
+def _turns(into: Sequence[Point], out_of: Sequence[Point]) -> bool:
+    """Whether the outline turns by ``SMOOTH_TURN_DEG`` or more from the segment ``into`` to the segment
+    ``out_of`` (each two points; the first ends where the second starts)."""
+    d0 = _unit(np.asarray(into[1], dtype=float) - np.asarray(into[0], dtype=float))
+    d1 = _unit(np.asarray(out_of[1], dtype=float) - np.asarray(out_of[0], dtype=float))
+    cross = float(d0[0] * d1[1] - d0[1] * d1[0])
+    return math.degrees(math.atan2(abs(cross), float(d0 @ d1))) >= SMOOTH_TURN_DEG
 
 
 def _corner_cut(piece: PieceGeometry, corner: Point, reach: float) -> Polygon:
@@ -131,9 +148,13 @@ def develop_blank(piece: PieceGeometry, *, offset_mm: float, die_radius_mm: floa
     else:
         offset_mm = flanged_offsets[0] if flanged_offsets else offset_mm
         blank = web.buffer(offset_mm, quad_segs=QUAD_SEGS, join_style="mitre", mitre_limit=MITRE_LIMIT)
-    for run in piece.runs:  # a cut edge (no flange) stops the blank flush with it
+    runs = piece.runs
+    for i, run in enumerate(runs):  # a cut edge (no flange) stops the blank flush with it
         if not run.flanged and len(run.points) >= 2:
-            blank = blank.difference(_beyond_cut_edge(run, web, offset_mm))
+            before, after = runs[i - 1], runs[(i + 1) % len(runs)]
+            blank = blank.difference(_beyond_cut_edge(
+                run, web, offset_mm, corner_before=not before.flanged or _turns(before.points[-2:], run.points[:2]),
+                corner_after=not after.flanged or _turns(run.points[-2:], after.points[:2])))
     relief_d = relief_hole_diameter(thickness_mm, die_radius_mm)
     reliefs = []
     for corner in piece.relief_points:
