@@ -25,6 +25,7 @@ import copy
 import math
 import os
 import random
+import re
 import subprocess
 import sys
 import time
@@ -70,7 +71,8 @@ class Escape(AssertionError):
 def check_spec_error(error: SpecError, file: str, text: str | None = None) -> None:
     """Every problem names ``file``, has a message and a line or key path; nothing internal leaks."""
     assert error.problems, "SpecError without problems"
-    lines = None if text is None else text.count("\n") + text.count("\r") + 2
+    # YAML 1.1 (which PyYAML reads) breaks lines at CR LF, CR, LF and also NEL, LS and PS (its "b-char" set)
+    lines = None if text is None else len(re.findall("\r\n|[\r\n\x85\u2028\u2029]", text)) + 2
     for p in error.problems:
         assert p.file == file, p
         assert p.message.strip(), p
