@@ -82,6 +82,8 @@ def die_seconds(die, out: Path, tolerance_mm: float | None = None, repeat: int =
 
 def stages(die, out: Path, tolerance_mm: float) -> str:
     """Median time of each stage of one die, as text."""
+    import cadquery as cq
+
     from diegen.die.model import outline_model
     from diegen.die.occ.export import write_step, write_stl
     from diegen.die.occ.form_block import build_body
@@ -103,7 +105,8 @@ def stages(die, out: Path, tolerance_mm: float) -> str:
         ("STEP", lambda: write_step(body, out / "stage.step")),
         ("STL", lambda: write_stl(body, out / "stage.stl", tolerance_mm)),
     ]
-    return ", ".join(f"{name} {_timed(fn, 3):.3f}" for name, fn in parts) + f" s; {len(body.Faces())} faces"
+    faces = len(cq.Shape.cast(body).Faces())
+    return ", ".join(f"{name} {_timed(fn, 3):.3f}" for name, fn in parts) + f" s; {faces} faces"
 
 
 def demo_rib(out: Path) -> None:

@@ -334,7 +334,13 @@ def test_walker_sees_the_package(modules: dict[str, Path], edges: list[Edge]) ->
     assert ("diegen.reports.sheet", "diegen.analysis", False, False) in seen
     assert ("diegen.api", "diegen.die.occ.files", True, False) in seen
     assert ("diegen.api", "diegen.pipeline.build", False, True) in seen
-    assert ("diegen.die.occ.tiles", "cadquery", True, False) in seen
+    assert ("diegen.die.occ.tiles", "OCP.BRepAlgoAPI", True, False) in seen
+
+
+def test_kernel_is_used_without_cadquery(edges: list[Edge]) -> None:
+    """The dies are made with OCP's own classes (diegen/die/occ/shapes.py): importing CadQuery on top of OCP
+    costs about a second and 170 MB per process for a visualisation toolkit the dies never use."""
+    assert [f"{e.importer} -> {e.target}" for e in edges if e.target.split(".")[0] == "cadquery"] == []
 
 
 # ---------------------------------------------------------------- (a) no cycle

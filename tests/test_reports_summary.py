@@ -217,3 +217,18 @@ def test_whole_wing_pdf(wing_spec, wing, rows, tmp_path) -> None:
     pages = pdf_pages(tmp_path / "summary.pdf")
     assert len(pages) == 1 + 1 + RIB_COUNT * len(PIECES)
     check_pdf(pages, wing_spec.id, rows, wing.ribs)
+
+
+def test_pdf_drawn_beforehand_is_the_same_document(wing_spec, written) -> None:
+    """``summary_pdf`` (the PDF a build with worker processes draws while its pieces are made) holds the pages
+    ``write_wing_summary`` writes, and is written as given."""
+    from diegen.reports.summary import summary_pdf
+
+    folder, ribs, _, _ = written
+    early = summary_pdf(wing_spec, ribs)
+    assert early.startswith(b"%PDF")
+    again = folder / "again"
+    again.mkdir()
+    write_wing_summary(wing_spec, ribs, again, pdf=early)
+    assert (again / "summary.pdf").read_bytes() == early
+    assert pdf_pages(again / "summary.pdf") == pdf_pages(folder / "summary.pdf")

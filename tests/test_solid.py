@@ -111,8 +111,15 @@ def volume(shape) -> float:
     return volume_mm3(shape)
 
 
+def cq_shape(shape):
+    """A die (diegen hands out the kernel's own shapes) as a CadQuery shape, for its face and box queries."""
+    import cadquery as cq
+
+    return cq.Shape.cast(shape)
+
+
 def planar_face_at(shape, z: float):
-    faces = [f for f in shape.Faces() if f.geomType() == "PLANE" and abs(f.Center().z - z) < 1e-6
+    faces = [f for f in cq_shape(shape).Faces() if f.geomType() == "PLANE" and abs(f.Center().z - z) < 1e-6
              and abs(abs(f.normalAt().z) - 1) < 1e-9]
     return max(faces, key=lambda f: f.Area())
 
@@ -141,7 +148,7 @@ def section_points(shape, origin, normal, step: float = 0.01, curved_only: bool 
     from OCP.BRepAlgoAPI import BRepAlgoAPI_Section
     from OCP.gp import gp_Dir, gp_Pln, gp_Pnt
 
-    sec = BRepAlgoAPI_Section(shape.wrapped, gp_Pln(gp_Pnt(*origin), gp_Dir(*normal)))
+    sec = BRepAlgoAPI_Section(shape, gp_Pln(gp_Pnt(*origin), gp_Dir(*normal)))
     sec.Build()
     pts = []
     for e in cq.Shape.cast(sec.Shape()).Edges():
@@ -378,7 +385,7 @@ def test_pins_remove_their_cylinders(bare_input, bare_die):
     expected = sum(math.pi * p.d**2 / 4 * p.depth for p in PINS)
     assert removed == pytest.approx(expected, rel=1e-4)
     found = set()
-    for f in die.Faces():
+    for f in cq_shape(die).Faces():
         if f.geomType() == "CYLINDER":
             from OCP.BRepAdaptor import BRepAdaptor_Surface
 
@@ -483,7 +490,7 @@ def test_engraving_on_bottom_face_only_and_reads_from_below(bare_input, bare_die
     mouth = planar_face_at(bare_die, -H).Area() - planar_face_at(die, -H).Area()
     assert mouth > 10
     assert removed == pytest.approx(mouth * 0.5, rel=1e-4)  # pockets 0.5 mm deep with vertical sides
-    floors = [f for f in die.Faces() if f.geomType() == "PLANE" and abs(f.Center().z + H - 0.5) < 1e-6]
+    floors = [f for f in cq_shape(die).Faces() if f.geomType() == "PLANE" and abs(f.Center().z + H - 0.5) < 1e-6]
     assert len(floors) == 2  # the letter and the arrow
     letter = min(floors, key=lambda f: f.Center().y)  # the arrow sits below the text, i.e. at larger Y
     poly = Polygon(wire_points(letter.outerWire(), 0.1))
@@ -551,8 +558,9 @@ def test_invalid_die_names_the_part_at_fault(full_input, monkeypatch):
 
     real = fb.solid_problems
     plain = fb.build_die(replace(full_input, engraving=()))
-    limit = len(plain.Faces())
-    monkeypatch.setattr(fb, "solid_problems", lambda shape: ["pretend"] if len(shape.Faces()) > limit else real(shape))
+    limit = len(cq_shape(plain).Faces())
+    monkeypatch.setattr(fb, "solid_problems",
+                        lambda shape: ["pretend"] if len(cq_shape(shape).Faces()) > limit else real(shape))
     with pytest.raises(SolidError, match="the engraving makes the die an invalid solid"):
         fb.build_die(full_input)
 
@@ -579,7 +587,7 @@ def test_tiles_fit_the_bed_and_keep_the_volume(bare_die, bare_input):
     tiles, dowels = cut_tiles(bare_die, layout)
     assert len(tiles) == len(layout.tiles) == 2
     for t in tiles:
-        bb = t.shape.BoundingBox()
+        bb = cq_shape(t.shape).BoundingBox()
         length, width = (bb.xlen, bb.ylen)
         bx, by = (bed[1], bed[0]) if t.along_bed_y else bed
         assert length <= bx - 4 + 1e-6 and width <= by - 4 + 1e-6

@@ -83,3 +83,18 @@ def test_wing_summary_is_on_the_paper_asked_for(tmp_path, paper, size_pt):
     rows = list(csv.DictReader((tmp_path / "summary.csv").open()))
     assert [r["section"] for r in rows if r["piece"] == "nose"] == [
         "NACA 23015", "50 % NACA 23015 + 50 % NACA 23012", "NACA 23012"]
+
+
+@pytest.mark.slow  # two ribs of dies with the kernel, in two worker processes
+@pytest.mark.solid
+def test_build_with_two_workers_writes_the_summary_drawn_meanwhile(tmp_path):
+    """With worker processes the summary PDF is drawn on a thread while they work; it is the whole document:
+    planform, table, a page a piece (read back with pypdf)."""
+    pypdf = pytest.importorskip("pypdf")
+    path = _small_wing(tmp_path)
+    path.write_text(path.read_text().replace("stations: {count: 3}", "stations: {count: 2}"))
+    result = api.build(api.load(path), tmp_path / "out", jobs=2)
+    assert [o.status for o in result.outcomes] == ["built"] * 4
+    pages = pypdf.PdfReader(result.folder / "summary.pdf").pages
+    assert len(pages) == 1 + 1 + 4
+    assert "planform" in pages[0].extract_text()

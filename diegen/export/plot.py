@@ -1,9 +1,13 @@
-"""PNG plots of a rib piece for a person to look at (matplotlib, Agg canvas, no global settings changed).
+"""PNG pictures of a rib piece for a person to look at.
 
-Each kind of picture keeps one figure per process: its axes, labels, grid, colour bar and legend are made
-once, and a call adds only the piece's own artists — few of them: one collection for each kind of circle,
-one for the strain-coloured flange — draws, writes the PNG and takes them off again.  Limits are set from
-the piece's data (the figure's history never enters), so a picture does not depend on what was drawn before.
+* The geometry plot of ``diegen check --plot`` (matplotlib, Agg canvas, no global settings changed) keeps one
+  figure per process: its axes, labels, grid and legend are made once, and a call adds only the piece's own
+  artists — few of them: one collection for each kind of circle — draws, writes the PNG and takes them off
+  again.  Limits are set from the piece's data (the figure's history never enters), so a picture does not depend
+  on what was drawn before.
+* The preview of every built piece is drawn on the small canvas of :mod:`diegen.export.raster` (Pillow only),
+  afresh for each picture: a build then never imports matplotlib, whose import and first figure cost more than
+  all of a rib's previews together.
 """
 
 from __future__ import annotations
@@ -206,109 +210,86 @@ def _along(points: np.ndarray, s: np.ndarray) -> np.ndarray:
 
 
 # ---------------------------------------------------------------------------------------------- preview plot
-class _PreviewPicture(_Picture):
-    """Die and blank together, the flange coloured by edge strain, and the strain along the outline."""
+PREVIEW_INCHES = (11.0, 7.5)
 
-    def __init__(self) -> None:
-        from matplotlib.cm import ScalarMappable
-        from matplotlib.colors import Normalize
 
-        super().__init__(11, 7.5)
-        fig = self.figure
-        self.top = fig.add_axes((0.07, 0.40, 0.80, 0.52))
-        bar_ax = fig.add_axes((0.89, 0.40, 0.015, 0.52))
-        self.strain_ax = fig.add_axes((0.07, 0.07, 0.80, 0.24))
-        self.scale = ScalarMappable(Normalize(0.0, 1.0), cmap="inferno_r")
-        colorbar = fig.colorbar(self.scale, cax=bar_ax)
-        colorbar.set_label("flange edge strain (|e|)")
-        self.bar_limit = colorbar.ax.axhline(0.0, color="tab:blue", lw=1.5)
-        self.top.set_aspect("equal")
-        self.top.grid(True, lw=0.3)
-        self.top.set_xlabel("x (mm)")
-        self.title = self.top.set_title(" ", fontsize=9)
-        ax = self.strain_ax
-        self.shrink_limit = ax.axhline(0.0, color="tab:blue", ls="--", lw=1)
-        self.stretch_limit = ax.axhline(0.0, color="tab:red", ls="--", lw=1)
-        ax.set_xlabel("position along the die outline (mm)")
-        ax.set_ylabel("shrink (+) / stretch (−)")
-        ax.grid(True, lw=0.3)
-        self.legend_labels: tuple[str, str] | None = None
+def _preview(piece_analysis: Any) -> Any:
+    """Die and blank together, the flange coloured by edge strain, and the strain along the outline: a Pillow
+    image drawn on :mod:`diegen.export.raster`'s canvas (the build writes one per piece; the plotting library's
+    import and figure would cost more than the rest of the picture)."""
+    from diegen.export.raster import TAB, TAB10, Canvas, Line, grey, inferno_r
 
-    def draw(self, piece_analysis: Any, path: str | Path) -> Path:
-        from matplotlib.collections import LineCollection
+    canvas = Canvas(*PREVIEW_INCHES, DPI)
+    g = piece_analysis.piece
+    blank = piece_analysis.blank
+    outline = _closed(g.outline)
+    limit = piece_analysis.flange.shrink_limit
+    stretch = piece_analysis.alloy.stretch_limit
+    norm_max = max(2 * limit, piece_analysis.max_shrink, piece_analysis.max_stretch, 1e-3)
 
-        g = piece_analysis.piece
-        top, strain_ax = self.top, self.strain_ax
-        blank = piece_analysis.blank
-        outline = _closed(g.outline)
-        self.line(top, *_closed(blank.outer).T, color="tab:green", lw=0.9)
-        self.line(top, *outline.T, color="0.3", lw=0.6)
+    segments, magnitudes, curves = [], [], []
+    relieved = piece_analysis.flutes or piece_analysis.notches
+    for index, run in enumerate(piece_analysis.runs):
+        xy = _along(np.asarray(g.plain_runs[run.run_index].points), run.profile.s_mm)
+        segments.append(np.stack([xy[:-1], xy[1:]], axis=1))
+        magnitudes.append(np.abs(run.profile.strain[:-1]))
+        s = run.s_offset_mm + run.profile.s_mm
+        colour = TAB10[index % 10]
+        curves.append((s, -run.profile.strain, Line(colour, 1.0)))
+        if piece_analysis.mixed_heights:  # flange runs of their own heights: each run's own wrinkle limit
+            curves.append((np.array([s[0], s[-1]]), np.array([run.shrink_limit] * 2), Line(colour, 0.8, "--")))
+        if index < len(piece_analysis.flange.residual_profiles) and relieved:
+            curves.append((s, np.asarray(piece_analysis.flange.residual_profiles[index]), Line(colour, 0.8, ":")))
+    circles = [(c.x, c.y, c.d / 2) for c in blank.cut_circles] + _hole_circles(g) + _pin_circles(g)
 
-        limit = piece_analysis.flange.shrink_limit
-        stretch = piece_analysis.alloy.stretch_limit
-        norm_max = max(2 * limit, piece_analysis.max_shrink, piece_analysis.max_stretch, 1e-3)
-        self.scale.set_clim(0.0, norm_max)
-        self.bar_limit.set_ydata([limit, limit])
-        segments, magnitudes, strain_x, strain_y = [], [], [], []
-        for index, run in enumerate(piece_analysis.runs):
-            xy = _along(np.asarray(g.plain_runs[run.run_index].points), run.profile.s_mm)
-            segments.append(np.stack([xy[:-1], xy[1:]], axis=1))
-            magnitudes.append(np.abs(run.profile.strain[:-1]))
-            s = run.s_offset_mm + run.profile.s_mm
-            self.line(strain_ax, s, -run.profile.strain, lw=1.0, color=f"C{index % 10}")
-            if piece_analysis.mixed_heights:  # flange runs of their own heights: each run's own wrinkle limit
-                self.line(strain_ax, [s[0], s[-1]], [run.shrink_limit, run.shrink_limit], lw=0.8, ls="--",
-                          color=f"C{index % 10}")
-            relieved = piece_analysis.flutes or piece_analysis.notches
-            if index < len(piece_analysis.flange.residual_profiles) and relieved:
-                self.line(strain_ax, s, piece_analysis.flange.residual_profiles[index], lw=0.8, ls=":",
-                          color=f"C{index % 10}")
-            strain_x.append(s)
-            strain_y.append(-run.profile.strain)
-        if segments:
-            band = LineCollection(np.concatenate(segments), cmap=self.scale.cmap, norm=self.scale.norm, linewidths=4)
-            band.set_array(np.clip(np.concatenate(magnitudes), 0, norm_max))
-            self.collection(top, band)
+    top = canvas.axes((0.07, 0.40, 0.80, 0.52))
+    x0, x1, y0, y1 = _limits([blank.outer, outline, *blank.inner, *segments], circles)
+    top.limits((x0, x1), (y0, y1), equal=True)
+    top.grid()
+    top.line(*_closed(blank.outer).T, Line(TAB["green"], 0.9))
+    top.line(*outline.T, Line(grey(0.3), 0.6))
+    if segments:
+        top.segments(np.concatenate(segments), inferno_r(np.concatenate(magnitudes) / norm_max), 4.0)
+    for x, y, marker, colour in _relief_marks(piece_analysis):
+        top.markers(x, y, marker, TAB[colour.removeprefix("tab:")], 5.0)
+    for loop in blank.inner:
+        top.line(*_closed(loop).T, Line(TAB["green"], 0.7))
+    top.circles([(c.x, c.y, c.d / 2) for c in blank.cut_circles], edge=Line(TAB["green"], 0.6, "--"))
+    top.circles(_hole_circles(g), edge=Line(TAB["purple"], 0.8))
+    top.circles(_pin_circles(g), edge=Line(TAB["red"], 1.0), fill=TAB["red"])
+    top.finish(xlabel="x (mm)", title=f"{g.part_id}: die (grey) and blank (green), flange coloured by edge strain; "
+               f"{len(piece_analysis.flutes)} flute(s), {len(piece_analysis.notches)} notch(es); press "
+               f"{piece_analysis.press.verdict}", title_pt=9.0)
 
-        circles = []
-        for x, y, marker, colour in _relief_marks(piece_analysis):
-            self.line(top, x, y, marker, color=colour, ms=5)
-        _blank_cuts(self, top, blank)
-        circles += [(c.x, c.y, c.d / 2) for c in blank.cut_circles]
-        if g.holes:
-            self.collection(top, _circles(_hole_circles(g), facecolor="none", edgecolor="tab:purple", lw=0.8))
-            circles += _hole_circles(g)
-        if g.pins:
-            self.collection(top, _circles(_pin_circles(g), color="tab:red"))
-            circles += _pin_circles(g)
+    bar = canvas.axes((0.89, 0.40, 0.015, 0.52))
+    bar.limits((0.0, 1.0), (0.0, norm_max))
+    bar.gradient(inferno_r(np.linspace(0.0, 1.0, 256)))
+    bar.hline(limit, Line(TAB["blue"], 1.5))
+    bar.finish(ylabel="flange edge strain (|e|)", xticks=False, yticks_right=True, ylabel_right=True)
 
-        x0, x1, y0, y1 = _limits([blank.outer, outline, *blank.inner, *segments], circles)
-        top.set_xlim(x0, x1)
-        top.set_ylim(y0, y1)
-        self.title.set_text(f"{g.part_id}: die (grey) and blank (green), flange coloured by edge strain; "
-                            f"{len(piece_analysis.flutes)} flute(s), {len(piece_analysis.notches)} notch(es); press "
-                            f"{piece_analysis.press.verdict}")
-
-        self.shrink_limit.set_ydata([limit, limit])
-        self.stretch_limit.set_ydata([-stretch, -stretch])
-        labels = (f"wrinkle limit {limit:.3f} (dotted: shrink left after relief)", f"stretch limit {stretch:.3f}")
-        if piece_analysis.mixed_heights:
-            labels = (f"wrinkle limit {limit:.3f} of the run judged worst (each run's own dashed in its colour; "
-                      "dotted: shrink left after relief)", labels[1])
-        if labels != self.legend_labels:
-            strain_ax.legend([self.shrink_limit, self.stretch_limit], labels, fontsize=7, loc="upper right")
-            self.legend_labels = labels
-        xs = np.concatenate(strain_x) if strain_x else np.array([0.0, 1.0])
-        ys = np.concatenate([*strain_y, [limit, -stretch]])
-        dx, dy = MARGIN * (xs.max() - xs.min()), MARGIN * (ys.max() - ys.min())
-        strain_ax.set_xlim(xs.min() - dx, xs.max() + dx)
-        strain_ax.set_ylim(ys.min() - dy, ys.max() + dy)
-        return self.write(path)
+    strain_ax = canvas.axes((0.07, 0.07, 0.80, 0.24))
+    xs = np.concatenate([s for s, _, style in curves if style.style == "-"]) if curves else np.array([0.0, 1.0])
+    ys = np.concatenate([*(y for _, y, style in curves if style.style == "-"), [limit, -stretch]])
+    dx, dy = MARGIN * (xs.max() - xs.min()), MARGIN * (ys.max() - ys.min())
+    strain_ax.limits((xs.min() - dx, xs.max() + dx), (ys.min() - dy, ys.max() + dy))
+    strain_ax.grid()
+    shrink_line, stretch_line = Line(TAB["blue"], 1.0, "--"), Line(TAB["red"], 1.0, "--")
+    strain_ax.hline(limit, shrink_line)
+    strain_ax.hline(-stretch, stretch_line)
+    for s, y, style in curves:
+        strain_ax.line(s, y, style)
+    shrink_label = f"wrinkle limit {limit:.3f} (dotted: shrink left after relief)"
+    if piece_analysis.mixed_heights:
+        shrink_label = (f"wrinkle limit {limit:.3f} of the run judged worst (each run's own dashed in its colour; "
+                        "dotted: shrink left after relief)")
+    strain_ax.legend([(shrink_line, shrink_label), (stretch_line, f"stretch limit {stretch:.3f}")], 7.0)
+    strain_ax.finish(xlabel="position along the die outline (mm)", ylabel="shrink (+) / stretch (−)")
+    return canvas.image
 
 
 def _picture(kind: str) -> Any:
     if kind not in _FIGURES:
-        _FIGURES[kind] = _GeometryPicture() if kind == "geometry" else _PreviewPicture()
+        _FIGURES[kind] = _GeometryPicture()
     return _FIGURES[kind]
 
 
@@ -320,5 +301,6 @@ def piece_plot(rib_analysis: Any, piece_analysis: Any, path: str | Path) -> Path
 
 def preview_plot(rib_analysis: Any, piece_analysis: Any, path: str | Path) -> Path:
     """Die and blank together, the flange coloured by edge strain, and the strain along the outline."""
-    with _LOCK:
-        return _picture("preview").draw(piece_analysis, path)
+    image = _preview(piece_analysis)
+    write_with(path, lambda tmp: image.save(tmp, format="png", **PNG_OPTIONS))
+    return Path(path)

@@ -14,7 +14,7 @@ from typing import Any
 import numpy as np
 
 from diegen.analysis import PieceAnalysis, RibAnalysis
-from diegen.fileio import write_text, write_with
+from diegen.fileio import write_bytes, write_text, write_with
 from diegen.numbers import plain
 from diegen.spec.model import SetSpec, WingSpec
 from diegen.wing import chord_at, leading_edge_at, stations
@@ -101,13 +101,25 @@ def write_set_summary(spec: SetSpec, ribs: Sequence[RibAnalysis], folder: Path,
 
 
 def write_wing_summary(spec: WingSpec, ribs: Sequence[RibAnalysis], folder: Path,
-                       status: Mapping[str, str] | None = None) -> list[Path]:
+                       status: Mapping[str, str] | None = None, pdf: bytes | None = None) -> list[Path]:
     """Write ``summary.csv`` and ``summary.pdf`` for the whole wing (``ribs``: every rib, analysed) into ``folder``;
-    ``status`` is what the build did with each part."""
+    ``status`` is what the build did with each part.  ``pdf``: the PDF made beforehand by :func:`summary_pdf` of
+    the same ``spec`` and ``ribs`` (the PDF shows no status), so a build can draw it while its pieces are made."""
     rows = summary_rows(spec, ribs, status)
     write_text(folder / "summary.csv", _csv_text(rows))
-    write_with(folder / "summary.pdf", lambda tmp: _pdf(spec, ribs, rows, tmp))
+    if pdf is None:
+        write_with(folder / "summary.pdf", lambda tmp: _pdf(spec, ribs, rows, tmp))
+    else:
+        write_bytes(folder / "summary.pdf", pdf)
     return [folder / "summary.csv", folder / "summary.pdf"]
+
+
+def summary_pdf(spec: WingSpec, ribs: Sequence[RibAnalysis]) -> bytes:
+    """The bytes of ``summary.pdf`` (planform, table, a page a piece): it shows nothing of a build's status, so it
+    can be drawn before the build ends; writes no file."""
+    buffer = io.BytesIO()
+    _pdf(spec, ribs, summary_rows(spec, ribs), buffer)
+    return buffer.getvalue()
 
 
 def _planform(ax, spec: WingSpec) -> None:
@@ -131,7 +143,7 @@ def _planform(ax, spec: WingSpec) -> None:
     ax.legend(fontsize=7)
 
 
-def _pdf(spec: WingSpec, ribs: Sequence[RibAnalysis], rows: list[dict[str, Any]], path: Path) -> None:
+def _pdf(spec: WingSpec, ribs: Sequence[RibAnalysis], rows: list[dict[str, Any]], path: Path | io.BytesIO) -> None:
     from matplotlib.backends.backend_pdf import PdfPages
     from matplotlib.figure import Figure
 
@@ -203,4 +215,4 @@ class _PiecePage:
                 artist.remove()
 
 
-__all__ = ["COLUMNS", "summary_rows", "update_summary_status", "write_wing_summary"]
+__all__ = ["COLUMNS", "summary_pdf", "summary_rows", "update_summary_status", "write_wing_summary"]

@@ -25,6 +25,7 @@ from pathlib import Path
 from typing import Any
 
 from diegen import __version__
+from diegen.die.occ.shapes import quiet_kernel, raw, solids
 from diegen.die.occ.threads import parallel_ok
 from diegen.die.occ.validate import step_file_problems, stl_problems
 from diegen.errors import SolidError
@@ -35,16 +36,16 @@ STL_ANGULAR_TOLERANCE_DEG = 15.0
 
 
 def write_step(shape: Any, path: str | os.PathLike[str], product: str = "", description: str = "") -> None:
-    """Write ``shape`` (a cadquery Shape) as a STEP file in mm; raise :class:`SolidError` if it is not good.
+    """Write ``shape`` (a kernel shape) as a STEP file in mm; raise :class:`SolidError` if it is not good.
 
     ``product``: the name of the product the file holds (the part id; the file's stem when empty).
     The header names this tool as the originating system and carries ``description``
     (ISO 10303-21: FILE_DESCRIPTION and FILE_NAME of the HEADER section).
     """
-    import cadquery as cq
+    quiet_kernel()
     from OCP.IFSelect import IFSelect_RetDone
 
-    shape = shape if isinstance(shape, cq.Shape) else cq.Shape.cast(shape)
+    shape = raw(shape)
     name = product or Path(path).stem
     with atomic_path(path) as tmp:
         status = _write_named_step(shape, tmp, name, Path(path).name, description)
@@ -67,7 +68,7 @@ def _write_named_step(shape: Any, tmp: Path, product: str, file_name: str, descr
     from OCP.XCAFDoc import XCAFDoc_DocumentTool
 
     document = TDocStd_Document(TCollection_ExtendedString("diegen"))
-    label = XCAFDoc_DocumentTool.ShapeTool_s(document.Main()).AddShape(shape.wrapped, False)
+    label = XCAFDoc_DocumentTool.ShapeTool_s(document.Main()).AddShape(shape, False)
     TDataStd_Name.Set_s(label, TCollection_ExtendedString(product))
     writer = STEPCAFControl_Writer()
     writer.SetNameMode(True)
@@ -108,22 +109,27 @@ def write_stl(shape: Any, path: str | os.PathLike[str], tolerance_mm: float = ST
 
     The 80-byte header names this tool, then ``header`` (the part id): "diegen <version> <header> mm".
     """
-    import cadquery as cq
+    from OCP.BRepMesh import BRepMesh_IncrementalMesh
     from OCP.BRepTools import BRepTools
+    from OCP.StlAPI import StlAPI_Writer
 
     if not (tolerance_mm > 0 and 0 < angular_tolerance_deg < 90):
         raise SolidError(
             f"STL tolerance {tolerance_mm} mm / {angular_tolerance_deg}° out of range: give a positive tolerance "
             "and an angle between 0 and 90°"
         )
-    shape = shape if isinstance(shape, cq.Shape) else cq.Shape.cast(shape)
-    if len(shape.Solids()) != 1:
-        raise SolidError(f"STL for {os.fspath(path)!r}: the shape holds {len(shape.Solids())} solids, not one")
-    BRepTools.Clean_s(shape.wrapped)  # drop any earlier mesh so the tolerances asked for are the ones used
+    quiet_kernel()
+    shape = raw(shape)
+    count = len(solids(shape))
+    if count != 1:
+        raise SolidError(f"STL for {os.fspath(path)!r}: the shape holds {count} solids, not one")
+    BRepTools.Clean_s(shape)  # drop any earlier mesh so the tolerances asked for are the ones used
     with atomic_path(path) as tmp:
-        ok = shape.exportStl(str(tmp), tolerance=tolerance_mm, angularTolerance=math.radians(angular_tolerance_deg),
-                             ascii=False, relative=False, parallel=parallel_ok())
-        if not ok:
+        # absolute deflection (not relative to each edge's size), parallel where safe; then a binary file
+        BRepMesh_IncrementalMesh(shape, tolerance_mm, False, math.radians(angular_tolerance_deg), parallel_ok())
+        writer = StlAPI_Writer()
+        writer.ASCIIMode = False
+        if not writer.Write(shape, str(tmp)):
             raise SolidError(f"the kernel could not write the STL file {os.fspath(path)!r}")
         with open(tmp, "r+b") as stl:
             stl.write(stl_header(f"diegen {__version__} {header or Path(path).stem} mm"))

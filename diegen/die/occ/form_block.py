@@ -23,7 +23,8 @@ the top fillet; booleans against the lofted walls take seconds per die — see
 "How the die solid is made" in DEVELOPERS.md.)  Any kernel failure or invalid
 result raises :class:`diegen.errors.SolidError` with a hint.
 
-``cadquery`` is imported inside the functions: importing it costs seconds.
+The kernel (OCP) is imported inside the functions, and never through CadQuery (see
+:mod:`diegen.die.occ.shapes`): importing it costs most of a second.
 """
 
 from __future__ import annotations
@@ -35,6 +36,7 @@ from typing import TYPE_CHECKING, Any
 
 from diegen.die.die_input import DieInput
 from diegen.die.model import largest_inset_mm, loft_sections, section
+from diegen.die.occ import shapes
 from diegen.die.occ.validate import solid_problems
 from diegen.die.outline import OffsetPiece, OutlineModel
 from diegen.die.placement import engraving_marks
@@ -43,30 +45,29 @@ from diegen.die.settings import DEFAULT_SETTINGS, BuildSettings
 from diegen.errors import SolidError
 
 if TYPE_CHECKING:  # pragma: no cover
-    import cadquery as cq
     from shapely.geometry import Polygon
 
-def _wire(pieces: list[OffsetPiece], z: float) -> cq.Wire:
-    import cadquery as cq
 
+def _wire(pieces: list[OffsetPiece], z: float) -> Any:
+    """The kernel wire (``TopoDS_Wire``) of one section at height ``z``: a line or B-spline edge per piece."""
     edges = []
     for piece in pieces:
-        pts = [cq.Vector(x, y, z) for x, y in piece.points]
+        pts = [shapes.point(x, y, z) for x, y in piece.points]
         if piece.kind == "line":
-            edges.append(cq.Edge.makeLine(pts[0], pts[-1]))
+            edges.append(shapes.line_edge(pts[0], pts[-1]))
         elif piece.closed:
-            edges.append(cq.Edge.makeSpline(pts[:-1], periodic=True, parameters=list(piece.params), scale=False))
+            edges.append(shapes.spline_edge(pts[:-1], list(piece.params), periodic=True))
         else:
-            edges.append(cq.Edge.makeSpline(pts, parameters=list(piece.params), scale=False))
-    return cq.Wire.assembleEdges(edges)
+            edges.append(shapes.spline_edge(pts, list(piece.params)))
+    return shapes.wire(edges)
 
 
-def _loft_faces(wires: list[cq.Wire], ruled: bool) -> Any:
+def _loft_faces(wires: list[Any], ruled: bool) -> Any:
     from OCP.BRepOffsetAPI import BRepOffsetAPI_ThruSections
 
     builder = BRepOffsetAPI_ThruSections(False, ruled, 1e-6)
     for w in wires:
-        builder.AddWire(w.wrapped)
+        builder.AddWire(w)
     builder.CheckCompatibility(False)  # the sections already match edge to edge and start at the same corner
     builder.Build()
     if not builder.IsDone():
@@ -219,14 +220,14 @@ def _faces_out(shell: Any) -> bool:
 
 
 def build_body(die: DieInput, model: OutlineModel, settings: BuildSettings = DEFAULT_SETTINGS,
-               marks: list[Polygon] | None = None) -> cq.Solid:
+               marks: list[Polygon] | None = None) -> Any:
     """The die body: outline, top-edge arc, undercut wall with its flutes, and the engraving ``marks``.
 
     ``marks`` are the engraving's polygons on the bottom face (see
     :func:`diegen.die.placement.engraving_marks`), sunk ``settings.engrave_depth_mm``.
     The result is not checked here (see :func:`build_die`).
     """
-    import cadquery as cq
+    shapes.quiet_kernel()
     from OCP.BRepBuilderAPI import BRepBuilderAPI_MakeSolid, BRepBuilderAPI_Sewing
     from OCP.TopAbs import TopAbs_SHELL
     from OCP.TopExp import TopExp_Explorer
@@ -242,8 +243,8 @@ def build_body(die: DieInput, model: OutlineModel, settings: BuildSettings = DEF
         top_holes, bottom_holes, holes = _hole_faces(die)
         sew = BRepBuilderAPI_Sewing(settings.sew_tol_mm)
         for part in [_loft_faces(arc_wires, ruled=False), _loft_faces(wall_wires, ruled=True),
-                     _plane_face(0.0, arc_wires[0].wrapped, top_holes),
-                     _plane_face(-die.height_mm, wall_wires[-1].wrapped, marked + bottom_holes), *pockets, *holes]:
+                     _plane_face(0.0, arc_wires[0], top_holes),
+                     _plane_face(-die.height_mm, wall_wires[-1], marked + bottom_holes), *pockets, *holes]:
             sew.Add(part)
         sew.Perform()
         exp = TopExp_Explorer(sew.SewedShape(), TopAbs_SHELL)
@@ -252,7 +253,7 @@ def build_body(die: DieInput, model: OutlineModel, settings: BuildSettings = DEF
         shell = TopoDS.Shell_s(exp.Current())
         if not _faces_out(shell):
             shell = TopoDS.Shell_s(shell.Reversed())
-        solid = cq.Solid(BRepBuilderAPI_MakeSolid(shell).Solid())
+        solid = BRepBuilderAPI_MakeSolid(shell).Solid()
     except SolidError:
         raise
     except Exception as exc:  # OCP raises its own Standard_Failure family
@@ -261,8 +262,8 @@ def build_body(die: DieInput, model: OutlineModel, settings: BuildSettings = DEF
 
 
 def build_die(die: DieInput, settings: BuildSettings = DEFAULT_SETTINGS,
-              marks: Sequence[Polygon] | None = None) -> cq.Solid:
-    """The finished die solid (cadquery ``Solid``), checked valid.
+              marks: Sequence[Polygon] | None = None) -> Any:
+    """The finished die solid (the kernel's ``TopoDS_Solid``), checked valid.
 
     ``marks``: the engraving's grooves when already laid out
     (:func:`diegen.die.placement.place_marks`); by default they are laid out here.
@@ -297,5 +298,5 @@ __all__ = ["build_body", "build_die", "warm_up"]
 
 
 def warm_up() -> None:
-    """Import the kernel (2–3 s per process): worker processes pay it once, before their first piece."""
-    import cadquery  # noqa: F401
+    """Import the kernel (most of a second per process): worker processes pay it once, before their first piece."""
+    shapes.quiet_kernel()

@@ -17,6 +17,7 @@ from typing import Any
 import numpy as np
 
 from diegen.die.die_input import DieInput
+from diegen.die.occ.shapes import bounding_box, box, cylinder, quiet_kernel, raw, solids
 from diegen.die.occ.threads import parallel_ok
 from diegen.die.occ.validate import check_solid
 from diegen.die.tiles import (
@@ -33,7 +34,7 @@ from diegen.errors import GeometryError, SolidError
 
 @dataclass(frozen=True, eq=False)
 class DieTile:
-    """One printable tile of a die: its place along X (mm) and its solid (a cadquery ``Solid``)."""
+    """One printable tile of a die: its place along X (mm) and its solid (the kernel's ``TopoDS_Solid``)."""
 
     index: int
     x_min_mm: float
@@ -47,7 +48,7 @@ def _inside(shape: Any, pts: list[tuple[float, float, float]]) -> list[bool]:
     from OCP.gp import gp_Pnt
     from OCP.TopAbs import TopAbs_IN
 
-    classifier = BRepClass3d_SolidClassifier(shape.wrapped)
+    classifier = BRepClass3d_SolidClassifier(raw(shape))
     out = []
     for x, y, z in pts:
         classifier.Perform(gp_Pnt(x, y, z), 1e-7)
@@ -61,7 +62,7 @@ def _hits(shape: Any, origin: tuple[float, float, float], direction: tuple[float
     from OCP.IntCurvesFace import IntCurvesFace_ShapeIntersector
 
     inter = IntCurvesFace_ShapeIntersector()
-    inter.Load(shape.wrapped, 1e-7)
+    inter.Load(raw(shape), 1e-7)
     inter.Perform(gp_Lin(gp_Pnt(*origin), gp_Dir(*direction)), -1e6, 1e6)
     return sorted(inter.WParameter(i) for i in range(1, inter.NbPnt() + 1))
 
@@ -100,29 +101,28 @@ def _dowel_spots(shape: Any, x: float, z: float, d: float, depth: float, wall: f
 
 
 def _boolean(kind: str, shape: Any, tools: list[Any]) -> Any:
-    """``shape`` cut by, or in common with, ``tools`` (cadquery shapes); parallel only where that is safe."""
-    import cadquery as cq
+    """``shape`` cut by, or in common with, ``tools`` (kernel shapes); parallel only where that is safe."""
     from OCP.BRepAlgoAPI import BRepAlgoAPI_Common, BRepAlgoAPI_Cut
     from OCP.TopTools import TopTools_ListOfShape
 
     op = BRepAlgoAPI_Cut() if kind == "cut" else BRepAlgoAPI_Common()
     args, others = TopTools_ListOfShape(), TopTools_ListOfShape()
-    args.Append(shape.wrapped)
+    args.Append(raw(shape))
     for tool in tools:
-        others.Append(tool.wrapped)
+        others.Append(raw(tool))
     op.SetArguments(args)
     op.SetTools(others)
     op.SetRunParallel(parallel_ok())
     op.Build()
     if not op.IsDone():
         raise SolidError(f"the kernel's boolean {kind} did not finish")
-    return cq.Shape.cast(op.Shape())
+    return op.Shape()
 
 
 def tile_for_bed(shape_or_die: Any, bed_xy_mm: tuple[float, float], dowel_d_mm: float = DOWEL_D_MM,
                  dowel_depth_mm: float = DOWEL_DEPTH_MM, margin_mm: float = BED_MARGIN_MM,
                  min_wall_mm: float = MIN_WALL_MM) -> list[DieTile]:
-    """Split a die (a cadquery solid, or a :class:`DieInput` to build) into tiles that fit the bed.
+    """Split a die (a kernel solid, or a :class:`DieInput` to build) into tiles that fit the bed.
 
     ``bed_xy_mm`` is the bed's usable size (mm); each tile is kept ``margin_mm``
     inside it.  The layout is :func:`diegen.die.tiles.tile_layout` of the die's
@@ -130,8 +130,6 @@ def tile_for_bed(shape_or_die: Any, bed_xy_mm: tuple[float, float], dowel_d_mm: 
     :class:`SolidError` when the bed is smaller than one tile can be (narrower
     than the die, shorter than two dowel depths) or a joint has no room for a dowel.
     """
-    import cadquery as cq
-
     sizes = {"dowel_d_mm": dowel_d_mm, "dowel_depth_mm": dowel_depth_mm, "margin_mm": margin_mm,
              "min_wall_mm": min_wall_mm}
     try:
@@ -141,9 +139,9 @@ def tile_for_bed(shape_or_die: Any, bed_xy_mm: tuple[float, float], dowel_d_mm: 
             shape = build_die(shape_or_die)
             layout = die_tile_layout(shape_or_die, bed_xy_mm, **sizes)
         else:
-            shape = shape_or_die if isinstance(shape_or_die, cq.Shape) else cq.Shape.cast(shape_or_die)
-            bb = shape.BoundingBox()
-            layout = tile_layout((bb.xmin, bb.ymin, bb.xmax, bb.ymax), (bb.zmin, bb.zmax), bed_xy_mm, **sizes)
+            shape = raw(shape_or_die)
+            x0, y0, z0, x1, y1, z1 = bounding_box(shape)
+            layout = tile_layout((x0, y0, x1, y1), (z0, z1), bed_xy_mm, **sizes)
     except GeometryError as exc:
         raise SolidError(str(exc)) from exc
     return cut_tiles(shape, layout)[0]
@@ -158,8 +156,8 @@ def cut_tiles(shape: Any, layout: TileLayout) -> tuple[list[DieTile], list[tuple
     Returns the tiles and the dowels' axis points (x of the joint, y, z; mm), each dowel running along X
     ``layout.dowel_depth_mm`` into either tile.
     """
-    import cadquery as cq
-
+    quiet_kernel()
+    shape = raw(shape)
     check_solid(shape, "die to tile")
     if len(layout.tiles) == 1:
         only = layout.tiles[0]
@@ -180,7 +178,7 @@ def cut_tiles(shape: Any, layout: TileLayout) -> tuple[list[DieTile], list[tuple
             )
         for y in spots:
             axes.append((x, y, z))
-            dowels.append(cq.Solid.makeCylinder(d / 2, 2 * depth, cq.Vector(x - depth, y, z), cq.Vector(1, 0, 0)))
+            dowels.append(cylinder(d / 2, 2 * depth, (x - depth, y, z), (1, 0, 0)))
     try:
         drilled = _boolean("cut", shape, dowels)
     except Exception as exc:
@@ -191,19 +189,19 @@ def cut_tiles(shape: Any, layout: TileLayout) -> tuple[list[DieTile], list[tuple
     for k, span in enumerate(layout.tiles):
         x0 = span.x_min_mm - (1.0 if k == 0 else 0.0)
         x1 = span.x_max_mm + (1.0 if k == count - 1 else 0.0)
-        cutter = cq.Solid.makeBox(x1 - x0, span.y_max_mm - span.y_min_mm + 2, span.z_max_mm - span.z_min_mm + 2,
-                                  cq.Vector(x0, span.y_min_mm - 1, span.z_min_mm - 1))
+        cutter = box(x1 - x0, span.y_max_mm - span.y_min_mm + 2, span.z_max_mm - span.z_min_mm + 2,
+                     (x0, span.y_min_mm - 1, span.z_min_mm - 1))
         try:
             piece = _boolean("common", drilled, [cutter])
         except Exception as exc:
             raise SolidError(f"the kernel failed cutting tile {k + 1} of {count} ({exc})") from exc
-        solids = piece.Solids()
-        if len(solids) != 1:
+        parts = solids(piece)
+        if len(parts) != 1:
             raise SolidError(
-                f"tile {k + 1} of {count} falls apart into {len(solids)} pieces: the die is too thin across the cut; "
+                f"tile {k + 1} of {count} falls apart into {len(parts)} pieces: the die is too thin across the cut; "
                 "use a larger bed"
             )
-        tile = cq.Solid(solids[0].wrapped)
+        tile = parts[0]
         check_solid(tile, f"tile {k + 1} of {count}")
         tiles.append(DieTile(k, span.x_min_mm, span.x_max_mm, span.along_bed_y, tile))
     return tiles, axes

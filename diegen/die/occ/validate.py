@@ -13,6 +13,7 @@ from typing import Any
 
 import numpy as np
 
+from diegen.die.occ.shapes import quiet_kernel, raw
 from diegen.die.occ.threads import parallel_ok
 from diegen.die.settings import VOLUME_EPS
 from diegen.errors import SolidError
@@ -32,7 +33,7 @@ __all__ = [
 
 
 def volume_mm3(shape: Any) -> float:
-    """Volume of a cadquery/OCP shape (mm³), by adaptive integration (see ``VOLUME_EPS``)."""
+    """Volume of a kernel shape (mm³), by adaptive integration (see ``VOLUME_EPS``)."""
     from OCP.BRepGProp import BRepGProp
     from OCP.GProp import GProp_GProps
 
@@ -55,7 +56,7 @@ def quick_volume_mm3(shape: Any) -> float:
 
 
 def _wrapped(shape: Any) -> Any:
-    return getattr(shape, "wrapped", shape)
+    return raw(shape)
 
 
 def solid_problems(shape: Any) -> list[str]:
@@ -102,6 +103,7 @@ def read_step(path: str | os.PathLike[str]) -> Any:
     from OCP.IFSelect import IFSelect_RetDone
     from OCP.STEPControl import STEPControl_Reader
 
+    quiet_kernel()
     reader = STEPControl_Reader()
     if reader.ReadFile(os.fspath(path)) != IFSelect_RetDone:
         raise SolidError(f"STEP file {os.fspath(path)!r} cannot be read back")
