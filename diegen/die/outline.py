@@ -79,6 +79,10 @@ class _Segment:
     def deriv(self, s: FloatArray | float, inset: float) -> FloatArray:  # pragma: no cover - interface
         raise NotImplementedError
 
+    def point_and_deriv(self, s: float, inset: float) -> tuple[FloatArray, FloatArray]:
+        """``point`` and ``deriv`` at one parameter (what a Newton step at a junction needs)."""
+        return self.point(s, inset), self.deriv(s, inset)
+
 
 class _LineSegment(_Segment):
     def __init__(self, a: FloatArray, b: FloatArray) -> None:
@@ -135,12 +139,21 @@ class CurveSegment(_Segment):
         return cross / np.linalg.norm(d, axis=-1) ** 3
 
     def point(self, s: FloatArray | float, inset: float) -> FloatArray:
-        return self.base(s) + inset * _rot90(self.tangent(s))
+        base, d, _ = self.spline.with_derivatives(s)  # base(s) + inset · rot90(tangent(s)), one spline evaluation
+        return base + inset * _rot90(d / np.linalg.norm(d, axis=-1, keepdims=True))
 
     def deriv(self, s: FloatArray | float, inset: float) -> FloatArray:
         d = np.asarray(self.d1(s))
         k = self.curvature(s)[..., None]
         return d * (1.0 - inset * k)
+
+    def point_and_deriv(self, s: float, inset: float) -> tuple[FloatArray, FloatArray]:
+        # the same expressions as point and deriv, from one evaluation of the spline
+        base, d, dd = self.spline.with_derivatives(s)
+        norm = np.linalg.norm(d, axis=-1)
+        point = base + inset * _rot90(d / norm[..., None])
+        k = (d[..., 0] * dd[..., 1] - d[..., 1] * dd[..., 0]) / norm ** 3
+        return point, d * (1.0 - inset * k[..., None])
 
 
 @dataclass(frozen=True)
@@ -224,6 +237,7 @@ class OutlineModel:
         self.max_spacing_mm = max_spacing_mm
         self.segments: list[_Segment] = []
         self.periodic = False
+        self._corner_cache: dict[float, tuple[list[float], list[float], dict[int, FloatArray]]] = {}
         self._build(runs)
         self._check_loop()
         self._check_curvature()
@@ -480,10 +494,11 @@ class OutlineModel:
         """Parameters (on a, on b) where the offsets of a and b meet at ``inset``."""
         sa, sb = a.length, 0.0
         for _ in range(50):
-            f = a.point(sa, inset) - b.point(sb, inset)
+            (pa, da), (pb, db) = a.point_and_deriv(sa, inset), b.point_and_deriv(sb, inset)
+            f = pa - pb
             if float(np.linalg.norm(f)) < 1e-10:
                 break
-            jac = np.column_stack([a.deriv(sa, inset), -b.deriv(sb, inset)])
+            jac = np.column_stack([da, -db])
             step = np.linalg.lstsq(jac, -f, rcond=1e-12)[0]
             sa, sb = sa + float(step[0]), sb + float(step[1])
         f = a.point(sa, inset) - b.point(sb, inset)
@@ -496,6 +511,24 @@ class OutlineModel:
                 "top radius or the undercut (lower die stock), or move the spar where the section is deeper"
             )
         return sa, sb
+
+    def _corners(self, inset: float) -> tuple[list[float], list[float], dict[int, FloatArray]]:
+        """(start and stop parameter of each segment, corner point after each) of the offset by ``inset``; kept per
+        inset, as the die's sections, rules and drawing ask for the same insets more than once."""
+        if inset not in self._corner_cache:
+            n = len(self.segments)
+            starts = [0.0] * n
+            stops = [seg.length for seg in self.segments]
+            corner: dict[int, FloatArray] = {}
+            if not self.periodic:
+                for i in range(n):
+                    sa, sb = self._junction(self.segments[i], self.segments[(i + 1) % n], inset)
+                    stops[i] = sa
+                    starts[(i + 1) % n] = sb
+                    corner[i] = self.segments[i].point(sa, inset)
+            self._corner_cache[inset] = (starts, stops, corner)
+        starts, stops, corner = self._corner_cache[inset]
+        return list(starts), list(stops), dict(corner)
 
     def offset(self, inset: float, spacing_mm: float | None = None, flute_scale: float = 0.0) -> list[OffsetPiece]:
         """The outline offset inward by ``inset`` mm, one piece per span, the same structure for every inset.
@@ -517,15 +550,7 @@ class OutlineModel:
             self._check_simple(pieces, inset)
             return pieces
         n = len(self.segments)
-        starts = [0.0] * n
-        stops = [seg.length for seg in self.segments]
-        corner: dict[int, FloatArray] = {}
-        if not self.periodic:
-            for i in range(n):
-                sa, sb = self._junction(self.segments[i], self.segments[(i + 1) % n], inset)
-                stops[i] = sa
-                starts[(i + 1) % n] = sb
-                corner[i] = self.segments[i].point(sa, inset)
+        starts, stops, corner = self._corners(inset)
         pieces = []
         for span in self.spans:
             seg = self.segments[span.segment]

@@ -13,6 +13,7 @@ All lengths are fractions of the chord.
 from __future__ import annotations
 
 import re
+from typing import Any
 
 import numpy as np
 import shapely
@@ -335,14 +336,25 @@ class Cubic:
         slopes = np.linalg.solve(a, rhs)
         return np.vstack([slopes, slopes[:1]])
 
-    def __call__(self, at: ArrayLike, nu: int = 0) -> FloatArray:
-        """Values (``nu`` = 0), first or second derivatives at ``at``; a periodic spline wraps ``at`` round."""
+    def _interval(self, at: ArrayLike) -> tuple[Any, Any]:
+        """(interval index, offset into it) of each of ``at``; a periodic spline wraps ``at`` round."""
         at = np.asarray(at, dtype=float)
         x = self.x
         if self.periodic:
             at = x[0] + np.mod(at - x[0], x[-1] - x[0])
-        i = np.clip(np.searchsorted(x, at, side="right") - 1, 0, self.n - 2)
-        u = (at - x[i])[..., None]
+        i = np.minimum(np.maximum(np.searchsorted(x, at, side="right") - 1, 0), self.n - 2)  # np.clip, cheaper
+        return i, (at - x[i])[..., None]
+
+    def with_derivatives(self, at: ArrayLike) -> tuple[FloatArray, FloatArray, FloatArray]:
+        """Values, first and second derivatives at ``at``, each as ``self(at, nu)`` gives it (one interval search)."""
+        i, u = self._interval(at)
+        b, c2, c3 = self.slopes[i], self.c2[i], self.c3[i]
+        return (self.y[i] + u * (b + u * (c2 + u * c3)), b + u * (2.0 * c2 + 3.0 * u * c3),
+                2.0 * c2 + 6.0 * u * c3)
+
+    def __call__(self, at: ArrayLike, nu: int = 0) -> FloatArray:
+        """Values (``nu`` = 0), first or second derivatives at ``at``; a periodic spline wraps ``at`` round."""
+        i, u = self._interval(at)
         b, c2, c3 = self.slopes[i], self.c2[i], self.c3[i]
         if nu == 0:
             return self.y[i] + u * (b + u * (c2 + u * c3))
