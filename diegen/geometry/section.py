@@ -310,17 +310,18 @@ class Cubic:
         rhs[0] = ((h[0] + 2.0 * d0) * h[1] * delta[0] + h[0] ** 2 * delta[1]) / d0
         diag[-1], sub[-1] = h[-2], d1
         rhs[-1] = (h[-1] ** 2 * delta[-2] + (2.0 * d1 + h[-1]) * h[-2] * delta[-1]) / d1
-        c, d = np.zeros(n), np.zeros_like(rhs)
-        c[0], d[0] = sup[0] / diag[0], rhs[0] / diag[0]
+        # the Thomas algorithm on plain floats (numpy's scalar arithmetic is slower, and gives the same numbers)
+        sub_, diag_, sup_, rows = sub.tolist(), diag.tolist(), sup.tolist(), rhs.tolist()
+        c = [sup_[0] / diag_[0]]
+        d = [[v / diag_[0] for v in rows[0]]]
         for i in range(1, n):
-            pivot = diag[i] - sub[i] * c[i - 1]
-            c[i] = sup[i] / pivot
-            d[i] = (rhs[i] - sub[i] * d[i - 1]) / pivot
-        slopes = np.empty_like(rhs)
-        slopes[-1] = d[-1]
+            pivot = diag_[i] - sub_[i] * c[i - 1]
+            c.append(sup_[i] / pivot)
+            d.append([(v - sub_[i] * w) / pivot for v, w in zip(rows[i], d[i - 1])])
+        slopes = [d[-1]]
         for i in range(n - 2, -1, -1):
-            slopes[i] = d[i] - c[i] * slopes[i + 1]
-        return slopes
+            slopes.append([v - c[i] * w for v, w in zip(d[i], slopes[-1])])
+        return np.asarray(slopes[::-1], dtype=float)
 
     @staticmethod
     def _periodic_slopes(h: FloatArray, delta: FloatArray) -> FloatArray:
