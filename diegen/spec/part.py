@@ -9,12 +9,10 @@ holds the outline; every later layer treats it as it treats a rib.
 from __future__ import annotations
 
 import math
-import os
 from dataclasses import replace
 from pathlib import Path
 
 from diegen.errors import DrawingError, SpecError
-from diegen.fileio import UnusableInput, check_plain_file
 from diegen.sources import (
     DEFAULT_JOIN_TOL_MM,
     AllEdges,
@@ -31,7 +29,7 @@ from diegen.sources import (
 from diegen.sources.joggle import JoggleSpec
 from diegen.sources.model import DIRECTIONS, OUTLINE_IS
 from diegen.sources.units import DRAWING_UNITS, SVG_UNITS
-from diegen.spec.model import DrawnOutline, Holes, Pins, RibSpec, Shared
+from diegen.spec.model import AirfoilSource, DrawnOutline, Holes, Pins, RibSpec, Shared
 from diegen.spec.reader import Reader, describe, join
 from diegen.spec.yamltree import YNode
 
@@ -72,8 +70,6 @@ def read_part(r: Reader, root: dict[str, YNode], spec_dir: Path, read_header, re
     shared = replace(shared, skin_thickness_mm=0.0, pieces=("part",), holes=Holes("none", shared.holes.rules),
                      pins=Pins("auto", shared.pins.diameter_mm))
     xs = [p[0] for p in drawn.part.outline.points]
-    from diegen.spec.model import AirfoilSource
-
     return RibSpec(ident, r.units, AirfoilSource(), max(xs) - min(xs), (), shared, r.file, title,  # type: ignore[arg-type]
                    section=drawn.label, paper=paper, drawn=drawn)
 
@@ -191,7 +187,7 @@ def _read_drawing(r: Reader, source: str, fields: dict[str, YNode], spec_dir: Pa
         if unit is None or text is None:
             return None, ""
         return read_svg_path(text, unit, name="outline.svg", join_tol_mm=join_tol), "SVG path"
-    path = _drawing_file(r, fields["file"], spec_dir)
+    path = r.input_file(fields["file"], "outline.file", spec_dir, "drawing", MAX_DRAWING_BYTES, "a DXF drawing")
     unit = r.choice(units_node, "outline.units", tuple(DRAWING_UNITS)) if units_node else None
     if path is None or (units_node is not None and unit is None):
         return None, ""
@@ -201,27 +197,6 @@ def _read_drawing(r: Reader, source: str, fields: dict[str, YNode], spec_dir: Pa
     if not layers:
         return drawing, path.name
     return drawing, f"{path.name}, layer{'s' if len(layers) > 1 else ''} {', '.join(layers)}"
-
-
-def _drawing_file(r: Reader, node: YNode, spec_dir: Path) -> Path | None:
-    text = r.text(node, "outline.file")
-    if text is None:
-        return None
-    try:
-        path = (spec_dir / text).resolve()
-        status = os.stat(path)
-    except FileNotFoundError:
-        r.problem(node, "outline.file", f"drawing not found: {(spec_dir / text)}")
-        return None
-    except (OSError, ValueError, RuntimeError) as exc:  # too long a name, a NUL character, a loop of links
-        r.problem(node, "outline.file", f"not a usable file name ({getattr(exc, 'strerror', None) or exc})")
-        return None
-    try:
-        check_plain_file(path, status, MAX_DRAWING_BYTES, "a DXF drawing")
-    except UnusableInput as error:
-        r.problem(node, "outline.file", f"drawing {path}: {error.problem}")
-        return None
-    return path
 
 
 def _run_nodes(r: Reader, node: YNode | None) -> list[YNode] | None:

@@ -9,7 +9,9 @@ from __future__ import annotations
 
 import difflib
 import math
+import os
 from collections.abc import Callable, Iterable
+from pathlib import Path
 from typing import Any, TypeVar
 
 from diegen import units
@@ -200,6 +202,31 @@ class Reader:
                                      f"{_items(len(node.value))}")
             return None
         return node.value
+
+    def input_file(self, node: YNode, path: str, spec_dir: Path, what: str, max_bytes: int,
+                   expected: str) -> Path | None:
+        """The plain file ``node`` names (relative to ``spec_dir``), resolved; a located problem for a missing
+        one, an unusable name, or anything but a plain file of at most ``max_bytes`` (``what`` names it)."""
+        from diegen.fileio import UnusableInput, check_plain_file
+
+        text = self.text(node, path)
+        if text is None:
+            return None
+        try:
+            file_path = (spec_dir / text).resolve()
+            status = os.stat(file_path)
+        except FileNotFoundError:
+            self.problem(node, path, f"{what} not found: {file_path}")
+            return None
+        except (OSError, ValueError, RuntimeError) as exc:  # too long a name, a NUL character, a loop of links
+            self.problem(node, path, f"not a usable file name ({getattr(exc, 'strerror', None) or exc})")
+            return None
+        try:
+            check_plain_file(file_path, status, max_bytes, expected)
+        except UnusableInput as error:
+            self.problem(node, path, f"{what} {file_path}: {error.problem}")
+            return None
+        return file_path
 
     def length_pair(self, node: YNode | None, path: str) -> tuple[float, float] | None:
         """Two lengths ``[width, length]``."""

@@ -8,7 +8,6 @@ key of a section and keep the rest.
 from __future__ import annotations
 
 import itertools
-import os
 import re
 from dataclasses import replace
 from pathlib import Path
@@ -156,26 +155,10 @@ def read_airfoil(r: Reader, node: YNode | None, path: str, spec_dir: Path) -> Ai
                       "write the digits in quotes ('0012'; YAML reads a bare 0012 as the octal number 10)")
             return None
         return _naca(r, naca_node, join(path, "naca"), str(naca_node.value), base)
-    file_text = r.text(fields["file"], join(path, "file"))
-    if file_text is None:
-        return None
-    from diegen.fileio import UnusableInput, check_plain_file
     from diegen.geometry.coordfile import EXPECTED, MAX_FILE_BYTES
 
-    try:
-        file_path = (spec_dir / file_text).resolve()
-        status = os.stat(file_path)
-    except FileNotFoundError:
-        r.problem(fields["file"], join(path, "file"), f"airfoil file not found: {file_path}")
-        return None
-    except (OSError, ValueError, RuntimeError) as exc:  # too long a name, a NUL character, a loop of links
-        reason = getattr(exc, "strerror", None) or exc
-        r.problem(fields["file"], join(path, "file"), f"not a usable file name ({reason})")
-        return None
-    try:
-        check_plain_file(file_path, status, MAX_FILE_BYTES, EXPECTED)
-    except UnusableInput as error:
-        r.problem(fields["file"], join(path, "file"), f"airfoil file {file_path}: {error.problem}")
+    file_path = r.input_file(fields["file"], join(path, "file"), spec_dir, "airfoil file", MAX_FILE_BYTES, EXPECTED)
+    if file_path is None:
         return None
     return replace(base, file=str(file_path))
 
