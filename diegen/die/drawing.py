@@ -29,6 +29,7 @@ from typing import Final
 
 import numpy as np
 
+from diegen.blank.drawing import LayerStyle
 from diegen.die.die_input import DieInput
 from diegen.die.model import bottom_inset_mm, flute_scale, section, top_face_inset_mm
 from diegen.die.outline import OffsetPiece, OutlineModel
@@ -44,27 +45,17 @@ TEXT_MM: Final = 3.5
 """Cap height of the drawing's text (mm; a usual minimum for shop drawings, common practice, no source)."""
 
 
-@dataclass(frozen=True)
-class DrawingLayer:
-    """One layer of the die drawing: its name (DXF layer, SVG group), DXF colour index, SVG colour, purpose."""
-
-    name: str
-    aci: int
-    rgb: str
-    purpose: str
-
-
-TOP_OUTLINE: Final = DrawingLayer("TOP-OUTLINE", 1, "#c00000", "mold line: the die's outline at its top face")
-TOP_FLAT: Final = DrawingLayer("TOP-FLAT", 6, "#a000a0", "edge of the flat top face, where the edge radius begins")
-BOTTOM_OUTLINE: Final = DrawingLayer("BOTTOM-OUTLINE", 5, "#0030c0", "the undercut wall's edge on the bottom face")
-FLUTES: Final = DrawingLayer("FLUTES", 4, "#007080", "flute grooves at full depth, in the bottom outline")
-JOGGLES: Final = DrawingLayer("JOGGLE-RECESSES", 3, "#008000", "stretches of the outline stepped in for spar caps")
-BORES: Final = DrawingLayer("BORES", 140, "#006060", "through bores for flanged lightening holes")
-DOWEL_HOLES: Final = DrawingLayer("DOWEL-HOLES", 30, "#b05000", "tooling-pin (dowel) holes from the top face")
-MARKS: Final = DrawingLayer("MARKS", 8, "#606060", "engraving on the bottom face, seen from the top")
-TILE_JOINTS: Final = DrawingLayer("TILE-JOINTS", 210, "#c00070", "cuts between the tiles of a printed die")
-NOTES: Final = DrawingLayer("NOTES", 7, "#000000", "title and notes, never cut")
-DIE_LAYERS: Final[tuple[DrawingLayer, ...]] = (TOP_OUTLINE, TOP_FLAT, BOTTOM_OUTLINE, FLUTES, JOGGLES, BORES,
+TOP_OUTLINE: Final = LayerStyle("TOP-OUTLINE", 1, "#c00000", "mold line: the die's outline at its top face")
+TOP_FLAT: Final = LayerStyle("TOP-FLAT", 6, "#a000a0", "edge of the flat top face, where the edge radius begins")
+BOTTOM_OUTLINE: Final = LayerStyle("BOTTOM-OUTLINE", 5, "#0030c0", "the undercut wall's edge on the bottom face")
+FLUTES: Final = LayerStyle("FLUTES", 4, "#007080", "flute grooves at full depth, in the bottom outline")
+JOGGLES: Final = LayerStyle("JOGGLE-RECESSES", 3, "#008000", "stretches of the outline stepped in for spar caps")
+BORES: Final = LayerStyle("BORES", 140, "#006060", "through bores for flanged lightening holes")
+DOWEL_HOLES: Final = LayerStyle("DOWEL-HOLES", 30, "#b05000", "tooling-pin (dowel) holes from the top face")
+MARKS: Final = LayerStyle("MARKS", 8, "#606060", "engraving on the bottom face, seen from the top")
+TILE_JOINTS: Final = LayerStyle("TILE-JOINTS", 210, "#c00070", "cuts between the tiles of a printed die")
+NOTES: Final = LayerStyle("NOTES", 7, "#000000", "title and notes, never cut")
+DIE_LAYERS: Final[tuple[LayerStyle, ...]] = (TOP_OUTLINE, TOP_FLAT, BOTTOM_OUTLINE, FLUTES, JOGGLES, BORES,
                                                 DOWEL_HOLES, MARKS, TILE_JOINTS, NOTES)
 
 Point = tuple[float, float]
@@ -104,12 +95,12 @@ class DieDrawing:
 
     part_id: str
     title: str
-    layers: tuple[DrawingLayer, ...]
+    layers: tuple[LayerStyle, ...]
     polylines: tuple[Polyline, ...]
     circles: tuple[Circle, ...]
     texts: tuple[Text, ...]
 
-    def on(self, layer: DrawingLayer) -> tuple[Polyline, ...]:
+    def on(self, layer: LayerStyle) -> tuple[Polyline, ...]:
         """The polylines on ``layer``."""
         return tuple(p for p in self.polylines if p.layer == layer.name)
 
@@ -270,7 +261,6 @@ __all__ = [
     "TOP_OUTLINE",
     "Circle",
     "DieDrawing",
-    "DrawingLayer",
     "Polyline",
     "Text",
     "die_drawing",

@@ -17,10 +17,11 @@ from __future__ import annotations
 
 import math
 import os
+from collections.abc import Sequence
 from dataclasses import dataclass
 from pathlib import Path
 
-from diegen.blank.drawing import CUT, DRILL, LAYERS, NOTE, SCRIBE, BlankDrawing, Circle, Polyline
+from diegen.blank.drawing import CUT, DRILL, LAYERS, NOTE, SCRIBE, BlankDrawing, Circle, LayerStyle, Polyline
 from diegen.errors import OutputError
 from diegen.fileio import write_with
 from diegen.geometry.loops import signed_area
@@ -64,14 +65,8 @@ def _xy(points: Polyline) -> list[tuple[float, float]]:
 
 def build_dxf(drawing: BlankDrawing):  # -> ezdxf.document.Drawing (kept untyped so ezdxf loads lazily)
     """Build the in-memory ezdxf document for ``drawing`` (mm)."""
-    import ezdxf
 
-    doc = ezdxf.new(DXF_VERSION, setup=False, units=INSUNITS_MM)
-    doc.header["$INSUNITS"] = INSUNITS_MM
-    doc.header["$MEASUREMENT"] = MEASUREMENT_METRIC
-    for style in LAYERS:
-        layer = doc.layers.add(style.name, color=style.aci)
-        layer.description = style.purpose
+    doc = new_document(LAYERS)
     # pattern: total length, then dash (+) and gap (-) lengths in mm
     doc.linetypes.add(BEND_LINETYPE, pattern=[9.0, 6.0, -3.0], description="Bend line ______   ______")
     doc.layers.get(SCRIBE.name).dxf.linetype = BEND_LINETYPE
@@ -95,22 +90,45 @@ def build_dxf(drawing: BlankDrawing):  # -> ezdxf.document.Drawing (kept untyped
     for s in title.arrow:
         msp.add_line((plain(s.x0), plain(s.y0)), (plain(s.x1), plain(s.y1)), dxfattribs={"layer": NOTE.name})
 
-    xmin, ymin, xmax, ymax = drawing.extent()
-    doc.header["$EXTMIN"] = (xmin, ymin, 0.0)
-    doc.header["$EXTMAX"] = (xmax, ymax, 0.0)
-    doc.set_modelspace_vport(height=1.1 * max(ymax - ymin, 1.0), center=(0.5 * (xmin + xmax), 0.5 * (ymin + ymax)))
+    fit_view(doc, drawing.extent())
     return doc
 
 
-def write_dxf(drawing: BlankDrawing, path: str | os.PathLike[str]) -> Path:
-    """Write ``drawing`` as a DXF R2010 file in mm to ``path`` atomically; return the path."""
-    doc = build_dxf(drawing)
+def new_document(layers: Sequence[LayerStyle]):  # -> ezdxf.document.Drawing
+    """An empty DXF document in mm (header units and measurement) with ``layers``, each with its colour and
+    purpose."""
+    import ezdxf
+
+    doc = ezdxf.new(DXF_VERSION, setup=False, units=INSUNITS_MM)
+    doc.header["$INSUNITS"] = INSUNITS_MM
+    doc.header["$MEASUREMENT"] = MEASUREMENT_METRIC
+    for style in layers:
+        layer = doc.layers.add(style.name, color=style.aci)
+        layer.description = style.purpose
+    return doc
+
+
+def fit_view(doc, extent: tuple[float, float, float, float]) -> None:
+    """Record ``extent`` (xmin, ymin, xmax, ymax in mm) in the header and open the model space on it."""
+    xmin, ymin, xmax, ymax = extent
+    doc.header["$EXTMIN"] = (xmin, ymin, 0.0)
+    doc.header["$EXTMAX"] = (xmax, ymax, 0.0)
+    doc.set_modelspace_vport(height=1.1 * max(ymax - ymin, 1.0), center=(0.5 * (xmin + xmax), 0.5 * (ymin + ymax)))
+
+
+def save_dxf(doc, path: str | os.PathLike[str]) -> Path:
+    """Write ``doc`` to ``path`` atomically; return the path (:class:`OutputError` when it cannot)."""
     target = Path(path)
     try:
         write_with(target, doc.saveas)
     except OSError as exc:
         raise OutputError(f"cannot write DXF {target}: {exc}") from exc
     return target
+
+
+def write_dxf(drawing: BlankDrawing, path: str | os.PathLike[str]) -> Path:
+    """Write ``drawing`` as a DXF R2010 file in mm to ``path`` atomically; return the path."""
+    return save_dxf(build_dxf(drawing), path)
 
 
 @dataclass(frozen=True)

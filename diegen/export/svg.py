@@ -19,7 +19,7 @@ from diegen.blank.drawing import CUT, DRILL, NOTE, SCRIBE, BlankDrawing, LayerSt
 from diegen.errors import OutputError
 from diegen.fileio import write_text
 
-__all__ = ["STROKE_WIDTH", "SVG_MARGIN", "canvas", "fmt", "svg_text", "write_svg"]
+__all__ = ["STROKE_WIDTH", "SVG_MARGIN", "canvas", "fmt", "save_svg", "svg_document", "svg_text", "write_svg"]
 
 SVG_MARGIN = 5.0
 """Blank border round the drawing's extent, mm."""
@@ -36,8 +36,42 @@ def fmt(value: float) -> str:
 
 def canvas(drawing: BlankDrawing) -> tuple[float, float, float, float]:
     """(xmin, ymin, width, height) of the SVG canvas in drawing mm (+Y up)."""
-    xmin, ymin, xmax, ymax = drawing.extent()
+    return _canvas(drawing.extent())
+
+
+def _canvas(extent: tuple[float, float, float, float]) -> tuple[float, float, float, float]:
+    xmin, ymin, xmax, ymax = extent
     return (xmin - SVG_MARGIN, ymin - SVG_MARGIN, xmax - xmin + 2 * SVG_MARGIN, ymax - ymin + 2 * SVG_MARGIN)
+
+
+def svg_document(extent: tuple[float, float, float, float], title: str, desc: str, body: list[str]) -> str:
+    """A true-scale SVG (mm, +Y up) of the drawing ``body`` (its elements' lines) covering ``extent`` (xmin, ymin,
+    xmax, ymax) with a margin; ``title`` and ``desc`` are plain text."""
+    x0, y0, w, h = _canvas(extent)
+    lines = [
+        '<?xml version="1.0" encoding="UTF-8"?>',
+        '<svg xmlns="http://www.w3.org/2000/svg" version="1.1" '
+        f'width="{fmt(w)}mm" height="{fmt(h)}mm" viewBox="{fmt(x0)} {fmt(-(y0 + h))} {fmt(w)} {fmt(h)}">',
+        f"<title>{escape(title)}</title>",
+        f"<desc>{escape(desc)}</desc>",
+        f'<g id="drawing" transform="scale(1,-1)" stroke-width="{fmt(STROKE_WIDTH)}" '
+        'stroke-linejoin="round" stroke-linecap="round">',
+        *("  " + line for line in body),
+        "</g>",
+        "</svg>",
+        "",
+    ]
+    return "\n".join(lines)
+
+
+def save_svg(text: str, path: str | os.PathLike[str]) -> Path:
+    """Write the SVG ``text`` to ``path`` atomically; return the path (:class:`OutputError` when it cannot)."""
+    target = Path(path)
+    try:
+        write_text(target, text)
+    except OSError as exc:
+        raise OutputError(f"cannot write SVG {target}: {exc}") from exc
+    return target
 
 
 def _points_attr(points: Polyline) -> str:
@@ -60,7 +94,6 @@ def _text(n: Note, colour: str) -> str:
 
 def svg_text(drawing: BlankDrawing) -> str:
     """The SVG document for ``drawing`` as a string."""
-    x0, y0, w, h = canvas(drawing)
     cut: list[str] = [f'<polygon points="{_points_attr(drawing.outer)}"/>']
     cut += [f'<polygon points="{_points_attr(c)}"/>' for c in drawing.inner]
     cut += [f'<circle cx="{fmt(c.x)}" cy="{fmt(c.y)}" r="{fmt(c.r)}"/>' for c in drawing.cut_circles]
@@ -75,28 +108,11 @@ def svg_text(drawing: BlankDrawing) -> str:
     body += _group(DRILL, drill)
     body += _group(SCRIBE, scribe, ' stroke-dasharray="6 3"')
     body += _group(NOTE, note)
-    lines = [
-        '<?xml version="1.0" encoding="UTF-8"?>',
-        '<svg xmlns="http://www.w3.org/2000/svg" version="1.1" '
-        f'width="{fmt(w)}mm" height="{fmt(h)}mm" viewBox="{fmt(x0)} {fmt(-(y0 + h))} {fmt(w)} {fmt(h)}">',
-        f"<title>{escape(drawing.part_id)} flat blank, 1:1 in mm</title>",
-        f"<desc>{escape(drawing.material)}; grain {drawing.grain_angle_deg:g} deg from +X; "
-        "layers CUT, DRILL, SCRIBE, NOTE</desc>",
-        f'<g id="drawing" transform="scale(1,-1)" stroke-width="{fmt(STROKE_WIDTH)}" '
-        'stroke-linejoin="round" stroke-linecap="round">',
-        *("  " + line for line in body),
-        "</g>",
-        "</svg>",
-        "",
-    ]
-    return "\n".join(lines)
+    return svg_document(drawing.extent(), f"{drawing.part_id} flat blank, 1:1 in mm",
+                        f"{drawing.material}; grain {drawing.grain_angle_deg:g} deg from +X; layers CUT, DRILL, "
+                        "SCRIBE, NOTE", body)
 
 
 def write_svg(drawing: BlankDrawing, path: str | os.PathLike[str]) -> Path:
     """Write ``drawing`` as a true-scale SVG (mm) to ``path`` atomically; return the path."""
-    target = Path(path)
-    try:
-        write_text(target, svg_text(drawing))
-    except OSError as exc:
-        raise OutputError(f"cannot write SVG {target}: {exc}") from exc
-    return target
+    return save_svg(svg_text(drawing), path)
