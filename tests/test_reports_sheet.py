@@ -21,6 +21,9 @@ import yaml
 from shapely.geometry import Polygon
 from testing import (
     DEMO_RIB,
+    MM_PER_IN,
+    MM_RIB,
+    N_PER_LBF,
     assert_flange_verdict_consistent,
     fits_box,
     fold_angle_deg,
@@ -36,8 +39,6 @@ from diegen.reports.document import SAFETY
 from diegen.reports.sheet import shop_sheet
 from diegen.spec import parse_spec
 
-MM_PER_IN = 25.4  # NIST SP 811 App. B, exact
-N_PER_LBF = 4.4482216152605  # NIST SP 811 App. B, exact
 LBF_PER_TON = 2000.0  # short ton-force, NIST SP 811 App. B
 PSI = N_PER_LBF / MM_PER_IN**2  # MPa per lbf/in², NIST SP 811 App. B
 # 2024-T3 sheet's typical yield, 50 ksi (Aluminum Association typical values as printed in Kutz, Handbook of
@@ -49,24 +50,6 @@ HEADINGS = ("## 1. Stock to cut", "## 2. Router set-ups (3-axis)", "## 3. Drilli
             "## 4. The blank",
             "## 5. Forming", "## 6. Warnings")
 
-# The demo rib in millimetres, for what the sheet does by the spec's units.
-MM_RIB = """\
-diegen: 1
-kind: rib
-id: M1
-units: mm
-airfoil: naca 2412
-chord: 1000
-skin_thickness: 0.6
-sheet: {alloy: 2024-T3, thickness: 0.6}
-flange: {height: 12, bend_radius: 2.5}
-spars:
-  - {at: 0.25, web: 1.6, cap_thickness: 1.6, cap_width: 19}
-  - {at: 0.70, web: 1.3, cap_thickness: 1.3, cap_width: 16}
-pieces: [nose, tail]
-die: {material: solid-surface, stock_thickness: 20, cutter_diameter: 6}
-press: {force: 1200 kN, box: [300, 250], rubber: {durometer: 55, thickness: 60}}
-"""
 
 
 def both(mm: float) -> str:
@@ -335,7 +318,7 @@ def test_die_notes_go_under_drilling(rib) -> None:
 def mm_rib():
     from diegen import api
 
-    return api.analyse(parse_spec(MM_RIB, "m1.yaml"))
+    return api.analyse(parse_spec(MM_RIB.format(force="1200 kN"), "m1.yaml"))
 
 
 def test_millimetre_spec_takes_metric_round_overs(mm_rib) -> None:

@@ -24,6 +24,9 @@ from shapely.geometry import LinearRing, Point, Polygon
 from shapely.ops import unary_union
 from testing import (
     DEMO_RIB,
+    MM_PER_IN,
+    MM_RIB,
+    N_PER_LBF,
     assert_flange_verdict_consistent,
     fits_box,
     fold_angle_deg,
@@ -43,8 +46,6 @@ from diegen.reports.document import SAFETY
 from diegen.reports.text import die_life_text, footer_text, piece_text, rib_text
 from diegen.spec import parse_spec
 
-MM_PER_IN = 25.4  # NIST SP 811 App. B, exact
-N_PER_LBF = 4.4482216152605  # NIST SP 811 App. B, exact
 # 2024-T3 sheet's typical yield, 50 ksi (Aluminum Association typical values as printed in Kutz, Handbook of
 # Materials Selection, 2002, Table 5, p. 101); 1 ksi = 1000 lbf/in² (NIST SP 811 App. B)
 T3_YIELD_MPA = 50_000 * N_PER_LBF / MM_PER_IN**2
@@ -52,23 +53,6 @@ RAW = yaml.safe_load(DEMO_RIB.read_text(encoding="utf-8"))
 R_IN = 3 / 32  # flange.bend_radius: "3/32 in"
 T_IN = RAW["sheet"]["thickness"]
 
-MM_RIB = """\
-diegen: 1
-kind: rib
-id: M1
-units: mm
-airfoil: naca 2412
-chord: 1000
-skin_thickness: 0.6
-sheet: {alloy: 2024-T3, thickness: 0.6}
-flange: {height: 12, bend_radius: 2.5}
-spars:
-  - {at: 0.25, web: 1.6, cap_thickness: 1.6, cap_width: 19}
-  - {at: 0.70, web: 1.3, cap_thickness: 1.3, cap_width: 16}
-pieces: [nose, tail]
-die: {material: solid-surface, stock_thickness: 20, cutter_diameter: 6}
-press: {force: 220 kN, box: [300, 250], rubber: {durometer: 55, thickness: 60}}
-"""
 
 
 def length_text(mm: float, inch: bool) -> str:
@@ -301,7 +285,7 @@ def test_piece_text_is_the_block(rib, blocks) -> None:
 def test_millimetre_spec_shows_no_inches() -> None:
     from diegen import api
 
-    rib = api.analyse(parse_spec(MM_RIB, "m1.yaml"))
+    rib = api.analyse(parse_spec(MM_RIB.format(force="220 kN"), "m1.yaml"))
     text = rib_text(rib)
     assert " in)" not in text
     assert text.splitlines()[0] == f"diegen {__version__} — rib M1"  # no title, no colon

@@ -22,6 +22,29 @@ SPECS = ROOT / "specs"
 DEMO_RIB = SPECS / "demo-rib.yaml"
 DEMO_WING = SPECS / "demo-wing.yaml"
 
+MM_PER_IN = 25.4  # NIST SP 811 App. B: 1 in = 25.4 mm exactly
+N_PER_LBF = 4.4482216152605  # NIST SP 811 App. B: 1 lbf in N, exact by definition
+
+# The demo rib in millimetres (an invented rib), for what the reports do by the spec's units; the press force is
+# the test's own choice.
+MM_RIB = """\
+diegen: 1
+kind: rib
+id: M1
+units: mm
+airfoil: naca 2412
+chord: 1000
+skin_thickness: 0.6
+sheet: {{alloy: 2024-T3, thickness: 0.6}}
+flange: {{height: 12, bend_radius: 2.5}}
+spars:
+  - {{at: 0.25, web: 1.6, cap_thickness: 1.6, cap_width: 19}}
+  - {{at: 0.70, web: 1.3, cap_thickness: 1.3, cap_width: 16}}
+pieces: [nose, tail]
+die: {{material: solid-surface, stock_thickness: 20, cutter_diameter: 6}}
+press: {{force: {force}, box: [300, 250], rubber: {{durometer: 55, thickness: 60}}}}
+"""
+
 #: The one length tolerance for "the same outline" (mm); looser ones are named where they are used.
 OUTLINE_TOL_MM = 0.01
 
