@@ -450,14 +450,12 @@ def _analyse_piece(spec: RibSpec, piece: PieceGeometry, alloy: materials.SheetAl
         warnings.append(Finding(
             "print-height-raised", f"die.stock_thickness {shared.die.stock_thickness_mm:.1f} mm is lower than the "
             f"{'tallest ' if len(heights) > 1 else ''}flange height {tallest:.1f} mm + {STOCK_CLEARANCE_MM:.0f} mm "
-            "clearance: the die is "
-            f"printed {height:.0f} mm high", key="die.stock_thickness"))
+            f"clearance: the die is printed {height:.0f} mm high", key="die.stock_thickness"))
     if layers > 1:
         warnings.append(Finding(
             "die-laminated", f"die stock {shared.die.stock_thickness_mm:.1f} mm is thinner than the "
             f"{'tallest ' if len(heights) > 1 else ''}flange height {tallest:.1f} mm + {STOCK_CLEARANCE_MM:.0f} mm "
-            f"clearance: laminate {layers} layers "
-            f"({height:.1f} mm)", key="die.stock_thickness"))
+            f"clearance: laminate {layers} layers ({height:.1f} mm)", key="die.stock_thickness"))
     blank = _blank(piece, springback, layout, notches, holes, alloy, t, heights, shared.flange.height_mm)
     return PieceAnalysis(piece, alloy, minimum, springback, layout, tuple(runs), flutes, notches, notes, judgement,
                          tuple(holes), press, blank, height, layers,

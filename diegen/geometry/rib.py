@@ -29,7 +29,8 @@ from diegen.geometry.tooling import tooling
 from diegen.geometry.types import Hole, PieceGeometry, RibGeometry
 from diegen.spec.model import AirfoilSource, RibSpec
 
-__all__ = ["DEPTH_SAMPLES", "FAIR_MARGIN_MM", "load_section", "min_tail_depth", "raw_section", "rib_geometry"]
+__all__ = ["DEPTH_SAMPLES", "FAIR_MARGIN_MM", "joggle_fair_radius", "load_section", "min_tail_depth", "raw_section",
+           "rib_geometry", "unit_findings"]
 
 DEPTH_SAMPLES = 64
 FAIR_MARGIN_MM = 0.5  # joggle ramps bend this much rounder than the die wall's inset (design choice: room for sampling)
@@ -65,6 +66,20 @@ def min_tail_depth(spec: RibSpec) -> float:
     return flange.min_tail_depth_mm if flange.min_tail_depth_mm is not None else 2 * flange.height_mm + 10.0
 
 
+def unit_findings(spec: RibSpec) -> list[Finding]:
+    """The spec's numbers that look written in the other unit (:mod:`diegen.spec.plausible`), as findings."""
+    return [Finding("units-suspect", w.message, rib_id=spec.id, key=w.key, file=w.file, line=w.line,
+                    column=w.column) for w in spec.unit_warnings]
+
+
+def joggle_fair_radius(spec: RibSpec, die_inset_mm: float) -> float:
+    """The radius (mm) a joggle's run-outs must bend no tighter than: the cutter's (a printed die: the printer's
+    smallest inside radius), and the die wall's largest inset ``die_inset_mm`` plus ``FAIR_MARGIN_MM``."""
+    die = spec.shared.die
+    inside = tooling(die.material, die.cutter_diameter_mm).inside_radius_mm
+    return max(inside, die_inset_mm + FAIR_MARGIN_MM if die_inset_mm > 0 else 0.0)
+
+
 def rib_geometry(spec: RibSpec, section: np.ndarray | None = None, die_inset_mm: float = 0.0, *,
                  stretch_limit: float) -> RibGeometry:
     """Compute the rib's 2D geometry; ``section`` (unit chord) defaults to the spec's airfoil.
@@ -91,12 +106,9 @@ def rib_geometry(spec: RibSpec, section: np.ndarray | None = None, die_inset_mm:
         die = offset_inward(oml, sheet_t, f"offsetting the outer mold line inward by the rib sheet ({sheet_t:.3f} mm)")
     upper, lower = monotone_surfaces(np.asarray(as_points(die)))
     spars = [SparCut(s.at * spec.chord_mm, s.web_mm, s.cap_thickness_mm, s.cap_width_mm) for s in spec.spars]
-    warnings: list[Finding] = [Finding("units-suspect", w.message, rib_id=spec.id, key=w.key, file=w.file,
-                                       line=w.line, column=w.column)
-                               for w in spec.unit_warnings]
+    warnings: list[Finding] = unit_findings(spec)
     pieces = []
-    inside = tooling(shared.die.material, shared.die.cutter_diameter_mm).inside_radius_mm
-    fair_radius = max(inside, die_inset_mm + FAIR_MARGIN_MM if die_inset_mm > 0 else 0.0)
+    fair_radius = joggle_fair_radius(spec, die_inset_mm)
     for name, x0, x1, aft_flanged in _piece_ranges(spec, spars, upper, lower, warnings):
         pieces.append(_piece(spec, name, x0, x1, aft_flanged, upper, lower, spars, fair_radius, stretch_limit,
                              warnings))

@@ -12,8 +12,7 @@ from dataclasses import replace
 from diegen.errors import keyed
 from diegen.findings import Finding
 from diegen.geometry.pieces import ramp_length
-from diegen.geometry.rib import FAIR_MARGIN_MM
-from diegen.geometry.tooling import tooling
+from diegen.geometry.rib import joggle_fair_radius, unit_findings
 from diegen.geometry.types import RibGeometry
 from diegen.sources.part import drawn_piece
 from diegen.spec.model import RibSpec
@@ -32,16 +31,14 @@ def part_geometry(spec: RibSpec, die_inset_mm: float = 0.0) -> RibGeometry:
     drawn, shared = spec.drawn, spec.shared
     assert drawn is not None, "part_geometry takes a kind: part spec"
     rules = shared.holes.rules
-    inside = tooling(shared.die.material, shared.die.cutter_diameter_mm).inside_radius_mm
-    fair_radius = max(inside, die_inset_mm + FAIR_MARGIN_MM if die_inset_mm > 0 else 0.0)
+    fair_radius = joggle_fair_radius(spec, die_inset_mm)
     with keyed("outline"):
         piece = drawn_piece(drawn.part, part_id=spec.id, sheet_thickness_mm=shared.sheet.thickness_mm,
                             pin_diameter_mm=shared.pins.diameter_mm,
                             hole_flange_height_mm=rules.flange_height_mm if drawn.flanged_holes else None,
                             edge_margin_mm=rules.edge_margin_mm, joggles=drawn.joggles,
                             ramp_of=lambda depth: ramp_length(depth, shared.joggle_runout, fair_radius))
-    warnings = [Finding("units-suspect", w.message, rib_id=spec.id, key=w.key, file=w.file, line=w.line,
-                        column=w.column) for w in spec.unit_warnings]
+    warnings = unit_findings(spec)
     if piece.mirrored:
         warnings.append(Finding(
             "part-mirrored", "every flange bends up in the drawing: the die, the blank and their drawings are the "

@@ -54,8 +54,7 @@ def read_part(r: Reader, root: dict[str, YNode], spec_dir: Path, read_header, re
     ``read_header``, ``read_paper`` and ``read_shared`` are the rib schema's readers of the sections a part
     shares with a rib (passed in, so the two schemas share one reader each and import in one direction).
     """
-    r.mapping(YNode(root, 1, 1, {k: (v.line, v.column) for k, v in root.items()}), "", PART_KEYS,
-              ("id", "outline"))
+    r.top_level(root, PART_KEYS, ("id", "outline"))
     ident, title = read_header(r, root, "part")
     shared: Shared = read_shared(r, {k: v for k, v in root.items() if k in PART_SHARED_KEYS}, required=(
         "sheet", "flange", "die", "press"))

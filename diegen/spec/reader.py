@@ -81,6 +81,10 @@ class Reader:
                 self.problem(node, join(path, key), f"missing required key {key!r}")
         return node.value
 
+    def top_level(self, root: dict[str, YNode], allowed: Iterable[str], required: Iterable[str] = ()) -> None:
+        """Check the spec's top-level keys (``root``, the file's mapping) as :meth:`mapping` checks a section's."""
+        self.mapping(YNode(root, 1, 1, {k: (v.line, v.column) for k, v in root.items()}), "", allowed, required)
+
     # -- scalars -----------------------------------------------------------
     def _finite(self, node: YNode, path: str, value: float) -> float | None:
         if not math.isfinite(value):

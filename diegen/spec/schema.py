@@ -438,8 +438,7 @@ def check_pieces(r: Reader, root: dict[str, YNode], pieces: tuple[str, ...] | No
 
 # -- rib and wing ----------------------------------------------------------
 def read_rib(r: Reader, root: dict[str, YNode], spec_dir: Path) -> RibSpec:
-    r.mapping(YNode(root, 1, 1, {k: (v.line, v.column) for k, v in root.items()}), "", RIB_KEYS,
-              ("id", "airfoil", "chord"))
+    r.top_level(root, RIB_KEYS, ("id", "airfoil", "chord"))
     ident, title = read_header(r, root, "rib")
     airfoil = read_airfoil(r, root.get("airfoil"), "airfoil", spec_dir)
     chord = r.length(root.get("chord"), "chord", high=20_000.0)
@@ -483,8 +482,7 @@ def read_stations(r: Reader, node: YNode | None, path: str) -> Stations | None:
 
 
 def read_wing(r: Reader, root: dict[str, YNode], spec_dir: Path) -> WingSpec:
-    r.mapping(YNode(root, 1, 1, {k: (v.line, v.column) for k, v in root.items()}), "", WING_KEYS,
-              ("id", "planform", "airfoil"))
+    r.top_level(root, WING_KEYS, ("id", "planform", "airfoil"))
     ident, title = read_header(r, root, "wing")
     plan = r.mapping(root.get("planform"), "planform",
                      ("root_chord", "tip_chord", "span", "sweep", "sweep_line", "stations", "rib_orientation"),

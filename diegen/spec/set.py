@@ -33,7 +33,7 @@ def read_set(r: Reader, root: dict[str, YNode], spec_dir: Path, load_member: Cal
     ``load_member`` loads a listed spec file; ``read_part`` reads a part from a mapping of keys (the schema's
     readers, passed in so this module imports in one direction).
     """
-    r.mapping(YNode(root, 1, 1, {k: (v.line, v.column) for k, v in root.items()}), "", SET_KEYS, ("id",))
+    r.top_level(root, SET_KEYS, ("id",))
     ident, title = read_header(r, root, "set")
     if "specs" not in root and "drawings" not in root:
         r.problem(None, "specs", "expected 'specs' (spec files to build together), 'drawings' (DXF files that share "
