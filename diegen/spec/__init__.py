@@ -10,8 +10,7 @@ from diegen.errors import Problem, SpecError
 from diegen.spec.model import RibSpec, SetSpec, Spec, SpecPositions, WingSpec
 from diegen.spec.plausible import unit_warnings
 from diegen.spec.reader import Reader
-from diegen.spec.schema import read_header, read_paper, read_part, read_rib, read_wing
-from diegen.spec.set import read_set
+from diegen.spec.schema import read_rib, read_wing
 from diegen.spec.yamltree import YNode, load_file, load_text
 from diegen.units import SPEC_UNITS
 
@@ -34,11 +33,15 @@ def _validate(tree: YNode, file: str, spec_dir: Path, in_set: bool = False) -> S
         raise SpecError(pre.problems)
     reader = Reader(file, units_name or "mm")
     reader.problems.extend(pre.problems)
+    # read here, not at import: the part and set readers use the drawing readers, which use this package's model
+    from diegen.spec.part import read_part
+    from diegen.spec.set import read_set
+
     if kind == "set":
         if in_set:
             raise SpecError(Problem("a set holds parts and ribs, not another set", file, root["kind"].line,
                                     root["kind"].column, "kind"))
-        spec = read_set(reader, root, spec_dir, _member, read_part, read_header, read_paper)
+        spec = read_set(reader, root, spec_dir, _member)
     else:
         spec = {"rib": read_rib, "wing": read_wing, "part": read_part}[kind](reader, root, spec_dir)
     if reader.problems:

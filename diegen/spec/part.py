@@ -31,6 +31,7 @@ from diegen.sources.model import DIRECTIONS, OUTLINE_IS
 from diegen.sources.units import DRAWING_UNITS, SVG_UNITS
 from diegen.spec.model import AirfoilSource, DrawnOutline, Holes, Pins, RibSpec, Shared
 from diegen.spec.reader import Reader, describe, join
+from diegen.spec.schema import read_header, read_paper, read_shared
 from diegen.spec.yamltree import YNode
 
 __all__ = ["MAX_DRAWING_BYTES", "PART_KEYS", "PART_SHARED_KEYS", "read_part"]
@@ -48,12 +49,9 @@ RUN_KEYS = ("layer", "from", "to", "direction", "height", "bend_radius", "angle"
 RUN_SHAPE_KEYS = ("bend_radius", "angle")
 
 
-def read_part(r: Reader, root: dict[str, YNode], spec_dir: Path, read_header, read_paper, read_shared) -> RibSpec:
-    """The part spec ``root`` as a one-piece :class:`RibSpec` (problems recorded in ``r``).
-
-    ``read_header``, ``read_paper`` and ``read_shared`` are the rib schema's readers of the sections a part
-    shares with a rib (passed in, so the two schemas share one reader each and import in one direction).
-    """
+def read_part(r: Reader, root: dict[str, YNode], spec_dir: Path) -> RibSpec:
+    """The part spec ``root`` as a one-piece :class:`RibSpec` (problems recorded in ``r``); the header and the
+    sections a part shares with a rib are read by the rib schema's readers."""
     r.top_level(root, PART_KEYS, ("id", "outline"))
     ident, title = read_header(r, root, "part")
     shared: Shared = read_shared(r, {k: v for k, v in root.items() if k in PART_SHARED_KEYS}, required=(

@@ -62,7 +62,6 @@ __all__ = [
     "read_hole_rules",
     "read_holes",
     "read_overrides",
-    "read_part",
     "read_pieces",
     "read_pins",
     "read_press",
@@ -447,13 +446,6 @@ def read_rib(r: Reader, root: dict[str, YNode], spec_dir: Path) -> RibSpec:
     check_pieces(r, root, shared.pieces, len(spars or ()))
     return RibSpec(ident, r.units, airfoil, chord, spars, shared, r.file, title,  # type: ignore[arg-type]
                    paper=read_paper(r, root))
-
-
-def read_part(r: Reader, root: dict[str, YNode], spec_dir: Path) -> RibSpec:
-    """A ``kind: part`` spec (see :mod:`diegen.spec.part`) with this schema's header and shared sections."""
-    from diegen.spec.part import read_part as read_drawn_part
-
-    return read_drawn_part(r, root, spec_dir, read_header, read_paper, read_shared)
 
 
 def read_stations(r: Reader, node: YNode | None, path: str) -> Stations | None:

@@ -15,7 +15,9 @@ from pathlib import Path
 
 from diegen.errors import DiegenError, SpecError
 from diegen.spec.model import RibSpec, SetSpec, Spec
+from diegen.spec.part import read_part
 from diegen.spec.reader import Reader, describe, join
+from diegen.spec.schema import read_header, read_paper
 from diegen.spec.yamltree import YNode
 
 __all__ = ["DRAWINGS_KEYS", "MAX_MEMBERS", "SET_KEYS", "read_set"]
@@ -26,12 +28,11 @@ DRAWINGS_KEYS = ("files", "outline", "flanges", "holes", "pins", "sheet", "flang
                  "relief", "joggle_runout", "die", "press")
 
 
-def read_set(r: Reader, root: dict[str, YNode], spec_dir: Path, load_member: Callable[[Path], Spec],
-             read_part: Callable[[Reader, dict[str, YNode], Path], RibSpec], read_header, read_paper) -> SetSpec:
+def read_set(r: Reader, root: dict[str, YNode], spec_dir: Path, load_member: Callable[[Path], Spec]) -> SetSpec:
     """The set spec ``root`` (problems recorded in ``r``; a member's own problems keep their own file's place).
 
-    ``load_member`` loads a listed spec file; ``read_part`` reads a part from a mapping of keys (the schema's
-    readers, passed in so this module imports in one direction).
+    ``load_member`` loads a listed spec file as :func:`diegen.spec.load_spec` would (passed in: that loader sits
+    above this module).
     """
     r.top_level(root, SET_KEYS, ("id",))
     ident, title = read_header(r, root, "set")
@@ -42,7 +43,7 @@ def read_set(r: Reader, root: dict[str, YNode], spec_dir: Path, load_member: Cal
     for i, item in enumerate(r.sequence(root.get("specs"), "specs", 1, MAX_MEMBERS) or ()):
         members += _listed(r, item, join("specs", i), spec_dir, load_member)
     if "drawings" in root and ident:
-        members += _drawn(r, root["drawings"], spec_dir, ident, read_part)
+        members += _drawn(r, root["drawings"], spec_dir, ident)
     if len(members) > MAX_MEMBERS:
         r.problem(root.get("specs") or root.get("drawings"), "specs",
                   f"expected at most {MAX_MEMBERS} parts and ribs in a set, found {len(members)}")
@@ -92,8 +93,7 @@ def _listed(r: Reader, item: YNode, path: str, spec_dir: Path,
     return members
 
 
-def _drawn(r: Reader, node: YNode, spec_dir: Path, set_id: str,
-           read_part: Callable[[Reader, dict[str, YNode], Path], RibSpec]) -> list[tuple[RibSpec, YNode, str]]:
+def _drawn(r: Reader, node: YNode, spec_dir: Path, set_id: str) -> list[tuple[RibSpec, YNode, str]]:
     fields = r.mapping(node, "drawings", DRAWINGS_KEYS, ("files", "outline"))
     if fields is None:
         return []
