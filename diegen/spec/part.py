@@ -21,6 +21,7 @@ from diegen.sources import (
     Flange,
     FlangeRunSpec,
     OnLayer,
+    Place,
     drawn_part,
     read_dxf,
     read_points,
@@ -134,15 +135,13 @@ def _joggles(r: Reader, node: YNode | None, drawing: Drawing) -> tuple[JoggleSpe
     """The joggles asked for: from/to in the drawing's unit and frame, depth a length in the spec's units."""
     if node is None:
         return ()
-    scale = drawing.place.mm_per_unit
-    flip = -1.0 if drawing.place.y_down else 1.0
     joggles = []
     for i, item in enumerate(r.sequence(node, "joggles", 1, MAX_JOGGLES) or ()):
         path = join("joggles", i)
         fields = r.mapping(item, path, ("from", "to", "depth"), ("from", "to", "depth"))
         if fields is None:
             continue
-        ends = [_point(r, fields[k], join(path, k), scale, flip) for k in ("from", "to")]
+        ends = [_point(r, fields[k], join(path, k), drawing.place) for k in ("from", "to")]
         depth = r.length(fields["depth"], join(path, "depth"), high=MAX_JOGGLE_DEPTH_MM)
         if None not in ends and depth is not None:
             joggles.append(JoggleSpec(ends[0], ends[1], depth, path))  # type: ignore[arg-type]
@@ -235,8 +234,6 @@ def _runs(r: Reader, run_nodes: list[YNode], flange, drawing: Drawing) -> list[F
     shape = Flange(flange.height_mm, flange.bend_radius_mm)
     if not run_nodes:
         return [FlangeRunSpec(AllEdges(), shape, "flanges")]
-    scale = drawing.place.mm_per_unit
-    flip = -1.0 if drawing.place.y_down else 1.0  # an SVG's y points down; the part is read with y up
     runs = []
     for i, item in enumerate(run_nodes):
         path, fields = join("flanges", i), item.value
@@ -246,14 +243,15 @@ def _runs(r: Reader, run_nodes: list[YNode], flange, drawing: Drawing) -> list[F
         if "layer" in fields:
             runs.append(FlangeRunSpec(OnLayer(str(fields["layer"].value)), run_shape, path))
             continue
-        ends = [_point(r, fields[k], join(path, k), scale, flip) for k in ("from", "to")]
+        ends = [_point(r, fields[k], join(path, k), drawing.place) for k in ("from", "to")]
         if None in ends:
             continue
         runs.append(FlangeRunSpec(Between(ends[0], ends[1]), run_shape, path))  # type: ignore[arg-type]
     return None if len(runs) < len(run_nodes) else runs
 
 
-def _point(r: Reader, node: YNode, path: str, scale: float, flip: float) -> tuple[float, float] | None:
+def _point(r: Reader, node: YNode, path: str, place: Place) -> tuple[float, float] | None:
+    """A point given in the drawing's own unit and frame, in mm with y up (an SVG's y points down)."""
     items = r.sequence(node, path, 2, 2)
     if items is None:
         return None
@@ -262,4 +260,5 @@ def _point(r: Reader, node: YNode, path: str, scale: float, flip: float) -> tupl
         r.problem(node, path, f"expected a point [x, y] of two finite numbers in the drawing's unit, found "
                               f"{node.plain()!r}")
         return None
-    return float(values[0]) * scale, float(values[1]) * scale * flip
+    scale = place.mm_per_unit
+    return float(values[0]) * scale, float(values[1]) * scale * (-1.0 if place.y_down else 1.0)
