@@ -36,6 +36,7 @@ __all__ = [
     "RAMP_BEND",
     "SparCut",
     "depth_at",
+    "joggle_inset",
     "joggles_for",
     "monotone_surfaces",
     "piece_runs",
@@ -132,8 +133,9 @@ def ramp_shape(u: np.ndarray) -> np.ndarray:
     return u**3 * (10.0 + u * (-15.0 + 6.0 * u))
 
 
-def _inset(x: np.ndarray, joggles: Sequence[Joggle]) -> np.ndarray:
-    """Inward displacement of the wall at chord positions ``x`` from the given joggles (one surface)."""
+def joggle_inset(x: np.ndarray, joggles: Sequence[Joggle]) -> np.ndarray:
+    """Inward displacement of the wall at positions ``x`` from the given joggles (one surface): ``x`` is the chord
+    position on a rib's wall, or the distance along the outline run a drawn part's joggle zone is given on."""
     inset = np.zeros_like(x)
     for j in joggles:
         full = (x >= j.x_start_mm) & (x <= j.x_end_mm)
@@ -163,7 +165,7 @@ def _surface_between(surface: np.ndarray, x0: float, x1: float, joggles: Sequenc
     x = np.unique(np.asarray(xs))
     points = np.column_stack([x, np.interp(x, surface[:, 0], surface[:, 1])])
     if joggles:
-        points = _monotone(_displace(points, _inset(x, joggles), upper))
+        points = _monotone(_displace(points, joggle_inset(x, joggles), upper))
     inside = points[(points[:, 0] > x0) & (points[:, 0] < x1)]
     ends = [[x, np.interp(x, points[:, 0], points[:, 1])] for x in (x0, x1)]
     return _thin(np.vstack([ends[0], inside, ends[1]]), MIN_POINT_GAP_MM)

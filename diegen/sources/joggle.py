@@ -22,7 +22,7 @@ from shapely.geometry import LineString
 from shapely.geometry import Point as ShapelyPoint
 
 from diegen.errors import GeometryError
-from diegen.geometry.pieces import JOGGLE_SAMPLE_MM, ramp_shape
+from diegen.geometry.pieces import JOGGLE_SAMPLE_MM, joggle_inset
 from diegen.geometry.types import Joggle, Point, Points, Run
 from diegen.sources.contour import Place
 
@@ -108,11 +108,7 @@ def _recessed(run: Run, s0: float, s1: float, depth: float, ramp: float) -> tupl
     tangent = np.gradient(xy, s, axis=0)
     tangent /= np.linalg.norm(tangent, axis=1, keepdims=True)
     inward = np.column_stack([-tangent[:, 1], tangent[:, 0]])  # the part lies left of a counter-clockwise outline
-    inset = np.where((s >= s0) & (s <= s1), depth, 0.0)
-    for edge, sign in ((s0, -1.0), (s1, 1.0)):
-        u = 1.0 - (s - edge) * sign / ramp
-        in_ramp = (u > 0.0) & (u < 1.0) & ~((s >= s0) & (s <= s1))
-        inset = np.where(in_ramp, depth * ramp_shape(np.clip(u, 0.0, 1.0)), inset)
+    inset = joggle_inset(s, [Joggle(0, "outline", s0, s1, depth, ramp)])  # the zone and ramps as a rib's, along s
     moved = xy + inward * inset[:, None]
     points = tuple((float(x), float(y)) for x, y in moved)
     path = tuple(p for p, si in zip(points, s) if a <= si <= b)
