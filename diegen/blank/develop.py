@@ -34,6 +34,7 @@ import shapely
 from shapely.geometry import LineString, Polygon
 
 from diegen.blank.drawing import BlankDrawing, Circle
+from diegen.geometry.loops import is_corner
 from diegen.geometry.polygon import QUAD_SEGS, single_polygon
 from diegen.geometry.types import PieceGeometry, Point, Run
 from diegen.units import MM_PER_IN
@@ -62,8 +63,9 @@ def _beyond_cut_edge(run: Run, web: Polygon, offset_mm: float, corner_before: bo
     limit); a curved run takes off the band beyond it (wider than the developed flange) and, past each
     of its ends, the side beyond its end tangent, so a neighbouring flange stops flush with the cut edge.
     Where the outline runs on smoothly into a flanged run (``corner_before``/``corner_after`` False: no
-    corner at that end), the cut stops on the normal there instead: the flange beside it keeps its full width
-    and ends square at the junction (its line extended would shave the flange of the curve it runs into).
+    corner at that end, :func:`diegen.geometry.loops.is_corner`), the cut stops on the normal there instead: the
+    flange beside it keeps its full width and ends square at the junction (its line extended would shave the
+    flange of the curve it runs into).
     """
     reach = MITRE_LIMIT * offset_mm + 1.0
     pts = np.asarray(run.points, dtype=float)
@@ -84,16 +86,10 @@ def _beyond_cut_edge(run: Run, web: Polygon, offset_mm: float, corner_before: bo
     return region
 
 
-SMOOTH_TURN_DEG = 10.0  # project limit (as a drawn part's corners): a gentler turn between two runs is no corner
-
-
-def _turns(into: Sequence[Point], out_of: Sequence[Point]) -> bool:
-    """Whether the outline turns by ``SMOOTH_TURN_DEG`` or more from the segment ``into`` to the segment
-    ``out_of`` (each two points; the first ends where the second starts)."""
-    d0 = _unit(np.asarray(into[1], dtype=float) - np.asarray(into[0], dtype=float))
-    d1 = _unit(np.asarray(out_of[1], dtype=float) - np.asarray(out_of[0], dtype=float))
-    cross = float(d0[0] * d1[1] - d0[1] * d1[0])
-    return math.degrees(math.atan2(abs(cross), float(d0 @ d1))) >= SMOOTH_TURN_DEG
+def _along(segment: Sequence[Point]) -> Point:
+    """The direction (not normalised) of a segment given by its two end points."""
+    (x0, y0), (x1, y1) = segment
+    return (x1 - x0, y1 - y0)
 
 
 def _corner_cut(piece: PieceGeometry, corner: Point, reach: float) -> Polygon:
@@ -152,9 +148,9 @@ def develop_blank(piece: PieceGeometry, *, offset_mm: float, die_radius_mm: floa
     for i, run in enumerate(runs):  # a cut edge (no flange) stops the blank flush with it
         if not run.flanged and len(run.points) >= 2:
             before, after = runs[i - 1], runs[(i + 1) % len(runs)]
-            blank = blank.difference(_beyond_cut_edge(
-                run, web, offset_mm, corner_before=not before.flanged or _turns(before.points[-2:], run.points[:2]),
-                corner_after=not after.flanged or _turns(run.points[-2:], after.points[:2])))
+            corner_before = not before.flanged or is_corner(_along(before.points[-2:]), _along(run.points[:2]))
+            corner_after = not after.flanged or is_corner(_along(run.points[-2:]), _along(after.points[:2]))
+            blank = blank.difference(_beyond_cut_edge(run, web, offset_mm, corner_before, corner_after))
     relief_d = relief_hole_diameter(thickness_mm, die_radius_mm)
     reliefs = []
     for corner in piece.relief_points:

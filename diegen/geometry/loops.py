@@ -1,4 +1,5 @@
-"""Closed point loops as numpy arrays: the one place for a loop's area, length and orientation.
+"""Closed point loops as numpy arrays: the one place for a loop's area, length and orientation, and for how much
+an outline turns where two of its stretches meet.
 
 A loop is a sequence of ``(x, y)`` points whose closing segment (last point to
 first) is implicit; no point repeats.  Any unit: results are in the loop's
@@ -8,10 +9,15 @@ of the package.
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
-__all__ = ["FloatArray", "IntArray", "is_counter_clockwise", "loop_array", "loop_length", "signed_area"]
+__all__ = ["CORNER_TURN_DEG", "FloatArray", "IntArray", "is_corner", "is_counter_clockwise", "loop_array",
+           "loop_length", "signed_area", "turn_angle"]
+
+CORNER_TURN_DEG = 10.0  # project limit: where an outline turns this much or more between two stretches, a corner
 
 FloatArray = NDArray[np.float64]
 IntArray = NDArray[np.intp]
@@ -37,3 +43,13 @@ def signed_area(points: ArrayLike) -> float:
 def is_counter_clockwise(points: ArrayLike) -> bool:
     """True when the loop runs counter-clockwise and encloses some area."""
     return signed_area(points) > 0.0
+
+
+def turn_angle(a: tuple[float, float], b: tuple[float, float]) -> float:
+    """Signed angle (rad, + left) from direction ``a`` to direction ``b``."""
+    return math.atan2(a[0] * b[1] - a[1] * b[0], a[0] * b[0] + a[1] * b[1])
+
+
+def is_corner(a: tuple[float, float], b: tuple[float, float]) -> bool:
+    """Whether going on from direction ``a`` in direction ``b`` turns by ``CORNER_TURN_DEG`` or more."""
+    return abs(math.degrees(turn_angle(a, b))) >= CORNER_TURN_DEG

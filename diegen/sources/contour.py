@@ -690,11 +690,6 @@ def _rotate(v: Point, angle: float) -> Point:
     return (c * v[0] - s * v[1], s * v[0] + c * v[1])
 
 
-def turn_angle(a: Point, b: Point) -> float:
-    """Signed angle (rad, + left) from direction ``a`` to direction ``b``."""
-    return math.atan2(a[0] * b[1] - a[1] * b[0], a[0] * b[0] + a[1] * b[1])
-
-
 def _dedupe(pts: np.ndarray) -> np.ndarray:
     keep = np.concatenate([[True], np.hypot(*np.diff(pts, axis=0).T) > 0.0])
     return pts[keep]

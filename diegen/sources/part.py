@@ -33,9 +33,10 @@ from shapely.geometry import Point as ShapelyPoint
 
 from diegen.errors import DrawingError, GeometryError
 from diegen.geometry import pins as pin_rules
+from diegen.geometry.loops import CORNER_TURN_DEG, turn_angle
 from diegen.geometry.polygon import as_points, offset_inward, vertical_extents
 from diegen.geometry.types import Hole, PieceGeometry, Pin, Point, Points, Run
-from diegen.sources.contour import CHORD_TOL_MM, Contour, Place, contour_names, split_edge, turn_angle
+from diegen.sources.contour import CHORD_TOL_MM, Contour, Place, contour_names, split_edge
 from diegen.sources.joggle import JoggleSpec, recess
 from diegen.sources.model import (
     OUTLINE_IS,
@@ -51,7 +52,6 @@ from diegen.sources.model import (
     OnLayer,
 )
 
-CORNER_TURN_DEG = 10.0  # project limit: an edge junction turning this much or more is a corner
 SNAP_MM = 1.0  # a from/to point may lie this far from the outline (default)
 VERTEX_SNAP_MM = CHORD_TOL_MM  # a split this close to an edge end moves onto the end
 MERGE_MM = 0.05  # a run boundary this close to a die outline point moves onto that point
