@@ -18,6 +18,25 @@ def spec():
     return loaded
 
 
+@pytest.fixture(scope="module")
+def analysis(spec):
+    """The analysis of the module's ``spec`` (the demo rib unless the module gives its own)."""
+    from diegen import api
+    from diegen.analysis import RibAnalysis
+
+    result = api.analyse(spec)
+    assert isinstance(result, RibAnalysis)
+    return result
+
+
+@pytest.fixture(scope="module")
+def dies(analysis):
+    """The analysed rib's dies by piece name, as the die builder gets them."""
+    from diegen.die.from_analysis import die_input
+
+    return {p.piece.name: die_input(analysis, p) for p in analysis.pieces}
+
+
 def pytest_terminal_summary(terminalreporter):
     from testing import REPORTED
 

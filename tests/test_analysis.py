@@ -32,13 +32,6 @@ IN = 25.4  # mm per inch, exact (NIST SP 811)
 N_PER_LBF = 4.4482216152605  # N per pound-force, exact by definition (NIST SP 811, appendix B)
 
 
-@pytest.fixture(scope="module")
-def analysis(spec: RibSpec) -> RibAnalysis:
-    result = api.analyse(spec)
-    assert isinstance(result, RibAnalysis)
-    return result
-
-
 def piece(analysis: RibAnalysis, name: str) -> PieceAnalysis:
     return next(p for p in analysis.pieces if p.piece.name == name)
 

@@ -17,7 +17,6 @@ import pytest
 from shapely.geometry import Polygon
 
 from diegen.die.die_input import DieInput, DieRun
-from diegen.die.from_analysis import die_input
 from diegen.die.laminate import laminate_layers
 from diegen.errors import GeometryError
 
@@ -42,19 +41,6 @@ def reference(die: DieInput, depth_mm: float) -> Polygon:
 
 def mean_gap(a: Polygon, b: Polygon) -> float:
     return a.symmetric_difference(b).area / a.length
-
-
-@pytest.fixture(scope="module")
-def analysis(spec):
-    from diegen import api
-
-    return api.analyse(spec)
-
-
-@pytest.fixture(scope="module")
-def dies(analysis) -> dict[str, DieInput]:
-    """The demo rib's dies by piece name, as the die builder gets them."""
-    return {p.piece.name: die_input(analysis, p) for p in analysis.pieces}
 
 
 @pytest.fixture(scope="module")

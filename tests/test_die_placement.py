@@ -18,7 +18,6 @@ from shapely.geometry import LineString, Point, Polygon
 from shapely.ops import nearest_points, polylabel, unary_union
 
 from diegen.die.die_input import DieBore, DieInput, DiePin, DieRun
-from diegen.die.from_analysis import die_input
 from diegen.die.model import bottom_inset_mm, outline_model, section
 from diegen.die.outline import pieces_to_polygon
 from diegen.die.placement import check_placement, engraving_marks
@@ -51,18 +50,6 @@ def bottom_inset(die: DieInput) -> float:
 def smallest_section(die: DieInput) -> Polygon:
     """What every horizontal section contains (no flutes on the dies these probes use)."""
     return inward(die, max(top_setback(die), bottom_inset(die)))
-
-
-@pytest.fixture(scope="module")
-def analysis(spec):
-    from diegen import api
-
-    return api.analyse(spec)
-
-
-@pytest.fixture(scope="module")
-def dies(analysis) -> dict[str, DieInput]:
-    return {p.piece.name: die_input(analysis, p) for p in analysis.pieces}
 
 
 @pytest.fixture(scope="module")
