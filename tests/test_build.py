@@ -160,3 +160,14 @@ def test_two_builds_making_the_same_output_folder_at_once_both_go_on(tmp_path, m
     monkeypatch.setattr(lock.os, "mkdir", racing_mkdir)
     made = lock._make_folders(tmp_path / "out" / "T1")
     assert (tmp_path / "out" / "T1").is_dir() and made == []
+
+
+def test_worker_gets_the_analysis_pickled_whole(analysis) -> None:
+    """Build workers receive the analysed rib (pickled) instead of analysing it again: the copy must equal the
+    original, the sheet alloy's read-only source table included."""
+    import pickle
+
+    copy = pickle.loads(pickle.dumps(analysis))
+    assert copy == analysis
+    alloy = analysis.pieces[0].alloy
+    assert copy.pieces[0].alloy.sources == alloy.sources and alloy.sources["yield_mpa"]

@@ -13,6 +13,7 @@ structure follows the aircraft designer's drawings and the MMPDS minima.
 
 from __future__ import annotations
 
+import copyreg
 import difflib
 import functools
 import math
@@ -118,6 +119,15 @@ class _Catalogue:
 
 
 # --------------------------------------------------------------------------- loading
+
+
+def _read_only(mapping: dict) -> Mapping:
+    return MappingProxyType(mapping)
+
+
+# The catalogue's read-only mappings travel with an analysis to the build's worker processes: pickle them as the
+# plain mapping they show.
+copyreg.pickle(MappingProxyType, lambda proxy: (_read_only, (dict(proxy),)))
 
 
 def _read_yaml(filename: str) -> Mapping[str, Any]:

@@ -237,7 +237,7 @@ def build_spec(spec: Spec, out: Path, die_writer: DieWriter, warm_up: Callable[[
                     outcomes.append(PieceOutcome(part, "failed", error=entry.error,
                                                  reason="inputs unchanged since it failed; not tried again"))
                     continue
-                task = PieceTask(rib, job.section, index, digest)
+                task = PieceTask(rib, index, digest)
                 if piece.die is not None and not piece.die.buildable:  # check refused it: no kernel call
                     refused.append(task)
                     continue

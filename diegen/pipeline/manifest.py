@@ -14,7 +14,7 @@ import json
 import os
 import stat
 import time
-from dataclasses import asdict, dataclass, field
+from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any, Literal
 
@@ -144,10 +144,14 @@ class Manifest:
         return cls(path, data.get("spec", ""), data.get("kind", ""), ribs, pieces)
 
     def save(self) -> None:
-        data = {"diegen_version": __version__, "kind": self.kind, "spec": self.spec,
-                "ribs": {k: asdict(v) for k, v in self.ribs.items()},
-                "pieces": {k: asdict(v) for k, v in self.pieces.items()}}
-        write_text(self.path, json.dumps(data, indent=1, sort_keys=True))
+        """Write the manifest: a record a line, so saving after every piece of a wing stays cheap (the compact
+        encoder, no deep copies) and the file stays readable."""
+        head = {"diegen_version": __version__, "kind": self.kind, "spec": self.spec}
+        lines = [f" {json.dumps(key)}: {json.dumps(value)}," for key, value in sorted(head.items())]
+        for name, table in (("pieces", self.pieces), ("ribs", self.ribs)):
+            rows = ",\n".join(f"  {json.dumps(key)}: {_record_json(table[key])}" for key in sorted(table))
+            lines.append(f" {json.dumps(name)}: {{\n{rows}\n }},")
+        write_text(self.path, "{\n" + "\n".join(lines).rstrip(",") + "\n}\n")
         self.dirty = False
 
     def piece(self, part_id: str) -> PieceRecord | None:
@@ -182,6 +186,14 @@ class Manifest:
     def part_order(self) -> dict[str, int]:
         """Position of each part in rib order, then piece order."""
         return {p: i for i, p in enumerate(p for r in self.ribs.values() for p in r.pieces)}
+
+
+def _record_json(record: PieceRecord | RibRecord) -> str:
+    """One record as compact JSON, keys sorted (its lists and mappings are plain JSON data already)."""
+    data = dict(vars(record))
+    if isinstance(record, PieceRecord):
+        data["stamps"] = {name: vars(stamp) for name, stamp in record.stamps.items()}
+    return json.dumps(data, sort_keys=True)
 
 
 __all__ = ["MANIFEST", "RACY_NS", "FileStamp", "Manifest", "PieceRecord", "PieceStatus", "RibRecord"]

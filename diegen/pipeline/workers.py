@@ -1,4 +1,4 @@
-"""Building pieces, one process or a pool of them: a worker gets plain specs, analyses once, writes one piece.
+"""Building pieces, one process or a pool of them: a worker gets a piece's analysed rib and writes that piece.
 
 A worker's failure comes back as text, so the rest of a wing goes on; a piece that fails leaves none of the files
 it had begun to write.  Ctrl-C keeps what finished and drops what did not start.
@@ -30,7 +30,7 @@ _ANALYSIS_CACHE: dict[tuple, RibAnalysis] = {}
 
 
 def analysed(rib_spec: RibSpec, section: np.ndarray | None) -> RibAnalysis:
-    """The rib's analysis, computed once per process (workers get plain specs, not analyses)."""
+    """The rib's analysis, computed once per process (the build, its summary and the pieces built here share it)."""
     key = (rib_input_hash(rib_spec, section), rib_spec.file, rib_spec.positions)  # findings name the file
     if key not in _ANALYSIS_CACHE:
         if len(_ANALYSIS_CACHE) >= 256:
@@ -44,7 +44,6 @@ class PieceTask:
     """One piece to build: the analysed rib it belongs to, the piece's index, its content hash."""
 
     rib: RibAnalysis
-    section: np.ndarray | None
     index: int
     digest: str
 
@@ -68,14 +67,14 @@ class TaskResult:
     lasting: bool = False
 
 
-def build_piece(rib_spec: RibSpec, section: np.ndarray | None, index: int, folder: str, root: str, claimed: bool,
+def build_piece(rib: RibAnalysis, index: int, folder: str, root: str, claimed: bool,
                 die_writer: DieWriter) -> TaskResult:
-    """Worker entry point: analyse the rib (once per process) and write one piece.
+    """Worker entry point: write piece ``index`` of the analysed ``rib`` (analysed once, by the build: a worker
+    process gets the analysis, pickled, rather than repeating it).
 
     Every path written or removed must lie inside ``root`` (the resolved output folder, :mod:`diegen.fileio`).
     """
     start = time.perf_counter()
-    rib = analysed(rib_spec, section)
     piece = rib.pieces[index]
     part = piece.piece.part_id
     target = Path(folder) / part
@@ -154,7 +153,7 @@ def run_tasks(tasks: Sequence[PieceTask], folder: Path, root: Path, claimed: dic
     written stays inside ``root`` (the resolved output folder)."""
 
     def args(task: PieceTask) -> tuple:
-        return task.rib.spec, task.section, task.index, str(folder), str(root), claimed[task.part_id], die_writer
+        return task.rib, task.index, str(folder), str(root), claimed[task.part_id], die_writer
 
     jobs = max(1, min(jobs or os.cpu_count() or 1, len(tasks) or 1))
     if jobs == 1:
