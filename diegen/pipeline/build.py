@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import contextlib
 import os
 import stat
 import threading
@@ -24,7 +25,7 @@ from diegen.pipeline.jobs import Spec, rib_jobs
 from diegen.pipeline.lock import BuildLock, remove_stale_temporaries
 from diegen.pipeline.manifest import MANIFEST, Manifest, PieceRecord, RibRecord
 from diegen.pipeline.outputs import DieWriter
-from diegen.pipeline.workers import PieceTask, Progress, TaskResult, analysed, run_tasks
+from diegen.pipeline.workers import PieceTask, Progress, TaskResult, WorkerPool, analysed, pool_size, run_tasks
 from diegen.reports.document import piece_json
 from diegen.spec.model import SetSpec, WingSpec
 
@@ -187,7 +188,7 @@ def build_spec(spec: Spec, out: Path, die_writer: DieWriter, warm_up: Callable[[
         jobs_of_spec = list(rib_jobs(spec))
     check_output_folder(out, spec.id, (f"{job.rib.id}-{name}" for job in jobs_of_spec
                                        for name in job.rib.shared.pieces))
-    with BuildLock(folder), confined_to(folder) as root:
+    with BuildLock(folder), confined_to(folder) as root, contextlib.ExitStack() as later:
         remove_stale_temporaries(folder)
         manifest = Manifest.load(folder / MANIFEST)
         kind = spec.kind
@@ -206,11 +207,16 @@ def build_spec(spec: Spec, out: Path, die_writer: DieWriter, warm_up: Callable[[
                 reasons[part] = manifest.stale(folder, part)
             return reasons[part]
 
-        for job in jobs_of_spec:
-            key = rib_input_hash(job.rib, job.section)
+        keys = [rib_input_hash(job.rib, job.section) for job in jobs_of_spec]
+        unchanged = [not force and job.rib.id in manifest.ribs and manifest.ribs[job.rib.id].input_hash == key
+                     and not any(stale(p) for p in manifest.ribs[job.rib.id].pieces)
+                     for job, key in zip(jobs_of_spec, keys, strict=True)]
+        pieces = sum(len(job.rib.shared.pieces) for job, same in zip(jobs_of_spec, unchanged, strict=True) if not same)
+        # workers start now, so their imports overlap the analysis below
+        pool = later.enter_context(WorkerPool(pool_size(jobs, pieces) if pieces else 1, warm_up))
+        for job, key, same in zip(jobs_of_spec, keys, unchanged, strict=True):
             rib_entry = manifest.ribs.get(job.rib.id)
-            if (not force and rib_entry and rib_entry.input_hash == key
-                    and not any(stale(p) for p in rib_entry.pieces)):
+            if same:
                 outcomes.extend(PieceOutcome(p, "unchanged") for p in rib_entry.pieces)
                 rib_warnings.extend(Finding.from_json(w) for w in rib_entry.warnings)
                 warnings.extend(Finding.from_json(w) for p in rib_entry.pieces for w in manifest.pieces[p].warnings)
@@ -251,8 +257,8 @@ def build_spec(spec: Spec, out: Path, die_writer: DieWriter, warm_up: Callable[[
             plan = task.rib.pieces[task.index].die
             outcomes.append(_record(folder, manifest, task,
                                     TaskResult(task.part_id, (), plan.refusal or "", 0.0, lasting=True), ""))
-        early_pdf = _summary_pdf_meanwhile(spec, jobs_of_spec, tasks, jobs)
-        _build_tasks(tasks, folder, root, manifest, outcomes, reasons, die_writer, warm_up, jobs, progress)
+        early_pdf = _summary_pdf_meanwhile(spec, jobs_of_spec, tasks, pool)
+        _build_tasks(tasks, folder, root, manifest, outcomes, reasons, die_writer, pool, progress)
         removed, left = _drop_pieces_not_in(folder, manifest, {o.part_id for o in outcomes},
                                             {job.rib.id for job in jobs_of_spec})
         for rib in analyses:
@@ -303,11 +309,11 @@ class _Meanwhile:
 
 
 def _summary_pdf_meanwhile(spec: Spec, jobs_of_spec: list, tasks: list[PieceTask],
-                           jobs: int | None) -> _Meanwhile | None:
+                           pool: WorkerPool) -> _Meanwhile | None:
     """For a wing built by worker processes: start drawing its ``summary.pdf`` (which shows no build status) on a
     thread of this process, which otherwise only waits for the workers; None when the pieces are built here (one
     job), so the kernel's work and the drawing do not take turns on one interpreter."""
-    if not isinstance(spec, WingSpec) or not tasks or max(1, min(jobs or os.cpu_count() or 1, len(tasks))) == 1:
+    if not isinstance(spec, WingSpec) or len(tasks) < 2 or pool.executor is None:
         return None
     from diegen.reports.summary import summary_pdf
 
@@ -336,8 +342,7 @@ def _drop_pieces_not_in(folder: Path, manifest: Manifest, parts: set[str],
 
 
 def _build_tasks(tasks: list[PieceTask], folder: Path, root: Path, manifest: Manifest, outcomes: list[PieceOutcome],
-                 reasons: dict[str, str], die_writer: DieWriter, warm_up: Callable[[], None] | None,
-                 jobs: int | None, progress: bool) -> None:
+                 reasons: dict[str, str], die_writer: DieWriter, pool: WorkerPool, progress: bool) -> None:
     if not tasks:
         return
     bar = Progress(len(tasks), progress)
@@ -351,7 +356,7 @@ def _build_tasks(tasks: list[PieceTask], folder: Path, root: Path, manifest: Man
         outcomes.append(_record(folder, manifest, task, result, reasons.get(task.part_id, "")))
         bar.step(result.part_id)
 
-    run_tasks(tasks, folder, root, claimed, die_writer, warm_up, finish, jobs)
+    run_tasks(tasks, folder, root, claimed, die_writer, pool, finish)
 
 
 __all__ = ["FAILURE_NOTE", "BuildResult", "PieceOutcome", "build_spec"]

@@ -146,40 +146,64 @@ def _work(task: PieceTask) -> float:
     return piece.piece.length_mm * (1.0 + 0.1 * len(piece.flutes) + 0.1 * len(piece.piece.holes))
 
 
+class WorkerPool:
+    """Fresh worker processes (not forks), started as soon as a build knows it has pieces to make, so their imports
+    (the kernel's most of all) overlap the analysis; ``warm_up`` runs first in each.
+
+    Not forks: a fork taken while the solid kernel's own threads run (after a build in the same process) can leave a
+    worker waiting forever inside the kernel.  Used as a context manager; a pool of one job starts no process.
+    """
+
+    def __init__(self, jobs: int, warm_up: Callable[[], None] | None) -> None:
+        self.jobs = max(1, jobs)
+        self.executor: ProcessPoolExecutor | None = None
+        if self.jobs > 1:
+            self.executor = ProcessPoolExecutor(max_workers=self.jobs, initializer=warm_up,
+                                                mp_context=multiprocessing.get_context("spawn"))
+            self.executor.submit(int)  # the processes start on the first task: start them now
+
+    def __enter__(self) -> WorkerPool:
+        return self
+
+    def __exit__(self, kind: object, error: object, trace: object) -> None:
+        if self.executor is not None:
+            self.executor.shutdown(wait=error is None, cancel_futures=True)
+
+
+def pool_size(jobs: int | None, pieces: int) -> int:
+    """Worker processes for ``pieces`` pieces: ``jobs`` (default: the cores), never more than the pieces."""
+    return max(1, min(jobs or os.cpu_count() or 1, pieces or 1))
+
+
 def run_tasks(tasks: Sequence[PieceTask], folder: Path, root: Path, claimed: dict[str, bool], die_writer: DieWriter,
-              warm_up: Callable[[], None] | None, finish: Callable[[PieceTask, TaskResult], None],
-              jobs: int | None) -> None:
-    """Build ``tasks`` in this process (one job) or a pool whose workers first call ``warm_up``; every path
-    written stays inside ``root`` (the resolved output folder)."""
+              pool: WorkerPool, finish: Callable[[PieceTask, TaskResult], None]) -> None:
+    """Build ``tasks`` in this process (a pool of one job) or in ``pool``'s workers; every path written stays
+    inside ``root`` (the resolved output folder)."""
 
     def args(task: PieceTask) -> tuple:
         return task.rib, task.index, str(folder), str(root), claimed[task.part_id], die_writer
 
-    jobs = max(1, min(jobs or os.cpu_count() or 1, len(tasks) or 1))
-    if jobs == 1:
+    if pool.executor is None or len(tasks) == 1:
         for task in tasks:
             finish(task, build_piece(*args(task)))
         return
-    # fresh worker processes, not forks: a fork taken while the solid kernel's own threads run (after a build in
-    # the same process) can leave a worker waiting forever inside the kernel
-    context = multiprocessing.get_context("spawn")
     ordered = sorted(tasks, key=_work, reverse=True)  # the largest pieces first, so the pool ends together
-    with ProcessPoolExecutor(max_workers=jobs, initializer=warm_up, mp_context=context) as pool:
-        pending: dict[Future, PieceTask] = {pool.submit(build_piece, *args(t)): t for t in ordered}
-        try:
-            while pending:
-                done, _ = wait(pending, return_when=FIRST_COMPLETED)
-                for future in done:
-                    finish(pending.pop(future), future.result())
-        except BaseException:  # Ctrl-C: keep what finished, drop what did not start
-            for future in pending:
-                future.cancel()
-            done, _ = wait(pending, timeout=60)
+    executor = pool.executor
+    pending: dict[Future, PieceTask] = {executor.submit(build_piece, *args(t)): t for t in ordered}
+    try:
+        while pending:
+            done, _ = wait(pending, return_when=FIRST_COMPLETED)
             for future in done:
-                if not future.cancelled() and future.exception() is None:
-                    finish(pending[future], future.result())
-            pool.shutdown(wait=False, cancel_futures=True)
-            raise
+                finish(pending.pop(future), future.result())
+    except BaseException:  # Ctrl-C: keep what finished, drop what did not start
+        for future in pending:
+            future.cancel()
+        done, _ = wait(pending, timeout=60)
+        for future in done:
+            if not future.cancelled() and future.exception() is None:
+                finish(pending[future], future.result())
+        executor.shutdown(wait=False, cancel_futures=True)
+        raise
 
 
-__all__ = ["PieceTask", "Progress", "TaskResult", "analysed", "build_piece", "run_tasks"]
+__all__ = ["PieceTask", "Progress", "TaskResult", "WorkerPool", "analysed", "build_piece", "pool_size", "run_tasks"]
