@@ -87,9 +87,9 @@ def test_wing_summary_is_on_the_paper_asked_for(tmp_path, paper, size_pt):
 
 @pytest.mark.slow  # two ribs of dies with the kernel, in two worker processes
 @pytest.mark.solid
-def test_build_with_two_workers_writes_the_summary_drawn_meanwhile(tmp_path):
-    """With worker processes the summary PDF is drawn on a thread while they work; it is the whole document:
-    planform, table, a page a piece (read back with pypdf)."""
+def test_build_with_two_workers_writes_the_whole_summary(tmp_path):
+    """Built by worker processes, the wing's summary PDF is the whole document: planform, table, a page a piece
+    (read back with pypdf)."""
     pypdf = pytest.importorskip("pypdf")
     path = _small_wing(tmp_path)
     path.write_text(path.read_text().replace("stations: {count: 3}", "stations: {count: 2}"))

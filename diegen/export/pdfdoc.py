@@ -90,9 +90,10 @@ _ESCAPE: Final = str.maketrans({"\\": "\\\\", "(": "\\(", ")": "\\)", "\r": "\\r
 
 
 def _encode(text: str, widths: Sequence[int]) -> str:
-    """``text`` in WinAnsiEncoding, as a str of code points < 256 (one a byte); unknown characters become ``?``."""
+    """``text`` in WinAnsiEncoding, as a str of code points < 256 (one a byte); the minus sign (U+2212, which the
+    encoding lacks) becomes the hyphen-minus, other unknown characters ``?``."""
     out = []
-    for ch in text:
+    for ch in text.replace("\u2212", "-"):
         try:
             code = ch.encode("cp1252")[0]  # Annex D.2: WinAnsiEncoding is this code page where both define a code
         except UnicodeEncodeError:

@@ -5,7 +5,6 @@ from __future__ import annotations
 import contextlib
 import os
 import stat
-import threading
 from collections.abc import Callable
 from dataclasses import dataclass, field
 from datetime import datetime
@@ -257,7 +256,6 @@ def build_spec(spec: Spec, out: Path, die_writer: DieWriter, warm_up: Callable[[
             plan = task.rib.pieces[task.index].die
             outcomes.append(_record(folder, manifest, task,
                                     TaskResult(task.part_id, (), plan.refusal or "", 0.0, lasting=True), ""))
-        early_pdf = _summary_pdf_meanwhile(spec, jobs_of_spec, tasks, pool)
         _build_tasks(tasks, folder, root, manifest, outcomes, reasons, die_writer, pool, progress)
         removed, left = _drop_pieces_not_in(folder, manifest, {o.part_id for o in outcomes},
                                             {job.rib.id for job in jobs_of_spec})
@@ -277,48 +275,10 @@ def build_spec(spec: Spec, out: Path, die_writer: DieWriter, warm_up: Callable[[
             if tasks or refused or changed or removed or not update_summary_status(folder, status):
                 ribs = [analysed(job.rib, job.section) for job in jobs_of_spec]
                 if isinstance(spec, WingSpec):
-                    write_wing_summary(spec, ribs, folder, status, pdf=early_pdf.result() if early_pdf else None)
+                    write_wing_summary(spec, ribs, folder, status)
                 else:
                     write_set_summary(spec, ribs, folder, status)
     return BuildResult(folder, outcomes, once(rib_warnings) + warnings, removed, left)
-
-
-class _Meanwhile:
-    """A function run on a thread of its own while this one waits for the build's worker processes; ``result``
-    waits for it and returns its value or raises its error."""
-
-    def __init__(self, fn: Callable[[], bytes]) -> None:
-        self._value: bytes | None = None
-        self._error: BaseException | None = None
-        self._fn = fn
-        self._thread = threading.Thread(target=self._run, name="diegen-summary", daemon=True)
-        self._thread.start()
-
-    def _run(self) -> None:
-        try:
-            self._value = self._fn()
-        except BaseException as error:  # noqa: BLE001 - handed to the caller of result()
-            self._error = error
-
-    def result(self) -> bytes:
-        self._thread.join()
-        if self._error is not None:
-            raise self._error
-        assert self._value is not None
-        return self._value
-
-
-def _summary_pdf_meanwhile(spec: Spec, jobs_of_spec: list, tasks: list[PieceTask],
-                           pool: WorkerPool) -> _Meanwhile | None:
-    """For a wing built by worker processes: start drawing its ``summary.pdf`` (which shows no build status) on a
-    thread of this process, which otherwise only waits for the workers; None when the pieces are built here (one
-    job), so the kernel's work and the drawing do not take turns on one interpreter."""
-    if not isinstance(spec, WingSpec) or len(tasks) < 2 or pool.executor is None:
-        return None
-    from diegen.reports.summary import summary_pdf
-
-    ribs = [analysed(job.rib, job.section) for job in jobs_of_spec]  # here, not on the thread: the cache is shared
-    return _Meanwhile(lambda: summary_pdf(spec, ribs))
 
 
 def _drop_pieces_not_in(folder: Path, manifest: Manifest, parts: set[str],

@@ -8,13 +8,15 @@ import io
 import os
 import stat
 from collections.abc import Mapping, Sequence
+from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
 import numpy as np
 
+from diegen import __version__
 from diegen.analysis import PieceAnalysis, RibAnalysis
-from diegen.fileio import write_bytes, write_text, write_with
+from diegen.fileio import write_bytes, write_text
 from diegen.numbers import plain
 from diegen.spec.model import SetSpec, WingSpec
 from diegen.wing import chord_at, leading_edge_at, stations
@@ -101,118 +103,128 @@ def write_set_summary(spec: SetSpec, ribs: Sequence[RibAnalysis], folder: Path,
 
 
 def write_wing_summary(spec: WingSpec, ribs: Sequence[RibAnalysis], folder: Path,
-                       status: Mapping[str, str] | None = None, pdf: bytes | None = None) -> list[Path]:
+                       status: Mapping[str, str] | None = None) -> list[Path]:
     """Write ``summary.csv`` and ``summary.pdf`` for the whole wing (``ribs``: every rib, analysed) into ``folder``;
-    ``status`` is what the build did with each part.  ``pdf``: the PDF made beforehand by :func:`summary_pdf` of
-    the same ``spec`` and ``ribs`` (the PDF shows no status), so a build can draw it while its pieces are made."""
+    ``status`` is what the build did with each part (the CSV shows it, the PDF does not)."""
     rows = summary_rows(spec, ribs, status)
     write_text(folder / "summary.csv", _csv_text(rows))
-    if pdf is None:
-        write_with(folder / "summary.pdf", lambda tmp: _pdf(spec, ribs, rows, tmp))
-    else:
-        write_bytes(folder / "summary.pdf", pdf)
+    write_bytes(folder / "summary.pdf", _pdf(spec, ribs, rows))
     return [folder / "summary.csv", folder / "summary.pdf"]
 
 
-def summary_pdf(spec: WingSpec, ribs: Sequence[RibAnalysis]) -> bytes:
-    """The bytes of ``summary.pdf`` (planform, table, a page a piece): it shows nothing of a build's status, so it
-    can be drawn before the build ends; writes no file."""
-    buffer = io.BytesIO()
-    _pdf(spec, ribs, summary_rows(spec, ribs), buffer)
-    return buffer.getvalue()
+TABLE_COLUMNS = ("part_id", "station_mm", "chord_mm", "die_length_mm", "die_depth_mm", "die_height_mm",
+                 "overbend_deg", "max_shrink", "max_stretch", "flutes", "press_verdict")
+ROWS_A_PAGE = 40
 
 
-def _planform(ax, spec: WingSpec) -> None:
+@dataclass(frozen=True)
+class PiecePlot:
+    """What a piece's page shows: the blank and die outline (closed loops, mm), the shrink (+) / stretch (−) along
+    each flange run against the position along the die outline (mm), and the wrinkle limit it is judged by."""
+
+    title: str
+    blank: np.ndarray
+    die_outline: np.ndarray
+    strain: tuple[tuple[np.ndarray, np.ndarray], ...]
+    shrink_limit: float
+
+
+def piece_plot(rib: RibAnalysis, p: PieceAnalysis) -> PiecePlot:
+    """The plain content of piece ``p``'s page of the summary."""
+    def closed(points: Any) -> np.ndarray:
+        loop = np.asarray(points, dtype=float)
+        return np.vstack([loop, loop[:1]])
+
+    title = (f"{p.piece.part_id} ({rib.spec.section_label}): over-bend {p.springback.overbend_deg:.2f}°, die R "
+             f"{p.springback.die_radius_mm:.2f} mm, {len(p.flutes)} flute(s), press {p.press.verdict}")
+    strain = tuple((run.s_offset_mm + run.profile.s_mm, -run.profile.strain) for run in p.runs)
+    return PiecePlot(title, closed(p.blank.outer), closed(p.piece.outline), strain, p.flange.shrink_limit)
+
+
+def _pdf(spec: WingSpec, ribs: Sequence[RibAnalysis], rows: list[dict[str, Any]]) -> bytes:
+    from diegen.export.pdfdoc import Document
+
+    width, height = (72.0 * size for size in PAGE_IN[spec.paper])
+    document = Document({"Title": f"{spec.id}: wing summary", "Creator": f"diegen {__version__}"})
+    _planform(document.add_page(width, height), spec)
+    for start in range(0, len(rows), ROWS_A_PAGE):
+        _table(document.add_page(width, height), spec, rows, start)
+    for rib in ribs:
+        for p in rib.pieces:
+            _piece_page(document.add_page(width, height), piece_plot(rib, p))
+    return document.to_bytes()
+
+
+def _planform(canvas: Any, spec: WingSpec) -> None:
+    from diegen.export.pdfchart import BLUE, RED, Chart, Stroke
+
     ys = np.array([0.0, spec.span_mm])
     le = np.array([leading_edge_at(spec, y) for y in ys])
     te = le + np.array([chord_at(spec, y) for y in ys])
-    ax.plot(np.r_[le, te[::-1], le[:1]], np.r_[ys, ys[::-1], ys[:1]], color="k", lw=1.2)
-    for st in stations(spec):
-        ax.plot([st.x_le_mm, st.x_le_mm + st.chord_mm], [st.y_mm, st.y_mm], color="tab:blue", lw=0.8)
-        ax.text(st.x_le_mm - 20, st.y_mm, f"R{st.number}", ha="right", va="center", fontsize=6)
-        for fraction in st.spar_fractions:
-            ax.plot(st.x_le_mm + fraction * st.chord_mm, st.y_mm, "|", color="tab:red", ms=6)
-    for i, spar in enumerate(spec.spars):
-        xs = [spar.root_at * spec.root_chord_mm, leading_edge_at(spec, spec.span_mm) + spar.tip_at * spec.tip_chord_mm]
-        ax.plot(xs, ys, color="tab:red", lw=0.8, ls="--", label="spars" if i == 0 else None)
-    ax.set_aspect("equal")
-    ax.invert_yaxis()
-    ax.set_xlabel("x, chordwise (mm)")
-    ax.set_ylabel("y, from the root rib (mm)")
-    ax.set_title(f"{spec.id}: planform, rib stations (blue) and spars (red)")
-    ax.legend(fontsize=7)
+    places = stations(spec)
+    xs = [x for st in places for x in (st.x_le_mm - 60.0, st.x_le_mm + st.chord_mm)]
+    chart = Chart(canvas, (70.0, 50.0, canvas.width - 100.0, canvas.height - 90.0), (min(xs), max(xs)),
+                  (0.0, spec.span_mm), equal=True, y_down=True)
+    chart.frame("x, chordwise (mm)", "y, from the root rib (mm)",
+                f"{spec.id}: planform, rib stations (blue) and spars (red)")
+    chart.line(np.r_[le, te[::-1], le[:1]], np.r_[ys, ys[::-1], ys[:1]], Stroke(0.0, 1.2))
+    chart.lines([([st.x_le_mm, st.x_le_mm + st.chord_mm], [st.y_mm, st.y_mm]) for st in places], Stroke(BLUE, 0.8))
+    for st in places:
+        chart.text(st.x_le_mm - 20.0, st.y_mm, f"R{st.number}", 6.0, ha="right", va="center")
+    ticks = chart.page([st.x_le_mm + f * st.chord_mm for st in places for f in st.spar_fractions],
+                       [st.y_mm for st in places for _ in st.spar_fractions])
+    canvas.style(width=1.0, colour=RED, dash=())
+    canvas.polylines([[(x, y - 3.0), (x, y + 3.0)] for x, y in ticks])
+    spars = Stroke(RED, 0.8, (3.0, 1.5))
+    chart.lines([([s.root_at * spec.root_chord_mm, leading_edge_at(spec, spec.span_mm) + s.tip_at * spec.tip_chord_mm],
+                  ys) for s in spec.spars], spars)
+    chart.legend([(spars, "spars")] if spec.spars else [])
 
 
-def _pdf(spec: WingSpec, ribs: Sequence[RibAnalysis], rows: list[dict[str, Any]], path: Path | io.BytesIO) -> None:
-    from matplotlib.backends.backend_pdf import PdfPages
-    from matplotlib.figure import Figure
+def _table(canvas: Any, spec: WingSpec, rows: list[dict[str, Any]], start: int) -> None:
+    from diegen.export.pdfdoc import text_width
 
-    page = PAGE_IN[spec.paper]
-    with PdfPages(path) as pdf:
-        fig = Figure(figsize=page)
-        _planform(fig.add_subplot(1, 1, 1), spec)
-        pdf.savefig(fig)
-        shown = ("part_id", "station_mm", "chord_mm", "die_length_mm", "die_depth_mm", "die_height_mm", "overbend_deg",
-                 "max_shrink", "max_stretch", "flutes", "press_verdict")
-        for start in range(0, len(rows), 40):
-            fig = Figure(figsize=page)
-            ax = fig.add_axes((0.03, 0.03, 0.94, 0.92))
-            ax.axis("off")
-            ax.set_title(f"{spec.id}: pieces {start + 1}–{min(start + 40, len(rows))} of {len(rows)}")
-            table = ax.table(cellText=[[str(r[c]) for c in shown] for r in rows[start:start + 40]], colLabels=shown,
-                             loc="upper center", cellLoc="center")
-            table.auto_set_font_size(False)
-            table.set_fontsize(6)
-            pdf.savefig(fig)
-        piece_page = _PiecePage(page)
-        for rib in ribs:
-            for p in rib.pieces:
-                piece_page.write(pdf, rib, p)
+    size, line = 6.0, (canvas.height - 80.0) / (ROWS_A_PAGE + 1)
+    shown = rows[start:start + ROWS_A_PAGE]
+    cells = [list(TABLE_COLUMNS)] + [[str(r[c]) for c in TABLE_COLUMNS] for r in shown]
+    widths = [max(text_width(row[k], size, bold=(n == 0)) for n, row in enumerate(cells)) + 8.0
+              for k in range(len(TABLE_COLUMNS))]
+    x0 = (canvas.width - sum(widths)) / 2
+    top = canvas.height - 50.0
+    canvas.text(canvas.width / 2, canvas.height - 30.0,
+                f"{spec.id}: pieces {start + 1}–{start + len(shown)} of {len(rows)}", 9.0, ha="center")
+    canvas.style(width=0.4, colour=0.5, dash=())
+    canvas.polylines([[(x0, top - line * n), (x0 + sum(widths), top - line * n)] for n in range(len(cells) + 1)])
+    for n, row in enumerate(cells):
+        x = x0
+        for k, cell in enumerate(row):
+            canvas.text(x + widths[k] / 2, top - line * (n + 0.5), cell, size, bold=(n == 0), ha="center",
+                        va="center")
+            x += widths[k]
 
 
-class _PiecePage:
-    """One figure for every piece page: axes, grid, labels and legends are made once, a page adds its lines,
-    is saved and takes them off again (axis limits follow each page's own lines)."""
+def _piece_page(canvas: Any, plot: PiecePlot) -> None:
+    from diegen.export.pdfchart import BLUE, GREEN, PALETTE, Chart, Stroke
 
-    def __init__(self, page: tuple[float, float]) -> None:
-        from matplotlib.figure import Figure
-        from matplotlib.lines import Line2D
-
-        self.fig = Figure(figsize=page)
-        top = self.top = self.fig.add_axes((0.07, 0.42, 0.88, 0.5))
-        top.set_aspect("equal")
-        top.grid(True, lw=0.3)
-        top.legend([Line2D([], [], color="tab:green", lw=0.9), Line2D([], [], color="k", lw=1.2)],
-                   ["blank", "die outline"], fontsize=7)
-        self.title = top.set_title(" ", fontsize=9)
-        bottom = self.bottom = self.fig.add_axes((0.07, 0.07, 0.88, 0.25))
-        self.limit = bottom.axhline(0.0, color="tab:blue", ls="--", lw=1, label="shrink limit")
-        bottom.set_xlabel("position along the die outline (mm)")
-        bottom.set_ylabel("shrink (+) / stretch (−)")
-        bottom.grid(True, lw=0.3)
-        bottom.legend(fontsize=7)
-
-    def write(self, pdf: Any, rib: RibAnalysis, p: PieceAnalysis) -> None:
-        top, bottom = self.top, self.bottom
-        added = []
-        for points, style in ((p.blank.outer, {"color": "tab:green", "lw": 0.9}),
-                              (p.piece.outline, {"color": "k", "lw": 1.2})):
-            loop = np.vstack([np.asarray(points), np.asarray(points)[:1]])
-            added += top.plot(loop[:, 0], loop[:, 1], **style)
-        self.title.set_text(f"{p.piece.part_id} ({rib.spec.section_label}): over-bend "
-                            f"{p.springback.overbend_deg:.2f}°, die R "
-                            f"{p.springback.die_radius_mm:.2f} mm, {len(p.flutes)} flute(s), press {p.press.verdict}")
-        for index, run in enumerate(p.runs):
-            added += bottom.plot(run.s_offset_mm + run.profile.s_mm, -run.profile.strain, lw=1, color=f"C{index % 10}")
-        self.limit.set_ydata([p.flange.shrink_limit, p.flange.shrink_limit])
-        for ax in (top, bottom):
-            ax.relim()
-            ax.autoscale_view()
-        try:
-            pdf.savefig(self.fig)
-        finally:
-            for artist in added:
-                artist.remove()
+    w, h = canvas.width, canvas.height
+    loops = np.vstack([plot.blank, plot.die_outline])
+    top = Chart(canvas, (0.07 * w, 0.42 * h, 0.88 * w, 0.5 * h), (loops[:, 0].min(), loops[:, 0].max()),
+                (loops[:, 1].min(), loops[:, 1].max()), equal=True)
+    top.frame(title=plot.title)
+    blank, die = Stroke(GREEN, 0.9), Stroke(0.0, 1.2)
+    top.line(plot.blank[:, 0], plot.blank[:, 1], blank)
+    top.line(plot.die_outline[:, 0], plot.die_outline[:, 1], die)
+    top.legend([(blank, "blank"), (die, "die outline")])
+    s = np.concatenate([run[0] for run in plot.strain]) if plot.strain else np.zeros(1)
+    e = np.concatenate([run[1] for run in plot.strain] + [[plot.shrink_limit]])
+    bottom = Chart(canvas, (0.07 * w, 0.07 * h, 0.88 * w, 0.25 * h), (s.min(), s.max()), (e.min(), e.max()))
+    bottom.frame("position along the die outline (mm)", "shrink (+) / stretch (−)")
+    for index, (run_s, run_e) in enumerate(plot.strain):
+        bottom.line(run_s, run_e, Stroke(PALETTE[index % len(PALETTE)], 1.0))
+    limit = Stroke(BLUE, 1.0, (4.0, 2.0))
+    bottom.hline(plot.shrink_limit, limit)
+    bottom.legend([(limit, "shrink limit")])
 
 
-__all__ = ["COLUMNS", "summary_pdf", "summary_rows", "update_summary_status", "write_wing_summary"]
+__all__ = ["COLUMNS", "PiecePlot", "piece_plot", "summary_rows", "update_summary_status",
+           "write_wing_summary"]
