@@ -184,7 +184,7 @@ def test_build_counts_the_warnings_check_reports(spec_path, tmp_path, fake_solid
         from diegen.pipeline import build as build_module
 
         monkeypatch.setattr(build_module, "_build_tasks", lambda *args, **kwargs: None)
-        monkeypatch.setattr("diegen.reports.summary.write_wing_summary", lambda *args, **kwargs: [])
+        monkeypatch.setattr("diegen.reports.summary.write_summary", lambda *args, **kwargs: [])
     result = api.build(spec, tmp_path, jobs=1, die_writer=fake_solids)
     assert len(result.warnings) == expected
     assert f"{expected} warning(s) (" in result.summary()

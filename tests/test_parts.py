@@ -22,6 +22,7 @@ from pathlib import Path
 
 import ezdxf
 import numpy as np
+import pypdf
 import pytest
 from ezdxf.path import make_path
 from shapely.geometry import Polygon
@@ -359,6 +360,12 @@ def test_a_set_rebuilds_only_the_frame_whose_drawing_changed_and_drops_a_removed
         ("1", "BW418-F5", "unchanged"), ("2", "BW418-G2", "unchanged"), ("3", "BW418-T2-nose", "unchanged"),
         ("4", "BW418-fuselage-F3", "unchanged"), ("5", "BW418-fuselage-F4", "built")]
     assert rows[4]["section"].startswith("F4.dxf") and rows[4]["station_mm"] == ""
+    # and its PDF (read back with pypdf): no planform, the table of the five parts, then a page a part
+    pages = [page.extract_text() for page in pypdf.PdfReader(out / "BW418-fuselage" / "summary.pdf").pages]
+    assert len(pages) == 1 + 5 and "BW418-fuselage: pieces 1–5 of 5" in pages[0] and "station_mm" not in pages[0]
+    for page, row in zip(pages[1:], rows, strict=True):
+        assert page.startswith(row["part_id"]) or f"{row['part_id']} (" in page
+        assert "die outline" in page and "shrink limit" in page
 
 
 SET_HEAD = "diegen: 1\nkind: set\nid: S1\nunits: mm\n"

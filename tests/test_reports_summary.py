@@ -19,7 +19,7 @@ import yaml
 from shapely.geometry import Polygon
 from testing import DEMO_WING, wrinkle_limit
 
-from diegen.reports.summary import COLUMNS, piece_plot, summary_rows, write_wing_summary
+from diegen.reports.summary import COLUMNS, piece_plot, summary_rows, write_summary
 
 MM_PER_IN = 25.4  # NIST SP 811 App. B, exact
 RAW = yaml.safe_load(DEMO_WING.read_text(encoding="utf-8"))
@@ -109,7 +109,7 @@ def written(wing_spec, wing, tmp_path_factory) -> tuple[Path, list, list[Path]]:
     """The summary of the root rib only."""
     folder = tmp_path_factory.mktemp("summary")
     ribs = [wing.ribs[0]]
-    return folder, ribs, write_wing_summary(wing_spec, ribs, folder)
+    return folder, ribs, write_summary(wing_spec, ribs, folder)
 
 
 def test_csv_reads_back_as_the_rows(wing_spec, written) -> None:
@@ -196,7 +196,7 @@ def test_wrinkle_limit_follows_each_ribs_sheet(wing) -> None:
 
 @pytest.mark.slow
 def test_whole_wing_pdf(wing_spec, wing, rows, tmp_path) -> None:
-    write_wing_summary(wing_spec, wing.ribs, tmp_path)
+    write_summary(wing_spec, wing.ribs, tmp_path)
     pages = pdf_pages(tmp_path / "summary.pdf")
     assert len(pages) == 1 + 1 + RIB_COUNT * len(PIECES)
     check_pdf(pages, wing_spec.id, rows, wing.ribs)

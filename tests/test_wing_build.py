@@ -71,13 +71,13 @@ def test_wing_summary_is_on_the_paper_asked_for(tmp_path, paper, size_pt):
     # Landscape pages: Letter 11 × 8.5 in (ANSI/ASME Y14.1), A4 297 × 210 mm (ISO 216); 72 pt to the inch (ISO
     # 32000-1 §8.3.2.3). Read back with pypdf; the CSV names each rib's section.
     pypdf = pytest.importorskip("pypdf")
-    from diegen.reports.summary import write_wing_summary
+    from diegen.reports.summary import write_summary
 
     path = _small_wing(tmp_path)
     path.write_text(path.read_text().replace("units: in\n", f"units: in\npaper: {paper}\n"))
     spec = api.load(path)
     analysis = api.analyse(spec)
-    write_wing_summary(spec, list(analysis.ribs), tmp_path)
+    write_summary(spec, list(analysis.ribs), tmp_path)
     for page in pypdf.PdfReader(tmp_path / "summary.pdf").pages:
         assert (float(page.mediabox.width), float(page.mediabox.height)) == pytest.approx(size_pt, abs=0.01)
     rows = list(csv.DictReader((tmp_path / "summary.csv").open()))

@@ -269,15 +269,11 @@ def build_spec(spec: Spec, out: Path, die_writer: DieWriter, warm_up: Callable[[
         order = manifest.part_order()
         outcomes.sort(key=lambda o: order.get(o.part_id, 0))
         if isinstance(spec, (WingSpec, SetSpec)):
-            from diegen.reports.summary import update_summary_status, write_set_summary, write_wing_summary
+            from diegen.reports.summary import update_summary_status, write_summary
 
             status = {o.part_id: o.status for o in outcomes}
             if tasks or refused or changed or removed or not update_summary_status(folder, status):
-                ribs = [analysed(job.rib, job.section) for job in jobs_of_spec]
-                if isinstance(spec, WingSpec):
-                    write_wing_summary(spec, ribs, folder, status)
-                else:
-                    write_set_summary(spec, ribs, folder, status)
+                write_summary(spec, [analysed(job.rib, job.section) for job in jobs_of_spec], folder, status)
     return BuildResult(folder, outcomes, once(rib_warnings) + warnings, removed, left)
 
 

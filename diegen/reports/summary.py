@@ -1,5 +1,5 @@
-"""The wing summary: ``summary.csv`` (a row a piece) and ``summary.pdf`` (planform, table, a page a piece); a set's
-``summary.csv``."""
+"""The summary of a wing or a set: ``summary.csv`` (a row a piece) and ``summary.pdf`` (a wing's planform, the table
+of every piece, a page a piece)."""
 
 from __future__ import annotations
 
@@ -95,17 +95,11 @@ def update_summary_status(folder: Path, status: Mapping[str, str]) -> bool:
 PAGE_IN = {"a4": (297.0 / 25.4, 210.0 / 25.4), "letter": (11.0, 8.5)}
 
 
-def write_set_summary(spec: SetSpec, ribs: Sequence[RibAnalysis], folder: Path,
-                      status: Mapping[str, str] | None = None) -> list[Path]:
-    """Write a set's ``summary.csv`` (a row a piece of every member, in the set's order) into ``folder``."""
-    write_text(folder / "summary.csv", _csv_text(summary_rows(spec, ribs, status)))
-    return [folder / "summary.csv"]
-
-
-def write_wing_summary(spec: WingSpec, ribs: Sequence[RibAnalysis], folder: Path,
-                       status: Mapping[str, str] | None = None) -> list[Path]:
-    """Write ``summary.csv`` and ``summary.pdf`` for the whole wing (``ribs``: every rib, analysed) into ``folder``;
-    ``status`` is what the build did with each part (the CSV shows it, the PDF does not)."""
+def write_summary(spec: WingSpec | SetSpec, ribs: Sequence[RibAnalysis], folder: Path,
+                  status: Mapping[str, str] | None = None) -> list[Path]:
+    """Write ``summary.csv`` and ``summary.pdf`` of a wing or a set (``ribs``: every rib or part, analysed, in the
+    spec's order) into ``folder``; ``status`` is what the build did with each part (the CSV shows it, the PDF
+    does not)."""
     rows = summary_rows(spec, ribs, status)
     write_text(folder / "summary.csv", _csv_text(rows))
     write_bytes(folder / "summary.pdf", _pdf(spec, ribs, rows))
@@ -141,12 +135,14 @@ def piece_plot(rib: RibAnalysis, p: PieceAnalysis) -> PiecePlot:
     return PiecePlot(title, closed(p.blank.outer), closed(p.piece.outline), strain, p.flange.shrink_limit)
 
 
-def _pdf(spec: WingSpec, ribs: Sequence[RibAnalysis], rows: list[dict[str, Any]]) -> bytes:
+def _pdf(spec: WingSpec | SetSpec, ribs: Sequence[RibAnalysis], rows: list[dict[str, Any]]) -> bytes:
+    """The summary PDF: a wing's planform, then the table of every piece, then a page a piece."""
     from diegen.export.pdfdoc import Document
 
     width, height = (72.0 * size for size in PAGE_IN[spec.paper])
-    document = Document({"Title": f"{spec.id}: wing summary", "Creator": f"diegen {__version__}"})
-    _planform(document.add_page(width, height), spec)
+    document = Document({"Title": f"{spec.id}: {spec.kind} summary", "Creator": f"diegen {__version__}"})
+    if isinstance(spec, WingSpec):
+        _planform(document.add_page(width, height), spec)
     for start in range(0, len(rows), ROWS_A_PAGE):
         _table(document.add_page(width, height), spec, rows, start)
     for rib in ribs:
@@ -181,14 +177,15 @@ def _planform(canvas: Any, spec: WingSpec) -> None:
     chart.legend([(spars, "spars")] if spec.spars else [])
 
 
-def _table(canvas: Any, spec: WingSpec, rows: list[dict[str, Any]], start: int) -> None:
+def _table(canvas: Any, spec: WingSpec | SetSpec, rows: list[dict[str, Any]], start: int) -> None:
     from diegen.export.pdfdoc import text_width
 
     size, line = 6.0, (canvas.height - 80.0) / (ROWS_A_PAGE + 1)
     shown = rows[start:start + ROWS_A_PAGE]
-    cells = [list(TABLE_COLUMNS)] + [[str(r[c]) for c in TABLE_COLUMNS] for r in shown]
+    columns = [c for c in TABLE_COLUMNS if isinstance(spec, WingSpec) or c != "station_mm"]  # a set has no stations
+    cells = [columns] + [[str(r[c]) for c in columns] for r in shown]
     widths = [max(text_width(row[k], size, bold=(n == 0)) for n, row in enumerate(cells)) + 8.0
-              for k in range(len(TABLE_COLUMNS))]
+              for k in range(len(columns))]
     x0 = (canvas.width - sum(widths)) / 2
     top = canvas.height - 50.0
     canvas.text(canvas.width / 2, canvas.height - 30.0,
@@ -226,5 +223,4 @@ def _piece_page(canvas: Any, plot: PiecePlot) -> None:
     bottom.legend([(limit, "shrink limit")])
 
 
-__all__ = ["COLUMNS", "PiecePlot", "piece_plot", "summary_rows", "update_summary_status",
-           "write_wing_summary"]
+__all__ = ["COLUMNS", "PiecePlot", "piece_plot", "summary_rows", "update_summary_status", "write_summary"]
