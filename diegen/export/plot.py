@@ -188,7 +188,8 @@ class _GeometryPicture(_Picture):
         pad = 15.0
         ax.set_xlim(x0 - pad, x1 + pad)
         ax.set_ylim(outline[:, 1].min() - pad - 10, outline[:, 1].max() + pad + 10)
-        self.title.set_text(f"{g.part_id}: {g.name} piece, die outline and web features "
+        what = "drawn part" if drawn else f"{g.name} piece"
+        self.title.set_text(f"{g.part_id}: {what}, die outline and web features "
                             f"(max shrink {piece_analysis.max_shrink:.3f}, press verdict "
                             f"{piece_analysis.press.verdict})")
         return self.write(path)
