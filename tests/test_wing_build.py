@@ -98,3 +98,40 @@ def test_build_with_two_workers_writes_the_whole_summary(tmp_path):
     pages = pypdf.PdfReader(result.folder / "summary.pdf").pages
     assert len(pages) == 1 + 1 + 4
     assert "planform" in pages[0].extract_text()
+
+
+CHILD_CHECK = """
+import os, sys
+from diegen import api, locate
+from diegen.pipeline import jobs
+spec = api.load(sys.argv[1])
+assert jobs._can_fork(), "a fresh process that never touched the kernel may fork"
+work = list(jobs.rib_jobs(spec))
+alone = tuple(locate.analyse_located(job.rib, job.section) for job in work)
+parent = os.getpid()
+real = jobs.analyse_located
+
+def failing_in_children(rib, section=None):
+    if os.getpid() != parent and rib.id.endswith("R07"):
+        raise RuntimeError("stand-in failure in a forked process")
+    return real(rib, section)
+
+jobs.analyse_located = failing_in_children
+assert jobs.analyse_jobs(work) == alone
+print("same", len(alone))
+"""
+
+
+def test_ribs_analysed_in_forked_processes_equal_those_analysed_alone(tmp_path):
+    """A wing's ribs are analysed in forked processes (one a core) where that is safe: the analyses equal those made
+    one after the other in one process, and a rib whose analysis fails in a forked process is analysed again in the
+    parent. Run in a fresh interpreter, which has never started the solid kernel's threads."""
+    import subprocess
+    import sys
+
+    script = tmp_path / "child.py"
+    script.write_text(CHILD_CHECK)
+    done = subprocess.run([sys.executable, str(script), str(ROOT / "specs" / "demo-wing.yaml")], capture_output=True,
+                          text=True, cwd=ROOT, timeout=300, check=False)
+    assert done.returncode == 0, done.stderr
+    assert done.stdout.split() == ["same", "13"]

@@ -2,7 +2,12 @@
 
 from __future__ import annotations
 
+import multiprocessing
+import os
+import sys
+import threading
 from collections.abc import Iterator
+from concurrent.futures import ProcessPoolExecutor
 from dataclasses import dataclass
 
 import numpy as np
@@ -47,12 +52,35 @@ def rib_jobs(spec: Spec) -> Iterator[RibJob]:
         yield RibJob(rib_spec(spec, station), section_at(spec, station), station)
 
 
+PARALLEL_FROM_RIBS = 4  # fewer ribs are analysed faster in this process than split among forked ones
+
+
 def analyse_spec(spec: Spec) -> Analysis:
     """Geometry and forming analysis of every piece of every rib (refusals located in the spec file)."""
     with refusals_located(spec):
         if isinstance(spec, RibSpec):
             return analyse_located(spec)
-        return GroupAnalysis(spec, tuple(analyse_located(job.rib, job.section) for job in rib_jobs(spec)))
+        return GroupAnalysis(spec, analyse_jobs(list(rib_jobs(spec))))
+
+
+def analyse_jobs(jobs: list[RibJob]) -> tuple[RibAnalysis, ...]:
+    """The analysis of every rib job, in order: split among forked processes, one a core, where that is safe and
+    worth it (see :func:`_can_fork`); otherwise here, one after the other.  A rib whose analysis fails in a forked
+    process is analysed again here, so its refusal is raised as it would be without them."""
+    processes = min(os.cpu_count() or 1, len(jobs))
+    if len(jobs) < PARALLEL_FROM_RIBS or processes < 2 or not _can_fork():
+        return tuple(analyse_located(job.rib, job.section) for job in jobs)
+    with ProcessPoolExecutor(processes, mp_context=multiprocessing.get_context("fork")) as pool:
+        futures = [pool.submit(analyse_located, job.rib, job.section) for job in jobs]
+        return tuple(future.result() if future.exception() is None else analyse_located(job.rib, job.section)
+                     for future, job in zip(futures, jobs, strict=True))
+
+
+def _can_fork() -> bool:
+    """Forking this process is safe: the platform forks, and no thread but this one runs here (a fork keeps only
+    the calling thread, so a lock another thread holds, the solid kernel's pool among them, would stay held)."""
+    return ("fork" in multiprocessing.get_all_start_methods() and threading.active_count() == 1
+            and "OCP" not in sys.modules)
 
 
 def rib_analyses(analysis: Analysis) -> tuple[RibAnalysis, ...]:
@@ -60,4 +88,5 @@ def rib_analyses(analysis: Analysis) -> tuple[RibAnalysis, ...]:
     return analysis.ribs if isinstance(analysis, GroupAnalysis) else (analysis,)
 
 
-__all__ = ["Analysis", "GroupAnalysis", "RibJob", "Spec", "analyse_spec", "rib_analyses", "rib_jobs"]
+__all__ = ["PARALLEL_FROM_RIBS", "Analysis", "GroupAnalysis", "RibJob", "Spec", "analyse_jobs", "analyse_spec",
+           "rib_analyses", "rib_jobs"]
