@@ -482,3 +482,22 @@ def test_a_flange_running_smoothly_into_a_cut_edge_keeps_its_full_width_to_the_e
             degrees
     assert not blank.contains(Point(140.0, 100.5)) and not blank.contains(Point(75.0, 100.5))  # flush along the cut
     assert not blank.contains(Point(149.0, 100.0 + d / 2))  # the flange ends square at the junction's normal
+
+
+def test_a_sets_drawings_section_warns_of_a_number_in_the_other_unit(tmp_path: Path) -> None:
+    """A sheet 0.032 thick in a millimetre set's `drawings` section (0.032 mm: 0.032 in was meant) draws the
+    units-suspect finding on each frame drawn from it, located at that key of the set (usual ranges: common
+    practice, no source; 1 in = 25.4 mm, NIST SP 811 App. B)."""
+    path = _set_folder(tmp_path)
+    text = path.read_text().replace("thickness: 0.8}", "thickness: 0.032}")
+    path.write_text(text)
+    line = next(n for n, row in enumerate(text.splitlines(), start=1) if "thickness: 0.032" in row)
+    analysis = api.analyse(api.load(path))
+    frames = [r for r in analysis.ribs if r.spec.id.startswith("BW418-fuselage-F")]
+    assert len(frames) == 3
+    for rib in frames:
+        (found,) = [w for w in rib.geometry.warnings if w.code == "units-suspect"]
+        assert (found.key, found.file, found.line) == ("drawings.sheet.thickness", str(path), line)
+        assert "0.8128 mm" in found.message  # 0.032 in, as it looks meant
+    others = [r for r in analysis.ribs if not r.spec.id.startswith("BW418-fuselage-F")]
+    assert not [w for r in others for w in r.geometry.warnings if w.code == "units-suspect"]

@@ -47,10 +47,13 @@ def _validate(tree: YNode, file: str, spec_dir: Path, in_set: bool = False) -> S
     if reader.problems:
         raise SpecError(sorted(reader.problems, key=lambda p: (p.file != file, p.file, p.line or 0, p.column or 0)))
     positions = SpecPositions(file, tuple(_key_positions(tree, "")))
-    if isinstance(spec, SetSpec):  # a part drawn by the set's `drawings` section finds its keys there
+    warnings = tuple(unit_warnings(tree, reader.units, file))
+    if isinstance(spec, SetSpec):  # a part drawn by the set's `drawings` section finds its keys and warnings there
         drawn = replace(positions, prefixes=("drawings.", ""))
-        spec = replace(spec, members=tuple(replace(m, positions=drawn) if m.file == file else m for m in spec.members))
-    return replace(spec, positions=positions, unit_warnings=tuple(unit_warnings(tree, reader.units, file)))
+        own = tuple(w for w in warnings if w.key.startswith("drawings."))
+        spec = replace(spec, members=tuple(replace(m, positions=drawn, unit_warnings=own) if m.file == file else m
+                                           for m in spec.members))
+    return replace(spec, positions=positions, unit_warnings=warnings)
 
 
 def _member(path: Path) -> Spec:

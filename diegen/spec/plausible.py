@@ -15,7 +15,8 @@ from diegen.errors import Problem
 from diegen.spec.yamltree import YNode
 from diegen.units import MM_PER_IN
 
-# key path (list indices as [], overrides' prefix removed) -> the usual range, mm (common practice, no source)
+# key path (list indices as [], the prefix of overrides and of a set's drawings removed) -> the usual range, mm
+# (common practice, no source)
 USUAL_MM: dict[str, tuple[float, float]] = {
     "chord": (100.0, 5000.0),
     "planform.root_chord": (100.0, 5000.0),
@@ -45,7 +46,7 @@ USUAL_MM: dict[str, tuple[float, float]] = {
 }
 WORDS = {"in": "inches", "mm": "millimetres"}
 _INDEX = re.compile(r"\[\d+\]")
-_OVERRIDE = re.compile(r"^overrides\[\d+\]\.")
+_OVERRIDE = re.compile(r"^(overrides\[\d+\]|drawings)\.")  # a wing's overrides, a set's drawings: the same keys
 
 
 def unit_warnings(tree: YNode, units: str, file: str) -> list[Problem]:
