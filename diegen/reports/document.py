@@ -97,7 +97,7 @@ def run_heights_json(p: PieceAnalysis) -> list[dict[str, Any]]:
              "blank_offset_mm": _r(h.layout.developed_width_mm - inset), "shrink_limit": _r(h.shrink_limit, 4),
              "die_runs": [{"from": [_r(runs[i].points[0][0]), _r(runs[i].points[0][1])],
                            "to": [_r(runs[i].points[-1][0]), _r(runs[i].points[-1][1])]} for i in h.run_indexes]}
-            for h in p.heights]
+            for h in p.shapes]
 
 
 def piece_json(rib: RibAnalysis, p: PieceAnalysis) -> dict[str, Any]:

@@ -33,7 +33,7 @@ def _flange_heights(piece: PieceAnalysis, shared) -> str:
     if not piece.mixed_heights:
         return f"flange {_both(shared.flange.height_mm)}"
     each = ", ".join(f"{_both(h.height_mm)} ({len(h.run_indexes)} run{'s' if len(h.run_indexes) > 1 else ''})"
-                     for h in piece.heights)
+                     for h in piece.shapes)
     return f"flange runs of their own heights, {each},"
 
 
@@ -76,7 +76,7 @@ def _header(rib: RibAnalysis, piece: PieceAnalysis) -> list[str]:
         what +
         f"Sheet **{piece.alloy.name} {_both(shared.sheet.thickness_mm)}**; {_flange_heights(piece, shared)} "
         f"at inside radius {_both(sb.part_radius_mm)}" + (
-            "; the blank's edge steps where two heights meet" if len(piece.heights) > 1 else "") + ".",
+            "; the blank's edge steps where two heights meet" if len(piece.shapes) > 1 else "") + ".",
         "",
         "> **Caution.** " + SAFETY,
         "",
