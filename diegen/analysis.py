@@ -510,6 +510,9 @@ def _press(spec: RibSpec, piece: PieceGeometry, springback: Springback, flutes: 
     alloy = materials.sheet_alloy(shared.sheet.alloy)
     die = materials.die_material(shared.die.material)
     minx, miny, maxx, maxy = _bounds(piece)
+    # a wall leaning out (a flange bent through less than 90°) makes the die's foot larger than its outline
+    foot = max(0.0, *(-die_height_mm * math.tan(math.radians(wall_lean_deg(h.die(springback)))) for h in shapes))
+    minx, miny, maxx, maxy = minx - foot, miny - foot, maxx + foot, maxy + foot
     radius = springback.die_radius_mm
     # one leg per flange shape (a part's flange runs of heights, radii or angles of their own), each pressed onto its
     # own die radius to its own angle; the flutes' per shape they stand in

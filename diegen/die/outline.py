@@ -59,6 +59,7 @@ MAX_EXTENSION_MM = 0.05  # how far a segment may be extended past its end to mee
 GROOVE_SAMPLES = 25  # samples across a flute: the spline then follows its arc within 1e-5 mm (h⁴/384r³)
 MIN_GROOVE_GAP_MM = 0.2  # least land left between two flutes' lips (design choice: a thinner fin will not sew)
 LIP_CLEARANCE_MM = 0.5  # least wall between a flute's lip and a corner trim (design choice)
+SMOOTH_JUNCTION_DEG = 1.0  # edges meeting at a smaller turn run on into each other (no corner)
 VARYING_STEP_MM = 2.0  # longest sample step where the wall's inset changes along the outline
 RADIUS_TOL_MM = 1e-3  # a curve this much tighter than the tool's radius is the same curve (a micrometre is no shape)
 MITRE_REACH = 4.0  # a straight edge may be extended this many times a wall's outward lean to meet its neighbour
@@ -534,8 +535,22 @@ class OutlineModel:
         return np.concatenate(parts)
 
     # -- offsets ------------------------------------------------------------------
+    @staticmethod
+    def _smooth(a: _Segment, b: _Segment) -> bool:
+        """Whether ``a`` runs on into ``b`` without a corner (their tangents within ``SMOOTH_JUNCTION_DEG``)."""
+        ta, tb = a.tangent(a.length), b.tangent(0.0)
+        turn = math.degrees(math.atan2(float(ta[0] * tb[1] - ta[1] * tb[0]), float(np.dot(ta, tb))))
+        return abs(turn) < SMOOTH_JUNCTION_DEG
+
     def _junction(self, a: _Segment, b: _Segment, inset: float) -> tuple[float, float]:
-        """Parameters (on a, on b) where the offsets of a and b meet at ``inset``."""
+        """Parameters (on a, on b) where the offsets of a and b meet at ``inset``.
+
+        Outward (a wall leaning out, ``inset`` < 0) two edges that run on into each other meet at their shared end:
+        their offsets are nearly parallel there, so where they cross is ill-conditioned (a spline's end tangent is
+        off its neighbour's by a fraction of a degree) and only a few hundredths of a millimetre from the ends.
+        """
+        if inset < 0.0 and self._smooth(a, b):
+            return a.length, 0.0
         sa, sb = a.length, 0.0
         for _ in range(50):
             (pa, da), (pb, db) = a.point_and_deriv(sa, inset), b.point_and_deriv(sb, inset)
@@ -702,6 +717,8 @@ class OutlineModel:
         """Parameters (on segment ``index``, on the next) where their offsets meet, the inset changing along."""
         n = len(self.segments)
         a, b = self.segments[index], self.segments[(index + 1) % n]
+        if self._at(values, index, a.length)[0] < 0.0 and self._smooth(a, b):
+            return a.length, 0.0  # see _junction
         sa, sb = a.length, 0.0
         for _ in range(60):
             (pa, da, _), (pb, db, _) = self._point_along(index, sa, values), self._point_along((index + 1) % n, sb,

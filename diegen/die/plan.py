@@ -52,15 +52,21 @@ def blend_findings(die: DieInput) -> tuple[Finding, ...]:
             continue
         a, b = blend.before, blend.after
         start, length = blend.flange_mm
+        where = f"{blend.inside}'s flange" if blend.inside else \
+            f"the flange where {blend.runs[0]} meets {blend.runs[1]}"
         found.append(Finding(
             "profile-blend",
             f"the die wall changes from {blend.runs[0]}'s profile (die radius {a.radius_mm:.2f} mm, die angle "
             f"{a.die_angle_deg:.1f}°) to {blend.runs[1]}'s ({b.radius_mm:.2f} mm, {b.die_angle_deg:.1f}°) over "
-            f"{blend.length_mm:.0f} mm: {length:.0f} mm of {blend.inside}'s flange from {start:.0f} mm along the "
-            "outline is formed off its own profile and comes out between the two; finish it by hand, or put a cut "
-            "edge (with relief) between the runs",
-            key=f"{blend.inside}.angle" if blend.inside.startswith("flanges[") else "flanges", s_mm=start))
+            f"{blend.length_mm:.0f} mm: {length:.0f} mm of {where} from {start:.0f} mm along the outline is formed "
+            "off its own profile and comes out between the two; finish it by hand, or put a cut edge (with relief) "
+            "between the runs", key=_angle_key(blend.inside or blend.runs[1]), s_mm=start))
     return tuple(found)
+
+
+def _angle_key(run: str) -> str:
+    """The spec key a blend on ``run``'s flange is about: its angle (``flanges[2].angle``)."""
+    return f"{run}.angle" if run.startswith("flanges[") else "flanges"
 
 
 def with_die_plan(spec: Any, piece: Any, settings: BuildSettings = DEFAULT_SETTINGS) -> Any:

@@ -209,7 +209,7 @@ def wall_plan(die: DieInput) -> WallPlan | None:
                     f"{min(lengths[a], lengths[b]):.1f} mm long: give the two runs closer bend radii and angles, or "
                     "make them one flange run")
             start = (junction - need / 2.0) % perimeter
-            blends.append(Blend(start, need, pa, pb, True, (names[a], names[b]), names[b], (start, need)))
+            blends.append(Blend(start, need, pa, pb, True, (names[a], names[b]), "", (start, need)))
             continue
         longer = a if lengths[a] >= lengths[b] else b
         room = lengths[longer] - 2.0 * margin(longer)
