@@ -410,7 +410,17 @@ def _flange_runs(spec: RibSpec, piece: PieceGeometry, alloy: materials.SheetAllo
     return runs
 
 
-def _stretch_findings(runs: list[FlangeRun], alloy: materials.SheetAlloy) -> list[Finding]:
+def _height_key(spec: RibSpec, piece: PieceGeometry, run: FlangeRun) -> str:
+    """The spec key of the height of the flange ``run`` stands on: its run's own (``flanges[2].height``), or the
+    ``flange`` section's."""
+    own = piece.plain_runs[run.run_index]
+    if own.height_mm(spec.shared.flange.height_mm) == spec.shared.flange.height_mm:
+        return "flange.height"
+    return join_key(own.flange_key, "height")
+
+
+def _stretch_findings(spec: RibSpec, runs: list[FlangeRun], alloy: materials.SheetAlloy,
+                      piece: PieceGeometry) -> list[Finding]:
     found = []
     for run in runs:
         for stretch in run.stretch_runs:
@@ -419,7 +429,7 @@ def _stretch_findings(runs: list[FlangeRun], alloy: materials.SheetAlloy) -> lis
                 "stretch-over-limit", f"stretch flange {stretch.peak_strain:.3f} above the {alloy.name} limit "
                 f"{alloy.stretch_limit:.3f} at {where:.0f} mm along the outline (plan radius "
                 f"{stretch.min_radius_mm:.1f} mm); a flange of {stretch.allowed_width_mm:.1f} mm developed width would "
-                "pass", key="flange.height", s_mm=where))
+                "pass", key=_height_key(spec, piece, run), s_mm=where))
     return found
 
 
@@ -564,7 +574,7 @@ def _analyse_piece(spec: RibSpec, piece: PieceGeometry, alloy: materials.SheetAl
     shrink_limit = min(h.shrink_limit for h in shapes)  # the lowest, for a piece without flanged curves
     runs = _flange_runs(spec, piece, alloy, shapes)
     flutes, notches, notes, warnings = _relief(spec, piece, runs, shapes, springback)
-    warnings += _stretch_findings(runs, alloy)
+    warnings += _stretch_findings(spec, runs, alloy, piece)
     if shared.relief == "none":
         for run in runs:
             for shrink in run.shrink_runs:

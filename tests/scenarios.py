@@ -333,6 +333,11 @@ def parts() -> list[Scenario]:
                      "{from: [9, 5], to: [0, 5], bend_radius: 0.1875}]", alloy="2024-O", t_mm=0.635,
              flange_mm=12.7, radius_factor=1.0, relief="flutes", die=_die("fibreboard", 12.7, 1, None, 6.35, True),
              force="20 ton", box_mm=(609.6, 304.8)),
+        # a plate too short between a 45° lip and a square flange for its die wall to change: check refuses the die
+        part("P19", inch=False, outline="{points: [[0, 0], [120, 0], [120, 40], [0, 40]], is: die}",
+             flanges="[{from: [0, 0], to: [120, 0], angle: 45}, {from: [120, 40], to: [0, 40]}]", alloy="2024-T3",
+             t_mm=0.8, flange_mm=12.0, radius_factor=1.2, relief="flutes", die=routed("solid-surface", 12.0, 6.0),
+             force="20 ton", box_mm=(300.0, 250.0)),
     ]
 
 

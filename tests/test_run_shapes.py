@@ -168,6 +168,24 @@ def test_a_sloped_flange_shrinks_by_its_loss_of_reach(angle: float) -> None:
     assert np.median(profile.strain) == pytest.approx(expected, rel=2e-4)  # the polygon's chords: ρ within 1e-4
 
 
+def test_a_sloped_flanges_excess_edge_is_what_its_edge_loses_in_plan() -> None:
+    """Round a closed circle (ρ = 100 mm) a 12 mm flange bent through 45° has an edge of 2π(ρ + w) in the blank and
+    2π(ρ + w·cos 45°) formed (plane geometry): the excess over a shrink limit L is 2π·(w·(1 − cos θ) − L·(ρ + w)).
+    With L = 0.02 the relief model's shrink run carries exactly that; with L = 0.04 (above the 0.031 it shrinks) it
+    finds none, though the square flange (0.107) would pass it."""
+    from diegen.forming.relief import shrink_runs
+
+    rho, w = 100.0, 12.0
+    t = np.linspace(0.0, 2 * math.pi, 2881)[:-1]
+    ring = np.column_stack([rho * np.cos(t), rho * np.sin(t)])
+    lip = strain_along(ring, w, closed=True, angle_deg=45.0)
+    (run,) = shrink_runs(lip, 0.02)
+    loss = 1 - math.cos(math.radians(45.0))
+    assert run.excess_mm == pytest.approx(2 * math.pi * (w * loss - 0.02 * (rho + w)), rel=1e-4)
+    assert shrink_runs(lip, 0.04) == ()
+    assert shrink_runs(strain_along(ring, w, closed=True), 0.04)
+
+
 def test_a_60_degree_half_circle_of_a_stadium_shrinks_less_than_the_square_one(tmp_path: Path) -> None:
     """The stadium of the corpus (P16): the right half circle is a 60° flange of R 4, the rest square.  Mid-way
     round the right arc the shrink is w·(1 − cos 60°)/(ρ + w), half the square flange's at the same w and ρ."""
@@ -242,9 +260,10 @@ def test_the_wall_changes_between_runs_with_the_quintic_run_out(tray) -> None:
 
 
 def test_a_run_too_short_for_the_change_is_refused_by_check_and_build_alike(tmp_path: Path) -> None:
-    """A 120 × 40 mm plate with a 45° lip on one long side and a square flange on the other: the wall must change
-    over 2 × (H·tan 8° + H·tan 45°) ≈ 45 mm inside a 40 mm cut end: check refuses the die, naming the runs and
-    the remedy, and build refuses it with the same message."""
+    """A 120 × 40 mm plate with a 45° lip on one long side and a square flange on the other (scenario P19): at the
+    foot of the 19.05 mm block the wall leans in 8.3° under the one and out 40.9° under the other, so it must change
+    over 2 × 19.05 × (tan 8.3° + tan 40.9°) ≈ 38.5 mm, more than the 40 mm cut end holds clear of its corners: check
+    refuses the die, naming the runs and the remedy, and build refuses it with the same message."""
     spec_path = tmp_path / "short.yaml"
     spec_path.write_text(SHARED + "outline: {points: [[0, 0], [120, 0], [120, 40], [0, 40]], is: die}\n"
                          "flanges: [{from: [0, 0], to: [120, 0], angle: 45}, {from: [120, 40], to: [0, 40]}]\n")

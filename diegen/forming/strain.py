@@ -102,6 +102,7 @@ class StrainProfile:
     window_mm: float
     length_mm: float  # total length of the outline (perimeter if closed)
     closed: bool
+    reach_loss: float = 1.0  # 1 − cos θ of the flange's angle θ (1: a square flange; see reach_loss)
 
     @property
     def max_shrink(self) -> float:
@@ -255,6 +256,7 @@ def strain_along(
         window_mm=win,
         length_mm=total,
         closed=closed,
+        reach_loss=reach_loss(angle_deg),
     )
 
 

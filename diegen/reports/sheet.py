@@ -36,7 +36,7 @@ def _flange_heights(piece: PieceAnalysis, shared) -> str:
                          f"{_both(h.bend_radius_mm)}, bent through {h.angle_deg:g}° (die radius "
                          f"{_both(h.die(piece.springback).die_radius_mm)}, over-bend "
                          f"{h.die(piece.springback).die_angle_deg - h.angle_deg:.1f}°)" for h in piece.shapes)
-        return f"flange runs of their own shape — {each} —"
+        return f"flange runs of their own shape ({each})"
     if not piece.mixed_heights:
         return f"flange {_both(shared.flange.height_mm)}"
     each = ", ".join(f"{_both(h.height_mm)} ({len(h.run_indexes)} run{'s' if len(h.run_indexes) > 1 else ''})"
@@ -83,7 +83,8 @@ def _header(rib: RibAnalysis, piece: PieceAnalysis) -> list[str]:
         what +
         f"Sheet **{piece.alloy.name} {_both(shared.sheet.thickness_mm)}**; {_flange_heights(piece, shared)}" +
         ("" if piece.mixed_bends else f" at inside radius {_both(sb.part_radius_mm)}") + (
-            "; the blank's edge steps where two heights meet" if len(piece.shapes) > 1 else "") + ".",
+            "; the blank's edge steps where two heights meet" if len({h.height_mm for h in piece.shapes}) > 1 else
+            "") + ".",
         "",
         "> **Caution.** " + SAFETY,
         "",
