@@ -451,7 +451,7 @@ class OutlineModel:
                 continue
             length = span.s1 - span.s0
             even = np.linspace(0.0, 1.0, max(8, math.ceil(length / VARYING_STEP_MM) + 1))
-            fr = even if span.kind == "line" else np.unique(np.concatenate([span.fractions, even]))
+            fr = even if span.kind == "line" else _merged(span.fractions, even, 0.25 * VARYING_STEP_MM / length)
             planned.append(_Span(span.segment, span.kind, span.s0, span.s1, fr, span.trim_start, span.trim_stop,
                                  varying=True))
         return planned
@@ -807,6 +807,17 @@ def flute_taper_ratio(die_flute_length_mm: float, flute: DieFlute) -> float:
     if flute.length_mm <= 0.0 or die_flute_length_mm <= 0.0 or flute.length_mm == die_flute_length_mm:
         return 1.0
     return die_flute_length_mm / flute.length_mm
+
+
+def _merged(a: FloatArray, b: FloatArray, least: float) -> FloatArray:
+    """The sample fractions of ``a`` and ``b`` together (both from 0 to 1), none closer than ``least`` to the one
+    before (a near pair would make the interpolating spline wiggle)."""
+    kept = [0.0]
+    for f in np.sort(np.concatenate([a, b])):
+        if f - kept[-1] >= least and f < 1.0 - least:
+            kept.append(float(f))
+    kept.append(1.0)
+    return np.asarray(kept)
 
 
 def _points(pts: FloatArray) -> tuple[tuple[float, float], ...]:

@@ -42,7 +42,7 @@ from diegen.die.outline import OffsetPiece, OutlineModel
 from diegen.die.placement import engraving_marks
 from diegen.die.rules import check_die
 from diegen.die.settings import DEFAULT_SETTINGS, BuildSettings
-from diegen.errors import SolidError
+from diegen.errors import DiegenError, SolidError
 
 if TYPE_CHECKING:  # pragma: no cover
     from shapely.geometry import Polygon
@@ -238,11 +238,11 @@ def build_body(die: DieInput, model: OutlineModel, settings: BuildSettings = DEF
     from OCP.TopoDS import TopoDS
 
     arc, wall = loft_levels(die, settings)
-    arc_wires = [_wire(level_section(die, model, s), -level_depth_mm(s)) for s in arc]
-    wall_wires = arc_wires[-1:] + [_wire(level_section(die, model, s), -level_depth_mm(s)) for s in wall[1:]]
     hint = ("check the outline for a spot where the piece is thinner than twice the wall inset "
             f"({2 * largest_inset_mm(die):.2f} mm) or lower the top radius")
     try:
+        arc_wires = [_wire(level_section(die, model, s), -level_depth_mm(s)) for s in arc]
+        wall_wires = arc_wires[-1:] + [_wire(level_section(die, model, s), -level_depth_mm(s)) for s in wall[1:]]
         marked, pockets = _pocket_faces(marks or [], -die.height_mm, settings.engrave_depth_mm)
         top_holes, bottom_holes, holes = _hole_faces(die)
         sew = BRepBuilderAPI_Sewing(settings.sew_tol_mm)
@@ -258,7 +258,7 @@ def build_body(die: DieInput, model: OutlineModel, settings: BuildSettings = DEF
         if not _faces_out(shell):
             shell = TopoDS.Shell_s(shell.Reversed())
         solid = BRepBuilderAPI_MakeSolid(shell).Solid()
-    except SolidError:
+    except DiegenError:  # a refusal or the kernel's failure already put in words
         raise
     except Exception as exc:  # OCP raises its own Standard_Failure family
         raise SolidError(f"die {die.part_id}: the kernel failed building the die body ({exc}); {hint}") from exc
