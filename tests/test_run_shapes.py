@@ -356,9 +356,11 @@ def _volume(solid) -> float:
 def test_the_tray_die_is_a_valid_closed_solid_of_the_estimated_volume(tray, tmp_path: Path) -> None:
     """The tray's die (two radii and a 45° lip): the STEP file re-reads as one valid closed solid, the STL is
     watertight with the STEP's volume (a general-purpose mesh library as the check), and the volume of the bare
-    block (no holes, no engraving) is the integral over its height of its sections' areas: each a rectangle whose
-    sides stand their own wall's inset (closed form above), averaged along the side over the blends (a quintic
-    run-out averages to its mid-value), within 0.3 % (the lofted arc and the corners' second-order terms)."""
+    block (no holes, no engraving) is the integral over its height of its plane sections' areas (shapely): each
+    side stands its own wall's inset (closed form above), going from one run's to the next over the blends the die
+    reports by the quintic 10x³ − 15x⁴ + 6x⁵ mixing the two insets at that depth, the corners where the sides'
+    offset lines meet; within 0.2 % (measured: 0.11 %; in a blend the loft mixes the sections along the arc, not
+    at one depth)."""
     trimesh = pytest.importorskip("trimesh")
     from OCP.BRepCheck import BRepCheck_Analyzer
 
@@ -412,7 +414,7 @@ def test_the_tray_die_is_a_valid_closed_solid_of_the_estimated_volume(tray, tmp_
 
     depths = np.linspace(0.0, die.height_mm, 801)
     estimate = float(np.trapezoid([area(d) for d in depths], depths))
-    assert _volume(bare) == pytest.approx(estimate, rel=0.003)
+    assert _volume(bare) == pytest.approx(estimate, rel=0.002)
 
 
 @pytest.mark.slow
@@ -421,7 +423,7 @@ def test_a_plate_with_a_45_degree_lip_all_round_has_a_die_of_steiners_volume(tmp
     """P17 of the corpus: a 200 × 140 mm plate with 30 mm corner radii (mold line), a 45° lip all round: one
     profile, the wall leaning out all round.  Each section is the die outline offset by the wall's inset u(z), whose
     area is A − P·u + π·u² (Steiner's formula for a convex outline's parallel body, the outline's corners rounder
-    than any inset); the bare block's volume is its integral over the height, within 0.2 %."""
+    than any inset); the bare block's volume is its integral over the height, within 0.05 % (measured: 0.003 %)."""
     spec = api.load(write(scenario("P17"), tmp_path))
     analysis = api.analyse(spec)
     (piece,) = analysis.pieces
@@ -436,4 +438,4 @@ def test_a_plate_with_a_45_degree_lip_all_round_has_a_die_of_steiners_volume(tmp
     depths = np.linspace(0.0, die.height_mm, 4001)
     u = np.array([_inset(sb.die_radius_mm, sb.die_angle_deg, d) for d in depths])
     estimate = float(np.trapezoid(area - perimeter * u + math.pi * u**2, depths))
-    assert _volume(bare) == pytest.approx(estimate, rel=0.002)
+    assert _volume(bare) == pytest.approx(estimate, rel=5e-4)
