@@ -40,6 +40,7 @@ from diegen.errors import FormingError
 from diegen.forming.bend import bend_allowance_aviation, setback
 from diegen.forming.springback import BendSheet, die_for_part, radius_ratio
 from diegen.forming.strain import strain_along
+from diegen.reports.sheet import shop_sheet
 from diegen.units import MM_PER_IN
 
 T = 0.8  # SHARED: 0.8 mm 2024-T3, flange 12 mm at R 3, 19 mm solid-surface stock
@@ -324,6 +325,13 @@ def test_the_reports_state_each_runs_bend(tray) -> None:
     assert "bent 45°" in text and "R 5.00 mm bent 90°" in text
     codes = {w.code: w for w in piece.warnings}
     assert codes["profile-blend"].key.startswith("flanges[")
+    # the stretch of flange formed where the wall changes between runs comes out at neither angle: finished by hand
+    assert piece.flange.verdict == "hand-finish" and "profile-blend" in piece.flange.remedies[0]
+    sheet = shop_sheet(analysis, piece)
+    for key in ("flanges[0]", "flanges[1]", "flanges[2]"):
+        die = shape_of(piece, key).die(piece.springback)
+        assert f"`{key}`" in sheet and f"{die.die_radius_mm:.2f} mm" in sheet
+    assert "leaning out" in sheet and "bent through 45°" in sheet
 
 
 # -- the solid -----------------------------------------------------------------------------------------------------

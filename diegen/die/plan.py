@@ -78,6 +78,12 @@ def with_die_plan(spec: Any, piece: Any, settings: BuildSettings = DEFAULT_SETTI
             [(f.s_mm, f.width_mm, f.depth_mm) for f in piece.flutes]:
         changes["flutes"] = tuple(ReliefFlute(f.s_mm, f.width_mm, f.depth_mm, flute_gather(f.width_mm, f.depth_mm))
                                   for f in plan.die.flutes)
+    if any(f.code == "profile-blend" for f in findings) and piece.flange.verdict == "formable":
+        # a stretch of flange formed on a wall between two runs' profiles comes out at neither angle: the press does
+        # not finish it, the hand does
+        changes["flange"] = replace(piece.flange, verdict="hand-finish", remedies=(
+            "finish the flange by hand where the die wall changes between two runs' profiles (profile-blend)",
+            *piece.flange.remedies))
     return replace(piece, **changes)
 
 
