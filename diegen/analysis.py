@@ -15,7 +15,7 @@ from diegen import materials
 from diegen.blank.develop import develop_blank, notch_polygon
 from diegen.blank.drawing import BlankDrawing
 from diegen.die.plan import DiePlan, with_die_plan
-from diegen.errors import FormingError
+from diegen.errors import FormingError, keyed
 from diegen.findings import Finding
 from diegen.forming import press as press_model
 from diegen.forming import relief as relief_model
@@ -24,7 +24,7 @@ from diegen.forming.springback import BendSheet, PowerLaw, Springback, Trial, di
 from diegen.forming.strain import StrainProfile, pilot_diameter, strain_along
 from diegen.geometry import die_wall
 from diegen.geometry.rib import rib_geometry
-from diegen.geometry.types import PieceGeometry, RibGeometry
+from diegen.geometry.types import PieceGeometry, RibGeometry, Run
 from diegen.sources.geometry import part_geometry
 from diegen.spec.model import RibSpec
 
@@ -68,13 +68,34 @@ class FlangeRun:
 
 
 @dataclass(frozen=True)
-class RunHeight:
-    """The flanged runs of a piece that share one flange height: their developed width and wrinkle limit."""
+class RunShape:
+    """The flanged runs of a piece that share one flange shape (height, bend radius, angle): their die (springback:
+    die radius and over-bent angle), developed width and wrinkle limit."""
 
     height_mm: float
     layout: FlangeLayout
     shrink_limit: float
     run_indexes: tuple[int, ...]  # into the piece's runs
+    springback: Springback | None = None  # None: the piece's own (``PieceAnalysis.springback``)
+    keys: tuple[str, ...] = ()  # the spec keys of the flange runs of this shape (``flanges[2]``)
+
+    @property
+    def bend_radius_mm(self) -> float:
+        return self.layout.radius_mm
+
+    @property
+    def angle_deg(self) -> float:
+        return self.layout.angle_deg
+
+    def die(self, piece_springback: Springback) -> Springback:
+        """This shape's die radius and angle (the piece's when it has none of its own)."""
+        return piece_springback if self.springback is None else self.springback
+
+    def tangent_inset_mm(self, piece_springback: Springback) -> float:
+        """How far inside the die outline the web's bend line lies: the die radius's tangent length
+        R_die·tan(θ_die/2) (mm)."""
+        die = self.die(piece_springback)
+        return die.die_radius_mm * math.tan(math.radians(die.die_angle_deg) / 2)
 
 
 @dataclass(frozen=True)
@@ -121,15 +142,22 @@ class PieceAnalysis:
     die_layers: int
     warnings: tuple[Finding, ...]
     die: DiePlan | None = None  # the die the builder will make, or why it cannot (diegen.die.plan)
-    # one entry per flange height of the piece's flanged runs, lowest first (several for a part whose flange runs
-    # have heights of their own; ``layout`` is the spec's flange)
-    heights: tuple[RunHeight, ...] = ()
+    # one entry per flange shape (height, bend radius, angle) of the piece's flanged runs, lowest first (several
+    # for a part whose flange runs have shapes of their own; ``layout`` is the spec's flange)
+    shapes: tuple[RunShape, ...] = ()
 
     @property
     def mixed_heights(self) -> bool:
-        """Whether the piece's flanged runs have heights of their own: they differ, or all differ from the spec's
-        ``flange.height`` (the reports then state each run's height)."""
-        return len(self.heights) > 1 or any(h.height_mm != self.layout.height_mm for h in self.heights)
+        """Whether the piece's flanged runs have shapes of their own: heights, bend radii or angles that differ, or
+        all differ from the spec's ``flange`` (the reports then state each run's shape)."""
+        return len(self.shapes) > 1 or any(
+            (h.height_mm, h.bend_radius_mm, h.angle_deg) != (self.layout.height_mm, self.layout.radius_mm, 90.0)
+            for h in self.shapes)
+
+    @property
+    def mixed_bends(self) -> bool:
+        """Whether some flanged run has a bend radius or angle of its own (its own die radius and over-bend)."""
+        return any((h.bend_radius_mm, h.angle_deg) != (self.layout.radius_mm, 90.0) for h in self.shapes)
 
     @property
     def max_shrink(self) -> float:
@@ -178,10 +206,41 @@ def die_build_up(spec: RibSpec) -> tuple[int, float]:
     return layers, layers * die.stock_thickness_mm
 
 
-def die_inset_mm(spec: RibSpec, springback: Springback) -> float:
-    """The largest inset of the die's wall from its outline (mm): the top-edge setback or the bottom inset."""
+def die_inset_mm(spec: RibSpec, springback: Springback, others: tuple[Springback, ...] = ()) -> float:
+    """The largest inset of the die's wall from its outline (mm): the top-edge setback or the bottom inset, over
+    the die of every flange shape (``others``: the dies of a part's runs of their own bend radius or angle)."""
     height = die_build_up(spec)[1]
-    return die_wall.largest_inset_mm(springback.die_radius_mm, springback.overbend_deg, height)
+    return max(die_wall.largest_inset_mm(sb.die_radius_mm, wall_lean_deg(sb), height)
+               for sb in (springback, *others))
+
+
+def wall_lean_deg(springback: Springback) -> float:
+    """The die wall's signed lean from the vertical, die angle − 90° (degrees): the over-bend of a square flange,
+    negative (the wall leaning out going down) for a flange bent through less than 90° (see
+    :mod:`diegen.geometry.die_wall`)."""
+    return springback.die_angle_deg - 90.0
+
+
+def run_shape_keys(spec: RibSpec) -> dict[tuple[float, float], tuple[str, ...]]:
+    """A part's (bend radius, angle) pairs of its own (not the spec's flange), each with the spec keys of its runs."""
+    found: dict[tuple[float, float], tuple[str, ...]] = {}
+    if spec.drawn is None:
+        return found
+    flange = spec.shared.flange
+    for run in spec.drawn.part.runs:
+        bend = (run.flange.bend_radius_mm, run.flange.angle_deg)
+        if bend != (flange.bend_radius_mm, 90.0):
+            found[bend] = (*found.get(bend, ()), run.label)
+    return found
+
+
+def uses_spec_bend(spec: RibSpec) -> bool:
+    """Whether some flanged edge takes the spec's ``flange`` bend radius square to the web (every rib's do)."""
+    if spec.drawn is None or not spec.drawn.part.runs:
+        return True
+    flange = spec.shared.flange
+    return any((r.flange.bend_radius_mm, r.flange.angle_deg) == (flange.bend_radius_mm, 90.0)
+               for r in spec.drawn.part.runs)
 
 
 def bend_sheet(spec: RibSpec, alloy: materials.SheetAlloy) -> BendSheet:
@@ -190,21 +249,30 @@ def bend_sheet(spec: RibSpec, alloy: materials.SheetAlloy) -> BendSheet:
                      PowerLaw.through(alloy.yield_mpa, alloy.ultimate_mpa))
 
 
-def springback_for(spec: RibSpec, alloy: materials.SheetAlloy) -> Springback:
-    """The die radius and angle for the spec's part: the model's, or a trial part's when the spec gives one."""
+def springback_for(spec: RibSpec, alloy: materials.SheetAlloy, radius_mm: float | None = None,
+                   angle_deg: float = 90.0) -> Springback:
+    """The die radius and angle for the spec's part (or a run of ``radius_mm`` bent through ``angle_deg``): the
+    model's, or a trial part's when the spec gives one.
+
+    A trial part measures the springback of the ``flange`` section's bend radius: it sets the die of every run of
+    that radius (the ratio of part to die angle, ρi/ρf, does not depend on the angle bent through); a run of
+    another radius takes the model's die.
+    """
     flange = spec.shared.flange
-    modelled = die_for_part(flange.bend_radius_mm, bend_sheet(spec, alloy))
-    if flange.trial is None:
+    radius = flange.bend_radius_mm if radius_mm is None else radius_mm
+    modelled = die_for_part(radius, bend_sheet(spec, alloy), angle_deg)
+    if flange.trial is None or radius != flange.bend_radius_mm:
         return modelled
     trial = flange.trial
     return die_from_trial(Trial(trial.die_angle_deg, trial.part_angle_deg, trial.die_radius_mm, trial.part_radius_mm),
                           modelled)
 
 
-def check_radius(spec: RibSpec, springback: Springback) -> materials.MinRadius:
+def check_radius(spec: RibSpec, springback: Springback, key: str = "flange.bend_radius") -> materials.MinRadius:
     """The table minimum for the sheet; :class:`FormingError` when the die radius the metal is bent to is below it.
 
-    The refusal names both radii, the table, and the smallest part radius whose die radius passes.
+    The refusal names both radii, the table, and the smallest part radius whose die radius passes; ``key`` is the
+    spec key of the radius (a part's run of its own: ``flanges[2].bend_radius``).
     """
     sheet, flange = spec.shared.sheet, spec.shared.flange
     minimum = materials.min_bend_radius(sheet.alloy, sheet.thickness_mm, flange.radius_table)
@@ -212,11 +280,30 @@ def check_radius(spec: RibSpec, springback: Springback) -> materials.MinRadius:
         wanted = _part_radius_for_die(spec, minimum.radius_mm)
         raise FormingError(
             f"{spec.kind} {spec.id}: the die bends the metal to {springback.die_radius_mm:.3f} mm "
-            f"(to spring back to the part's {flange.bend_radius_mm:.3f} mm), below the {minimum.radius_mm:.3f} mm "
+            f"(to spring back to the part's {springback.part_radius_mm:.3f} mm), below the {minimum.radius_mm:.3f} mm "
             f"minimum for {sheet.thickness_mm:.3f} mm {sheet.alloy} ({minimum.table} table: {minimum.citation}); "
-            f"use a part radius of at least {wanted:.3f} mm, or a softer temper", key="flange.bend_radius"
+            f"use a part radius of at least {wanted:.3f} mm, or a softer temper", key=key
         )
     return minimum
+
+
+def run_springbacks(spec: RibSpec, alloy: materials.SheetAlloy) -> dict[tuple[float, float], Springback]:
+    """The die of each (bend radius, angle) of a part's runs of their own, each radius checked against the table
+    (the refusal at the first run of it: ``flanges[i].bend_radius``)."""
+    dies = {}
+    for (radius, angle), keys in run_shape_keys(spec).items():
+        key = join_key(keys[0], "bend_radius" if radius != spec.shared.flange.bend_radius_mm else "angle")
+        with keyed(key):
+            dies[(radius, angle)] = springback_for(spec, alloy, radius, angle)
+        check_radius(spec, dies[(radius, angle)], join_key(keys[0], "bend_radius")
+                     if radius != spec.shared.flange.bend_radius_mm else "flange.bend_radius")
+    return dies
+
+
+def join_key(run_key: str, field_name: str) -> str:
+    """The spec key of one field of a flange run (``flanges[2]`` and ``angle``: ``flanges[2].angle``); a part
+    flanged all round (``flanges``) keeps the ``flange`` section's key."""
+    return f"{run_key}.{field_name}" if run_key.startswith("flanges[") else f"flange.{field_name}"
 
 
 def _part_radius_for_die(spec: RibSpec, die_radius_mm: float) -> float:
@@ -240,14 +327,16 @@ def analyse_rib(spec: RibSpec, section: np.ndarray | None = None) -> RibAnalysis
     t = spec.shared.sheet.thickness_mm
     flange = spec.shared.flange
     springback = springback_for(spec, alloy)
-    minimum = check_radius(spec, springback)
+    dies = run_springbacks(spec, alloy)
+    minimum = check_radius(spec, springback) if uses_spec_bend(spec) else \
+        materials.min_bend_radius(spec.shared.sheet.alloy, t, flange.radius_table)
     if spec.drawn is not None:
-        geometry = part_geometry(spec, die_inset_mm=die_inset_mm(spec, springback))
+        geometry = part_geometry(spec, die_inset_mm=die_inset_mm(spec, springback, tuple(dies.values())))
     else:
         geometry = rib_geometry(spec, section, die_inset_mm=die_inset_mm(spec, springback),
                                 stretch_limit=alloy.stretch_limit)
     layout = flange_layout(flange.height_mm, flange.bend_radius_mm, t, alloy.k_factor)
-    pieces = tuple(_analyse_piece(spec, piece, alloy, minimum, springback, layout) for piece in geometry.pieces)
+    pieces = tuple(_analyse_piece(spec, piece, alloy, minimum, springback, layout, dies) for piece in geometry.pieces)
     pieces = tuple(with_die_plan(spec, piece) for piece in pieces)
     return RibAnalysis(spec, geometry, pieces)
 
@@ -261,43 +350,77 @@ def _run_offsets(piece: PieceGeometry) -> list[float]:
     return offsets
 
 
-def _run_heights(spec: RibSpec, piece: PieceGeometry, alloy: materials.SheetAlloy,
-                 layout: FlangeLayout) -> tuple[RunHeight, ...]:
-    """The piece's flanged runs grouped by flange height, each height with its own layout and wrinkle limit."""
+def _shape_key(spec: RibSpec, run: Run) -> tuple[float, float, float]:
+    flange = spec.shared.flange
+    return run.height_mm(flange.height_mm), run.radius_mm(flange.bend_radius_mm), run.angle()
+
+
+def _run_shapes(spec: RibSpec, piece: PieceGeometry, alloy: materials.SheetAlloy, layout: FlangeLayout,
+                dies: dict[tuple[float, float], Springback]) -> tuple[RunShape, ...]:
+    """The piece's flanged runs grouped by flange shape (height, bend radius, angle), each shape with its own die,
+    layout (FAA-H-8083-31 ch. 4 for its angle) and wrinkle limit."""
     flange, t = spec.shared.flange, spec.shared.sheet.thickness_mm
-    by_height: dict[float, list[int]] = {}
+    by_shape: dict[tuple[float, float, float], list[int]] = {}
     for index, run in enumerate(piece.runs):
         if run.flanged:
-            by_height.setdefault(run.height_mm(flange.height_mm), []).append(index)
-    if not by_height:
-        by_height[flange.height_mm] = []
-    return tuple(RunHeight(h, layout if h == flange.height_mm else
-                           flange_layout(h, flange.bend_radius_mm, t, alloy.k_factor),
-                           relief_model.wrinkle_limit(alloy.shrink_limit, h, t), tuple(indexes))
-                 for h, indexes in sorted(by_height.items()))
+            by_shape.setdefault(_shape_key(spec, run), []).append(index)
+    if not by_shape:
+        by_shape[(flange.height_mm, flange.bend_radius_mm, 90.0)] = []
+    shapes = []
+    for (h, radius, angle), indexes in sorted(by_shape.items()):
+        keys = tuple(dict.fromkeys(piece.runs[i].flange_key for i in indexes if piece.runs[i].flange_key))
+        with keyed(join_key(keys[0], "height") if keys else "flange.height"):
+            own = layout if (h, radius, angle) == (flange.height_mm, flange.bend_radius_mm, 90.0) else \
+                flange_layout(h, radius, t, alloy.k_factor, angle)
+        shapes.append(RunShape(h, own, relief_model.wrinkle_limit(alloy.shrink_limit, h, t), tuple(indexes),
+                               dies.get((radius, angle)), keys))
+    return tuple(shapes)
 
 
-def _height_of(heights: tuple[RunHeight, ...], height_mm: float) -> RunHeight:
-    return next(h for h in heights if h.height_mm == height_mm)
+def _shape_of(spec: RibSpec, shapes: tuple[RunShape, ...], run: Run) -> RunShape:
+    key = _shape_key(spec, run)
+    return next(h for h in shapes if (h.height_mm, h.bend_radius_mm, h.angle_deg) == key)
+
+
+def _shape_at(spec: RibSpec, piece: PieceGeometry, shapes: tuple[RunShape, ...], s_mm: float) -> RunShape:
+    """The shape of the flanged run ``s_mm`` along the outline lies on."""
+    start, found = 0.0, piece.runs[0]
+    for run in piece.runs:
+        if s_mm < start:
+            break
+        found = run
+        start += float(np.sum(np.hypot(*np.diff(np.asarray(run.points, dtype=float), axis=0).T)))
+    return _shape_of(spec, shapes, found) if found.flanged else shapes[-1]
 
 
 def _flange_runs(spec: RibSpec, piece: PieceGeometry, alloy: materials.SheetAlloy,
-                 heights: tuple[RunHeight, ...]) -> list[FlangeRun]:
-    """Strain along every flanged curve of the piece (over its own flange's developed width), with its runs past
-    its own flange's limits."""
+                 shapes: tuple[RunShape, ...]) -> list[FlangeRun]:
+    """Strain along every flanged curve of the piece (over its own flange's developed width, at its own angle),
+    with its runs past its own flange's limits."""
     runs = []
     for index, (run, offset) in enumerate(zip(piece.plain_runs, _run_offsets(piece), strict=False)):
         if run.kind != "curve" or not run.flanged:
             continue
-        own = _height_of(heights, run.height_mm(spec.shared.flange.height_mm))
-        profile = strain_along(np.asarray(run.points), own.layout.developed_width_mm, closed=False)
+        own = _shape_of(spec, shapes, run)
+        profile = strain_along(np.asarray(run.points), own.layout.developed_width_mm, closed=False,
+                               angle_deg=own.angle_deg)
         runs.append(FlangeRun(index, offset, profile, relief_model.shrink_runs(profile, own.shrink_limit),
                               relief_model.stretch_runs(profile, alloy.stretch_limit), own.height_mm,
                               own.shrink_limit))
     return runs
 
 
-def _stretch_findings(runs: list[FlangeRun], alloy: materials.SheetAlloy) -> list[Finding]:
+def _height_key(spec: RibSpec, piece: PieceGeometry, run: FlangeRun) -> str:
+    """The spec key of the height of the flange ``run`` stands on: its run's own (``flanges[2].height``), or the
+    ``flange`` section's."""
+    own = piece.plain_runs[run.run_index]
+    if own.height_mm(spec.shared.flange.height_mm) == spec.shared.flange.height_mm:
+        return "flange.height"
+    return join_key(own.flange_key, "height")
+
+
+def _stretch_findings(spec: RibSpec, runs: list[FlangeRun], alloy: materials.SheetAlloy,
+                      piece: PieceGeometry) -> list[Finding]:
     found = []
     for run in runs:
         for stretch in run.stretch_runs:
@@ -306,7 +429,7 @@ def _stretch_findings(runs: list[FlangeRun], alloy: materials.SheetAlloy) -> lis
                 "stretch-over-limit", f"stretch flange {stretch.peak_strain:.3f} above the {alloy.name} limit "
                 f"{alloy.stretch_limit:.3f} at {where:.0f} mm along the outline (plan radius "
                 f"{stretch.min_radius_mm:.1f} mm); a flange of {stretch.allowed_width_mm:.1f} mm developed width would "
-                "pass", key="flange.height", s_mm=where))
+                "pass", key=_height_key(spec, piece, run), s_mm=where))
     return found
 
 
@@ -382,21 +505,37 @@ def _judge_flange(spec: RibSpec, runs: list[FlangeRun], flutes: tuple[relief_mod
     return FlangeJudgement(shrink_limit, worst, at, verdict, tuple(remedies), tuple(profiles)), found
 
 
+def _leg_name(shape: RunShape, shapes: tuple[RunShape, ...]) -> str:
+    """" 8 mm" (one bend, several heights), or " 8 mm, R 3 mm, 45°" where the bends differ too."""
+    if len(shapes) == 1:
+        return ""
+    if len({(h.bend_radius_mm, h.angle_deg) for h in shapes}) == 1:
+        return f" {shape.height_mm:g} mm"
+    return f" {shape.height_mm:g} mm, R {shape.bend_radius_mm:g} mm, {shape.angle_deg:g}°"
+
+
 def _press(spec: RibSpec, piece: PieceGeometry, springback: Springback, flutes: tuple[relief_model.Flute, ...],
-           holes: list[HoleCheck], die_height_mm: float, heights: tuple[RunHeight, ...]) -> press_model.PressCheck:
+           holes: list[HoleCheck], die_height_mm: float, shapes: tuple[RunShape, ...]) -> press_model.PressCheck:
     shared = spec.shared
     alloy = materials.sheet_alloy(shared.sheet.alloy)
     die = materials.die_material(shared.die.material)
     minx, miny, maxx, maxy = _bounds(piece)
+    # a wall leaning out (a flange bent through less than 90°) makes the die's foot larger than its outline
+    foot = max(0.0, *(-die_height_mm * math.tan(math.radians(wall_lean_deg(h.die(springback)))) for h in shapes))
+    minx, miny, maxx, maxy = minx - foot, miny - foot, maxx + foot, maxy + foot
     radius = springback.die_radius_mm
-    # one leg per flange height (a part's flange runs of heights of their own), the flutes' per height they stand in
-    legs = [press_model.FlangeLeg("perimeter flange" + ("" if len(heights) == 1 else f" {h.height_mm:g} mm"),
-                                  "perimeter", h.height_mm, radius) for h in heights]
-    flute_heights = [piece.flange_height_at(f.s_mm, shared.flange.height_mm) for f in flutes]
-    fluted = sorted(set(flute_heights))
+    # one leg per flange shape (a part's flange runs of heights, radii or angles of their own), each pressed onto its
+    # own die radius to its own angle; the flutes' per shape they stand in
+    legs = [press_model.FlangeLeg("perimeter flange" + _leg_name(h, shapes), "perimeter", h.height_mm,
+                                  h.die(springback).die_radius_mm, h.angle_deg) for h in shapes]
+    flute_shapes = [_shape_at(spec, piece, shapes, f.s_mm) for f in flutes]
+    fluted = sorted(set(flute_shapes), key=shapes.index)
     for h in fluted:
-        lip = min(f.lip_radius_mm or radius for f, own in zip(flutes, flute_heights) if own == h)
-        legs.append(press_model.FlangeLeg("flutes" + ("" if len(fluted) == 1 else f" {h:g} mm"), "flute", h, lip))
+        lip = min(f.lip_radius_mm or h.die(springback).die_radius_mm for f, own in zip(flutes, flute_shapes)
+                  if own == h)
+        legs.append(press_model.FlangeLeg("flutes" + ("" if len(fluted) == 1 else _leg_name(h, shapes) or
+                                                      f" {h.height_mm:g} mm"), "flute", h.height_mm, lip,
+                                          h.angle_deg))
     legs += [press_model.FlangeLeg(f"hole flange Ø{h.d_mm:.0f} mm", "hole", h.flange_height_mm, radius)
              for h in holes if h.flange_height_mm > 0.0]
     press = shared.press
@@ -412,24 +551,30 @@ def _press_findings(check: press_model.PressCheck, springback: Springback) -> li
     found = list(check.warnings)
     short = check.short_legs
     if short and check.fits_box:
-        folds = ", ".join(f"the {r.leg.name} to about {r.angle_deg:.0f}°" for r in short)
+        folds = ", ".join(f"the {r.leg.name} to about {r.angle_deg:.0f}°" +
+                          (f" of {r.leg.angle_deg:g}°" if r.leg.angle_deg != 90.0 else "") for r in short)
+        radii = sorted({r.leg.radius_mm for r in short if r.leg.kind == "perimeter"}) or [springback.die_radius_mm]
+        radius = f"{radii[0]:.2f} mm die radius" if len(radii) == 1 else \
+            "die radii (" + ", ".join(f"{v:.2f}" for v in radii) + " mm)"
         found.append(Finding(
             "press-folds-part-way", f"the box gives {check.pressure_mpa:.2f} MPa but setting the flanges on the "
-            f"{springback.die_radius_mm:.2f} mm die radius needs {max(r.full_mpa for r in short):.2f} MPa: the press "
+            f"{radius} needs {max(r.full_mpa for r in short):.2f} MPa: the press "
             f"folds {folds}; finish them on the die by hand (hand seamer, or a hardwood block and soft mallet), or use "
             "a bigger press or a smaller box", key="press.force"))
     return found
 
 
 def _analyse_piece(spec: RibSpec, piece: PieceGeometry, alloy: materials.SheetAlloy, minimum: materials.MinRadius,
-                   springback: Springback, layout: FlangeLayout) -> PieceAnalysis:
+                   springback: Springback, layout: FlangeLayout,
+                   dies: dict[tuple[float, float], Springback] | None = None) -> PieceAnalysis:
     shared = spec.shared
     t = shared.sheet.thickness_mm
-    heights = _run_heights(spec, piece, alloy, layout)
-    shrink_limit = heights[-1].shrink_limit  # the tallest flange's (the lowest), for a piece without flanged curves
-    runs = _flange_runs(spec, piece, alloy, heights)
-    flutes, notches, notes, warnings = _relief(spec, piece, runs, heights, springback)
-    warnings += _stretch_findings(runs, alloy)
+    shapes = _run_shapes(spec, piece, alloy, layout, dies or {})
+    several = len({h.height_mm for h in shapes}) > 1
+    shrink_limit = min(h.shrink_limit for h in shapes)  # the lowest, for a piece without flanged curves
+    runs = _flange_runs(spec, piece, alloy, shapes)
+    flutes, notches, notes, warnings = _relief(spec, piece, runs, shapes, springback)
+    warnings += _stretch_findings(spec, runs, alloy, piece)
     if shared.relief == "none":
         for run in runs:
             for shrink in run.shrink_runs:
@@ -443,43 +588,51 @@ def _analyse_piece(spec: RibSpec, piece: PieceGeometry, alloy: materials.SheetAl
     judgement, judged = _judge_flange(spec, runs, flutes, notches, holes, shrink_limit)
     warnings += judged
     layers, height = die_build_up(spec)
-    press = _press(spec, piece, springback, flutes, holes, height, heights)
+    press = _press(spec, piece, springback, flutes, holes, height, shapes)
     tallest = tallest_flange_mm(spec)
     warnings += _press_findings(press, springback)
     if height > shared.die.stock_thickness_mm + 1e-9 and layers == 1:
         warnings.append(Finding(
             "print-height-raised", f"die.stock_thickness {shared.die.stock_thickness_mm:.1f} mm is lower than the "
-            f"{'tallest ' if len(heights) > 1 else ''}flange height {tallest:.1f} mm + {STOCK_CLEARANCE_MM:.0f} mm "
+            f"{'tallest ' if several else ''}flange height {tallest:.1f} mm + {STOCK_CLEARANCE_MM:.0f} mm "
             f"clearance: the die is printed {height:.0f} mm high", key="die.stock_thickness"))
     if layers > 1:
         warnings.append(Finding(
             "die-laminated", f"die stock {shared.die.stock_thickness_mm:.1f} mm is thinner than the "
-            f"{'tallest ' if len(heights) > 1 else ''}flange height {tallest:.1f} mm + {STOCK_CLEARANCE_MM:.0f} mm "
+            f"{'tallest ' if several else ''}flange height {tallest:.1f} mm + {STOCK_CLEARANCE_MM:.0f} mm "
             f"clearance: laminate {layers} layers ({height:.1f} mm)", key="die.stock_thickness"))
-    blank = _blank(piece, springback, layout, notches, holes, alloy, t, heights, shared.flange.height_mm)
+    blank = _blank(spec, piece, springback, layout, notches, holes, alloy, t, shapes)
     return PieceAnalysis(piece, alloy, minimum, springback, layout, tuple(runs), flutes, notches, notes, judgement,
                          tuple(holes), press, blank, height, layers,
                          tuple(w.about(piece.part_id, spec.positions, rib_id=spec.id) for w in warnings),
-                         heights=heights)
+                         shapes=shapes)
 
 
-def _blank(piece: PieceGeometry, springback: Springback, layout: FlangeLayout, notches: tuple[relief_model.Notch, ...],
-           holes: list[HoleCheck], alloy: materials.SheetAlloy, t: float, heights: tuple[RunHeight, ...],
-           spec_height_mm: float) -> BlankDrawing:
+def _blank(spec: RibSpec, piece: PieceGeometry, springback: Springback, layout: FlangeLayout,
+           notches: tuple[relief_model.Notch, ...], holes: list[HoleCheck], alloy: materials.SheetAlloy, t: float,
+           shapes: tuple[RunShape, ...]) -> BlankDrawing:
+    """The blank: each flanged run's edge stands its own flange's developed width less its own die's tangent inset
+    R_die·tan(θ_die/2) outside the die outline (the die's top edge to the web's bend line)."""
     tangent_inset = springback.die_radius_mm * math.tan(math.radians(springback.die_angle_deg) / 2)
-    # each flanged run's edge stands its own flange's developed width less the tangent inset outside the die outline
-    own = {h.height_mm: h.layout.developed_width_mm - tangent_inset for h in heights}
-    offset = own[heights[0].height_mm] if len(heights) == 1 else layout.developed_width_mm - tangent_inset
-    run_offsets = None
-    if len(heights) > 1:
-        run_offsets = tuple(own[run.height_mm(spec_height_mm)] if run.flanged else 0.0 for run in piece.runs)
+    own = {h: h.layout.developed_width_mm - h.tangent_inset_mm(springback) for h in shapes}
+    offset = own[shapes[0]] if len(shapes) == 1 else layout.developed_width_mm - tangent_inset
+    run_offsets = run_insets = None
+    if len(set(own.values())) > 1:
+        run_offsets = tuple(own[_shape_of(spec, shapes, run)] if run.flanged else 0.0 for run in piece.runs)
+    elif len(shapes) > 1:
+        offset = next(iter(own.values()))
+    if any(h.springback is not None for h in shapes):
+        run_insets = tuple(_shape_of(spec, shapes, run).tangent_inset_mm(springback) if run.flanged else 0.0
+                           for run in piece.runs)
+        tangent_inset = _shape_at(spec, piece, shapes, 0.0).tangent_inset_mm(springback)
     cuts = [notch_polygon(piece, n.s_mm, n.opening_mm, n.depth_mm,
-                          offset if run_offsets is None else own[piece.flange_height_at(n.s_mm, spec_height_mm)])
+                          offset if run_offsets is None else own[_shape_at(spec, piece, shapes, n.s_mm)])
             for n in notches]
-    blank = develop_blank(piece, offset_mm=offset, die_radius_mm=springback.die_radius_mm,
+    die_radius = max(h.die(springback).die_radius_mm for h in shapes)
+    blank = develop_blank(piece, offset_mm=offset, die_radius_mm=die_radius,
                           tangent_inset_mm=tangent_inset, thickness_mm=t,
                           material=f"{alloy.name}, {t:.3f} mm", pilot_diameters=[h.pilot_d_mm for h in holes],
-                          notch_cuts=cuts, run_offsets_mm=run_offsets)
+                          notch_cuts=cuts, run_offsets_mm=run_offsets, run_tangent_insets_mm=run_insets)
     return replace(blank, grain_angle_deg=GRAIN_ANGLE_DEG)
 
 
@@ -488,10 +641,10 @@ def _bounds(piece: PieceGeometry) -> tuple[float, float, float, float]:
     return float(pts[:, 0].min()), float(pts[:, 1].min()), float(pts[:, 0].max()), float(pts[:, 1].max())
 
 
-def _relief(spec: RibSpec, piece: PieceGeometry, runs: list[FlangeRun], heights: tuple[RunHeight, ...],
+def _relief(spec: RibSpec, piece: PieceGeometry, runs: list[FlangeRun], shapes: tuple[RunShape, ...],
             springback: Springback) -> tuple[tuple, tuple, tuple[str, ...], list[Finding]]:
-    """Flutes (placed by the local excess, lips rounded to the die radius), notches, their notes, and findings
-    for relief that does not fit."""
+    """Flutes (placed by the local excess, lips rounded to the run's own die radius), notches (sized for the run's
+    own bend radius), their notes, and findings for relief that does not fit."""
     shared = spec.shared
     t = shared.sheet.thickness_mm
     flutes: list[relief_model.Flute] = []
@@ -499,18 +652,20 @@ def _relief(spec: RibSpec, piece: PieceGeometry, runs: list[FlangeRun], heights:
     notes: list[str] = []
     warnings: list[Finding] = []
     for run in runs:
+        own = _shape_of(spec, shapes, piece.plain_runs[run.run_index])
+        die_radius = own.die(springback).die_radius_mm
         for shrink in run.shrink_runs:
             if shared.relief == "flutes":
-                found = relief_model.flutes(shrink, run.height_mm, t, springback.die_radius_mm,
-                                            strain=run.profile, lip_radius=springback.die_radius_mm)
+                found = relief_model.flutes(shrink, run.height_mm, t, die_radius,
+                                            strain=run.profile, lip_radius=die_radius)
                 flutes.extend(_shift(f, run.s_offset_mm) for f in found.flutes)
                 notes.append(found.note)
                 if not found.fits:
                     warnings.append(Finding("relief-short", found.note, key="relief",
                                             s_mm=run.s_offset_mm + shrink.s_start_mm))
             elif shared.relief == "notches":
-                width = _height_of(heights, run.height_mm).layout.developed_width_mm
-                found_n = relief_model.notches(shrink, width, t, shared.flange.bend_radius_mm)
+                width = own.layout.developed_width_mm
+                found_n = relief_model.notches(shrink, width, t, own.bend_radius_mm)
                 notches.extend(_shift(n, run.s_offset_mm) for n in found_n.notches)
                 notes.append(found_n.note)
     return tuple(flutes), tuple(notches), tuple(notes), warnings
@@ -521,5 +676,6 @@ def _shift(item, offset: float):
 
 
 __all__ = ["GRAIN_ANGLE_DEG", "MODELS", "STOCK_CLEARANCE_MM", "FlangeJudgement", "FlangeRun", "HoleCheck",
-           "PieceAnalysis", "RibAnalysis", "RunHeight", "analyse_rib", "bend_sheet", "check_radius", "die_inset_mm",
-           "die_layers", "springback_for", "tallest_flange_mm"]
+           "PieceAnalysis", "RibAnalysis", "RunShape", "analyse_rib", "bend_sheet", "check_radius", "die_inset_mm",
+           "die_layers", "join_key", "run_shape_keys", "run_springbacks", "springback_for", "tallest_flange_mm",
+           "uses_spec_bend", "wall_lean_deg"]

@@ -308,6 +308,36 @@ def parts() -> list[Scenario]:
                      "{from: [8, 3], to: [0, 3], direction: up}]", alloy="6061-T4", t_mm=0.813,
              flange_mm=15.875, radius_factor=1.2, relief="flutes", die=_die("petg", 15.875, 0, None, 6.35, True),
              force="20 ton", box_mm=(609.6, 304.8)),
+        # flange runs of their own bend radius and angle: a tray whose long sides take two radii and whose end is a
+        # 45° lip (corners: the wall blends inside a run, clear of them; a cut end between the two radii); a
+        # stadium whose right half circle is a 60° flange of a larger radius (smooth junctions: the blends are
+        # centred on them); a plate with a 45° lip all round (one profile: a wall leaning out); and a laminated die
+        # of two radii and an angle, in inches
+        part("P15", inch=False, outline="{points: [[0, 0], [260, 0], [260, 160], [0, 160]], is: die}",
+             flanges="[{from: [0, 0], to: [260, 0]}, {from: [260, 160], to: [0, 160], bend_radius: 5}, "
+                     "{from: [0, 160], to: [0, 0], angle: 45, height: 10}]", alloy="2024-T3", t_mm=0.8,
+             flange_mm=12.0, radius_factor=1.2, relief="flutes", die=routed("solid-surface", 12.0, 6.0),
+             force="40 ton", box_mm=(500.0, 350.0)),
+        part("P16", inch=False, outline="{points: [[0, 0], [200, 0, 1], [200, 180], [0, 180, 1]], is: mold-line}",
+             flanges="[{from: [0, 0], to: [200, 0]}, {from: [200, 0], to: [200, 180], angle: 60, bend_radius: 4}, "
+                     "{from: [200, 180], to: [0, 180]}, {from: [0, 180], to: [0, 0]}]", alloy="6061-T4",
+             t_mm=0.8, flange_mm=10.0, radius_factor=1.5, relief="flutes", die=routed("fibreboard", 10.0, 6.0),
+             force="40 ton", box_mm=(600.0, 400.0)),
+        part("P17", inch=False, outline=f"{{points: {_rounded_rectangle(200, 140, 30)}, is: mold-line}}",
+             flanges="[{from: [30, 0], to: [170, 140], angle: 45}, {from: [170, 140], to: [30, 0], angle: 45}]",
+             alloy="5052-H32", t_mm=0.8, flange_mm=10.0,
+             radius_factor=1.5, relief="flutes", die=_die("petg", 10.0, 0, None, 6.0, False), force="20 ton",
+             box_mm=(400.0, 300.0)),
+        part("P18", inch=True, outline="{points: [[0, 0], [9, 0], [9, 5], [0, 5]], is: mold-line}",
+             flanges="[{from: [0, 0], to: [9, 0], angle: 75}, {from: [9, 0], to: [9, 5]}, "
+                     "{from: [9, 5], to: [0, 5], bend_radius: 0.1875}]", alloy="2024-O", t_mm=0.635,
+             flange_mm=12.7, radius_factor=1.0, relief="flutes", die=_die("fibreboard", 12.7, 1, None, 6.35, True),
+             force="20 ton", box_mm=(609.6, 304.8)),
+        # a plate too short between a 45° lip and a square flange for its die wall to change: check refuses the die
+        part("P19", inch=False, outline="{points: [[0, 0], [120, 0], [120, 40], [0, 40]], is: die}",
+             flanges="[{from: [0, 0], to: [120, 0], angle: 45}, {from: [120, 40], to: [0, 40]}]", alloy="2024-T3",
+             t_mm=0.8, flange_mm=12.0, radius_factor=1.2, relief="flutes", die=routed("solid-surface", 12.0, 6.0),
+             force="20 ton", box_mm=(300.0, 250.0)),
     ]
 
 

@@ -56,8 +56,8 @@ def test_a_rectangle_flanged_on_two_opposite_edges_at_two_heights() -> None:
     assert max(ys) == pytest.approx(160.0 + d_high, abs=1e-6)
     assert (min(xs), max(xs)) == pytest.approx((0.0, 240.0), abs=1e-6)  # cut ends flush
     assert Polygon(piece.blank.outer).area == pytest.approx(240.0 * (160.0 + d_low + d_high), rel=1e-9)
-    assert [h.height_mm for h in piece.heights] == [8.0, 12.0]
-    assert [h.layout.developed_width_mm for h in piece.heights] == pytest.approx(
+    assert [h.height_mm for h in piece.shapes] == [8.0, 12.0]
+    assert [h.layout.developed_width_mm for h in piece.shapes] == pytest.approx(
         [developed(8.0, k), developed(12.0, k)], rel=1e-12)
     assert piece.piece.relief_points == ()  # each flanged edge meets only cut edges
     # one press leg per height (the press check folds each flange of its own height)
@@ -88,10 +88,10 @@ def test_strain_on_each_arc_follows_its_own_flange_width() -> None:
         w = developed(height, k)
         mid = len(run.profile.strain) // 2
         assert -float(run.profile.strain[mid]) == pytest.approx(w / (100.0 + w), rel=0.01)
-        limit = next(h.shrink_limit for h in piece.heights if h.height_mm == height)
+        limit = next(h.shrink_limit for h in piece.shapes if h.height_mm == height)
         assert run.shrink_limit == limit
     # the lower flange's wrinkle limit is the higher one (it scales with (t/h)², relief.wrinkle_limit)
-    limits = {h.height_mm: h.shrink_limit for h in piece.heights}
+    limits = {h.height_mm: h.shrink_limit for h in piece.shapes}
     assert limits[8.0] >= limits[12.0] >= limits[20.0]
 
 
@@ -175,7 +175,7 @@ def test_a_run_height_in_inches_is_read_in_the_spec_units() -> None:
     spec = _parse(text + "outline: {points: [[0, 0], [8, 0], [8, 6], [0, 6]], is: die}\n"
                   "flanges: [{from: [0, 0], to: [8, 0], height: 0.375}, {from: [8, 6], to: [0, 6]}]\n")
     _, piece = only_piece(spec)
-    assert [h.height_mm for h in piece.heights] == pytest.approx([0.375 * 25.4, 0.5 * 25.4], rel=1e-12)
+    assert [h.height_mm for h in piece.shapes] == pytest.approx([0.375 * 25.4, 0.5 * 25.4], rel=1e-12)
 
 
 def test_a_run_height_that_looks_written_in_the_other_unit_is_flagged() -> None:
@@ -254,7 +254,7 @@ def test_each_run_is_judged_against_its_own_wrinkle_limit() -> None:
     of its own limit, and reports that run's shrink and limit."""
     spec = part_spec(STADIUM, stadium(20, 8, "relief: none\n"))
     _, piece = only_piece(spec)
-    limits = {h.height_mm: h.shrink_limit for h in piece.heights}
+    limits = {h.height_mm: h.shrink_limit for h in piece.shapes}
     assert limits[12.0] / limits[20.0] == pytest.approx((20.0 / 12.0) ** 2, rel=1e-12)
     worst = max(piece.runs, key=lambda r: float(-r.profile.strain.min()) / r.shrink_limit)
     assert piece.flange.shrink_limit == worst.shrink_limit
@@ -283,6 +283,6 @@ def test_a_part_whose_only_flange_has_its_own_height() -> None:
     k, inset = piece.layout.k_factor, tangent_inset(piece)
     _, ys = zip(*piece.blank.outer)
     assert (min(ys), max(ys)) == pytest.approx((-(developed(8.0, k) - inset), 160.0), abs=1e-6)
-    assert piece.mixed_heights and [h.height_mm for h in piece.heights] == [8.0]
+    assert piece.mixed_heights and [h.height_mm for h in piece.shapes] == [8.0]
     assert "8.0 mm high" in api.report_text(analysis)
     assert (piece.die_layers, piece.die_height_mm) == (1, STOCK)

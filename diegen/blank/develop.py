@@ -107,18 +107,31 @@ def _corner_cut(piece: PieceGeometry, corner: Point, reach: float) -> Polygon:
     return Polygon([c, c + far * n_in, c + far * (n_in + n_out), c + far * n_out])
 
 
-def _tangent_point(piece: PieceGeometry, corner: Point, inset: float) -> Point:
-    """Intersection of the two edges' bend tangent lines, ``inset`` inside the corner."""
+def _corner_insets(piece: PieceGeometry, corner: Point, inset: float,
+                   run_insets: Sequence[float] | None) -> tuple[float, float]:
+    """The bend lines' insets of the run that ends at ``corner`` and of the run that starts there (mm)."""
+    if run_insets is None:
+        return inset, inset
+    starts = [math.dist(run.points[0], corner) for run in piece.runs]
+    after = int(np.argmin(starts))
+    return run_insets[after - 1], run_insets[after]
+
+
+def _tangent_point(piece: PieceGeometry, corner: Point, inset: float, inset_after: float | None = None) -> Point:
+    """Intersection of the two edges' bend tangent lines, ``inset`` (the edge after it: ``inset_after``) inside the
+    corner."""
     loop = np.asarray(piece.outline)
     index = int(np.argmin(np.hypot(*(loop - np.asarray(corner)).T)))
     c = loop[index]
     d_in = _unit(c - loop[index - 1])
     d_out = _unit(loop[(index + 1) % len(loop)] - c)
-    # both tangent lines are offset `inset` to the left (inside);
-    # solve c + inset*n_in + a*d_in = c + inset*n_out + b*d_out
+    # both tangent lines are offset to the left (inside);
+    # solve c + inset*n_in + a*d_in = c + inset_after*n_out + b*d_out
     n_in, n_out = np.array([-d_in[1], d_in[0]]), np.array([-d_out[1], d_out[0]])
     matrix = np.column_stack([d_in, -d_out])
-    a, _ = np.linalg.solve(matrix, inset * (n_out - n_in))
+    same = inset_after is None or inset_after == inset
+    shift = inset * (n_out - n_in) if same else inset_after * n_out - inset * n_in
+    a, _ = np.linalg.solve(matrix, shift)
     p = c + inset * n_in + a * d_in
     return float(p[0]), float(p[1])
 
@@ -126,12 +139,15 @@ def _tangent_point(piece: PieceGeometry, corner: Point, inset: float) -> Point:
 def develop_blank(piece: PieceGeometry, *, offset_mm: float, die_radius_mm: float, tangent_inset_mm: float,
                   thickness_mm: float,
                   material: str, pilot_diameters: Sequence[float], notch_cuts: Sequence[Polygon] = (),
-                  run_offsets_mm: Sequence[float] | None = None) -> BlankDrawing:
+                  run_offsets_mm: Sequence[float] | None = None,
+                  run_tangent_insets_mm: Sequence[float] | None = None) -> BlankDrawing:
     """The flat blank of ``piece`` (mm).
 
     ``offset_mm`` is the distance from the die outline to the blank edge; ``run_offsets_mm``, when given, that
     distance per run of the piece (its own flange's; a cut run's is ignored) where the flanged runs differ;
-    ``tangent_inset_mm`` how far inside the die outline the web's bend tangent line lies (the bend lines);
+    ``tangent_inset_mm`` how far inside the die outline the web's bend tangent line lies (the bend lines), and
+    ``run_tangent_insets_mm``, when given, that distance per run (a part's runs of their own die radius or angle:
+    R_die·tan(θ_die/2) each; a cut run's is ignored);
     ``pilot_diameters`` gives, per hole of the piece, the pilot hole for a
     flanged hole (ignored for plain holes, which are cut to size).
     """
@@ -155,7 +171,7 @@ def develop_blank(piece: PieceGeometry, *, offset_mm: float, die_radius_mm: floa
     reliefs = []
     for corner in piece.relief_points:
         blank = blank.difference(_corner_cut(piece, corner, offset_mm + relief_d))
-        x, y = _tangent_point(piece, corner, tangent_inset_mm)
+        x, y = _tangent_point(piece, corner, *_corner_insets(piece, corner, tangent_inset_mm, run_tangent_insets_mm))
         reliefs.append(Circle(x, y, relief_d))
     for cut in notch_cuts:
         blank = blank.difference(cut)
@@ -167,9 +183,10 @@ def develop_blank(piece: PieceGeometry, *, offset_mm: float, die_radius_mm: floa
     for hole, pilot in zip(piece.holes, pilot_diameters):
         cut_circles.append(Circle(hole.x, hole.y, pilot if hole.flanged else hole.d))
     scribe = []
-    for run in piece.runs:
+    insets = run_tangent_insets_mm or [tangent_inset_mm] * len(piece.runs)
+    for run, inset in zip(piece.runs, insets, strict=True):
         if run.flanged and len(run.points) >= 2:
-            line = LineString(run.points).offset_curve(tangent_inset_mm, quad_segs=QUAD_SEGS, join_style="round")
+            line = LineString(run.points).offset_curve(inset, quad_segs=QUAD_SEGS, join_style="round")
             for part in getattr(line, "geoms", [line]):
                 scribe.append(tuple((float(x), float(y)) for x, y in part.coords))
     outer = tuple((float(x), float(y)) for x, y in np.asarray(blank.exterior.coords)[:-1])

@@ -21,6 +21,8 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Literal
 
+from diegen.geometry.die_wall import WallProfile
+
 __all__ = ["RUN_KINDS", "DieBore", "DieFlute", "DieInput", "DiePin", "DieRun", "RunKind"]
 
 RunKind = Literal["curve", "line"]
@@ -100,6 +102,11 @@ class DieInput:
     min_land_mm: float = 0.0  # least wall between two flutes beyond the outline model's own rule (a printed line)
     layer_mm: float | None = None  # laminated from stock this thick (None: one block)
     print_bed_mm: tuple[float, float] | None = None  # printed in tiles that fit this bed (None: in one piece)
+    # the wall profile under each outline run, where a drawn part's runs have bend radii or angles of their own
+    # (None: every run takes ``top_radius_mm`` and ``undercut_deg``); an entry None is a cut edge, whose wall only
+    # joins its neighbours' (see :mod:`diegen.die.wall`); ``run_names`` names each run in messages (``flanges[2]``)
+    profiles: tuple[WallProfile | None, ...] | None = None
+    run_names: tuple[str, ...] = ()
 
     @property
     def inside_limit_text(self) -> str:

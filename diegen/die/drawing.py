@@ -31,7 +31,15 @@ import numpy as np
 
 from diegen.blank.drawing import LayerStyle
 from diegen.die.die_input import DieInput
-from diegen.die.model import bottom_inset_mm, flute_scale, section, top_face_inset_mm
+from diegen.die.model import (
+    bottom_inset_mm,
+    depth_level,
+    flute_scale,
+    level_section,
+    section,
+    top_face_inset_mm,
+    top_level,
+)
 from diegen.die.outline import OffsetPiece, OutlineModel
 from diegen.die.placement import PlacedMarks
 from diegen.die.settings import DEFAULT_SETTINGS, BuildSettings
@@ -164,10 +172,15 @@ def die_drawing(die: DieInput, model: OutlineModel, marks: PlacedMarks, tiles: T
     ``title``: a line naming where the die comes from.  The alignment dowels across the tile joints are drawn in
     plan, each running along X into both tiles.
     """
-    flat = _ring(model.offset(top_face_inset_mm(die), spacing_mm=SAMPLE_MM))
+    if die.profiles is None:
+        flat = _ring(model.offset(top_face_inset_mm(die), spacing_mm=SAMPLE_MM))
+        bottom_pieces = section(die, model, bottom_inset_mm(die), die.height_mm)
+        even = model.offset(bottom_inset_mm(die), spacing_mm=SAMPLE_MM, flute_scale=flute_scale(die, die.height_mm))
+    else:  # a wall whose profile changes along the outline: its sections' insets change with it
+        flat = _ring(level_section(die, model, top_level(die), spacing_mm=SAMPLE_MM))
+        bottom_pieces = level_section(die, model, depth_level(die, die.height_mm))
+        even = level_section(die, model, depth_level(die, die.height_mm), spacing_mm=SAMPLE_MM)
     top = _ring(model.offset(0.0, spacing_mm=SAMPLE_MM))
-    bottom_pieces = section(die, model, bottom_inset_mm(die), die.height_mm)
-    even = model.offset(bottom_inset_mm(die), spacing_mm=SAMPLE_MM, flute_scale=flute_scale(die, die.height_mm))
     polylines = [Polyline(TOP_OUTLINE.name, top, True), Polyline(TOP_FLAT.name, flat, True),
                  Polyline(BOTTOM_OUTLINE.name, _ring(even), True)]
     for span, piece in zip(model.spans, bottom_pieces):
@@ -236,6 +249,15 @@ def die_drawing(die: DieInput, model: OutlineModel, marks: PlacedMarks, tiles: T
         (f"MARKS: ENGRAVED {settings.engrave_depth_mm:g} DEEP ON THE BOTTOM FACE, DRAWN AS SEEN FROM THE TOP: "
          "MIRROR ABOUT X FOR A BOTTOM-UP SET-UP.", 0.8 * h),
     ]
+    if die.profiles is not None:  # each flange run's own wall, changing between them
+        notes[2] = (f"MM, SEEN FROM THE TOP FACE (Z = 0); BLOCK {die.height_mm:.2f} HIGH; THE WALL CHANGES ALONG THE "
+                    "OUTLINE:", 0.8 * h)
+        names = die.run_names or tuple(f"RUN {i + 1}" for i in range(len(die.outline)))
+        for name, profile in dict.fromkeys(zip(names, die.profiles, strict=True)):
+            if profile is not None:
+                lean = "IN" if profile.lean_deg >= 0 else "OUT"
+                notes.append((f"{name.upper()}: TOP EDGE RADIUS {profile.radius_mm:.2f}, WALL LEANING {lean} "
+                              f"{abs(profile.lean_deg):.2f} DEG (DIE ANGLE {profile.die_angle_deg:.2f} DEG)", 0.8 * h))
     notes += [(line, 0.8 * h) for line in table]
     y = ymin - 8.0
     for text, height in notes:

@@ -31,6 +31,7 @@ import numpy as np
 
 from diegen.die.die_input import DieFlute, DieInput
 from diegen.die.model import flute_lengths, flute_scale, largest_inset_mm
+from diegen.die.model import profiles as model_profiles
 from diegen.die.outline import CurveSegment, OutlineModel, flute_taper_ratio
 from diegen.die.rules import die_refusal
 from diegen.die.settings import DEFAULT_SETTINGS, BuildSettings
@@ -133,7 +134,13 @@ def largest_wall_inset(model: OutlineModel) -> tuple[float, tuple[float, float] 
 
 
 def _fit_wall(die: DieInput, piece: Any, spec: Any, settings: BuildSettings) -> tuple[DieInput, list[Finding]]:
-    """The flute-free ``die`` with an undercut and top radius its outline can take (findings for each change)."""
+    """The flute-free ``die`` with an undercut and top radius its outline can take (findings for each change).
+
+    A wall whose profile changes along the outline (a part's runs of their own bend radius or angle) is not fitted:
+    each run's profile is what its flange needs, and a die that cannot have it is refused (:mod:`diegen.die.rules`).
+    """
+    if die.profiles is not None:
+        return die, []
     model = _plain_model(die, settings)
     if model is None:
         return die, []
@@ -198,6 +205,18 @@ def _section_insets(die: DieInput, arc_samples: int = 31, wall_samples: int = 9
                     ) -> tuple[list[tuple[float, float]], list[tuple[float, float]]]:
     """(inset, flute scale) along the top-edge arc and down the straight wall, finely enough to hold for every
     section the builder, the laminate layers and the tiles use."""
+    if die.profiles is not None:  # every profile's, at every level (the flutes must fit them all)
+        arc, wall = [], []
+        for profile in model_profiles(die):
+            r, a = profile.radius_mm, profile.lean_deg
+            for theta in np.linspace(0.0, 90.0 + a, arc_samples):
+                p = die_wall.fillet_point(r, a, float(theta))
+                arc.append((p.inset_mm, flute_scale(die, p.depth_mm)))
+            top = die_wall.fillet_end_depth_mm(r, a)
+            for d in [*np.linspace(top, die.height_mm, wall_samples),
+                      *(length for length in flute_lengths(die) if top < length < die.height_mm)]:
+                wall.append((die_wall.wall_inset_mm(float(d), a), flute_scale(die, float(d))))
+        return arc, wall
     r, a = die.top_radius_mm, die.undercut_deg
     arc = []
     for theta in np.linspace(0.0, 90.0 + a, arc_samples):

@@ -12,6 +12,7 @@ from typing import Any
 
 from diegen.die.die_input import DieBore, DieFlute, DieInput, DiePin, DieRun
 from diegen.die.tiles import TileLayout, die_tile_layout
+from diegen.geometry.die_wall import WallProfile
 from diegen.geometry.tooling import tooling
 
 PIN_INTERFERENCE_MM = 0.03
@@ -83,18 +84,41 @@ def with_tile_joints(die: DieInput, die_spec: Any) -> DieInput:
     return die if layout is None else replace(die, tile_joints_x_mm=layout.joints_x_mm)
 
 
+def wall_profiles(piece: Any) -> tuple[tuple[WallProfile | None, ...] | None, WallProfile]:
+    """Each outline run's wall profile where a part's flange runs have dies of their own (None for a cut edge), or
+    None where every flanged run takes one die; and the profile of the die's one wall (``top_radius_mm``,
+    ``undercut_deg``): the piece's own, or where all its flanged runs share another die, theirs.
+
+    A run's profile is its die radius and its lean, die angle − 90° (:mod:`diegen.geometry.die_wall`): the
+    over-bend of a square flange, or a wall leaning out under a flange bent through less than 90°."""
+    sb = piece.springback
+    own = WallProfile(sb.die_radius_mm, sb.die_angle_deg - 90.0)
+    shapes = getattr(piece, "shapes", ())
+    if not any(getattr(h, "springback", None) is not None for h in shapes):
+        return None, own
+    by_run: dict[int, WallProfile] = {}
+    for shape in shapes:
+        die = shape.die(sb)
+        for index in shape.run_indexes:
+            by_run[index] = WallProfile(die.die_radius_mm, die.die_angle_deg - 90.0)
+    if len(set(by_run.values())) == 1:
+        return None, next(iter(by_run.values()))
+    return tuple(by_run.get(i) for i in range(len(piece.piece.runs))), own
+
+
 def asked_die_input(spec: Any, piece: Any) -> DieInput:
     """The die as an analysed piece asks for it, before any fitting (``spec``: RibSpec, ``piece``: PieceAnalysis)."""
     g, shared = piece.piece, spec.shared
     height = piece.die_height_mm
     tool = tooling(shared.die.material, shared.die.cutter_diameter_mm)
     printed = tool.printed or die_making(shared.die) == "printed"
+    profiles, wall = wall_profiles(piece)
     return DieInput(
         part_id=g.part_id,
         outline=tuple(DieRun(run.kind, run.points) for run in g.runs),
         height_mm=height,
-        top_radius_mm=piece.springback.die_radius_mm,
-        undercut_deg=piece.springback.overbend_deg,
+        top_radius_mm=wall.radius_mm,
+        undercut_deg=wall.lean_deg,
         cutter_radius_mm=tool.inside_radius_mm,
         flutes=_die_flutes(piece, shared.flange.height_mm),
         flute_length_mm=flute_length_mm(piece, shared.flange.height_mm),
@@ -105,6 +129,9 @@ def asked_die_input(spec: Any, piece: Any) -> DieInput:
         min_land_mm=tool.thinnest_wall_mm,
         layer_mm=shared.die.stock_thickness_mm if piece.die_layers > 1 and not printed else None,
         print_bed_mm=shared.die.print_bed_mm,
+        profiles=profiles,
+        run_names=tuple(run.flange_key or ("cut edge" if not run.flanged else "flange") for run in g.runs)
+        if profiles is not None else (),
     )
 
 

@@ -17,7 +17,7 @@ import math
 from dataclasses import dataclass
 
 from diegen.die.die_input import DieInput, DieRun
-from diegen.die.model import flute_scale, outline_model
+from diegen.die.model import depth_level, flute_scale, level_section, outline_model
 from diegen.die.outline import OffsetPiece, OutlineModel
 from diegen.errors import GeometryError
 from diegen.geometry import die_wall
@@ -68,6 +68,11 @@ def layer_outlines(die: DieInput, model: OutlineModel, stock_thickness_mm: float
         z_top = -i * stock_thickness_mm
         z_bottom = max(-(i + 1) * stock_thickness_mm, -die.height_mm)
         try:
+            if die.profiles is not None:  # each run's wall line: the sections' insets change along the outline
+                bottom = level_section(die, model, depth_level(die, -z_bottom, True), spacing_mm=spacing_mm)
+                top = level_section(die, model, depth_level(die, -z_top, True), spacing_mm=spacing_mm)
+                layers.append(LaminateLayer(i, z_top, z_bottom, _runs(bottom), _runs(top)))
+                continue
             bottom = model.offset(die_wall.wall_inset_mm(-z_bottom, die.undercut_deg), spacing_mm=spacing_mm,
                                   flute_scale=flute_scale(die, -z_bottom))
             top = model.offset(die_wall.wall_inset_mm(-z_top, die.undercut_deg), spacing_mm=spacing_mm,

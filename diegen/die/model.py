@@ -10,10 +10,19 @@ from __future__ import annotations
 from diegen.die.die_input import DieInput
 from diegen.die.outline import OffsetPiece, OutlineModel
 from diegen.die.settings import DEFAULT_SETTINGS, BuildSettings
+from diegen.die.wall import LoftLevel, WallPlan, level_point, wall_plan
 from diegen.errors import GeometryError
 from diegen.geometry import die_wall
+from diegen.geometry.die_wall import WallProfile
 
 MAX_UNDERCUT_DEG = 30.0  # beyond this the wall is no longer a small over-bend (design choice)
+# A wall leaning out under a flange bent through less than 90° (design choice: the spec's least run angle, 30°,
+# bent a little further by the over-bend, leans out about 60°; more is no form block wall but a table)
+MIN_LEAN_DEG = -65.0
+
+#: A section the die is lofted through: an inset and depth (a die of one profile: a plane section), or a loft level
+#: (a die whose profile changes along the outline: see diegen.die.wall)
+Level = die_wall.WallSection | LoftLevel
 
 
 def check_die_numbers(die: DieInput) -> None:
@@ -22,27 +31,52 @@ def check_die_numbers(die: DieInput) -> None:
         raise GeometryError("die part_id is empty: give the part a name")
     if not die.height_mm > 0:
         raise GeometryError(f"die {die.part_id}: height {die.height_mm} mm must be positive")
-    if not die.top_radius_mm > 0:
-        raise GeometryError(f"die {die.part_id}: top radius {die.top_radius_mm} mm must be positive")
-    if not 0.0 <= die.undercut_deg <= MAX_UNDERCUT_DEG:
-        raise GeometryError(
-            f"die {die.part_id}: undercut {die.undercut_deg}° must lie between 0 and {MAX_UNDERCUT_DEG:g}°"
-        )
     if not die.cutter_radius_mm > 0:
         raise GeometryError(f"die {die.part_id}: {die.inside_limit_text} must be positive")
-    arc_depth = die_wall.fillet_end_depth_mm(die.top_radius_mm, die.undercut_deg)
-    if arc_depth >= die.height_mm - 0.05:
-        raise GeometryError(
-            f"die {die.part_id}: the top-edge radius {die.top_radius_mm} mm reaches {arc_depth:.2f} mm down, "
-            f"which leaves no straight wall in a {die.height_mm} mm block: use thicker stock or a smaller radius"
-        )
+    for profile in profiles(die):
+        radius, lean = profile.radius_mm, profile.lean_deg
+        if not radius > 0:
+            raise GeometryError(f"die {die.part_id}: top radius {radius} mm must be positive")
+        if not MIN_LEAN_DEG <= lean <= MAX_UNDERCUT_DEG:
+            raise GeometryError(
+                f"die {die.part_id}: undercut {lean}° must lie between {MIN_LEAN_DEG:g}° (a wall leaning out, under "
+                f"a flange bent through less than 90°) and {MAX_UNDERCUT_DEG:g}°"
+            )
+        arc_depth = die_wall.fillet_end_depth_mm(radius, lean)
+        if arc_depth >= die.height_mm - 0.05:
+            raise GeometryError(
+                f"die {die.part_id}: the top-edge radius {radius} mm reaches {arc_depth:.2f} mm down, "
+                f"which leaves no straight wall in a {die.height_mm} mm block: use thicker stock or a smaller radius"
+            )
     if die.bore_radius_mm <= 0:
         raise GeometryError(f"die {die.part_id}: bore top radius {die.bore_radius_mm} mm must be positive")
 
 
+def profiles(die: DieInput) -> tuple[WallProfile, ...]:
+    """The die's wall profiles: its one (``top_radius_mm``, ``undercut_deg``), or each of its flange runs' own."""
+    if die.profiles is None:
+        return (WallProfile(die.top_radius_mm, die.undercut_deg),)
+    return tuple(dict.fromkeys(p for p in die.profiles if p is not None))
+
+
+def varying_wall(die: DieInput) -> WallPlan | None:
+    """The wall along ``die``'s outline where its flange runs have profiles of their own (None: one profile)."""
+    try:
+        return wall_plan(die)
+    except GeometryError as exc:
+        raise GeometryError(str(exc)) from None
+
+
 def largest_inset_mm(die: DieInput) -> float:
     """The largest inset of any section: the top setback or the bottom inset (mm)."""
-    return die_wall.largest_inset_mm(die.top_radius_mm, die.undercut_deg, die.height_mm)
+    if die.profiles is None:
+        return die_wall.largest_inset_mm(die.top_radius_mm, die.undercut_deg, die.height_mm)
+    return max(die_wall.largest_inset_mm(p.radius_mm, p.lean_deg, die.height_mm) for p in profiles(die))
+
+
+def largest_outset_mm(die: DieInput) -> float:
+    """How far outside the outline the die reaches at its foot, where its wall leans out (mm; 0: it does not)."""
+    return max(die_wall.largest_outset_mm(p.radius_mm, p.lean_deg, die.height_mm) for p in profiles(die))
 
 
 def outline_model(die: DieInput, settings: BuildSettings = DEFAULT_SETTINGS) -> OutlineModel:
@@ -59,11 +93,13 @@ def outline_model(die: DieInput, settings: BuildSettings = DEFAULT_SETTINGS) -> 
             f"die {die.part_id}: a flute tapers over {max(flute_lengths(die)):g} mm, more than the die's flute "
             f"length {die.flute_length_mm:g} mm: set the die's flute length to the longest flute's (its tallest "
             "fluted flange)")
+    plan = varying_wall(die)
     try:
         return OutlineModel(die.outline, die.cutter_radius_mm, largest_inset_mm(die),
                             sample_tol_mm=settings.outline_tol_mm, max_spacing_mm=settings.max_spacing_mm,
                             flutes=die.flutes, limit_text=die.inside_limit_text, min_land_mm=die.min_land_mm,
-                            flute_length_mm=die.flute_length_mm)
+                            flute_length_mm=die.flute_length_mm, max_outset_mm=largest_outset_mm(die),
+                            varying_mm=() if plan is None else plan.varying_mm)
     except GeometryError as exc:
         raise GeometryError(f"die {die.part_id}: {exc}") from exc
 
@@ -110,6 +146,71 @@ def loft_sections(die: DieInput, settings: BuildSettings = DEFAULT_SETTINGS
 
 
 
+def loft_levels(die: DieInput, settings: BuildSettings = DEFAULT_SETTINGS
+                ) -> tuple[tuple[Level, ...], tuple[Level, ...]]:
+    """The sections the kernel lofts the wall through, as :func:`level_section` takes them: a die of one profile's
+    (:func:`loft_sections`), or for a die whose profile changes along the outline its loft levels — the top-edge
+    arc at even fractions of each profile's arc, then down the wall, plane, from below the deepest arc's end: where
+    the flutes reach full depth and at the bottom face."""
+    if die.profiles is None:
+        return loft_sections(die, settings)
+    count = settings.fillet_sections
+    arc = tuple(LoftLevel(i / (count - 1)) for i in range(count))
+    deepest = max(die_wall.fillet_end_depth_mm(p.radius_mm, p.lean_deg) for p in profiles(die))
+    depths = [length for length in flute_lengths(die) if deepest + 0.05 < length < die.height_mm - 0.05]
+    return arc, (arc[-1], *(LoftLevel(None, d) for d in (*depths, die.height_mm)))
+
+
+def level_depth_mm(level: Level) -> float:
+    """The nominal depth of a section (the plane's; an arc level's depth changes along the outline: 0 here)."""
+    return level.depth_mm
+
+
+def level_section(die: DieInput, model: OutlineModel, level: Level, spacing_mm: float | None = None
+                  ) -> list[OffsetPiece]:
+    """The die's section at ``level`` (:func:`loft_levels`); a die whose profile changes along the outline gives
+    each point its own depth (``OffsetPiece.depths``)."""
+    if isinstance(level, die_wall.WallSection):
+        if spacing_mm is None:
+            return section(die, model, level.inset_mm, level.depth_mm)
+        return model.offset(level.inset_mm, spacing_mm=spacing_mm, flute_scale=flute_scale(die, level.depth_mm))
+    plan = varying_wall(die)
+    assert plan is not None, "loft levels belong to a die whose profile changes along the outline"
+    try:
+        return model.offset_along(lambda at: plan.values(at, level), key=level, spacing_mm=spacing_mm,
+                                  flute_length_mm=die.flute_length_mm if die.flutes else 0.0)
+    except GeometryError as exc:
+        raise GeometryError(f"die {die.part_id}: {exc}") from None
+
+
+def top_level(die: DieInput) -> Level:
+    """The flat top face's edge: the top setback, at the top face."""
+    if die.profiles is None:
+        return die_wall.WallSection(top_face_inset_mm(die), 0.0)
+    return LoftLevel(0.0)
+
+
+def depth_level(die: DieInput, depth_mm: float, on_wall_line: bool = False) -> Level:
+    """The plane section ``depth_mm`` down: on the die's wall (the top-edge arc where it reaches that deep), or,
+    ``on_wall_line``, on the straight wall's line extended to the top face (a laminate layer's outline)."""
+    if die.profiles is None:
+        inset = die_wall.wall_inset_mm(depth_mm, die.undercut_deg)
+        return die_wall.WallSection(inset, depth_mm)
+    return LoftLevel(None, depth_mm, on_wall_line)
+
+
+def level_insets(die: DieInput) -> list[tuple[float, float]]:
+    """(inset, depth) of every profile of the die at every level it is lofted through (mm)."""
+    arc, wall = loft_levels(die)
+    found = []
+    for level in (*arc, *wall):
+        if isinstance(level, die_wall.WallSection):
+            found.append((level.inset_mm, level.depth_mm))
+        else:
+            found += [(q.inset_mm, q.depth_mm) for q in (level_point(p, level) for p in profiles(die))]
+    return found
+
+
 def top_face_inset_mm(die: DieInput) -> float:
     """Inset of the flat top face's edge from the outline: the top setback (mm)."""
     return die_wall.top_setback_mm(die.top_radius_mm, die.undercut_deg)
@@ -120,5 +221,7 @@ def bottom_inset_mm(die: DieInput) -> float:
     return die_wall.wall_inset_mm(die.height_mm, die.undercut_deg)
 
 
-__all__ = ["MAX_UNDERCUT_DEG", "bottom_inset_mm", "check_die_numbers", "flute_lengths", "flute_scale",
-           "largest_inset_mm", "loft_sections", "outline_model", "section", "top_face_inset_mm"]
+__all__ = ["MAX_UNDERCUT_DEG", "MIN_LEAN_DEG", "Level", "bottom_inset_mm", "check_die_numbers", "depth_level",
+           "flute_lengths", "flute_scale", "largest_inset_mm", "largest_outset_mm", "level_depth_mm", "level_insets",
+           "level_section", "loft_levels", "loft_sections", "outline_model", "profiles", "section", "top_face_inset_mm",
+           "top_level", "varying_wall"]

@@ -27,7 +27,7 @@ from __future__ import annotations
 
 import itertools
 import math
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 
 import numpy as np
@@ -59,7 +59,13 @@ MAX_EXTENSION_MM = 0.05  # how far a segment may be extended past its end to mee
 GROOVE_SAMPLES = 25  # samples across a flute: the spline then follows its arc within 1e-5 mm (h⁴/384r³)
 MIN_GROOVE_GAP_MM = 0.2  # least land left between two flutes' lips (design choice: a thinner fin will not sew)
 LIP_CLEARANCE_MM = 0.5  # least wall between a flute's lip and a corner trim (design choice)
+SMOOTH_JUNCTION_DEG = 1.0  # edges meeting at a smaller turn run on into each other (no corner)
+VARYING_STEP_MM = 2.0  # longest sample step where the wall's inset changes along the outline
 RADIUS_TOL_MM = 1e-3  # a curve this much tighter than the tool's radius is the same curve (a micrometre is no shape)
+MITRE_REACH = 4.0  # a straight edge may be extended this many times a wall's outward lean to meet its neighbour
+
+#: (inset, d inset / d s, depth) in mm at positions along the outline model's parameter
+WallValues = Callable[[FloatArray], tuple[FloatArray, FloatArray, FloatArray]]
 
 
 def _rot90(v: FloatArray) -> FloatArray:
@@ -171,6 +177,7 @@ class OffsetPiece:
     points: tuple[tuple[float, float], ...]
     params: tuple[float, ...] | None = None
     closed: bool = False
+    depths: tuple[float, ...] | None = None  # each point's depth below the top face (None: the section's own)
 
 
 @dataclass(frozen=True)
@@ -212,6 +219,7 @@ class _Span:
     trim_start: bool = False
     trim_stop: bool = False
     groove: _Groove | None = None
+    varying: bool = False  # the wall's inset changes along it (a line span is then sampled as a curve)
 
 
 class OutlineModel:
@@ -228,17 +236,21 @@ class OutlineModel:
     def __init__(self, runs: tuple[DieRun, ...], cutter_radius_mm: float, max_inset_mm: float,
                  sample_tol_mm: float = 0.001, max_spacing_mm: float = 6.0, flutes: Sequence[DieFlute] = (),
                  limit_text: str | None = None, min_land_mm: float = MIN_GROOVE_GAP_MM,
-                 flute_length_mm: float = 0.0) -> None:
+                 flute_length_mm: float = 0.0, max_outset_mm: float = 0.0,
+                 varying_mm: Sequence[tuple[float, float]] = ()) -> None:
         self.cutter_radius_mm = cutter_radius_mm
         self.limit_text = limit_text or f"the router cutter radius {cutter_radius_mm:g} mm"
         self.min_land_mm = max(min_land_mm, MIN_GROOVE_GAP_MM)
         self.max_inset_mm = max_inset_mm
+        self.max_outset_mm = max_outset_mm
+        self.varying_mm = tuple(varying_mm)
         self.sample_tol_mm = sample_tol_mm
         self.max_spacing_mm = max_spacing_mm
         self.segments: list[_Segment] = []
         self.periodic = False
         self._corner_cache: dict[float, tuple[list[float], list[float], dict[int, FloatArray]]] = {}
         self._build(runs)
+        self.segment_starts = np.concatenate([[0.0], np.cumsum([seg.length for seg in self.segments])])
         self._check_loop()
         self._check_curvature()
         self._lip_ranges: dict[int, tuple[float, float]] = {}
@@ -319,6 +331,14 @@ class OutlineModel:
                     f"inside curve of radius {1.0 / -k[i]:.3f} mm in the die outline at ({p[0]:.2f}, {p[1]:.2f}) mm "
                     f"is tighter than {self.limit_text}: round it to at least that, or use a smaller cutter"
                 )
+            i = int(np.argmin(k))
+            if self.max_outset_mm > 0 and k[i] < 0 and 1.0 / -k[i] < self.max_outset_mm + 0.05:
+                p = seg.base(s[i])
+                raise GeometryError(
+                    f"inside curve of radius {1.0 / -k[i]:.2f} mm in the die outline at ({p[0]:.2f}, {p[1]:.2f}) mm "
+                    f"is tighter than the {self.max_outset_mm:.2f} mm the die's wall leans out at its foot (under "
+                    "a flange bent through less than 90°): round it to a larger radius, use lower die stock, or "
+                    "give the flange there a larger angle")
             i = int(np.argmax(k))
             if k[i] > 0 and 1.0 / k[i] < self.max_inset_mm + 0.05:
                 p = seg.base(s[i])
@@ -410,8 +430,33 @@ class OutlineModel:
                     f"(at least {self.min_land_mm:g} mm): space them further apart or make them narrower")
         return grooves
 
+    def _varies(self, index: int, s0: float, s1: float) -> bool:
+        """Whether the stretch ``s0``–``s1`` of segment ``index`` overlaps a stretch where the wall changes."""
+        start, total = float(self.segment_starts[index]), float(self.segment_starts[-1])
+        for lo, hi in self.varying_mm:
+            for shift in (-total, 0.0, total):
+                if start + s0 < hi + shift and lo + shift < start + s1:
+                    return True
+        return False
+
     def _plan_spans(self) -> list[_Span]:
         """The edges every section is made of, in loop order."""
+        spans = self._plain_spans()
+        if not self.varying_mm:
+            return spans
+        planned = []
+        for span in spans:
+            if span.kind == "groove" or not self._varies(span.segment, span.s0, span.s1):
+                planned.append(span)
+                continue
+            length = span.s1 - span.s0
+            even = np.linspace(0.0, 1.0, max(8, math.ceil(length / VARYING_STEP_MM) + 1))
+            fr = even if span.kind == "line" else _merged(span.fractions, even, 0.25 * VARYING_STEP_MM / length)
+            planned.append(_Span(span.segment, span.kind, span.s0, span.s1, fr, span.trim_start, span.trim_stop,
+                                 varying=True))
+        return planned
+
+    def _plain_spans(self) -> list[_Span]:
         spans: list[_Span] = []
         for index, seg in enumerate(self.segments):
             if isinstance(seg, _LineSegment):
@@ -490,8 +535,22 @@ class OutlineModel:
         return np.concatenate(parts)
 
     # -- offsets ------------------------------------------------------------------
+    @staticmethod
+    def _smooth(a: _Segment, b: _Segment) -> bool:
+        """Whether ``a`` runs on into ``b`` without a corner (their tangents within ``SMOOTH_JUNCTION_DEG``)."""
+        ta, tb = a.tangent(a.length), b.tangent(0.0)
+        turn = math.degrees(math.atan2(float(ta[0] * tb[1] - ta[1] * tb[0]), float(np.dot(ta, tb))))
+        return abs(turn) < SMOOTH_JUNCTION_DEG
+
     def _junction(self, a: _Segment, b: _Segment, inset: float) -> tuple[float, float]:
-        """Parameters (on a, on b) where the offsets of a and b meet at ``inset``."""
+        """Parameters (on a, on b) where the offsets of a and b meet at ``inset``.
+
+        Outward (a wall leaning out, ``inset`` < 0) two edges that run on into each other meet at their shared end:
+        their offsets are nearly parallel there, so where they cross is ill-conditioned (a spline's end tangent is
+        off its neighbour's by a fraction of a degree) and only a few hundredths of a millimetre from the ends.
+        """
+        if inset < 0.0 and self._smooth(a, b):
+            return a.length, 0.0
         sa, sb = a.length, 0.0
         for _ in range(50):
             (pa, da), (pb, db) = a.point_and_deriv(sa, inset), b.point_and_deriv(sb, inset)
@@ -502,9 +561,18 @@ class OutlineModel:
             step = np.linalg.lstsq(jac, -f, rcond=1e-12)[0]
             sa, sb = sa + float(step[0]), sb + float(step[1])
         f = a.point(sa, inset) - b.point(sb, inset)
-        if float(np.linalg.norm(f)) > 1e-7 or sa > a.length + MAX_EXTENSION_MM or sb < -MAX_EXTENSION_MM \
+        reach = MAX_EXTENSION_MM
+        if inset < 0.0 and isinstance(a, _LineSegment) and isinstance(b, _LineSegment):
+            reach += MITRE_REACH * -inset  # a wall leaning out: two straight edges meet beyond the corner
+        if float(np.linalg.norm(f)) > 1e-7 or sa > a.length + reach or sb < -reach \
                 or sa < 0.0 or sb > b.length:
             p = a.point(a.length, 0.0)
+            if inset < 0.0:
+                raise GeometryError(
+                    f"the die wall leaning out {-inset:.2f} mm (under a flange bent through less than 90°) cannot "
+                    f"be closed at the corner ({p[0]:.2f}, {p[1]:.2f}) mm: a curved edge meets it there or the "
+                    "corner is too sharp; round the corner, use lower die stock, or give the flange there a larger "
+                    "angle")
             raise GeometryError(
                 f"the die outline offset inward by {inset:.3f} mm cannot be closed at the corner "
                 f"({p[0]:.2f}, {p[1]:.2f}) mm: an edge next to it is too short or the corner too sharp; lower the "
@@ -573,6 +641,132 @@ class OutlineModel:
         self._check_simple(pieces, inset)
         return pieces
 
+    # -- offsets of a wall that changes along the outline ----------------------------------------------------------
+    def offset_along(self, values: WallValues, key: object, spacing_mm: float | None = None,
+                     flute_length_mm: float = 0.0) -> list[OffsetPiece]:
+        """The section whose inset and depth change along the outline: ``values(at)`` gives (inset, its slope
+        d inset / d s, depth), mm, at positions ``at`` along the outline model's parameter (``segment_starts``).
+
+        The same sequence of pieces as :meth:`offset`, each point with its own depth (``OffsetPiece.depths``).  A
+        point at inset u(s) is ``base(s) + u(s)·n(s)`` (exact normal offset); corners are where the two
+        neighbours' offsets meet (Newton's method, with the slope of u).  Flutes sink by their circular segment
+        scaled by depth / ``flute_length_mm`` (0: no flutes) at each point.  ``key`` names the section for the
+        model's cache of corners (the same key, the same ``values``).
+        """
+        n = len(self.segments)
+        starts, stops, corner, corner_depth = self._corners_along(values, key)
+        pieces = []
+        for span in self.spans:
+            seg = self.segments[span.segment]
+            origin = float(self.segment_starts[span.segment])
+            if span.kind == "line" and not span.varying:
+                before = span.segment - 1 if span.segment else n - 1
+                pts = np.array([corner[before], corner[span.segment]])
+                pieces.append(OffsetPiece("line", _points(pts), depths=(corner_depth[before],
+                                                                       corner_depth[span.segment])))
+                continue
+            if span.kind == "groove":
+                pieces.append(self._groove_piece_along(span, values, flute_length_mm))
+                continue
+            a = starts[span.segment] if span.trim_start else span.s0
+            b = stops[span.segment] if span.trim_stop else span.s1
+            fr = span.fractions if spacing_mm is None or span.varying else self._even(b - a, spacing_mm)
+            s_at = a + fr * (b - a)
+            inset, _, depth = values(origin + np.clip(s_at, 0.0, seg.length))
+            pts = seg.point(s_at, 0.0) + inset[:, None] * _rot90(seg.tangent(s_at))
+            if span.trim_start:
+                pts[0] = corner[(span.segment - 1) % n]
+                depth[0] = corner_depth[(span.segment - 1) % n]
+            if span.trim_stop:
+                pts[-1] = corner[span.segment]
+                depth[-1] = corner_depth[span.segment]
+            pieces.append(OffsetPiece("curve", _points(pts), tuple(map(float, fr)),
+                                      depths=tuple(map(float, depth))))
+        self._check_simple(pieces, None)
+        return pieces
+
+    def _groove_piece_along(self, span: _Span, values: WallValues, flute_length_mm: float) -> OffsetPiece:
+        g = span.groove
+        assert g is not None
+        phi = (2.0 * span.fractions - 1.0) * g.half_angle
+        s = g.s_mid + g.radius * np.sin(phi)
+        seg = self.segments[span.segment]
+        inset, _, depth = values(float(self.segment_starts[span.segment]) + s)
+        scale = np.clip(depth / flute_length_mm, 0.0, 1.0) if flute_length_mm > 0 else np.zeros_like(depth)
+        scale = np.minimum(scale * g.taper_ratio, 1.0)
+        sink = scale * (g.radius * np.cos(phi) - (g.radius - g.depth))
+        sink[[0, -1]] = 0.0  # the lips lie on the wall exactly
+        pts = seg.point(s, 0.0) + (inset + sink)[:, None] * _rot90(seg.tangent(s))
+        return OffsetPiece("curve", _points(pts), tuple(map(float, span.fractions)), depths=tuple(map(float, depth)))
+
+    def _at(self, values: WallValues, index: int, s: float) -> tuple[float, float, float]:
+        seg = self.segments[index]
+        u, du, d = values(np.array([float(self.segment_starts[index]) + min(max(s, 0.0), seg.length)]))
+        return float(u[0]), float(du[0]), float(d[0])
+
+    def _point_along(self, index: int, s: float, values: WallValues) -> tuple[FloatArray, FloatArray, float]:
+        """Point, derivative and depth of segment ``index``'s offset at parameter ``s`` for a changing inset."""
+        seg = self.segments[index]
+        u, du, d = self._at(values, index, s)
+        point, deriv = seg.point_and_deriv(s, u)
+        if 0.0 <= s <= seg.length:
+            deriv = deriv + du * _rot90(seg.tangent(s))
+        return point, deriv, d
+
+    def _junction_along(self, index: int, values: WallValues) -> tuple[float, float]:
+        """Parameters (on segment ``index``, on the next) where their offsets meet, the inset changing along."""
+        n = len(self.segments)
+        a, b = self.segments[index], self.segments[(index + 1) % n]
+        if self._at(values, index, a.length)[0] < 0.0 and self._smooth(a, b):
+            return a.length, 0.0  # see _junction
+        sa, sb = a.length, 0.0
+        for _ in range(60):
+            (pa, da, _), (pb, db, _) = self._point_along(index, sa, values), self._point_along((index + 1) % n, sb,
+                                                                                              values)
+            f = pa - pb
+            if float(np.linalg.norm(f)) < 1e-10:
+                break
+            step = np.linalg.lstsq(np.column_stack([da, -db]), -f, rcond=1e-12)[0]
+            sa, sb = sa + float(step[0]), sb + float(step[1])
+        f = self._point_along(index, sa, values)[0] - self._point_along((index + 1) % n, sb, values)[0]
+        inset = self._at(values, index, sa)[0]
+        reach = MAX_EXTENSION_MM if inset >= 0 else MAX_EXTENSION_MM + MITRE_REACH * -inset
+        extends_line = isinstance(a, _LineSegment) and isinstance(b, _LineSegment)
+        if float(np.linalg.norm(f)) > 1e-7 or sa < 0.0 or sb > b.length or \
+                sa > a.length + (reach if extends_line else MAX_EXTENSION_MM) or \
+                sb < -(reach if extends_line else MAX_EXTENSION_MM):
+            p = a.point(a.length, 0.0)
+            where = f"({p[0]:.2f}, {p[1]:.2f}) mm"
+            if inset < 0:
+                raise GeometryError(
+                    f"the die wall leaning out {-inset:.2f} mm (under a flange bent through less than 90°) cannot "
+                    f"be closed at the corner {where}: a curved edge meets it there or the corner is too sharp; "
+                    "round the corner, use lower die stock, or give the flange there a larger angle")
+            raise GeometryError(
+                f"the die outline offset inward by {inset:.3f} mm cannot be closed at the corner {where}: an edge "
+                "next to it is too short or the corner too sharp; lower the top radius or the undercut (lower die "
+                "stock)")
+        return sa, sb
+
+    def _corners_along(self, values: WallValues, key: object
+                       ) -> tuple[list[float], list[float], dict[int, FloatArray], dict[int, float]]:
+        cache: dict[object, tuple] = self.__dict__.setdefault("_corner_along_cache", {})
+        if key not in cache:
+            n = len(self.segments)
+            starts = [0.0] * n
+            stops = [seg.length for seg in self.segments]
+            corner: dict[int, FloatArray] = {}
+            depth: dict[int, float] = {}
+            for i in range(n):
+                sa, sb = self._junction_along(i, values)
+                stops[i] = sa
+                starts[(i + 1) % n] = sb
+                corner[i] = self._point_along(i, sa, values)[0]
+                depth[i] = self._at(values, i, sa)[2]
+            cache[key] = (starts, stops, corner, depth)
+        starts, stops, corner, depth = cache[key]
+        return list(starts), list(stops), dict(corner), dict(depth)
+
     def _groove_piece(self, span: _Span, inset: float, flute_scale: float) -> OffsetPiece:
         g = span.groove
         assert g is not None
@@ -590,9 +784,16 @@ class OutlineModel:
         return np.linspace(0.0, 1.0, max(4, math.ceil(length / spacing_mm) + 1))
 
     @staticmethod
-    def _check_simple(pieces: list[OffsetPiece], inset: float) -> None:
+    def _check_simple(pieces: list[OffsetPiece], inset: float | None) -> None:
         poly = pieces_to_polygon(pieces)
         if not poly.is_valid or poly.area <= 0.0:
+            if inset is None:
+                deepest = max(max(p.depths or (0.0,)) for p in pieces)
+                raise GeometryError(
+                    f"the die's section {deepest:.2f} mm down crosses itself ({explain_validity(poly)}): the piece "
+                    "is too thin there for its wall, or a wall leaning out (under a flange bent through less than "
+                    "90°) meets another; lower the top radius, use lower die stock, or give the flange there a "
+                    "larger angle")
             raise GeometryError(
                 f"the die outline offset inward by {inset:.3f} mm crosses itself ({explain_validity(poly)}): "
                 "the piece is too thin there for its wall; lower the top radius or the undercut, "
@@ -606,6 +807,17 @@ def flute_taper_ratio(die_flute_length_mm: float, flute: DieFlute) -> float:
     if flute.length_mm <= 0.0 or die_flute_length_mm <= 0.0 or flute.length_mm == die_flute_length_mm:
         return 1.0
     return die_flute_length_mm / flute.length_mm
+
+
+def _merged(a: FloatArray, b: FloatArray, least: float) -> FloatArray:
+    """The sample fractions of ``a`` and ``b`` together (both from 0 to 1), none closer than ``least`` to the one
+    before (a near pair would make the interpolating spline wiggle)."""
+    kept = [0.0]
+    for f in np.sort(np.concatenate([a, b])):
+        if f - kept[-1] >= least and f < 1.0 - least:
+            kept.append(float(f))
+    kept.append(1.0)
+    return np.asarray(kept)
 
 
 def _points(pts: FloatArray) -> tuple[tuple[float, float], ...]:

@@ -26,7 +26,7 @@ from shapely.ops import polylabel
 
 from diegen.die import lettering
 from diegen.die.die_input import DieInput
-from diegen.die.model import section
+from diegen.die.model import depth_level, level_section, section, top_level
 from diegen.die.outline import OutlineModel, pieces_to_polygon
 from diegen.die.settings import BuildSettings
 from diegen.errors import GeometryError, NoRoomForMarks
@@ -37,11 +37,16 @@ __all__ = ["ARROW_LENGTH", "check_placement", "engraving_marks"]
 
 def smallest_section(die: DieInput, model: OutlineModel) -> Polygon:
     """What every horizontal section of the die contains: the flat top face and the bottom face, flutes and all."""
-    top = pieces_to_polygon(model.offset(die_wall.top_setback_mm(die.top_radius_mm, die.undercut_deg)))
+    if die.profiles is None:
+        top = pieces_to_polygon(model.offset(die_wall.top_setback_mm(die.top_radius_mm, die.undercut_deg)))
+    else:
+        top = pieces_to_polygon(level_section(die, model, top_level(die)))
     return top.intersection(_bottom_section(die, model))
 
 
 def _bottom_section(die: DieInput, model: OutlineModel) -> Polygon:
+    if die.profiles is not None:
+        return pieces_to_polygon(level_section(die, model, depth_level(die, die.height_mm)))
     return pieces_to_polygon(section(die, model, die_wall.wall_inset_mm(die.height_mm, die.undercut_deg),
                                      die.height_mm))
 

@@ -16,7 +16,7 @@ from __future__ import annotations
 
 from diegen.die.die_input import DieInput
 from diegen.die.laminate import layer_outlines
-from diegen.die.model import loft_sections, outline_model, section
+from diegen.die.model import level_section, loft_levels, outline_model
 from diegen.die.outline import OutlineModel
 from diegen.die.placement import check_placement
 from diegen.die.settings import DEFAULT_SETTINGS, BuildSettings
@@ -27,9 +27,9 @@ from diegen.errors import GeometryError
 def check_die(die: DieInput, settings: BuildSettings = DEFAULT_SETTINGS) -> OutlineModel:
     """The checked outline model of ``die``; :class:`GeometryError` for the first thing the builder would refuse."""
     model = outline_model(die, settings)
-    arc, wall = loft_sections(die, settings)
-    for s in arc + wall[1:]:
-        section(die, model, s.inset_mm, s.depth_mm)
+    arc, wall = loft_levels(die, settings)
+    for level in arc + wall[1:]:
+        level_section(die, model, level)
     check_placement(die, model, settings)
     if die.layer_mm:
         layer_outlines(die, model, die.layer_mm)

@@ -101,12 +101,14 @@ class DieFootprint:
 
 @dataclass(frozen=True)
 class FlangeLeg:
-    """One flange the press must fold: its height (mm) and the radius it is pressed onto (mm)."""
+    """One flange the press must fold: its height (mm), the radius it is pressed onto (mm) and the angle it is
+    bent through from the web (degrees; 90 for a square flange)."""
 
     name: str
     kind: LegKind
     leg_mm: float
     radius_mm: float
+    angle_deg: float = 90.0
 
 
 @dataclass(frozen=True)
@@ -121,7 +123,8 @@ class LegResult:
 
     @property
     def full(self) -> bool:
-        return self.angle_deg >= 90.0
+        """Whether the press folds the leg all the way onto its die (to its own angle)."""
+        return self.angle_deg >= self.leg.angle_deg
 
 
 def box_pressure(force_n: float, box_w_mm: float, box_l_mm: float) -> float:
@@ -161,7 +164,9 @@ def fold(leg: FlangeLeg, pressure_mpa: float, thickness_mm: float, yield_mpa: fl
         angle = 0.0
     else:
         angle = min(90.0, 90.0 * ((leg.leg_mm - lever) / (leg.leg_mm - leg.radius_mm)) ** FOLD_EXPONENT)
-    return LegResult(leg, start, full, max(lever, leg.radius_mm), angle)
+    # a flange bent through less than 90° is set on its die at the same hinge lever (the die radius): the fold angle
+    # the model gives a square flange, capped at the leg's own angle
+    return LegResult(leg, start, full, max(lever, leg.radius_mm), min(angle, leg.angle_deg))
 
 
 def durometer_advice(shore_a: float) -> str:

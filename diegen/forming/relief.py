@@ -207,12 +207,14 @@ def shrink_runs(profile: StrainProfile, limit: float) -> tuple[ShrinkRun, ...]:
 
     In the shrink region ``(|e| - limit)*(1 + w*kappa) = w*kappa - limit*(1 + w*kappa)``,
     linear in the sampled curvature, so the excess integral and the run ends
-    are found exactly on the profile's samples.
+    are found exactly on the profile's samples.  A flange bent through θ < 90° gathers only
+    ``w*(1 - cos θ)*kappa`` of edge (``profile.reach_loss``).
     """
     _check_limit(limit)
     w = profile.width_mm
     kappa = profile.curvature_per_mm
-    g = w * kappa - limit * (1.0 + w * kappa)
+    loss = profile.reach_loss
+    g = (w * kappa if loss == 1.0 else w * loss * kappa) - limit * (1.0 + w * kappa)
     total = profile.length_mm
     runs = []
     for start, length, idx, area in _runs(profile.s_mm, g, total, profile.closed):
@@ -232,15 +234,17 @@ def shrink_runs(profile: StrainProfile, limit: float) -> tuple[ShrinkRun, ...]:
     return tuple(runs)
 
 
-def stretch_limit_width(radius: float, limit: float) -> float:
+def stretch_limit_width(radius: float, limit: float, reach_loss: float = 1.0) -> float:
     """Widest flange (mm) whose edge stretch ``w/(rho - w)`` stays within ``limit`` on plan radius ``radius`` (mm).
 
-    Inverse of the stretch-flange formula: ``w = limit*rho/(1 + limit)``.
+    Inverse of the stretch-flange formula: ``w = limit*rho/(1 + limit)``; for a flange bent through θ < 90°, whose
+    edge stretches ``w·(1 − cos θ)/(rho − w)`` (:func:`diegen.forming.strain.reach_loss`),
+    ``w = limit*rho/((1 − cos θ) + limit)``.
     """
     _check_limit(limit)
     if not radius > 0.0:
         raise FormingError(f"plan radius must be > 0 mm, got {radius!r}")
-    return math.inf if math.isinf(radius) else limit * radius / (1.0 + limit)
+    return math.inf if math.isinf(radius) else limit * radius / (reach_loss + limit)
 
 
 def shrink_limit_width(radius: float, limit: float) -> float:
@@ -258,12 +262,13 @@ def stretch_runs(profile: StrainProfile, limit: float) -> tuple[StretchRun, ...]
     """Runs of outline where the edge stretch passes ``limit`` (or the flange is not formable).
 
     ``e > limit`` on a concave contour is ``-w*kappa > limit/(1 + limit)``,
-    again linear in the sampled curvature.  Each run carries the widest
-    flange that would pass the limit at its tightest radius.
+    again linear in the sampled curvature (``-w*kappa > limit/((1 - cos θ) + limit)`` for a flange bent through
+    θ < 90°: ``profile.reach_loss``).  Each run carries the widest flange that would pass the limit at its tightest
+    radius.
     """
     _check_limit(limit)
     w = profile.width_mm
-    g = -w * profile.curvature_per_mm - limit / (1.0 + limit)
+    g = -w * profile.curvature_per_mm - limit / (profile.reach_loss + limit)
     total = profile.length_mm
     runs = []
     for start, length, idx, _ in _runs(profile.s_mm, g, total, profile.closed):
@@ -280,7 +285,7 @@ def stretch_runs(profile: StrainProfile, limit: float) -> tuple[StretchRun, ...]
                 min_radius_mm=r_min,
                 formable=bool(np.all(profile.formable[idx])),
                 limit=limit,
-                allowed_width_mm=stretch_limit_width(r_min, limit),
+                allowed_width_mm=stretch_limit_width(r_min, limit, profile.reach_loss),
             )
         )
     return tuple(runs)

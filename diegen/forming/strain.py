@@ -51,16 +51,33 @@ def flange_edge_strain(radius: float, width: float, convex: bool) -> float:
     return width / (radius - width)
 
 
-def strain_from_curvature(curvature: ArrayLike, width: float) -> FloatArray:
-    """Edge strain for signed plan curvature(s) (1/mm, + convex) and width (mm).
+def reach_loss(angle_deg: float) -> float:
+    """The fraction of a flange's width by which forming draws its free edge in (plan), ``1 − cos θ``.
 
-    ``e = -w*kappa/(1 + w*kappa)``; ``+inf`` where ``1 + w*kappa <= 0`` (a
-    stretch flange at least as wide as its radius).
+    Derivation: a flange of developed width ``w`` bent through ``θ`` from the web leaves its free edge ``w·cos θ``
+    outside the bend line in plan (its horizontal reach) and ``w·sin θ`` below the web.  In the blank the edge
+    stood ``w`` outside it, so forming moves the edge in by ``w·(1 − cos θ)`` in plan; on a convex plan radius ρ
+    its length goes from ``(ρ + w)·φ`` to ``(ρ + w·cos θ)·φ``: ``e = −w·(1 − cos θ)/(ρ + w)``, and on a concave
+    one ``e = w·(1 − cos θ)/(ρ − w)``.  For a square flange (θ = 90°) this is the familiar ``∓w/(ρ ± w)``.
+    The bend itself is taken at the bend line (its own radius is small beside ρ: standard approximation).
+    """
+    if not math.isfinite(angle_deg) or not 0.0 < angle_deg <= 180.0:
+        raise FormingError(f"flange angle must lie in (0, 180] degrees, got {angle_deg!r}")
+    return 1.0 if angle_deg == 90.0 else 1.0 - math.cos(math.radians(angle_deg))
+
+
+def strain_from_curvature(curvature: ArrayLike, width: float, angle_deg: float = 90.0) -> FloatArray:
+    """Edge strain for signed plan curvature(s) (1/mm, + convex), width (mm) and the flange's angle (degrees).
+
+    ``e = -w*(1 - cos θ)*kappa/(1 + w*kappa)`` (:func:`reach_loss`); ``+inf`` where ``1 + w*kappa <= 0`` (a
+    stretch flange at least as wide as its radius: its blank edge would have to lie beyond the centre).
     """
     kappa = np.asarray(curvature, dtype=float)
     denom = 1.0 + width * kappa
+    loss = reach_loss(angle_deg)
+    reach = width if loss == 1.0 else width * loss
     with np.errstate(divide="ignore", invalid="ignore"):
-        e = np.where(denom > 0.0, -width * kappa / np.where(denom > 0.0, denom, 1.0), np.inf)
+        e = np.where(denom > 0.0, -reach * kappa / np.where(denom > 0.0, denom, 1.0), np.inf)
     return np.asarray(e, dtype=float)
 
 
@@ -85,6 +102,7 @@ class StrainProfile:
     window_mm: float
     length_mm: float  # total length of the outline (perimeter if closed)
     closed: bool
+    reach_loss: float = 1.0  # 1 − cos θ of the flange's angle θ (1: a square flange; see reach_loss)
 
     @property
     def max_shrink(self) -> float:
@@ -170,6 +188,7 @@ def strain_along(
     closed: bool,
     window: float | None = None,
     step: float | None = None,
+    angle_deg: float = 90.0,
 ) -> StrainProfile:
     """Flange edge strain along a polyline outline (N, 2) in mm.
 
@@ -184,7 +203,8 @@ def strain_along(
 
     ``window`` defaults to the flange width (mm); ``step`` (mm), the sample
     spacing, to a tenth of the window.  Samples are the outline's vertices plus
-    a uniform grid.  Open outlines clip the window at their ends.  Raises
+    a uniform grid.  Open outlines clip the window at their ends.  ``angle_deg`` is the angle the flange is bent
+    through from the web: under 90° its edge moves in by only ``w·(1 − cos θ)`` (:func:`reach_loss`).  Raises
     :class:`FormingError` for a clockwise closed outline or bad input.
     """
     if not math.isfinite(width) or width <= 0.0:
@@ -222,7 +242,7 @@ def strain_along(
     kappa[np.abs(kappa) < 1e-12 / win] = 0.0  # round-off on straight runs
     with np.errstate(divide="ignore"):
         radius = np.where(kappa != 0.0, 1.0 / np.abs(kappa), np.inf)
-    strain = strain_from_curvature(kappa, width)
+    strain = strain_from_curvature(kappa, width, angle_deg)
     formable = np.isfinite(strain)
     for arr in (s, kappa, radius, strain, formable):
         arr.setflags(write=False)
@@ -236,6 +256,7 @@ def strain_along(
         window_mm=win,
         length_mm=total,
         closed=closed,
+        reach_loss=reach_loss(angle_deg),
     )
 
 

@@ -26,7 +26,10 @@ class Run:
 
     ``flanged`` is False for a cut end (the tail's aft end) that gets no flange.  ``flange_height_mm`` is the
     run's own mold-line flange height (a drawn part's flange run of its own height); None for the spec's
-    ``flange.height`` (every rib run).  Consecutive runs share their end points; all runs of a piece form one closed
+    ``flange.height`` (every rib run).  ``bend_radius_mm`` and ``angle_deg`` are likewise the run's own inside bend
+    radius and the angle its flange is bent through from the web (None: the spec's ``flange.bend_radius``, 90°);
+    ``flange_key`` the spec key of the flange run it comes from (``flanges[2]``; "" for a rib's run).
+    Consecutive runs share their end points; all runs of a piece form one closed
     counter-clockwise loop.
     """
 
@@ -34,10 +37,21 @@ class Run:
     points: Points
     flanged: bool = True
     flange_height_mm: float | None = None
+    bend_radius_mm: float | None = None
+    angle_deg: float | None = None
+    flange_key: str = ""
 
     def height_mm(self, spec_height_mm: float) -> float:
         """The run's flange height (mm): its own, or the spec's ``spec_height_mm``."""
         return spec_height_mm if self.flange_height_mm is None else self.flange_height_mm
+
+    def radius_mm(self, spec_radius_mm: float) -> float:
+        """The run's inside bend radius (mm): its own, or the spec's ``spec_radius_mm``."""
+        return spec_radius_mm if self.bend_radius_mm is None else self.bend_radius_mm
+
+    def angle(self) -> float:
+        """The angle the run's flange is bent through from the web (degrees): its own, or 90."""
+        return 90.0 if self.angle_deg is None else self.angle_deg
 
 
 @dataclass(frozen=True)

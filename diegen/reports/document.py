@@ -5,7 +5,6 @@ Numbers in mm / MPa / degrees; strains as positive fractions.
 
 from __future__ import annotations
 
-import math
 from typing import Any
 
 from diegen import __version__
@@ -88,16 +87,24 @@ def _joggle_json(j) -> dict[str, Any]:
 
 
 def run_heights_json(p: PieceAnalysis) -> list[dict[str, Any]]:
-    """Per flange height of a part whose flange runs differ in height: its developed width, wrinkle limit, how far
-    the blank edge stands outside the die outline, and the die outline's runs (from, to) that carry it."""
+    """Per flange shape of a part whose flange runs differ (height, bend radius, angle): its developed width,
+    wrinkle limit, how far the blank edge stands outside the die outline, and the die outline's runs (from, to)
+    that carry it; where some run has its own bend radius or angle, each shape's bend: its die radius, die angle
+    and over-bend, bend allowance and setback, and the spec keys of its runs."""
     sb = p.springback
-    inset = sb.die_radius_mm * math.tan(math.radians(sb.die_angle_deg) / 2)
     runs = p.piece.runs
-    return [{"height_mm": _r(h.height_mm), "developed_width_mm": _r(h.layout.developed_width_mm),
-             "blank_offset_mm": _r(h.layout.developed_width_mm - inset), "shrink_limit": _r(h.shrink_limit, 4),
+    bends = [{"bend": {"flange_runs": list(h.keys), "part_radius_mm": _r(h.bend_radius_mm),
+                       "angle_deg": _r(h.angle_deg), "die_radius_mm": _r(h.die(sb).die_radius_mm),
+                       "die_angle_deg": _r(h.die(sb).die_angle_deg),
+                       "overbend_deg": _r(h.die(sb).die_angle_deg - h.angle_deg),
+                       "bend_allowance_mm": _r(h.layout.bend_allowance_mm), "setback_mm": _r(h.layout.setback_mm)}}
+             if p.mixed_bends else {} for h in p.shapes]
+    return [{**bend, "height_mm": _r(h.height_mm), "developed_width_mm": _r(h.layout.developed_width_mm),
+             "blank_offset_mm": _r(h.layout.developed_width_mm - h.tangent_inset_mm(sb)),
+             "shrink_limit": _r(h.shrink_limit, 4),
              "die_runs": [{"from": [_r(runs[i].points[0][0]), _r(runs[i].points[0][1])],
                            "to": [_r(runs[i].points[-1][0]), _r(runs[i].points[-1][1])]} for i in h.run_indexes]}
-            for h in p.heights]
+            for h, bend in zip(p.shapes, bends, strict=True)]
 
 
 def piece_json(rib: RibAnalysis, p: PieceAnalysis) -> dict[str, Any]:

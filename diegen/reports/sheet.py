@@ -29,11 +29,18 @@ _MM_ROUND_OVERS = tuple(float(r) for r in range(1, 13))
 
 
 def _flange_heights(piece: PieceAnalysis, shared) -> str:
-    """"flange H" for one height, or each height of a part whose flange runs differ, with their run counts."""
+    """"flange H" for one height, or each height of a part whose flange runs differ, with their run counts; each
+    run's bend radius and angle where some run has its own."""
+    if piece.mixed_bends:
+        each = "; ".join(f"{', '.join(h.keys) or 'flanges'}: {_both(h.height_mm)} at inside radius "
+                         f"{_both(h.bend_radius_mm)}, bent through {h.angle_deg:g}° (die radius "
+                         f"{_both(h.die(piece.springback).die_radius_mm)}, over-bend "
+                         f"{h.die(piece.springback).die_angle_deg - h.angle_deg:.1f}°)" for h in piece.shapes)
+        return f"flange runs of their own shape ({each})"
     if not piece.mixed_heights:
         return f"flange {_both(shared.flange.height_mm)}"
     each = ", ".join(f"{_both(h.height_mm)} ({len(h.run_indexes)} run{'s' if len(h.run_indexes) > 1 else ''})"
-                     for h in piece.heights)
+                     for h in piece.shapes)
     return f"flange runs of their own heights, {each},"
 
 
@@ -74,9 +81,10 @@ def _header(rib: RibAnalysis, piece: PieceAnalysis) -> list[str]:
         f"# Shop sheet — {g.part_id}",
         "",
         what +
-        f"Sheet **{piece.alloy.name} {_both(shared.sheet.thickness_mm)}**; {_flange_heights(piece, shared)} "
-        f"at inside radius {_both(sb.part_radius_mm)}" + (
-            "; the blank's edge steps where two heights meet" if len(piece.heights) > 1 else "") + ".",
+        f"Sheet **{piece.alloy.name} {_both(shared.sheet.thickness_mm)}**; {_flange_heights(piece, shared)}" +
+        ("" if piece.mixed_bends else f" at inside radius {_both(sb.part_radius_mm)}") + (
+            "; the blank's edge steps where two heights meet" if len({h.height_mm for h in piece.shapes}) > 1 else
+            "") + ".",
         "",
         "> **Caution.** " + SAFETY,
         "",
@@ -116,6 +124,44 @@ def _stock(piece: PieceAnalysis, shared, what: str) -> list[str]:
     return lines
 
 
+def _own_walls(piece: PieceAnalysis) -> bool:
+    """Whether the die's wall is not the one over-bent wall of a square flange: flange runs of their own die
+    radius or angle, or a wall leaning out (flanges bent through less than 90°)."""
+    return piece.mixed_bends and (piece.die is None or piece.die.die.profiles is not None
+                                  or piece.die.die.undercut_deg < 0)
+
+
+def _wall_lines(piece: PieceAnalysis, inch: bool) -> str:
+    """Each flange shape's wall: its die radius (and the nearest standard bit), lean and die angle."""
+    out = []
+    for h in piece.shapes:
+        die = h.die(piece.springback)
+        lean = die.die_angle_deg - 90.0
+        leans = (f"leaning in {lean:.1f}° going down" if lean >= 0 else
+                 f"leaning out {-lean:.1f}° going down (cut it from the top face with a chamfer bit of {-lean:.1f}° "
+                 "per side)")
+        runs = ", ".join(f"`{k}`" for k in h.keys) or "the flanged edges"
+        out.append(f"{runs} ({_both(h.height_mm)} high, part radius {_both(h.bend_radius_mm)}, bent through "
+                   f"{h.angle_deg:g}°): top-edge radius **{_both(die.die_radius_mm)}** (nearest standard bit "
+                   f"{_both(nearest_round_over(die.die_radius_mm, inch))}), wall {leans}, die angle "
+                   f"{die.die_angle_deg:.1f}° (over-bend {die.die_angle_deg - h.angle_deg:.1f}°)")
+    return "; ".join(out)
+
+
+def _own_wall_steps(piece: PieceAnalysis, step: _Steps, inch: bool, tool: str) -> list[str]:
+    """The set-ups of a die whose flange runs have walls of their own."""
+    return [
+        step("**The wall, run by run** (each flange run's own springback-compensated die): "
+             f"{_wall_lines(piece, inch)}. "
+             f"Between two runs the wall changes smoothly over the stretches the `profile-blend` findings name (and "
+             f"across cut edges): cut the whole wall from the STEP model with a {tool} (3-axis surfacing from the "
+             f"top face), or rough it to `{BOTTOM_OUTLINE.name}` and `{TOP_OUTLINE.name}` and finish each run's wall "
+             "and the changes between them by hand to a template of each run's profile."),
+        step(f"**Bottom face up.** Engrave layer `{MARKS.name}` on this face (never on the top: it would print into "
+             "the web)."),
+    ]
+
+
 def _drawing_note(part: str) -> str:
     return (f"The die drawing `{part}-die.dxf` (and `{part}-die.svg`, 1:1 in mm) holds every outline for 2D CAM on "
             f"named layers; it is drawn as seen from the top face, so mirror it about X for a set-up with the bottom "
@@ -133,6 +179,13 @@ def _routed(rib: RibAnalysis, piece: PieceAnalysis) -> list[str]:
         "",
         _drawing_note(g.part_id),
         "",
+    ]
+    if _own_walls(piece):
+        lines += _own_wall_steps(piece, step, inch, "ball-nose bit")
+        lines += _wall_features(piece, shared, step, "ball-nose bit from the side, or a round file no larger than "
+                                "that radius", "round-over")
+        return lines
+    lines += [
         step(f"**Bottom face up.** Profile the outline with a **tapered bit of {sb.overbend_deg:.1f}° per side** "
              f"so the wall leans in by the over-bend (the die angle is {sb.die_angle_deg:.1f}° so the flange springs "
              f"back to 90°): the wall meets the bottom face on layer `{BOTTOM_OUTLINE.name}` and the top face on "
@@ -162,6 +215,15 @@ def _machined(rib: RibAnalysis, piece: PieceAnalysis) -> list[str]:
         _drawing_note(g.part_id) + " Carbide end mills, not router bits; flood coolant or a lubricant mist, light "
         "finishing passes, chips cleared (common practice, no source).",
         "",
+    ]
+    if _own_walls(piece):
+        lines += _own_wall_steps(piece, step, inch, "ball end mill")
+        lines += _wall_features(piece, shared, step, "ball end mill from the side, finished with a round file",
+                                "corner-rounding")
+        lines.append(step("Deburr every edge and polish the edge radius and the walls: a scratch in the die marks "
+                          "every part."))
+        return lines
+    lines += [
         step(f"**Bottom face up.** Profile the wall with a **tapered end mill of {sb.overbend_deg:.1f}° per side** "
              f"along `{BOTTOM_OUTLINE.name}` (the wall reaches `{TOP_OUTLINE.name}` at the top face; the die angle "
              f"is {sb.die_angle_deg:.1f}° so the flange springs back to 90°), or rough it with a square end mill and "

@@ -20,6 +20,17 @@ def die_life_text(material: str) -> str:
     return "indefinitely many parts" if parts is None else f"about {parts} parts"
 
 
+def _run_bend(shape: dict) -> str:
+    """"; R 3.00 mm bent 45°: die R 2.62 mm at 49.15° (over-bend 4.15°), flanges[2]" for a flange shape of its own
+    bend (the report's ``flange.runs[i].bend``), else nothing."""
+    bend = shape.get("bend")
+    if not bend:
+        return ""
+    return (f"; R {bend['part_radius_mm']:.2f} mm bent {bend['angle_deg']:g}°: die R {bend['die_radius_mm']:.3f} mm at "
+            f"{bend['die_angle_deg']:.2f}° (over-bend {bend['overbend_deg']:.2f}°), "
+            f"{', '.join(bend['flange_runs']) or 'flanges'}")
+
+
 def piece_text(rib: RibAnalysis, p: PieceAnalysis) -> str:
     g, u, d = p.piece, rib.spec.units, piece_json(rib, p)
     whole = (f"{rib.geometry.chord_mm:.1f} mm chord" if rib.spec.drawn is None
@@ -38,7 +49,7 @@ def piece_text(rib: RibAnalysis, p: PieceAnalysis) -> str:
         f"{p.layout.developed_width_mm:.2f} mm",
         *[f"  flange runs   {h['height_mm']:.1f} mm high: developed {h['developed_width_mm']:.2f} mm, blank edge "
           f"{h['blank_offset_mm']:.2f} mm outside the die, wrinkle limit {h['shrink_limit']:.3f}, "
-          f"{len(h['die_runs'])} run(s)" for h in d["flange"].get("runs", ())],
+          f"{len(h['die_runs'])} run(s)" + _run_bend(h) for h in d["flange"].get("runs", ())],
         f"                springback: {p.springback.model}",
         f"  flange strain max shrink {p.max_shrink:.3f}, after relief {p.flange.residual_shrink:.3f} (wrinkle limit "
         f"{p.flange.shrink_limit:.3f}), max stretch {p.max_stretch:.3f} (limit {p.alloy.stretch_limit:.3f}) → "

@@ -134,6 +134,14 @@ class DrawnPart:
                 flanges[i] = run.flange
         return tuple(flanges)
 
+    def edge_keys(self) -> tuple[str, ...]:
+        """The spec key of the flange run on each edge of the outline ("" for a cut edge)."""
+        keys = [""] * len(self.outline.edges)
+        for run in self.runs:
+            for i in range(run.first_edge, run.stop_edge):
+                keys[i] = run.label
+        return tuple(keys)
+
 
 @dataclass(frozen=True)
 class DrawnPiece:

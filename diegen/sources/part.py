@@ -276,7 +276,7 @@ def drawn_piece(part: DrawnPart, *, part_id: str, sheet_thickness_mm: float, pin
     pts, s, vertex_marks = _place_marks(die_pts, die_s, marks, total, inset)
     pts, s, vertex_marks = _drop_inserted_points(pts, s, vertex_marks, offsets, mold, total)
     straight = _straight_segments(pts, s, offsets, mold, total)
-    plain, run_flanges, reliefs = _runs(pts, s, vertex_marks, straight, offsets, flanges, total)
+    plain, run_flanges, reliefs = _runs(pts, s, vertex_marks, straight, offsets, flanges, part.edge_keys(), total)
     runs, recesses = recess(plain, joggles, ramp_of, place) if joggles else (plain, ())
     die_poly = Polygon([p for run in runs for p in run.points[:-1]])
     holes, cutouts = _holes(part, die_poly, runs, bend_radius, hole_flange_height_mm, place)
@@ -454,7 +454,7 @@ def _drop_inserted_points(pts: list[Point], s: list[float], flags: list[tuple[bo
 
 
 def _runs(pts: list[Point], s: list[float], flags: list[tuple[bool, bool]], straight: list[bool],
-          offsets: np.ndarray, flanges: tuple[Flange | None, ...],
+          offsets: np.ndarray, flanges: tuple[Flange | None, ...], keys: tuple[str, ...],
           total: float) -> tuple[tuple[Run, ...], tuple[Flange | None, ...], Points]:
     """The die outline split at its marked points into runs, each run's flange, and the relief points."""
     n = len(pts)
@@ -467,7 +467,8 @@ def _runs(pts: list[Point], s: list[float], flags: list[tuple[bool, bool]], stra
         loop = [*pts, pts[0]]
         mid = s[n // 2] % total
         flange = _flange_at(mid, offsets, flanges)
-        return (Run("curve", _densify(loop, straight), flange is not None, _height(flange)),), (flange,), ()
+        return ((_with_flange(Run("curve", _densify(loop, straight), flange is not None), flange,
+                              _flange_at(mid, offsets, keys)),), (flange,), ())
     pieces = []
     for j, a in enumerate(cuts):
         b = cuts[(j + 1) % len(cuts)]
@@ -477,7 +478,7 @@ def _runs(pts: list[Point], s: list[float], flags: list[tuple[bool, bool]], stra
     runs, run_flanges = [], []
     for _, _, points, mid, along in pieces:
         flange = _flange_at(mid, offsets, flanges)
-        runs.append(replace(_run(points, along, flange is not None), flange_height_mm=_height(flange)))
+        runs.append(_with_flange(_run(points, along, flange is not None), flange, _flange_at(mid, offsets, keys)))
         run_flanges.append(flange)
     reliefs = []
     for j, (a, _, _, _, _) in enumerate(pieces):
@@ -489,9 +490,13 @@ def _runs(pts: list[Point], s: list[float], flags: list[tuple[bool, bool]], stra
     return tuple(runs), tuple(run_flanges), tuple(reliefs)
 
 
-def _height(flange: Flange | None) -> float | None:
-    """A run's own flange height on the geometry layer's run (None for a cut edge)."""
-    return None if flange is None else flange.height_mm
+def _with_flange(run: Run, flange: Flange | None, key: str) -> Run:
+    """The geometry layer's run with its own flange's height, bend radius, angle and spec key (none: a cut edge)."""
+    if flange is None:
+        return run
+    shape = flange
+    return replace(run, flange_height_mm=shape.height_mm, bend_radius_mm=shape.bend_radius_mm,
+                   angle_deg=shape.angle_deg, flange_key=key)
 
 
 def _direction(a: Point, b: Point) -> Point:
@@ -499,7 +504,7 @@ def _direction(a: Point, b: Point) -> Point:
     return ((b[0] - a[0]) / d, (b[1] - a[1]) / d)
 
 
-def _flange_at(s_mid: float, offsets: np.ndarray, flanges: tuple[Flange | None, ...]) -> Flange | None:
+def _flange_at(s_mid: float, offsets: np.ndarray, flanges: tuple):
     k = int(np.searchsorted(offsets, s_mid, side="right")) - 1
     return flanges[min(max(k, 0), len(flanges) - 1)]
 

@@ -35,7 +35,7 @@ from diegen.spec.reader import Reader, describe, join
 from diegen.spec.schema import read_header, read_paper, read_shared
 from diegen.spec.yamltree import YNode
 
-__all__ = ["MAX_DRAWING_BYTES", "PART_KEYS", "PART_SHARED_KEYS", "read_part"]
+__all__ = ["MAX_DRAWING_BYTES", "MAX_RUN_ANGLE_DEG", "MIN_RUN_ANGLE_DEG", "PART_KEYS", "PART_SHARED_KEYS", "read_part"]
 
 MAX_DRAWING_BYTES = 20 * 1024 * 1024  # project limit: a part drawing larger than this is not one part
 PART_SHARED_KEYS = ("sheet", "flange", "hole_rules", "dowel_diameter", "relief", "die", "press", "joggle_runout")
@@ -45,9 +45,13 @@ MAX_JOGGLES = 20
 MAX_JOGGLE_DEPTH_MM = 10.0  # project limit: deeper is no joggle but a step in the part
 OUTLINE_KEYS = ("file", "layer", "units", "svg", "points", "is", "join_tolerance")
 RUN_KEYS = ("layer", "from", "to", "direction", "height", "bend_radius", "angle")
-# One form block, one die radius and one over-bend: a run may have its own height (its own developed width, blank
-# offset, wrinkle limit and flute depth), not its own bend radius or angle.
-RUN_SHAPE_KEYS = ("bend_radius", "angle")
+# A run's own bend angle (degrees bent through from the web): at most square (90°), at least MIN_RUN_ANGLE_DEG.
+# Project limit: the die wall under a flange of angle θ leans out 90° − θ from the vertical going down (the die's
+# foot grows by height·cot θ beyond its outline), so below 30° it leans out more than 60° and grows by more than
+# 1.7 times its height; and a flange that nearly lies in the web's plane is pressed onto the die by a small part of
+# the rubber's pressure only.  Such a lip is a separate operation (a bevel on a brake, or by hand).
+MIN_RUN_ANGLE_DEG = 30.0
+MAX_RUN_ANGLE_DEG = 90.0
 
 
 def read_part(r: Reader, root: dict[str, YNode], spec_dir: Path) -> RibSpec:
@@ -210,15 +214,12 @@ def _run_nodes(r: Reader, node: YNode | None) -> list[YNode] | None:
         fields = r.mapping(item, path, RUN_KEYS)
         if fields is None:
             continue
-        for key in RUN_SHAPE_KEYS:
-            if key in fields:
-                r.problem(fields[key], join(path, key),
-                          f"a flange run of its own {key.replace('_', ' ')} is not supported: every flanged edge of a "
-                          "part takes the 'flange' section's bend radius, square (90°) to the web (one form block "
-                          "has one die radius and one over-bend; a run may have its own height); make edges of "
-                          "another shape a separate part, or form them by hand")
         if "height" in fields:
             r.length(fields["height"], join(path, "height"), high=200.0)
+        if "bend_radius" in fields:
+            r.length(fields["bend_radius"], join(path, "bend_radius"), high=100.0)
+        if "angle" in fields:
+            _run_angle(r, fields["angle"], join(path, "angle"))
         has_layer, has_ends = "layer" in fields, ("from" in fields, "to" in fields)
         if has_layer == any(has_ends) or (any(has_ends) and not all(has_ends)):
             r.problem(item, path, "expected either 'layer' (the outline's edges on that layer) or both 'from' and "
@@ -227,6 +228,18 @@ def _run_nodes(r: Reader, node: YNode | None) -> list[YNode] | None:
         if has_layer:
             r.text(fields["layer"], join(path, "layer"))
     return items
+
+
+def _run_angle(r: Reader, node: YNode, path: str) -> float | None:
+    """A run's bend angle in degrees (the angle bent through from the web), within the forming limits."""
+    value = node.value
+    if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value) \
+            or not MIN_RUN_ANGLE_DEG <= value <= MAX_RUN_ANGLE_DEG:
+        r.problem(node, path, f"expected the angle the flange is bent through from the web, in degrees from "
+                              f"{MIN_RUN_ANGLE_DEG:g} to {MAX_RUN_ANGLE_DEG:g} (90: square to the web), found "
+                              f"{describe(node)}")
+        return None
+    return float(value)
 
 
 def _runs(r: Reader, run_nodes: list[YNode], flange, drawing: Drawing) -> list[FlangeRunSpec] | None:
@@ -239,7 +252,12 @@ def _runs(r: Reader, run_nodes: list[YNode], flange, drawing: Drawing) -> list[F
         path, fields = join("flanges", i), item.value
         direction = fields["direction"].value if "direction" in fields else "down"
         height = r.length(fields["height"], join(path, "height"), high=200.0) if "height" in fields else None
-        run_shape = replace(shape, direction=direction, height_mm=shape.height_mm if height is None else height)
+        radius = r.length(fields["bend_radius"], join(path, "bend_radius"), high=100.0) \
+            if "bend_radius" in fields else None
+        angle = _run_angle(r, fields["angle"], join(path, "angle")) if "angle" in fields else None
+        run_shape = replace(shape, direction=direction, height_mm=shape.height_mm if height is None else height,
+                            bend_radius_mm=shape.bend_radius_mm if radius is None else radius,
+                            angle_deg=shape.angle_deg if angle is None else angle)
         if "layer" in fields:
             runs.append(FlangeRunSpec(OnLayer(str(fields["layer"].value)), run_shape, path))
             continue

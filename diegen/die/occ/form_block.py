@@ -35,24 +35,28 @@ from dataclasses import replace
 from typing import TYPE_CHECKING, Any
 
 from diegen.die.die_input import DieInput
-from diegen.die.model import largest_inset_mm, loft_sections, section
+from diegen.die.model import largest_inset_mm, level_depth_mm, level_section, loft_levels
 from diegen.die.occ import shapes
 from diegen.die.occ.validate import solid_problems
 from diegen.die.outline import OffsetPiece, OutlineModel
 from diegen.die.placement import engraving_marks
 from diegen.die.rules import check_die
 from diegen.die.settings import DEFAULT_SETTINGS, BuildSettings
-from diegen.errors import SolidError
+from diegen.errors import DiegenError, SolidError
 
 if TYPE_CHECKING:  # pragma: no cover
     from shapely.geometry import Polygon
 
 
 def _wire(pieces: list[OffsetPiece], z: float) -> Any:
-    """The kernel wire (``TopoDS_Wire``) of one section at height ``z``: a line or B-spline edge per piece."""
+    """The kernel wire (``TopoDS_Wire``) of one section at height ``z`` (or each point at its own depth where the
+    section gives them: a wall whose profile changes along the outline): a line or B-spline edge per piece."""
     edges = []
     for piece in pieces:
-        pts = [shapes.point(x, y, z) for x, y in piece.points]
+        if piece.depths is None:
+            pts = [shapes.point(x, y, z) for x, y in piece.points]
+        else:
+            pts = [shapes.point(x, y, -d) for (x, y), d in zip(piece.points, piece.depths, strict=True)]
         if piece.kind == "line":
             edges.append(shapes.line_edge(pts[0], pts[-1]))
         elif piece.closed:
@@ -233,12 +237,12 @@ def build_body(die: DieInput, model: OutlineModel, settings: BuildSettings = DEF
     from OCP.TopExp import TopExp_Explorer
     from OCP.TopoDS import TopoDS
 
-    arc, wall = loft_sections(die, settings)
-    arc_wires = [_wire(section(die, model, s.inset_mm, s.depth_mm), -s.depth_mm) for s in arc]
-    wall_wires = arc_wires[-1:] + [_wire(section(die, model, s.inset_mm, s.depth_mm), -s.depth_mm) for s in wall[1:]]
+    arc, wall = loft_levels(die, settings)
     hint = ("check the outline for a spot where the piece is thinner than twice the wall inset "
             f"({2 * largest_inset_mm(die):.2f} mm) or lower the top radius")
     try:
+        arc_wires = [_wire(level_section(die, model, s), -level_depth_mm(s)) for s in arc]
+        wall_wires = arc_wires[-1:] + [_wire(level_section(die, model, s), -level_depth_mm(s)) for s in wall[1:]]
         marked, pockets = _pocket_faces(marks or [], -die.height_mm, settings.engrave_depth_mm)
         top_holes, bottom_holes, holes = _hole_faces(die)
         sew = BRepBuilderAPI_Sewing(settings.sew_tol_mm)
@@ -254,7 +258,7 @@ def build_body(die: DieInput, model: OutlineModel, settings: BuildSettings = DEF
         if not _faces_out(shell):
             shell = TopoDS.Shell_s(shell.Reversed())
         solid = BRepBuilderAPI_MakeSolid(shell).Solid()
-    except SolidError:
+    except DiegenError:  # a refusal or the kernel's failure already put in words
         raise
     except Exception as exc:  # OCP raises its own Standard_Failure family
         raise SolidError(f"die {die.part_id}: the kernel failed building the die body ({exc}); {hint}") from exc
