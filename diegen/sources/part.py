@@ -253,8 +253,12 @@ def drawn_piece(part: DrawnPart, *, part_id: str, sheet_thickness_mm: float, pin
     if len(directions) > 1:
         ups = ", ".join(dict.fromkeys(r.label for r in used if r.flange.direction == "up"))
         downs = ", ".join(dict.fromkeys(r.label for r in used if r.flange.direction == "down"))
-        raise GeometryError(f"{place.source}: flanges bend up ({ups}) and down ({downs}): one form block folds every "
-                            "flange the same way; make the part in two pressings (two parts), or form some by hand")
+        raise GeometryError(
+            f"{place.source}: flanges bend up ({ups}) and down ({downs}): the rubber folds every flange away from "
+            "itself, over the form block, so one pressing forms them one way only (a second pressing, the part turned "
+            "over, would crush the first flanges); draw the part as two parts riveted together, each with its flanges "
+            "one way, or make this part with the flanges of one way and bend the others afterwards on a brake or "
+            "over a hardwood block by hand")
     mirrored = directions == {"up"}
     bend_radius = max((r.flange.bend_radius_mm for r in used), default=0.0)
     mold = part.outline
