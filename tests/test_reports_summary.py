@@ -202,3 +202,22 @@ def test_whole_wing_pdf(wing_spec, wing, rows, tmp_path) -> None:
     check_pdf(pages, wing_spec.id, rows, wing.ribs)
 
 
+
+
+def test_a_piece_page_of_straight_flanges_says_there_is_no_strain(tmp_path) -> None:
+    """A part whose flanges are all straight has no shrink or stretch to plot: its page says so, over an axis that
+    spans the die outline (a 100 × 50 mm rectangle: 300 mm), read back with pypdf."""
+    import numpy as np
+    pypdf = pytest.importorskip("pypdf")
+
+    from diegen.export.pdfdoc import Document
+    from diegen.reports.summary import PiecePlot, _piece_page
+
+    loop = np.array([[0.0, 0.0], [100.0, 0.0], [100.0, 50.0], [0.0, 50.0], [0.0, 0.0]])
+    document = Document()
+    _piece_page(document.add_page(792.0, 612.0), PiecePlot("X1: a plate", loop * 1.1, loop, (), 0.07))
+    path = tmp_path / "page.pdf"
+    path.write_bytes(document.to_bytes())
+    text = pypdf.PdfReader(path).pages[0].extract_text()
+    assert "every flange is straight: no shrink" in text
+    assert "300" in text.split()  # the last tick: the axis spans the outline's 300 mm

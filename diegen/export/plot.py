@@ -269,7 +269,8 @@ def _preview(piece_analysis: Any) -> Any:
     bar.finish(ylabel="flange edge strain (|e|)", xticks=False, yticks_right=True, ylabel_right=True)
 
     strain_ax = canvas.axes((0.07, 0.07, 0.80, 0.24))
-    xs = np.concatenate([s for s, _, style in curves if style.style == "-"]) if curves else np.array([0.0, 1.0])
+    # straight flanges only: no strain to draw, the axis still spans the outline
+    xs = np.concatenate([s for s, _, style in curves if style.style == "-"]) if curves else np.array([0.0, g.length_mm])
     ys = np.concatenate([*(y for _, y, style in curves if style.style == "-"), [limit, -stretch]])
     dx, dy = MARGIN * (xs.max() - xs.min()), MARGIN * (ys.max() - ys.min())
     strain_ax.limits((xs.min() - dx, xs.max() + dx), (ys.min() - dy, ys.max() + dy))
@@ -283,6 +284,8 @@ def _preview(piece_analysis: Any) -> Any:
     if piece_analysis.mixed_heights:
         shrink_label = (f"wrinkle limit {limit:.3f} of the run judged worst (each run's own dashed in its colour; "
                         "dotted: shrink left after relief)")
+    if not curves:
+        shrink_label = f"wrinkle limit {limit:.3f}; every flange is straight: no shrink or stretch along it"
     strain_ax.legend([(shrink_line, shrink_label), (stretch_line, f"stretch limit {stretch:.3f}")], 7.0)
     strain_ax.finish(xlabel="position along the die outline (mm)", ylabel="shrink (+) / stretch (−)")
     return canvas.image

@@ -212,7 +212,9 @@ def _piece_page(canvas: Any, plot: PiecePlot) -> None:
     top.line(plot.blank[:, 0], plot.blank[:, 1], blank)
     top.line(plot.die_outline[:, 0], plot.die_outline[:, 1], die)
     top.legend([(blank, "blank"), (die, "die outline")])
-    s = np.concatenate([run[0] for run in plot.strain]) if plot.strain else np.zeros(1)
+    # straight flanges only: no strain to draw, the axis still spans the outline
+    outline_mm = float(np.sum(np.hypot(*np.diff(plot.die_outline, axis=0).T)))
+    s = np.concatenate([run[0] for run in plot.strain]) if plot.strain else np.array([0.0, outline_mm])
     e = np.concatenate([run[1] for run in plot.strain] + [[plot.shrink_limit]])
     bottom = Chart(canvas, (0.07 * w, 0.07 * h, 0.88 * w, 0.25 * h), (s.min(), s.max()), (e.min(), e.max()))
     bottom.frame("position along the die outline (mm)", "shrink (+) / stretch (−)")
@@ -220,7 +222,8 @@ def _piece_page(canvas: Any, plot: PiecePlot) -> None:
         bottom.line(run_s, run_e, Stroke(PALETTE[index % len(PALETTE)], 1.0))
     limit = Stroke(BLUE, 1.0, (4.0, 2.0))
     bottom.hline(plot.shrink_limit, limit)
-    bottom.legend([(limit, "shrink limit")])
+    bottom.legend([(limit, "shrink limit" if plot.strain else "shrink limit; every flange is straight: no shrink "
+                    "or stretch along it")])
 
 
 __all__ = ["COLUMNS", "PiecePlot", "piece_plot", "summary_rows", "update_summary_status", "write_summary"]
