@@ -42,7 +42,8 @@ MODELS = {
                   "hardening); power-law hardening through the typical yield and ultimate (Considère); a trial part "
                   "in the spec overrides it",
     "flange_strain": "contoured flange e = −w/(ρ + w) shrink, w/(ρ − w) stretch, ρ from the turning angle over "
-                     "one flange width (windowing: model of our own)",
+                     "one flange width (windowing: model of our own); a flange bent through θ under 90° moves its "
+                     "edge in by only w(1 − cos θ), which takes w's place in the numerator",
     "shrink_limit": "catalogue shrink limit at h/t = 20, scaled by (20t/h)² as the plastic buckling strain of a "
                     "flange with a free edge (Stowell, NACA TN 1556; model of our own)",
     "residual_shrink": "edge shrink left in each flange-width window after the flutes or notches in it take up "
