@@ -77,10 +77,10 @@ def analyse_jobs(jobs: list[RibJob]) -> tuple[RibAnalysis, ...]:
 
 
 def _can_fork() -> bool:
-    """Forking this process is safe: the platform forks, and no thread but this one runs here (a fork keeps only
-    the calling thread, so a lock another thread holds, the solid kernel's pool among them, would stay held)."""
-    return ("fork" in multiprocessing.get_all_start_methods() and threading.active_count() == 1
-            and "OCP" not in sys.modules)
+    """Forking this process is safe: Linux (where forking is the platform's own way; elsewhere system libraries
+    may not survive it), and no thread but this one runs here (a fork keeps only the calling thread, so a lock
+    another thread holds, the solid kernel's pool among them, would stay held)."""
+    return sys.platform.startswith("linux") and threading.active_count() == 1 and "OCP" not in sys.modules
 
 
 def rib_analyses(analysis: Analysis) -> tuple[RibAnalysis, ...]:
