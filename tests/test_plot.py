@@ -93,3 +93,29 @@ def test_geometry_legend_follows_the_piece(rib, tmp_path: Path) -> None:
     assert plot.piece_plot(rib, plain, tmp_path / "again.png").read_bytes() == first
     texts = [t.get_text() for t in plot._FIGURES["geometry"].ax.get_legend().get_texts()]
     assert "bend relief" not in texts and "die outline" in texts
+
+
+def test_geometry_plot_of_a_mirrored_part_draws_its_outline_mirrored(tmp_path: Path, monkeypatch) -> None:
+    """The demo gusset's flange bends up, so its die is the drawing's mirror image (x → −x): the plot draws the
+    drawn outline mirrored too, beside the die outline, and says so in the legend and the x label."""
+    from testing import SPECS
+
+    gusset = api.analyse(api.load(SPECS / "demo-gusset.yaml"))
+    assert any(w.code == "part-mirrored" for w in gusset.geometry.warnings)
+    drawn_lines = []
+    line = plot._Picture.line
+
+    def kept(self, ax, *args, **style):
+        if style.get("color") == "0.6":  # the outline as drawn
+            drawn_lines.append(np.asarray(args[0], dtype=float))
+        return line(self, ax, *args, **style)
+
+    monkeypatch.setattr(plot._Picture, "line", kept)
+    plot.piece_plot(gusset, gusset.pieces[0], tmp_path / "gusset.png")
+    ax = plot._FIGURES["geometry"].ax
+    assert "outline as drawn, mirrored" in [t.get_text() for t in ax.get_legend().get_texts()]
+    assert "mirrored" in ax.get_xlabel()
+    (xs,) = drawn_lines
+    drawn = np.asarray(gusset.geometry.section)
+    assert np.sort(xs[:-1]) == pytest.approx(np.sort(-drawn[:, 0]))  # every drawn x, negated
+    assert xs.max() <= 1e-9 < drawn[:, 0].max()

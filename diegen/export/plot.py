@@ -142,7 +142,7 @@ class _GeometryPicture(_Picture):
             (Line2D([], [], ls="none", marker="o", color="tab:purple", mfc="none"), "lightening holes"),
             (Line2D([], [], ls="none", marker="o", color="tab:red"), "tooling pins"),
         ]
-        self.legends: dict[tuple[bool, bool], Any] = {}
+        self.legends: dict[tuple[bool, bool, bool], Any] = {}
 
     def draw(self, rib_analysis: Any, piece_analysis: Any, path: str | Path) -> Path:
         from matplotlib.patches import Rectangle
@@ -152,7 +152,10 @@ class _GeometryPicture(_Picture):
         rib = rib_analysis.geometry
         blank = piece_analysis.blank
         drawn = getattr(rib_analysis.spec, "drawn", None) is not None  # a part: its drawn outline, no airfoil
-        self.line(ax, *_closed(rib.section).T, color="0.6", lw=0.8)
+        # a part whose flanges all bend up is made as the drawing's mirror image: show its outline so too
+        mirrored = any(w.code == "part-mirrored" for w in rib.warnings)
+        section = _closed(rib.section) * ([-1.0, 1.0] if mirrored else [1.0, 1.0])
+        self.line(ax, *section.T, color="0.6", lw=0.8)
         if not drawn:
             self.line(ax, *_closed(rib.oml).T, color="tab:blue", lw=0.8, ls="--")
         self.line(ax, *_closed(blank.outer).T, color="tab:green", lw=0.9)
@@ -178,12 +181,18 @@ class _GeometryPicture(_Picture):
         _blank_cuts(self, ax, blank)
 
         has_relief = bool(g.relief_points)
-        if (has_relief, drawn) not in self.legends:
-            shown = [(h, DRAWN_LABELS.get(label, label) if drawn else label) for h, label in self.handles
+        if (has_relief, drawn, mirrored) not in self.legends:
+            names = {**DRAWN_LABELS, "airfoil": "outline as drawn, mirrored"} if mirrored else DRAWN_LABELS
+            shown = [(h, names.get(label, label) if drawn else label) for h, label in self.handles
                      if (has_relief or label != "bend relief") and not (drawn and label == "outer mold line")]
-            self.legends[has_relief, drawn] = ax.legend(*zip(*shown), loc="upper right", fontsize=7, ncol=2)
-        ax.legend_ = self.legends[has_relief, drawn]
-        ax.set_xlabel("x as drawn (mm)" if drawn else "x from the leading edge (mm)")
+            # a drawn part is about as tall as wide, so its equal-aspect axes leave room beside them: the legend
+            # goes there, off the outline; a rib's long axes keep it inside, top right
+            place = {"loc": "upper left", "bbox_to_anchor": (1.02, 1.0), "ncol": 1} if drawn else \
+                {"loc": "upper right", "ncol": 2}
+            self.legends[has_relief, drawn, mirrored] = ax.legend(*zip(*shown), fontsize=7, **place)
+        ax.legend_ = self.legends[has_relief, drawn, mirrored]
+        ax.set_xlabel("x, the drawing's mirrored (mm)" if mirrored else "x as drawn (mm)" if drawn
+                      else "x from the leading edge (mm)")
         x0, x1 = g.x_range_mm
         pad = 15.0
         ax.set_xlim(x0 - pad, x1 + pad)
