@@ -362,3 +362,20 @@ def test_every_flute_size_is_on_the_sheet() -> None:
     line = next(line for line in text.splitlines() if "**Flutes (" in line)
     for width, depth in sizes:
         assert f"{width:.1f} mm" in line and f"{depth:.1f} mm" in line, (width, depth, line)
+
+
+def test_cut_edges_are_left_square_on_the_die(sheets) -> None:
+    """The tail piece's aft end gets no flange: the blank stops flush with the die outline there, so the sheet asks
+    for a square top edge along it, naming the strip a rounded edge would leave unsupported: the top setback
+    R·(1 + sin α)/cos α of the die radius R and over-bend α (plane geometry of a circle tangent to the top face and
+    to a wall leaning in by α, worked here from the piece's own die radius and over-bend). The nose and center
+    pieces are flanged all round and have no such step."""
+    piece, text = sheets["tail"]
+    assert [r.flanged for r in piece.piece.runs].count(False) == 1
+    radius, lean = piece.springback.die_radius_mm, math.radians(piece.springback.overbend_deg)
+    strip = radius * (1.0 + math.sin(lean)) / math.cos(lean)
+    assert number_after(text, r"\*\*Cut edges\*\* \(1 edge\(s\) with no flange.*?last ([0-9.]+) mm") == \
+        pytest.approx(strip, abs=0.006)
+    assert "top edge **square**" in text
+    for name in ("nose", "center"):
+        assert "Cut edges" not in sheets[name][1]

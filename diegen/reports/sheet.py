@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import math
 from collections.abc import Sequence
 
 from diegen.analysis import PieceAnalysis, RibAnalysis
@@ -18,6 +19,7 @@ from diegen.die.drawing import (
 )
 from diegen.die.from_analysis import die_making, flute_lengths_mm
 from diegen.forming.relief import flute_arc_radius
+from diegen.geometry import die_wall
 from diegen.numbers import without_negative_zeros
 from diegen.reports.document import PRINT_ORIENTATION, SAFETY, print_json, section_label
 from diegen.reports.text import die_life_text
@@ -262,6 +264,12 @@ def _wall_features(piece: PieceAnalysis, shared, step: _Steps, flute_tool: str, 
                           f"the top edge to full depth at {full}: {kinds} "
                           f"({flute_tool}). Round each flute's lips (where the groove meets the wall) to at least "
                           f"{_both(lip)} with a file: a sharp lip cracks the sheet."))
+    cut = _cut_edge_strip_mm(piece)
+    if cut:
+        lines.append(step(f"**Cut edges** ({_cut_edges_text(piece)}): the blank stops flush with the die outline "
+                          f"there, so leave the die's top edge **square** along them (no {edge_tool} there): rounded, "
+                          f"it would leave the blank's last {_both(cut)} unsupported and the rubber would curl it "
+                          "down (the die files round them like the flanged edges: stop the tool at their ends)."))
     bores = [(h, c) for h, c in zip(g.holes, piece.holes) if h.flanged]
     if bores:
         lines.append(step(f"Through bores for {len(bores)} flanged lightening hole(s) (layer `{BORES.name}`), each "
@@ -270,6 +278,25 @@ def _wall_features(piece: PieceAnalysis, shared, step: _Steps, flute_tool: str, 
                           ", ".join(f"Ø{c.bore_d_mm:.2f} mm at ({h.x:.1f}, {h.y:.1f}) for the Ø{h.d:.0f} mm hole"
                                     for h, c in bores) + "."))
     return lines
+
+
+def _cut_edge_strip_mm(piece: PieceAnalysis) -> float:
+    """How far the die's flat top ends inside its outline along the piece's cut edges (runs with no flange), where
+    the blank stops flush with the outline: the top setback R·(1 + sin α)/cos α of the die radius R and over-bend α
+    (:mod:`diegen.geometry.die_wall`); 0 when the piece has no cut edge."""
+    if all(run.flanged for run in piece.piece.runs):
+        return 0.0
+    sb = piece.springback
+    return die_wall.top_setback_mm(sb.die_radius_mm, sb.overbend_deg)
+
+
+def _cut_edges_text(piece: PieceAnalysis) -> str:
+    runs = [r for r in piece.piece.runs if not r.flanged]
+    return f"{len(runs)} edge(s) with no flange, {sum(_run_length(r) for r in runs):.0f} mm in all"
+
+
+def _run_length(run) -> float:
+    return sum(math.dist(a, b) for a, b in zip(run.points, run.points[1:]))
 
 
 def _printed(rib: RibAnalysis, piece: PieceAnalysis) -> list[str]:
@@ -382,6 +409,11 @@ def shop_sheet(rib: RibAnalysis, piece: PieceAnalysis, die_notes: Sequence[str] 
              f" Expect {die_life_text(shared.die.material)} from a {shared.die.material} die; "
              f"{press.durometer_advice}."),
     ]
+    cut = _cut_edge_strip_mm(piece)
+    if cut and making == "printed":
+        lines.append(step(f"Cut edges ({_cut_edges_text(piece)}): the printed die rounds its top edge there too, so "
+                          f"the blank's last {_both(cut)} along them lies over the radius and turns down a little: "
+                          "flatten that strip on a flat plate with a soft mallet after pressing."))
     if press.verdict != "full" and press.fits_box:
         names = ", ".join(f"{r.leg.name} (about {r.angle_deg:.0f}°)" for r in press.short_legs)
         lines.append(step("Finish by hand over the die, with the blank still pinned: a hand seamer, or a hardwood "
