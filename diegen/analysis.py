@@ -385,12 +385,7 @@ def _shape_of(spec: RibSpec, shapes: tuple[RunShape, ...], run: Run) -> RunShape
 
 def _shape_at(spec: RibSpec, piece: PieceGeometry, shapes: tuple[RunShape, ...], s_mm: float) -> RunShape:
     """The shape of the flanged run ``s_mm`` along the outline lies on."""
-    start, found = 0.0, piece.runs[0]
-    for run in piece.runs:
-        if s_mm < start:
-            break
-        found = run
-        start += float(np.sum(np.hypot(*np.diff(np.asarray(run.points, dtype=float), axis=0).T)))
+    found = piece.run_at(s_mm)
     return _shape_of(spec, shapes, found) if found.flanged else shapes[-1]
 
 

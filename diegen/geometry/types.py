@@ -127,16 +127,20 @@ class PieceGeometry:
     def area_mm2(self) -> float:
         return signed_area(self.outline)
 
-    def flange_height_at(self, s_mm: float, spec_height_mm: float) -> float:
-        """The flange height (mm) of the run ``s_mm`` along the outline (from its first point) lies on: the run's
-        own, or the spec's ``spec_height_mm``."""
+    def run_at(self, s_mm: float) -> Run:
+        """The run ``s_mm`` along the outline (mm, from its first point) lies on."""
         start, found = 0.0, self.runs[0]
         for run in self.runs:
             if s_mm < start:
                 break
             found = run
             start += float(np.sum(np.hypot(*np.diff(np.asarray(run.points, dtype=float), axis=0).T)))
-        return found.height_mm(spec_height_mm)
+        return found
+
+    def flange_height_at(self, s_mm: float, spec_height_mm: float) -> float:
+        """The flange height (mm) of the run ``s_mm`` along the outline lies on: the run's own, or the spec's
+        ``spec_height_mm``."""
+        return self.run_at(s_mm).height_mm(spec_height_mm)
 
 
 @dataclass(frozen=True)
