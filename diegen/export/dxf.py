@@ -119,10 +119,7 @@ def fit_view(doc, extent: tuple[float, float, float, float]) -> None:
 def save_dxf(doc, path: str | os.PathLike[str]) -> Path:
     """Write ``doc`` to ``path`` atomically; return the path (:class:`OutputError` when it cannot)."""
     target = Path(path)
-    try:
-        write_with(target, doc.saveas)
-    except OSError as exc:
-        raise OutputError(f"cannot write DXF {target}: {exc}") from exc
+    write_with(target, doc.saveas)  # an OutputError naming the file when it cannot
     return target
 
 

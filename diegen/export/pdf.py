@@ -378,9 +378,5 @@ def write_pdf(
         _page(document, blank_ops, drawing, plan, tile, index)
     data = document.to_bytes()
 
-    target = Path(path)
-    try:
-        write_bytes(target, data)
-    except OSError as exc:
-        raise OutputError(f"cannot write PDF {target}: {exc}") from exc
+    write_bytes(Path(path), data)  # an OutputError naming the file when it cannot
     return plan

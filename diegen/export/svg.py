@@ -16,7 +16,6 @@ from pathlib import Path
 from xml.sax.saxutils import escape
 
 from diegen.blank.drawing import CUT, DRILL, NOTE, SCRIBE, BlankDrawing, LayerStyle, Note, Polyline
-from diegen.errors import OutputError
 from diegen.fileio import write_text
 
 __all__ = ["STROKE_WIDTH", "SVG_MARGIN", "canvas", "fmt", "save_svg", "svg_document", "svg_text", "write_svg"]
@@ -67,10 +66,7 @@ def svg_document(extent: tuple[float, float, float, float], title: str, desc: st
 def save_svg(text: str, path: str | os.PathLike[str]) -> Path:
     """Write the SVG ``text`` to ``path`` atomically; return the path (:class:`OutputError` when it cannot)."""
     target = Path(path)
-    try:
-        write_text(target, text)
-    except OSError as exc:
-        raise OutputError(f"cannot write SVG {target}: {exc}") from exc
+    write_text(target, text)  # an OutputError naming the file when it cannot
     return target
 
 
