@@ -342,15 +342,6 @@ def analyse_rib(spec: RibSpec, section: np.ndarray | None = None) -> RibAnalysis
     return RibAnalysis(spec, geometry, pieces)
 
 
-def _run_offsets(piece: PieceGeometry) -> list[float]:
-    offsets, s = [], 0.0
-    for run in piece.runs:
-        offsets.append(s)
-        pts = np.asarray(run.points)
-        s += float(np.sum(np.hypot(*np.diff(pts, axis=0).T)))
-    return offsets
-
-
 def _shape_key(spec: RibSpec, run: Run) -> tuple[float, float, float]:
     flange = spec.shared.flange
     return run.height_mm(flange.height_mm), run.radius_mm(flange.bend_radius_mm), run.angle()
@@ -394,7 +385,7 @@ def _flange_runs(spec: RibSpec, piece: PieceGeometry, alloy: materials.SheetAllo
     """Strain along every flanged curve of the piece (over its own flange's developed width, at its own angle),
     with its runs past its own flange's limits."""
     runs = []
-    for index, (run, offset) in enumerate(zip(piece.plain_runs, _run_offsets(piece), strict=False)):
+    for index, (run, offset) in enumerate(zip(piece.plain_runs, piece.run_starts_mm(), strict=False)):
         if run.kind != "curve" or not run.flanged:
             continue
         own = _shape_of(spec, shapes, run)

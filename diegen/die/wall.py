@@ -38,7 +38,7 @@ from diegen.die.die_input import DieInput, DieRun
 from diegen.errors import GeometryError
 from diegen.geometry import die_wall
 from diegen.geometry.die_wall import WallProfile, WallSection
-from diegen.geometry.loops import FloatArray
+from diegen.geometry.loops import FloatArray, polyline_length
 
 __all__ = ["BLEND_MIN_MM", "BLEND_PER_MM", "CORNER_DEG", "Blend", "LoftLevel", "WallPlan", "level_point", "quintic",
            "wall_plan"]
@@ -126,11 +126,6 @@ class WallPlan:
         return inset, slope, depth
 
 
-def _length(points: Sequence[tuple[float, float]]) -> float:
-    p = np.asarray(points, dtype=float)
-    return float(np.sum(np.hypot(*np.diff(p, axis=0).T)))
-
-
 def _turn_deg(before: DieRun, after: DieRun) -> float:
     a, b, c = (np.asarray(p, dtype=float) for p in (before.points[-2], before.points[-1], after.points[1]))
     u, v = b - a, c - b
@@ -167,7 +162,7 @@ def wall_plan(die: DieInput) -> WallPlan | None:
     if len({profiles[i] for i in flanged}) <= 1:
         return None
     names = die.run_names or tuple(f"outline run {i + 1}" for i in range(len(runs)))
-    lengths = [_length(r.points) for r in runs]
+    lengths = [polyline_length(r.points) for r in runs]
     starts = np.concatenate([[0.0], np.cumsum(lengths)])
     perimeter = float(starts[-1])
     used = [p for p in profiles if p is not None]

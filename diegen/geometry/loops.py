@@ -15,7 +15,7 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 __all__ = ["CORNER_TURN_DEG", "FloatArray", "IntArray", "is_corner", "is_counter_clockwise", "loop_array",
-           "loop_length", "signed_area", "turn_angle"]
+           "loop_length", "polyline_length", "signed_area", "turn_angle"]
 
 CORNER_TURN_DEG = 10.0  # project limit: where an outline turns this much or more between two stretches, a corner
 
@@ -32,6 +32,12 @@ def loop_length(points: ArrayLike) -> float:
     """Perimeter of the closed loop, closing segment included."""
     p = loop_array(points)
     return float(np.sum(np.hypot(*(np.roll(p, -1, axis=0) - p).T)))
+
+
+def polyline_length(points: ArrayLike) -> float:
+    """Length of the open polyline through ``points`` (no closing segment)."""
+    p = loop_array(points)
+    return float(np.sum(np.hypot(*np.diff(p, axis=0).T)))
 
 
 def signed_area(points: ArrayLike) -> float:

@@ -6,13 +6,12 @@ numpy arrays stay inside the functions that compute them.
 
 from __future__ import annotations
 
+import bisect
 from dataclasses import dataclass
 from typing import Literal
 
-import numpy as np
-
 from diegen.findings import Finding
-from diegen.geometry.loops import loop_length, signed_area
+from diegen.geometry.loops import loop_length, polyline_length, signed_area
 
 __all__ = ["Hole", "Joggle", "PieceGeometry", "Pin", "Point", "Points", "RibGeometry", "Run"]
 
@@ -127,15 +126,17 @@ class PieceGeometry:
     def area_mm2(self) -> float:
         return signed_area(self.outline)
 
+    def run_starts_mm(self) -> list[float]:
+        """Where each run starts along the outline (mm, from its first point)."""
+        starts, s = [], 0.0
+        for run in self.runs:
+            starts.append(s)
+            s += polyline_length(run.points)
+        return starts
+
     def run_at(self, s_mm: float) -> Run:
         """The run ``s_mm`` along the outline (mm, from its first point) lies on."""
-        start, found = 0.0, self.runs[0]
-        for run in self.runs:
-            if s_mm < start:
-                break
-            found = run
-            start += float(np.sum(np.hypot(*np.diff(np.asarray(run.points, dtype=float), axis=0).T)))
-        return found
+        return self.runs[max(bisect.bisect_right(self.run_starts_mm(), s_mm) - 1, 0)]
 
     def flange_height_at(self, s_mm: float, spec_height_mm: float) -> float:
         """The flange height (mm) of the run ``s_mm`` along the outline lies on: the run's own, or the spec's

@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import math
 from collections.abc import Sequence
 
 from diegen.analysis import PieceAnalysis, RibAnalysis
@@ -20,6 +19,7 @@ from diegen.die.drawing import (
 from diegen.die.from_analysis import die_making, flute_lengths_mm
 from diegen.forming.relief import flute_arc_radius
 from diegen.geometry import die_wall
+from diegen.geometry.loops import polyline_length
 from diegen.numbers import without_negative_zeros
 from diegen.reports.document import PRINT_ORIENTATION, SAFETY, print_json, section_label
 from diegen.reports.text import die_life_text
@@ -292,11 +292,7 @@ def _cut_edge_strip_mm(piece: PieceAnalysis) -> float:
 
 def _cut_edges_text(piece: PieceAnalysis) -> str:
     runs = [r for r in piece.piece.runs if not r.flanged]
-    return f"{len(runs)} edge(s) with no flange, {sum(_run_length(r) for r in runs):.0f} mm in all"
-
-
-def _run_length(run) -> float:
-    return sum(math.dist(a, b) for a, b in zip(run.points, run.points[1:]))
+    return f"{len(runs)} edge(s) with no flange, {sum(polyline_length(r.points) for r in runs):.0f} mm in all"
 
 
 def _printed(rib: RibAnalysis, piece: PieceAnalysis) -> list[str]:

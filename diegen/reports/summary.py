@@ -17,6 +17,7 @@ import numpy as np
 from diegen import __version__
 from diegen.analysis import PieceAnalysis, RibAnalysis
 from diegen.fileio import write_bytes, write_text
+from diegen.geometry.loops import polyline_length
 from diegen.numbers import plain
 from diegen.spec.model import SetSpec, WingSpec
 from diegen.wing import chord_at, leading_edge_at, stations
@@ -213,7 +214,7 @@ def _piece_page(canvas: Any, plot: PiecePlot) -> None:
     top.line(plot.die_outline[:, 0], plot.die_outline[:, 1], die)
     top.legend([(blank, "blank"), (die, "die outline")])
     # straight flanges only: no strain to draw, the axis still spans the outline
-    outline_mm = float(np.sum(np.hypot(*np.diff(plot.die_outline, axis=0).T)))
+    outline_mm = polyline_length(plot.die_outline)  # a closed loop, its first point repeated
     s = np.concatenate([run[0] for run in plot.strain]) if plot.strain else np.array([0.0, outline_mm])
     e = np.concatenate([run[1] for run in plot.strain] + [[plot.shrink_limit]])
     bottom = Chart(canvas, (0.07 * w, 0.07 * h, 0.88 * w, 0.25 * h), (s.min(), s.max()), (e.min(), e.max()))

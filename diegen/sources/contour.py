@@ -42,6 +42,7 @@ import shapely
 from shapely.geometry import LinearRing, Polygon
 
 from diegen.errors import DrawingError
+from diegen.geometry.loops import polyline_length
 from diegen.geometry.types import Point, Points
 
 CHORD_TOL_MM = 0.01  # largest distance between a curve and its flattened polyline
@@ -332,7 +333,7 @@ class Edge:
             return math.dist(self.start, self.end)
         if self.kind == "arc":
             return self.radius * abs(self.sweep)
-        return _polyline_length(self.points)
+        return polyline_length(self.points)
 
     def start_tangent(self) -> Point:
         """Unit direction of travel where the edge starts."""
@@ -495,16 +496,11 @@ class Contour:
 
     def edge_offsets(self) -> np.ndarray:
         """Arc length along the flattened loop where each edge starts, and the total at the end (mm)."""
-        lengths = [_polyline_length(e.points) for e in self.edges]
+        lengths = [polyline_length(e.points) for e in self.edges]
         return np.concatenate([[0.0], np.cumsum(lengths)])
 
     def polygon(self) -> Polygon:
         return Polygon(self.points)
-
-
-def _polyline_length(points: Points) -> float:
-    p = np.asarray(points, dtype=float)
-    return float(np.sum(np.hypot(*np.diff(p, axis=0).T)))
 
 
 # -- joining open edges into closed contours -------------------------------------------
@@ -516,7 +512,7 @@ def join_edges(edges: Sequence[Edge], tol: float, place: Place) -> list[Contour]
     Raises :class:`DrawingError` naming every gap (each open chain's free ends, with the nearest other free
     end and its distance) and every point where three or more edge ends meet.
     """
-    pool = [e for e in edges if _polyline_length(e.points) > tol]  # specks shorter than the tolerance are dropped
+    pool = [e for e in edges if polyline_length(e.points) > tol]  # specks shorter than the tolerance are dropped
     if not pool:
         return []
     ends = np.array([[*e.start, *e.end] for e in pool], dtype=float)
