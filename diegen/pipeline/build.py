@@ -10,13 +10,15 @@ from dataclasses import dataclass, field
 from datetime import datetime
 from pathlib import Path
 
+import numpy as np
+
 from diegen import __version__
 from diegen.analysis import RibAnalysis
 from diegen.errors import OutputError
 from diegen.fileio import confined_to, remove_empty_folder, remove_file, write_text
 from diegen.findings import Finding, once, tagged
 from diegen.geometry.polygon import outline_deviation_mm
-from diegen.locate import refusals_located
+from diegen.locate import analyse_located, refusals_located
 from diegen.pipeline.diff import changed_keys, keys_text
 from diegen.pipeline.folder import check_output_folder
 from diegen.pipeline.hashing import piece_hash, rib_input_hash
@@ -24,9 +26,21 @@ from diegen.pipeline.jobs import Spec, rib_jobs
 from diegen.pipeline.lock import BuildLock, remove_stale_temporaries
 from diegen.pipeline.manifest import MANIFEST, Manifest, PieceRecord, RibRecord
 from diegen.pipeline.outputs import DieWriter
-from diegen.pipeline.workers import PieceTask, Progress, TaskResult, WorkerPool, analysed, pool_size, run_tasks
+from diegen.pipeline.workers import PieceTask, Progress, TaskResult, WorkerPool, pool_size, run_tasks
 from diegen.reports.document import piece_json
-from diegen.spec.model import SetSpec, WingSpec
+from diegen.spec.model import RibSpec, SetSpec, WingSpec
+
+_ANALYSIS_CACHE: dict[tuple, RibAnalysis] = {}
+
+
+def analysed(rib_spec: RibSpec, section: np.ndarray | None) -> RibAnalysis:
+    """The rib's analysis, computed once per process (the build, its summary and the pieces built here share it)."""
+    key = (rib_input_hash(rib_spec, section), rib_spec.file, rib_spec.positions)  # findings name the file
+    if key not in _ANALYSIS_CACHE:
+        if len(_ANALYSIS_CACHE) >= 256:
+            _ANALYSIS_CACHE.clear()
+        _ANALYSIS_CACHE[key] = analyse_located(rib_spec, section)
+    return _ANALYSIS_CACHE[key]
 
 
 @dataclass

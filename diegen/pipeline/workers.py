@@ -15,28 +15,11 @@ from concurrent.futures import FIRST_COMPLETED, Future, ProcessPoolExecutor, wai
 from dataclasses import dataclass, field
 from pathlib import Path
 
-import numpy as np
-
 from diegen.analysis import RibAnalysis
 from diegen.errors import DiegenError, OutputError
 from diegen.fileio import confined_to, inside, reason, remove_empty_folder, remove_file
-from diegen.locate import analyse_located
-from diegen.pipeline.hashing import rib_input_hash
 from diegen.pipeline.manifest import FileStamp
 from diegen.pipeline.outputs import DieWriter, write_piece
-from diegen.spec.model import RibSpec
-
-_ANALYSIS_CACHE: dict[tuple, RibAnalysis] = {}
-
-
-def analysed(rib_spec: RibSpec, section: np.ndarray | None) -> RibAnalysis:
-    """The rib's analysis, computed once per process (the build, its summary and the pieces built here share it)."""
-    key = (rib_input_hash(rib_spec, section), rib_spec.file, rib_spec.positions)  # findings name the file
-    if key not in _ANALYSIS_CACHE:
-        if len(_ANALYSIS_CACHE) >= 256:
-            _ANALYSIS_CACHE.clear()
-        _ANALYSIS_CACHE[key] = analyse_located(rib_spec, section)
-    return _ANALYSIS_CACHE[key]
 
 
 @dataclass(frozen=True)
@@ -206,4 +189,4 @@ def run_tasks(tasks: Sequence[PieceTask], folder: Path, root: Path, claimed: dic
         raise
 
 
-__all__ = ["PieceTask", "Progress", "TaskResult", "WorkerPool", "analysed", "build_piece", "pool_size", "run_tasks"]
+__all__ = ["PieceTask", "Progress", "TaskResult", "WorkerPool", "build_piece", "pool_size", "run_tasks"]
