@@ -189,7 +189,23 @@ class Axes:
     def __init__(self, canvas: Canvas, box: tuple[float, float, float, float]) -> None:
         self.canvas = canvas
         self.box = (round(box[0]), round(box[1]), round(box[2]), round(box[3]))
-        self.limits((0.0, 1.0), (0.0, 1.0))
+        self.xlim, self.ylim = (0.0, 1.0), (0.0, 1.0)
+        self._layer: Image.Image | None = None
+
+    @property
+    def layer(self) -> Image.Image:
+        """The supersampled drawing layer of the box as it stands, made on first use (a picture sets its limits
+        before it draws, and each layer of the preview's largest axes is some ten megabytes to fill)."""
+        if self._layer is None:
+            x0, y0, x1, y1 = self.box
+            self._layer = Image.new("RGB", ((x1 - x0) * SUPERSAMPLE, (y1 - y0) * SUPERSAMPLE), WHITE)
+            self._draw = ImageDraw.Draw(self._layer)
+        return self._layer
+
+    @property
+    def draw(self) -> ImageDraw.ImageDraw:
+        self.layer  # noqa: B018 - made with the layer
+        return self._draw
 
     # -- limits, scale
     def limits(self, xlim: tuple[float, float], ylim: tuple[float, float], equal: bool = False) -> None:
@@ -206,8 +222,7 @@ class Axes:
             xlim, ylim = (mx - w / scale / 2, mx + w / scale / 2), (my - h / scale / 2, my + h / scale / 2)
         self.box = (x0, y0, x1, y1)
         self.xlim, self.ylim = (float(xlim[0]), float(xlim[1])), (float(ylim[0]), float(ylim[1]))
-        self.layer = Image.new("RGB", ((x1 - x0) * SUPERSAMPLE, (y1 - y0) * SUPERSAMPLE), WHITE)
-        self.draw = ImageDraw.Draw(self.layer)
+        self._layer = None  # anything drawn before is dropped with the old limits
 
     def to_pixels(self, x: Sequence[float] | np.ndarray, y: Sequence[float] | np.ndarray) -> np.ndarray:
         """Data points as layer pixel coordinates (n, 2), y growing downwards."""
