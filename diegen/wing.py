@@ -127,12 +127,12 @@ def section_label_at(spec: WingSpec, station: RibStation) -> str:
 
 def section_at(spec: WingSpec, station: RibStation) -> np.ndarray:
     """The unit-chord section at a station: root and tip blended by span fraction, oblique cut applied."""
-    from diegen.geometry.rib import raw_section
-    from diegen.geometry.section import blend
+    from diegen.geometry.rib import section_surfaces
+    from diegen.geometry.section import blend_surfaces
 
     n = max(spec.root_airfoil.points, spec.tip_airfoil.points)
     fraction = blend_fraction(spec, station)
-    section = blend(raw_section(spec.root_airfoil), raw_section(spec.tip_airfoil), fraction, n)
+    section = blend_surfaces(section_surfaces(spec.root_airfoil, n), section_surfaces(spec.tip_airfoil, n), fraction)
     if station.oblique_deg:
         section[:, 1] /= math.cos(math.radians(station.oblique_deg))  # depth kept while the chord shrinks by cos
     return section

@@ -30,7 +30,7 @@ from diegen.geometry.types import Hole, PieceGeometry, RibGeometry
 from diegen.spec.model import AirfoilSource, RibSpec
 
 __all__ = ["DEPTH_SAMPLES", "FAIR_MARGIN_MM", "joggle_fair_radius", "load_section", "min_tail_depth", "raw_section",
-           "rib_geometry", "unit_findings"]
+           "rib_geometry", "section_surfaces", "unit_findings"]
 
 DEPTH_SAMPLES = 64
 FAIR_MARGIN_MM = 0.5  # joggle ramps bend this much rounder than the die wall's inset (design choice: room for sampling)
@@ -48,6 +48,18 @@ def raw_section(source: AirfoilSource) -> np.ndarray:
         raw = read_coordinates(source.file)
     raw.setflags(write=False)
     return raw
+
+
+@lru_cache(maxsize=64)
+def section_surfaces(source: AirfoilSource, n_points: int) -> tuple[np.ndarray, np.ndarray]:
+    """The upper and lower surfaces of ``source`` re-sampled for ``n_points`` (see
+    :func:`diegen.geometry.section.resample_surfaces`), read-only: the same for every station of a wing."""
+    from diegen.geometry.section import resample_surfaces
+
+    surfaces = resample_surfaces(raw_section(source), n_points)
+    for surface in surfaces:
+        surface.setflags(write=False)
+    return surfaces
 
 
 @lru_cache(maxsize=64)

@@ -28,12 +28,14 @@ __all__ = [
     "MAX_TE_GAP",
     "MIN_POINTS",
     "blend",
+    "blend_surfaces",
     "cubic_spline",
     "first_x_reversal",
     "leading_edge_index",
     "normalise",
     "normalise_with_index",
     "resample",
+    "resample_surfaces",
     "self_intersection_index",
     "split_surfaces",
     "surface_fractions",
@@ -366,7 +368,7 @@ class Cubic:
         raise ValueError(f"derivative order {nu} is not 0, 1 or 2")
 
 
-def _resample_surfaces(loop: ArrayLike, n_points: int) -> tuple[FloatArray, FloatArray]:
+def resample_surfaces(loop: ArrayLike, n_points: int) -> tuple[FloatArray, FloatArray]:
     """Re-sampled upper and lower surfaces (LE -> TE), with fixed counts for ``n_points``.
 
     One cubic spline (:func:`cubic_spline`, not-a-knot ends) through the whole chain TE -> LE -> TE,
@@ -416,7 +418,7 @@ def resample(loop: ArrayLike, n_points: int = 241) -> FloatArray:
     same ``n_points`` has the same per-surface arc-length fractions: point k of
     one corresponds to point k of another (see :func:`blend`).
     """
-    result = _assemble(*_resample_surfaces(loop, n_points))
+    result = _assemble(*resample_surfaces(loop, n_points))
     validate(result, "re-sampled section")  # a spline through a very odd outline can overshoot into itself
     return result
 
@@ -428,11 +430,17 @@ def blend(root_loop: ArrayLike, tip_loop: ArrayLike, fraction: float, n_points: 
     point, surface by surface.  Fraction 0 and 1 reproduce the re-sampled root
     and tip exactly.
     """
+    return blend_surfaces(resample_surfaces(root_loop, n_points), resample_surfaces(tip_loop, n_points), fraction)
+
+
+def blend_surfaces(root: tuple[FloatArray, FloatArray], tip: tuple[FloatArray, FloatArray],
+                   fraction: float) -> FloatArray:
+    """:func:`blend` of surfaces already re-sampled alike (:func:`resample_surfaces` with one point count): a
+    wing's root and tip are re-sampled once for all its stations."""
     f = float(fraction)
     if not np.isfinite(f):
         raise AirfoilError(f"blend fraction must be a finite number, got {fraction!r}")
-    ru, rl = _resample_surfaces(root_loop, n_points)
-    tu, tl = _resample_surfaces(tip_loop, n_points)
+    (ru, rl), (tu, tl) = root, tip
     if f == 0.0:
         return _assemble(ru, rl)
     if f == 1.0:
