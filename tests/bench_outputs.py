@@ -177,6 +177,9 @@ def main() -> None:
     parser.add_argument("--repeat", type=int, default=7, help="calls per writer and rounds of commands (default 7)")
     args = parser.parse_args()
     out = Path(tempfile.mkdtemp(prefix="diegen-bench-outputs-"))
+    from testing import cache_bytecode
+
+    cache_bytecode()
 
     writers(args.repeat, out)
     runs = commands(args.repeat, out)

@@ -2,10 +2,10 @@
 
 The kernel keeps one pool of worker threads per process, made on first use.  A process forked after its parent
 used that pool inherits the pool's bookkeeping but none of its threads, and a parallel call then waits forever
-for them.  Build workers are forked from the process that analyses the spec; in a normal build that process never
-touches the kernel, but a program (or a test run) that builds a die in-process and then forks workers would hang.
-So parallel calls are made only in the process that first used the kernel, or in a process forked before any
-kernel call; anywhere else the same algorithms run on one thread (same results, slower).
+for them.  diegen's own build workers are fresh processes, and its forked analysis refuses to fork once the kernel
+is loaded, but a program (or a test run) that builds a die in-process and then forks would hang.  So parallel
+calls are made only in the process that first used the kernel, or in a process forked before any kernel call;
+anywhere else the same algorithms run on one thread (same results, slower).
 """
 
 from __future__ import annotations
