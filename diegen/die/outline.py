@@ -249,6 +249,7 @@ class OutlineModel:
         self.segments: list[_Segment] = []
         self.periodic = False
         self._corner_cache: dict[float, tuple[list[float], list[float], dict[int, FloatArray]]] = {}
+        self._offset_cache: dict[tuple[float, float | None, float], tuple[OffsetPiece, ...]] = {}
         self._build(runs)
         self.segment_starts = np.concatenate([[0.0], np.cumsum([seg.length for seg in self.segments])])
         self._check_loop()
@@ -601,6 +602,9 @@ class OutlineModel:
     def offset(self, inset: float, spacing_mm: float | None = None, flute_scale: float = 0.0) -> list[OffsetPiece]:
         """The outline offset inward by ``inset`` mm, one piece per span, the same structure for every inset.
 
+        Kept per (inset, spacing, flute scale): the rules that check a die, the solid, its drawing and its laminate
+        layers ask for the same sections (a refusal is raised again, as it is not kept).
+
         Curve pieces are sampled at the model's fixed fractions, or every
         ``spacing_mm`` along the base curve if given (for plain outlines).
         Flutes: each groove's cross-section is the circular segment of its
@@ -608,6 +612,12 @@ class OutlineModel:
         normals (a circle of radius r = (w²/4 + D²)/(2D) on a straight wall
         when ``flute_scale`` is 1); ``flute_scale`` 0 leaves the wall whole.
         """
+        key = (inset, spacing_mm, flute_scale)
+        if key not in self._offset_cache:
+            self._offset_cache[key] = tuple(self._offset(inset, spacing_mm, flute_scale))
+        return list(self._offset_cache[key])
+
+    def _offset(self, inset: float, spacing_mm: float | None, flute_scale: float) -> list[OffsetPiece]:
         if self.periodic and not self.grooves:
             seg = self.segments[0]
             span = self.spans[0]

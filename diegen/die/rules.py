@@ -24,9 +24,13 @@ from diegen.die.tiles import die_tile_layout
 from diegen.errors import GeometryError
 
 
-def check_die(die: DieInput, settings: BuildSettings = DEFAULT_SETTINGS) -> OutlineModel:
-    """The checked outline model of ``die``; :class:`GeometryError` for the first thing the builder would refuse."""
-    model = outline_model(die, settings)
+def check_die(die: DieInput, settings: BuildSettings = DEFAULT_SETTINGS, model: OutlineModel | None = None
+              ) -> OutlineModel:
+    """The checked outline model of ``die``; :class:`GeometryError` for the first thing the builder would refuse.
+
+    ``model``: the die's outline model when the caller has made it already (its sections are kept, so the solid
+    and the drawings made from it afterwards reuse the ones checked here)."""
+    model = outline_model(die, settings) if model is None else model
     arc, wall = loft_levels(die, settings)
     for level in arc + wall[1:]:
         level_section(die, model, level)

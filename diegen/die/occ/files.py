@@ -9,11 +9,12 @@ from typing import Any
 from diegen.die.die_input import DieInput
 from diegen.die.drawing import die_drawing
 from diegen.die.from_analysis import die_input, die_making, marks_note, pin_note, tile_plan
-from diegen.die.laminate import laminate_layers
+from diegen.die.laminate import layer_outlines
 from diegen.die.model import outline_model
 from diegen.die.occ.export import write_step, write_stl
 from diegen.die.occ.form_block import build_die
 from diegen.die.occ.tiles import cut_tiles
+from diegen.die.outline import OutlineModel
 from diegen.die.placement import PlacedMarks, fit_marks
 from diegen.die.settings import DEFAULT_SETTINGS
 from diegen.die.tiles import TileLayout, tile_file_stems
@@ -39,7 +40,7 @@ def write_die_files(rib: Any, piece: Any, folder: Path, claimed: bool = False) -
     model = outline_model(die, DEFAULT_SETTINGS)
     marks = fit_marks(die, model, DEFAULT_SETTINGS)
     marked = replace(die, engraving=marks.lines)
-    solid = build_die(marked, DEFAULT_SETTINGS, marks.polygons)
+    solid = build_die(marked, DEFAULT_SETTINGS, marks.polygons, model)
     source = rib.spec.section_label + (f"; spec {Path(rib.spec.file).name}" if rib.spec.file else "")
     write_step(solid, folder / names[0], product=part, description=f"form block {part}, mm; {source}")
     write_stl(solid, folder / names[1], tolerance_mm=tolerance, header=part)
@@ -55,7 +56,7 @@ def write_die_files(rib: Any, piece: Any, folder: Path, claimed: bool = False) -
     if pin_note(die):
         notes.insert(0, pin_note(die))
     if piece.die_layers > 1 and die_making(shared.die) != "printed":
-        names.append(_write_layers(die, shared.die.stock_thickness_mm, folder, claimed))
+        names.append(_write_layers(die, model, shared.die.stock_thickness_mm, folder, claimed))
         notes.append(f"Laminated die: {piece.die_layers} layers; each layer's cut outline is in {names[-1]} "
                      "(layer LAYER1 on top).")
     if tile_names:
@@ -96,11 +97,11 @@ def _write_tiles(solid: Any, layout: TileLayout, part: str, folder: Path, claime
     return names
 
 
-def _write_layers(die: DieInput, stock: float, folder: Path, claimed: bool) -> str:
+def _write_layers(die: DieInput, model: OutlineModel, stock: float, folder: Path, claimed: bool) -> str:
     name = f"{die.part_id}-layers.dxf"
     refuse_foreign([folder / name], claimed)
     outlines = [(f"LAYER{layer.index + 1}", [p for run in layer.outline for p in run.points[:-1]])
-                for layer in laminate_layers(die, stock)]
+                for layer in layer_outlines(die, model, stock)]
     write_outlines_dxf(outlines, folder / name)
     return name
 

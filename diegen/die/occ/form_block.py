@@ -266,11 +266,12 @@ def build_body(die: DieInput, model: OutlineModel, settings: BuildSettings = DEF
 
 
 def build_die(die: DieInput, settings: BuildSettings = DEFAULT_SETTINGS,
-              marks: Sequence[Polygon] | None = None) -> Any:
+              marks: Sequence[Polygon] | None = None, model: OutlineModel | None = None) -> Any:
     """The finished die solid (the kernel's ``TopoDS_Solid``), checked valid.
 
     ``marks``: the engraving's grooves when already laid out
     (:func:`diegen.die.placement.place_marks`); by default they are laid out here.
+    ``model``: the die's outline model when the caller has made it (checked here all the same).
     Raises :class:`GeometryError` for input the die cannot follow (the
     checks of :func:`diegen.die.rules.check_die`, the same ones ``diegen
     check`` makes) and :class:`SolidError` when the kernel fails or returns an
@@ -278,7 +279,7 @@ def build_die(die: DieInput, settings: BuildSettings = DEFAULT_SETTINGS,
     then the die is rebuilt without the engraving, and without the holes, to
     name the part at fault.
     """
-    model = check_die(die, settings)  # every refusal is the analysis's own (diegen.die.rules)
+    model = check_die(die, settings, model)  # every refusal is the analysis's own (diegen.die.rules)
     marks = engraving_marks(die, model, settings) if marks is None else list(marks)
     solid = build_body(die, model, settings, marks)
     problems = solid_problems(solid)
