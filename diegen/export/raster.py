@@ -274,11 +274,16 @@ class Axes:
         self.line(self.xlim, [y, y], style)
 
     def segments(self, segments: np.ndarray, colours: np.ndarray, width_pt: float) -> None:
-        """Straight segments (n, 2, 2) in data units, each in its own colour (n, 3)."""
-        pixels = self.to_pixels(segments[:, :, 0].ravel(), segments[:, :, 1].ravel()).reshape(-1, 4).tolist()
+        """Straight segments (n, 2, 2) in data units, each in its own colour (n, 3); a chain of segments of one
+        colour, each starting where the one before ends, is drawn as one line (a flange of even strain is one
+        colour along most of its length)."""
+        pixels = self.to_pixels(segments[:, :, 0].ravel(), segments[:, :, 1].ravel()).reshape(-1, 2, 2)
         width = self._width(width_pt)
-        for xy, colour in zip(pixels, colours.tolist()):
-            self.draw.line(xy, fill=tuple(colour), width=width)
+        joined = np.all(segments[1:, 0] == segments[:-1, 1], axis=1) & np.all(colours[1:] == colours[:-1], axis=1)
+        starts = np.flatnonzero(~np.concatenate([[False], joined]))
+        for first, stop in zip(starts.tolist(), [*starts[1:].tolist(), len(segments)]):
+            chain = np.vstack([pixels[first:stop, 0], pixels[stop - 1, 1]])
+            self.draw.line(chain.ravel().tolist(), fill=tuple(colours[first].tolist()), width=width, joint="curve")
 
     def circles(self, circles: Sequence[tuple[float, float, float]], edge: Line | None = None,
                 fill: Colour | None = None) -> None:

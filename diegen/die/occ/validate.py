@@ -164,6 +164,21 @@ def step_file_problems(path: str | os.PathLike[str]) -> list[str]:
     return problems
 
 
+def _vertex_ids(points: np.ndarray) -> np.ndarray:
+    """One number per distinct point of ``points`` (n, 3) float32, equal where the coordinates are equal bit for
+    bit after turning −0 into +0: the points sorted on their bits (as two 64-bit keys, which sort some twice as
+    fast as 12-byte records) and numbered at each change."""
+    bits = np.ascontiguousarray(points + np.float32(0.0)).view(np.uint32).astype(np.uint64)
+    high, low = (bits[:, 0] << np.uint64(32)) | bits[:, 1], bits[:, 2]
+    order = np.lexsort((low, high))
+    high, low = high[order], low[order]
+    new = np.ones(len(order), dtype=bool)
+    new[1:] = (high[1:] != high[:-1]) | (low[1:] != low[:-1])
+    ids = np.empty(len(order), dtype=np.int64)
+    ids[order] = np.cumsum(new) - 1
+    return ids
+
+
 def stl_problems(path: str | os.PathLike[str]) -> list[str]:
     """Everything wrong with an STL as a printable closed mesh; an empty list when it is good.
 
@@ -173,9 +188,8 @@ def stl_problems(path: str | os.PathLike[str]) -> list[str]:
     tri = read_stl_triangles(path)
     if len(tri) == 0:
         return ["it holds no triangles"]
-    keys = np.ascontiguousarray(tri.reshape(-1, 3) + np.float32(0.0)).view(np.dtype((np.void, 12))).ravel()
-    _, index = np.unique(keys, return_inverse=True)
-    faces = index.reshape(-1, 3).astype(np.int64)
+    index = _vertex_ids(tri.reshape(-1, 3))
+    faces = index.reshape(-1, 3)
     keep = (faces[:, 0] != faces[:, 1]) & (faces[:, 1] != faces[:, 2]) & (faces[:, 0] != faces[:, 2])
     faces = faces[keep]
     start = faces.ravel()
