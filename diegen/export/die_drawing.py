@@ -17,7 +17,7 @@ from pathlib import Path
 from xml.sax.saxutils import escape
 
 from diegen.die.drawing import DieDrawing
-from diegen.export.dxf import fit_view, new_document, save_dxf
+from diegen.export.dxf import add_polyline, fit_view, new_document, save_dxf
 from diegen.export.svg import fmt, save_svg, svg_document
 
 
@@ -26,7 +26,7 @@ def build_die_dxf(drawing: DieDrawing):  # -> ezdxf.document.Drawing (untyped so
     doc = new_document(drawing.layers)
     msp = doc.modelspace()
     for line in drawing.polylines:
-        msp.add_lwpolyline(line.points, format="xy", close=line.closed, dxfattribs={"layer": line.layer})
+        add_polyline(msp, line.points, line.closed, line.layer)
     for c in drawing.circles:
         msp.add_circle((c.x, c.y), c.d / 2.0, dxfattribs={"layer": c.layer})
     for t in drawing.texts:

