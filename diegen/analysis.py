@@ -529,7 +529,8 @@ def _press(spec: RibSpec, piece: PieceGeometry, springback: Springback, flutes: 
     return press_model.press_check(
         press_model.PressSetup(press.force_n, *press.box_mm, press.rubber.thickness_mm, press.rubber.durometer,
                                press.wall_clearance_mm),
-        press_model.DieFootprint(maxx - minx, maxy - miny, piece.area_mm2, die_height_mm, die.compressive_strength_mpa,
+        press_model.DieFootprint(maxx - minx, maxy - miny, piece.die_area_mm2, die_height_mm,
+                                 die.compressive_strength_mpa,
                                  die.life_parts if die.life_parts is not None else 10**9),
         legs, shared.sheet.thickness_mm, alloy.yield_mpa)
 
@@ -624,7 +625,8 @@ def _blank(spec: RibSpec, piece: PieceGeometry, springback: Springback, layout: 
 
 
 def _bounds(piece: PieceGeometry) -> tuple[float, float, float, float]:
-    pts = np.asarray(piece.outline)
+    """The die's extent (mm): its outline's least and greatest x and y."""
+    pts = np.asarray(piece.die_outline)
     return float(pts[:, 0].min()), float(pts[:, 1].min()), float(pts[:, 0].max()), float(pts[:, 1].max())
 
 

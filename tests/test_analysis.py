@@ -178,7 +178,7 @@ def test_json_report_has_the_documented_keys_and_consistent_numbers(spec: RibSpe
         assert [(q["x_mm"], q["y_mm"], q["d_mm"]) for q in part["pins"]] == \
             [(round(q.x, 3), round(q.y, 3), round(q.d, 3)) for q in p.piece.pins]
         # numbers measured again with shapely
-        outline = Polygon(p.piece.outline)
+        outline = Polygon(p.piece.die_outline)
         assert part["die"]["outline_length_mm"] == pytest.approx(outline.length, abs=0.01)
         assert part["die"]["area_mm2"] == pytest.approx(outline.area, abs=0.1)
         circles = p.blank.cut_circles + p.blank.drill_circles

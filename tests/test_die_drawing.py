@@ -82,6 +82,30 @@ def test_die_dxf_reads_back_clean_and_encloses_the_report_area(demo, tmp_path: P
         assert gap == pytest.approx(inset, abs=SAMPLE_TOL_MM)
 
 
+def test_blank_cut_end_lies_on_the_flat_top(demo, tmp_path: Path) -> None:
+    """The tail's aft end is cut (no flange): the blank stops flush with the piece's outline there, and the die runs
+    on past it so that end lies on the die's flat top (the drawing's TOP-FLAT, read back with ezdxf), clear of the
+    rounded top edge by at least 1 mm (project limit) across the web; the flanged pieces' dies are their outlines.
+    Without the run-on the flat top would end the top setback (about the die radius) short of the cut, and the
+    rubber would curl the blank's last millimetres down over the round (common practice, no source)."""
+    for piece in demo.pieces[:2]:
+        assert piece.piece.die_outline == piece.piece.outline and piece.piece.die_overrun_mm == 0.0
+    piece = demo.pieces[2]
+    x_cut = piece.piece.x_range_mm[1]
+    assert max(x for x, _ in piece.blank.outer) == pytest.approx(x_cut, abs=1e-6)  # the blank ends at the cut
+    _, drawing, _ = _drawing(demo, piece)
+    doc = ezdxf.readfile(write_die_dxf(drawing, tmp_path / "die.dxf"))
+    (flat,) = _closed(doc, TOP_FLAT.name)
+    def across(shape, x: float) -> float:  # the length of the vertical line at x inside shape
+        return shape.intersection(LineString([(x, -1e4), (x, 1e4)])).length
+
+    depth = across(Polygon(piece.piece.outline), x_cut - 1e-6)
+    flat_top = Polygon(flat)
+    assert flat_top.bounds[2] >= x_cut + 1.0
+    # 1 mm past the cut the flat top still spans the web less a top setback (well under 3 mm here) top and bottom
+    assert across(flat_top, x_cut + 1.0) >= depth - 2 * 3.0
+
+
 def test_die_dxf_holes_are_circles_with_their_sizes_noted(demo, tmp_path: Path) -> None:
     piece = demo.pieces[0]
     die, drawing, _ = _drawing(demo, piece)
@@ -119,7 +143,7 @@ def test_die_svg_is_true_scale_with_a_group_per_layer(demo, tmp_path: Path) -> N
     pts = np.array([[float(v) for v in p.split(",")] for p in outline.get("points").split()])
     x, y = pts.T
     shoelace = 0.5 * abs(np.dot(x, np.roll(y, -1)) - np.dot(np.roll(x, -1), y))
-    assert shoelace == pytest.approx(demo.pieces[2].piece.area_mm2, rel=AREA_TOL)
+    assert shoelace == pytest.approx(Polygon(demo.pieces[2].piece.die_outline).area, rel=AREA_TOL)  # shapely
 
 
 def test_printed_die_marks_keep_clear_of_the_joints(demo, tmp_path: Path) -> None:

@@ -18,7 +18,7 @@ import numpy as np
 import pytest
 import shapely
 from scipy.interpolate import CubicSpline
-from shapely.geometry import LinearRing, LineString, Polygon
+from shapely.geometry import LinearRing, LineString, Point, Polygon
 from testing import (
     DEMO_RIB,
     DEMO_WING,
@@ -452,6 +452,56 @@ def test_auto_holes_respect_the_margin_on_every_demo_wing_rib() -> None:
                 count += 1
                 assert web.exterior.distance(point((h.x, h.y))) - h.d / 2 >= need - 1e-6, (piece.part_id, h)
     assert count > 60
+
+
+def test_the_tail_die_runs_on_past_the_cut_along_the_section(spec: RibSpec) -> None:
+    """The tail's aft end is a cut: its die runs on aft by 1.5 × bend radius + 3 mm (project limit) following the
+    die outline of the whole rib (shapely: the extra length lies on the rib's die outline), so the blank's end lies
+    on the flat top; the piece itself (web, flanges, blank) still ends at the cut."""
+    rib = rib_geometry(spec, stretch_limit=stretch_limit(spec))
+    tail = next(p for p in rib.pieces if p.name == "tail")
+    x_cut = tail.x_range_mm[1]
+    expected = 1.5 * spec.shared.flange.bend_radius_mm + 3.0
+    assert tail.die_overrun_mm == pytest.approx(expected)
+    die = Polygon(tail.die_outline)
+    assert die.bounds[2] == pytest.approx(x_cut + expected, abs=1e-6)
+    assert max(x for x, _ in tail.outline) == pytest.approx(x_cut, abs=1e-6)
+    # the added stretch of the upper and lower edges lies on the rib's die outline, the new end face square across
+    whole = LinearRing(rib.die_outline)
+    added = [p for p in tail.die_outline if p[0] > x_cut + 1e-6 and p[0] < x_cut + expected - 1e-6]
+    assert added and max(whole.distance(Point(p)) for p in added) < 0.01
+    assert Polygon(tail.outline).within(die.buffer(1e-6))
+    assert vertical_chord(die, x_cut + expected - 1e-6) == pytest.approx(vertical_chord(Polygon(rib.die_outline),
+                                                                                       x_cut + expected), abs=0.05)
+
+
+def test_run_on_shortens_where_the_section_ends_and_stops_where_it_has_no_room() -> None:
+    """A wedge 40 mm deep at x = 0 tapering to 4 mm at x = 100 (its end), bend radius 2 mm: 6 mm of run-on wanted
+    (1.5 × 2 + 3); from a cut at x = 50 it all fits, from x = 96 only 4 mm (the section ends), from x = 98 only 2 mm,
+    less than half of what is wanted, so none (arithmetic of the wedge)."""
+    from diegen.geometry.rib import die_overrun_mm
+
+    x = np.linspace(0.0, 100.0, 201)
+    upper = np.column_stack([x, 20.0 - 0.18 * x])
+    lower = np.column_stack([x, -20.0 + 0.18 * x])
+    assert die_overrun_mm(upper, lower, 50.0, 2.0) == pytest.approx(6.0)
+    assert die_overrun_mm(upper, lower, 96.0, 2.0) == pytest.approx(4.0)
+    assert die_overrun_mm(upper, lower, 98.0, 2.0) == 0.0
+
+
+def test_a_tail_without_run_on_asks_for_a_square_cut_edge(spec: RibSpec) -> None:
+    """Where the die cannot run on past the cut (no room), the shop sheet asks for a square top edge along it; with
+    the run-on it says how far the die runs on instead."""
+    from diegen.analysis import analyse_rib
+    from diegen.reports.sheet import shop_sheet
+
+    rib = analyse_rib(spec)
+    tail = rib.pieces[2]
+    sheet = shop_sheet(rib, tail)
+    assert "**Cut end**: the die runs on" in sheet and "**Cut edges**" not in sheet
+    flush = replace(tail, piece=replace(tail.piece, die_runs=(), die_overrun_mm=0.0))
+    sheet = shop_sheet(rib, flush)
+    assert "**Cut edges**" in sheet and "**square**" in sheet and "**Cut end**" not in sheet
 
 
 def test_a_dropped_tail_is_told_about_its_rib_and_every_other_warning_names_rib_and_part(spec: RibSpec) -> None:

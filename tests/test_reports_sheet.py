@@ -70,7 +70,7 @@ def inches(value: str | float) -> float:
 def box_fits(piece) -> bool:
     """The die in the spec's box with the 1 in default wall clearance (specs/README.md), by shapely's bounds."""
     box = (RAW["press"]["box"][0] * MM_PER_IN, RAW["press"]["box"][1] * MM_PER_IN)
-    return fits_box(piece.piece.outline, box, 1.0 * MM_PER_IN)
+    return fits_box(piece.piece.die_outline, box, 1.0 * MM_PER_IN)
 
 
 def number_after(text: str, pattern: str) -> float:
@@ -138,7 +138,7 @@ def test_stock_sizes_cover_die_and_blank(sheets, name: str) -> None:
     """At least the die's and the blank's extents (shapely bounds) plus the sheet's 10 mm a side (its own
     choice of margin)."""
     piece, text = sheets[name]
-    for what, loop in (("Die", piece.piece.outline), ("Blank", piece.blank.outer)):
+    for what, loop in (("Die", piece.piece.die_outline), ("Blank", piece.blank.outer)):
         x0, y0, x1, y1 = Polygon(loop).bounds
         line = next(line for line in text.splitlines() if line.startswith(f"* {what}:"))
         a = number_after(line, r"at least ([\d.]+) mm")
@@ -364,18 +364,21 @@ def test_every_flute_size_is_on_the_sheet() -> None:
         assert f"{width:.1f} mm" in line and f"{depth:.1f} mm" in line, (width, depth, line)
 
 
-def test_cut_edges_are_left_square_on_the_die(sheets) -> None:
-    """The tail piece's aft end gets no flange: the blank stops flush with the die outline there, so the sheet asks
-    for a square top edge along it, naming the strip a rounded edge would leave unsupported: the top setback
-    R·(1 + sin α)/cos α of the die radius R and over-bend α (plane geometry of a circle tangent to the top face and
-    to a wall leaning in by α, worked here from the piece's own die radius and over-bend). The nose and center
-    pieces are flanged all round and have no such step."""
+def test_the_cut_end_lies_on_the_flat_top_of_the_die(sheets) -> None:
+    """The tail piece's aft end gets no flange: the blank stops flush with the piece's outline there, and the die
+    runs on past it, so the sheet says how far and how far that end lies clear of the rounded top edge: the run-on
+    less the top setback R·(1 + sin α)/cos α of the die radius R and over-bend α (plane geometry of a circle tangent
+    to the top face and to a wall leaning in by α, worked here from the piece's own die radius and over-bend).  The
+    nose and center pieces are flanged all round and have no such step."""
     piece, text = sheets["tail"]
     assert [r.flanged for r in piece.piece.runs].count(False) == 1
     radius, lean = piece.springback.die_radius_mm, math.radians(piece.springback.overbend_deg)
-    strip = radius * (1.0 + math.sin(lean)) / math.cos(lean)
-    assert number_after(text, r"\*\*Cut edges\*\* \(1 edge\(s\) with no flange.*?last ([0-9.]+) mm") == \
-        pytest.approx(strip, abs=0.006)
-    assert "top edge **square**" in text
+    setback = radius * (1.0 + math.sin(lean)) / math.cos(lean)
+    overrun = piece.piece.die_overrun_mm
+    assert number_after(text, r"\*\*Cut end\*\*: the die runs on ([0-9.]+) mm") == pytest.approx(overrun, abs=0.006)
+    assert number_after(text, r"flat top, ([0-9.]+) mm \([0-9.]+ in\) clear of the rounded top edge") == \
+        pytest.approx(overrun - setback, abs=0.006)
+    assert overrun - setback >= 1.0  # project limit: room to spare
+    assert "Cut edges" not in text
     for name in ("nose", "center"):
-        assert "Cut edges" not in sheets[name][1]
+        assert "Cut edges" not in sheets[name][1] and "Cut end" not in sheets[name][1]

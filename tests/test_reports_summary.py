@@ -74,7 +74,7 @@ def test_values_equal_the_analysis(rows, wing) -> None:
     assert len(pieces) == len(rows)
     for r, p in zip(rows, pieces):
         assert r["part_id"] == p.piece.part_id
-        x0, y0, x1, y1 = Polygon(p.piece.outline).bounds
+        x0, y0, x1, y1 = Polygon(p.piece.die_outline).bounds
         bx0, by0, bx1, by1 = Polygon(p.blank.outer).bounds
         assert r["die_length_mm"] == pytest.approx(x1 - x0, abs=0.05)
         assert r["die_depth_mm"] == pytest.approx(y1 - y0, abs=0.05)

@@ -120,8 +120,8 @@ def test_one_block_per_piece_in_order(rib, report) -> None:
 def test_die_outline_measured_by_shapely(rib, blocks, name: str) -> None:
     p = rib.pieces[PIECES.index(name)]
     line = field(blocks[name], "die outline")
-    length = LinearRing(p.piece.outline).length
-    area = Polygon(p.piece.outline).area
+    length = LinearRing(p.piece.die_outline).length
+    area = Polygon(p.piece.die_outline).area
     assert f"length {length_text(length, True)}" in line
     assert number_after(line, r"area (\d+) mm²") == pytest.approx(area, abs=0.5)
     # the web's depth: shapely's vertical chords across the piece (the nose from a tenth of its length, its tip
@@ -239,7 +239,7 @@ def test_press_die_life_and_blank(rib, blocks, name: str) -> None:
     reach = max(hinge_lever_mm(mpa, t, T3_YIELD_MPA), radius)
     box = (RAW["press"]["box"][0] * MM_PER_IN, RAW["press"]["box"][1] * MM_PER_IN)
     legs = press_legs(p, mpa, height, t, T3_YIELD_MPA)
-    fits = fits_box(p.piece.outline, box, 1.0 * MM_PER_IN)  # the 1 in default wall clearance (specs/README.md)
+    fits = fits_box(p.piece.die_outline, box, 1.0 * MM_PER_IN)  # the 1 in default wall clearance (specs/README.md)
     verdict = press_verdict([a for _, a in legs], fits)
     head = (f"press         {mpa:.2f} MPa ({psi:.0f} psi) over the box; {top:.2f} MPa on the die top; setting the "
             f"flanges on the die radius needs {needed:.2f} MPa ({needed * MM_PER_IN**2 / N_PER_LBF:.0f} psi); ")

@@ -115,7 +115,7 @@ def asked_die_input(spec: Any, piece: Any) -> DieInput:
     profiles, wall = wall_profiles(piece)
     return DieInput(
         part_id=g.part_id,
-        outline=tuple(DieRun(run.kind, run.points) for run in g.runs),
+        outline=tuple(DieRun(run.kind, run.points) for run in g.die_runs or g.runs),
         height_mm=height,
         top_radius_mm=wall.radius_mm,
         undercut_deg=wall.lean_deg,

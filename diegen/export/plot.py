@@ -153,7 +153,7 @@ class _GeometryPicture(_Picture):
         if not drawn:
             self.line(ax, *_closed(rib.oml).T, color="tab:blue", lw=0.8, ls="--")
         self.line(ax, *_closed(blank.outer).T, color="tab:green", lw=0.9)
-        outline = _closed(g.outline)
+        outline = _closed(g.die_outline)
         self.line(ax, *outline.T, color="k", lw=1.6)
         for j in g.joggles:
             if j.surface == "outline":  # a drawn part's joggle: the recessed stretch itself
@@ -226,7 +226,7 @@ def _preview(piece_analysis: Any) -> Any:
     canvas = Canvas(*PREVIEW_INCHES, DPI)
     g = piece_analysis.piece
     blank = piece_analysis.blank
-    outline = _closed(g.outline)
+    outline = _closed(g.die_outline)
     limit = piece_analysis.flange.shrink_limit
     stretch = piece_analysis.alloy.stretch_limit
     norm_max = max(2 * limit, piece_analysis.max_shrink, piece_analysis.max_stretch, 1e-3)

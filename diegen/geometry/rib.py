@@ -16,6 +16,7 @@ from diegen.findings import Finding
 from diegen.geometry import holes as hole_rules
 from diegen.geometry import pins as pin_rules
 from diegen.geometry.pieces import (
+    MIN_END_FACE_MM,
     SparCut,
     depth_at,
     joggles_for,
@@ -29,10 +30,13 @@ from diegen.geometry.tooling import tooling
 from diegen.geometry.types import Hole, PieceGeometry, RibGeometry
 from diegen.spec.model import AirfoilSource, RibSpec
 
-__all__ = ["DEPTH_SAMPLES", "FAIR_MARGIN_MM", "joggle_fair_radius", "load_section", "min_tail_depth", "raw_section",
+__all__ = ["CUT_END_OVERRUN_MM", "CUT_END_OVERRUN_PER_RADIUS", "DEPTH_SAMPLES", "FAIR_MARGIN_MM", "die_overrun_mm",
+           "joggle_fair_radius", "load_section", "min_tail_depth", "raw_section",
            "rib_geometry", "section_surfaces", "unit_findings"]
 
 DEPTH_SAMPLES = 64
+CUT_END_OVERRUN_PER_RADIUS = 1.5  # design choice: the die's run past a cut end, per mm of bend radius ...
+CUT_END_OVERRUN_MM = 3.0  # ... plus this much (a 3/32 in bend radius: 6.6 mm)
 FAIR_MARGIN_MM = 0.5  # joggle ramps bend this much rounder than the die wall's inset (design choice: room for sampling)
 
 
@@ -200,8 +204,25 @@ def _piece(spec: RibSpec, name: str, x0: float | None, x1: float, aft_flanged: b
     with keyed("pins"):
         holes, pins = _pins_and_holes(spec, name, polygon, (lo, x1), radius, holes, warnings)
     plain = piece_runs(upper, lower, x0, x1, (), aft_flanged) if joggles else runs
+    overrun = 0.0 if aft_flanged else die_overrun_mm(upper, lower, x1, radius)
+    die_runs = piece_runs(upper, lower, x0, x1 + overrun, joggles, aft_flanged) if overrun else ()
     return PieceGeometry(name, part_id, (lo, x1), runs, tuple(joggles), holes, pins, relief_points(runs),
-                         _depth_range(polygon, lo, x1, name), plain)
+                         _depth_range(polygon, lo, x1, name), plain, die_runs=die_runs, die_overrun_mm=overrun)
+
+
+def die_overrun_mm(upper: np.ndarray, lower: np.ndarray, x_cut: float, bend_radius_mm: float) -> float:
+    """How far (mm) a tail piece's die runs on aft past the piece's cut end, following the section: far enough that
+    the blank's end, flush with the cut, lies on the die's flat top with room to spare
+    (:data:`CUT_END_OVERRUN_PER_RADIUS` × bend radius + :data:`CUT_END_OVERRUN_MM`); the top-edge round sets the flat
+    top back by about the die radius, which springback makes smaller than the bend radius.  Less where the section
+    ends sooner, and 0 where it leaves less than half of that (the shop sheet then asks for a square top edge
+    there)."""
+    wanted = CUT_END_OVERRUN_PER_RADIUS * bend_radius_mm + CUT_END_OVERRUN_MM
+    room = min(float(upper[-1, 0]), float(lower[-1, 0])) - x_cut
+    while room > 0.0 and depth_at(upper, lower, x_cut + min(wanted, room)) < 2.0 * MIN_END_FACE_MM:
+        room -= 0.5  # a die end face needs some depth
+    overrun = min(wanted, room)
+    return overrun if overrun >= 0.5 * wanted else 0.0
 
 
 def _holes(spec: RibSpec, name: str, polygon: Polygon, x_range: tuple[float, float], radius: float,

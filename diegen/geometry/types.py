@@ -109,18 +109,42 @@ class PieceGeometry:
     plain_runs: tuple[Run, ...] = ()
     # Inner contours of a drawn part that are not round holes: cut from the blank, nothing on the die (CW loops).
     cutouts: tuple[Points, ...] = ()
+    # The die's own outline where it runs on past a cut end of the piece (a rib tail's aft end), so the blank's end
+    # lies on the die's flat top instead of over its rounded top edge; () when the die's outline is the piece's.
+    die_runs: tuple[Run, ...] = ()
+    die_overrun_mm: float = 0.0  # how far the die runs on past the piece's cut end (0: not at all)
 
     @property
     def outline(self) -> Points:
-        """The closed die outline as one point loop (no repeated closing point)."""
+        """The piece's closed outline (the flange's inner mold line, the web's edge) as one point loop (no repeated
+        closing point): the die's, except where the die runs on past a cut end (:attr:`die_outline`)."""
         points: list[Point] = []
         for run in self.runs:
             points.extend(run.points[:-1])
         return tuple(points)
 
     @property
+    def die_outline(self) -> Points:
+        """The die's closed outline (no repeated closing point): the piece's, run on past a cut end where
+        :attr:`die_runs` says so."""
+        points: list[Point] = []
+        for run in self.die_runs or self.runs:
+            points.extend(run.points[:-1])
+        return tuple(points)
+
+    @property
     def length_mm(self) -> float:
         return loop_length(self.outline)
+
+    @property
+    def die_area_mm2(self) -> float:
+        """The area inside the die's outline (mm²)."""
+        return signed_area(self.die_outline)
+
+    @property
+    def die_length_mm(self) -> float:
+        """The length of the die's outline (mm)."""
+        return loop_length(self.die_outline)
 
     @property
     def area_mm2(self) -> float:

@@ -152,8 +152,9 @@ def piece_json(rib: RibAnalysis, p: PieceAnalysis) -> dict[str, Any]:
             **({"runs": run_heights_json(p)} if p.mixed_heights else {}),
         },
         "die": {
-            "outline_length_mm": _r(g.length_mm, 2),
-            "area_mm2": _r(g.area_mm2, 1),
+            "outline_length_mm": _r(g.die_length_mm, 2),
+            "area_mm2": _r(g.die_area_mm2, 1),
+            **({"overrun_mm": _r(g.die_overrun_mm)} if g.die_overrun_mm else {}),
             "height_mm": _r(p.die_height_mm),
             "layers": p.die_layers,
             **({"flute_lengths_mm": sorted({_r(v) for v in flute_lengths_mm(p, flange.height_mm)})}

@@ -94,8 +94,8 @@ def _header(rib: RibAnalysis, piece: PieceAnalysis) -> list[str]:
 
 
 def _die_size(piece: PieceAnalysis) -> tuple[float, float]:
-    xs = [p[0] for p in piece.piece.outline]
-    ys = [p[1] for p in piece.piece.outline]
+    xs = [p[0] for p in piece.piece.die_outline]
+    ys = [p[1] for p in piece.piece.die_outline]
     return max(xs) - min(xs), max(ys) - min(ys)
 
 
@@ -270,6 +270,11 @@ def _wall_features(piece: PieceAnalysis, shared, step: _Steps, flute_tool: str, 
                           f"there, so leave the die's top edge **square** along them (no {edge_tool} there): rounded, "
                           f"it would leave the blank's last {_both(cut)} unsupported and the rubber would curl it "
                           "down (the die files round them like the flanged edges: stop the tool at their ends)."))
+    elif g.die_overrun_mm:
+        lines.append(step(f"**Cut end**: the die runs on {_both(g.die_overrun_mm)} past the blank's aft end (a cut "
+                          "edge, no flange), so that end lies on the die's flat top, "
+                          f"{_both(g.die_overrun_mm - _top_setback_mm(piece))} clear of the rounded top edge: do not "
+                          "trim the die to the part's length; the pins place the blank."))
     bores = [(h, c) for h, c in zip(g.holes, piece.holes) if h.flanged]
     if bores:
         lines.append(step(f"Through bores for {len(bores)} flanged lightening hole(s) (layer `{BORES.name}`), each "
@@ -280,14 +285,20 @@ def _wall_features(piece: PieceAnalysis, shared, step: _Steps, flute_tool: str, 
     return lines
 
 
-def _cut_edge_strip_mm(piece: PieceAnalysis) -> float:
-    """How far the die's flat top ends inside its outline along the piece's cut edges (runs with no flange), where
-    the blank stops flush with the outline: the top setback R·(1 + sin α)/cos α of the die radius R and over-bend α
-    (:mod:`diegen.geometry.die_wall`); 0 when the piece has no cut edge."""
-    if all(run.flanged for run in piece.piece.runs):
-        return 0.0
+def _top_setback_mm(piece: PieceAnalysis) -> float:
+    """How far the die's flat top ends inside its outline: the top setback R·(1 + sin α)/cos α of the die radius R
+    and over-bend α (:mod:`diegen.geometry.die_wall`)."""
     sb = piece.springback
     return die_wall.top_setback_mm(sb.die_radius_mm, sb.overbend_deg)
+
+
+def _cut_edge_strip_mm(piece: PieceAnalysis) -> float:
+    """How much of the blank lies over the die's rounded top edge along the piece's cut edges (runs with no
+    flange), where the blank stops flush with the piece's outline: the top setback, less how far the die runs on
+    past a cut end (a rib tail's; none left once it runs on past the setback); 0 when the piece has no cut edge."""
+    if all(run.flanged for run in piece.piece.runs):
+        return 0.0
+    return max(_top_setback_mm(piece) - piece.piece.die_overrun_mm, 0.0)
 
 
 def _cut_edges_text(piece: PieceAnalysis) -> str:

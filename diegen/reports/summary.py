@@ -40,7 +40,7 @@ def summary_rows(spec: WingSpec | SetSpec, ribs: Sequence[RibAnalysis],
     for rib in ribs:
         number, station = by_rib[rib.spec.id]
         for p in rib.pieces:
-            outline, blank = np.asarray(p.piece.outline), np.asarray(p.blank.outer)
+            outline, blank = np.asarray(p.piece.die_outline), np.asarray(p.blank.outer)
             rows.append({
                 "rib": number, "station_mm": station, "chord_mm": round(rib.spec.chord_mm, 1),
                 "section": rib.spec.section_label, "piece": p.piece.name, "part_id": p.piece.part_id,
@@ -133,7 +133,7 @@ def piece_plot(rib: RibAnalysis, p: PieceAnalysis) -> PiecePlot:
     title = (f"{p.piece.part_id} ({rib.spec.section_label}): over-bend {p.springback.overbend_deg:.2f}°, die R "
              f"{p.springback.die_radius_mm:.2f} mm, {len(p.flutes)} flute(s), press {p.press.verdict}")
     strain = tuple((run.s_offset_mm + run.profile.s_mm, -run.profile.strain) for run in p.runs)
-    return PiecePlot(title, closed(p.blank.outer), closed(p.piece.outline), strain, p.flange.shrink_limit)
+    return PiecePlot(title, closed(p.blank.outer), closed(p.piece.die_outline), strain, p.flange.shrink_limit)
 
 
 def _pdf(spec: WingSpec | SetSpec, ribs: Sequence[RibAnalysis], rows: list[dict[str, Any]]) -> bytes:

@@ -38,8 +38,10 @@ def piece_text(rib: RibAnalysis, p: PieceAnalysis) -> str:
     lines = [
         f"== {g.part_id} ({g.name + ' piece' if rib.spec.drawn is None else 'drawn part'})  x "
         f"{g.x_range_mm[0]:.1f}–{g.x_range_mm[1]:.1f} mm of {whole}",
-        f"  die outline   length {_len(g.length_mm, u)}, area {g.area_mm2:.0f} mm², depth {g.depth_range_mm[0]:.1f}–"
-        f"{g.depth_range_mm[1]:.1f} mm, height {_len(p.die_height_mm, u)} ({p.die_layers} layer(s) of stock)",
+        f"  die outline   length {_len(g.die_length_mm, u)}, area {g.die_area_mm2:.0f} mm², depth "
+        f"{g.depth_range_mm[0]:.1f}–{g.depth_range_mm[1]:.1f} mm, height {_len(p.die_height_mm, u)} "
+        f"({p.die_layers} layer(s) of stock)"
+        + (f"; runs on {_len(g.die_overrun_mm, u)} past the cut end" if g.die_overrun_mm else ""),
         *([f"  DIE REFUSED   {p.die.refusal}"] if p.die is not None and p.die.refusal else []),
         f"  bend          part R {p.springback.part_radius_mm:.3f} mm (min {p.min_radius.radius_mm:.3f} mm, "
         f"{p.min_radius.table} table); die R {p.springback.die_radius_mm:.3f} mm; die angle "
