@@ -25,7 +25,7 @@ import numpy as np
 import pypdf
 import pytest
 from ezdxf.path import make_path
-from shapely.geometry import Polygon
+from shapely.geometry import LineString, Point, Polygon
 from testing import SPECS, assert_valid_ccw_outline, loop_distance
 
 from diegen import api
@@ -183,9 +183,66 @@ def test_cut_edges_stop_the_blank_and_a_non_round_cutout_is_cut_from_it() -> Non
 def test_flanges_bending_up_mirror_the_die_and_say_so() -> None:
     spec = api.load(SPECS / "demo-gusset.yaml")
     analysis, piece = only_piece(spec)
-    assert max(x for x, _ in piece.piece.outline) < 0.0  # x → −x
+    xs = [x for x, _ in piece.piece.outline]
+    assert max(xs) == 0.0 and min(xs) == pytest.approx(-5 * 25.4)  # x → −x; the cut legs stay on the drawn lines
     assert [w.code for w in analysis.geometry.warnings] == ["part-mirrored"]
     assert analysis.geometry.warnings[0].line is not None  # located at the spec's flanges key
+
+
+def test_a_mold_line_part_keeps_its_cut_edges_on_the_drawn_line() -> None:
+    """The demo gusset is drawn as its mold line with one flanged edge and four cut edges: the die lies the sheet
+    thickness inside the flanged edge (the flange's outer face is the drawn line) and on the drawn line along the
+    cut edges, so the blank's cut edges, and the finished part's, are where the drawing puts them (shapely
+    distances to the drawn lines, mirrored as the part is made)."""
+    spec = api.load(SPECS / "demo-gusset.yaml")
+    _, piece = only_piece(spec)
+    t = spec.shared.sheet.thickness_mm
+    drawn = [(-x * 25.4, y * 25.4) for x, y in [(0, 0), (5, 0), (5, 0.75), (0.75, 4), (0, 4)]]  # the spec's points
+    flanged = LineString([drawn[2], drawn[3]])
+    cut = [LineString([a, b]) for a, b in zip(drawn, drawn[1:] + drawn[:1]) if {a, b} != {drawn[2], drawn[3]}]
+    die = piece.piece.outline
+    assert Polygon(drawn).buffer(1e-6).contains(Polygon(die))
+    (ax, ay), (bx, by) = flanged.coords
+    def off_line(p) -> float:  # distance from the flanged edge's line, extended past its ends
+        return abs((bx - ax) * (p[1] - ay) - (by - ay) * (p[0] - ax)) / flanged.length
+
+    assert all(min(c.distance(Point(p)) for c in cut) < 1e-6 for p in die)  # every die point on a cut edge ...
+    edge = [p for p in die if off_line(p) == pytest.approx(t, abs=1e-6)]
+    assert len(edge) == 2  # ... and the two where the flanged edge's offset meets them: mitred corners
+    assert all(off_line(p) > t for p in die if p not in edge)
+    assert Polygon(die).intersection(flanged.buffer(t - 1e-6)).area < 1e-6  # nothing within t of the flanged edge
+    # the die's two corners on the flanged edge: its offset meeting the cut edges (a mitre, not a notch)
+    assert Polygon(die).area == pytest.approx(Polygon(drawn).area - t * flanged.length, rel=0.01)
+    xs, ys = zip(*piece.blank.outer)
+    assert (min(xs), max(xs), min(ys)) == pytest.approx((-5 * 25.4, 0.0, 0.0), abs=1e-6)  # the cut legs as drawn
+
+
+def test_a_flange_run_ending_mid_edge_comes_out_to_the_drawn_line_smoothly() -> None:
+    """A mold-line part whose one flange run starts and ends part way along straight edges: the die lies t inside
+    the run and on the drawn line along the cut edges, and between the two it comes out over a run-out, no step a
+    cutter could not follow: every die point lies between 0 and t inside the drawn outline, and no three
+    consecutive die points bend tighter than the 3 mm cutter radius (circles through three points, numpy), so the
+    die is buildable with a 6 mm router cutter."""
+    spec = part_spec("{points: [[0, 0], [200, 0], [200, 60], [120, 120], [0, 120]], is: mold-line}",
+                     "flanges: [{from: [200, 20], to: [160, 90]}]\n")
+    _, piece = only_piece(spec)
+    t = spec.shared.sheet.thickness_mm
+    assert piece.die is not None and piece.die.refusal is None
+    drawn = Polygon([(0, 0), (200, 0), (200, 60), (120, 120), (0, 120)])
+    die = np.asarray(piece.piece.outline)
+    depth = np.array([drawn.exterior.distance(Point(p)) for p in die])
+    assert depth.max() == pytest.approx(t, abs=1e-6) and Polygon(die).within(drawn.buffer(1e-6))
+    flanged = LineString([(200, 20), (200, 60), (160, 90)])
+    far = np.array([flanged.distance(Point(p)) > 10.0 for p in die])
+    assert far.sum() >= 4 and np.allclose(depth[far], 0.0, atol=1e-6)  # cut edges on the drawn line
+    run_points = [p for run in piece.piece.runs if run.flanged for p in run.points]
+    assert len(run_points) >= 3 and all(flanged.distance(Point(p)) == pytest.approx(t, abs=1e-6) for p in run_points)
+    a, b, c = die, np.roll(die, -1, axis=0), np.roll(die, -2, axis=0)
+    cross = (b - a)[:, 0] * (c - b)[:, 1] - (b - a)[:, 1] * (c - b)[:, 0]
+    radius = (np.linalg.norm(b - a, axis=1) * np.linalg.norm(c - b, axis=1) * np.linalg.norm(c - a, axis=1)
+              / np.maximum(2.0 * np.abs(cross), 1e-12))
+    concave = cross < -1e-9
+    assert radius[concave].min() >= 3.0
 
 
 # -- spec mistakes: located, explained, nothing written --------------------------------------------------------

@@ -196,9 +196,13 @@ def test_from_to_runs_leave_cut_edges_and_the_blank_stops_flush_with_them(tmp_pa
     beyond_arc = blank.difference(Polygon(g.outline)).intersection(box(T, T, 2 * r, 2 * r))
     assert beyond_arc.area <= 1e-9
     # ... and the bottom and left flanges stop flush with the arc's first chord, which leans from the arc's tangent
-    # (the die corner's x = √((R − t)² − t²), within the flattening) by at most acos(1 − tol/R), half a chord's angle
+    # by at most acos(1 − tol/R), half a chord's angle.  The cut arc stays on the drawn line (the part's edge is the
+    # blank's), so the die corner is where the bottom edge's offset y = t meets it: x = √(R² − t²), within the
+    # flattening (plane geometry)
     corner_x = max(x for x, _ in g.outline)
-    assert corner_x == pytest.approx(math.sqrt((r - T) ** 2 - T**2), abs=2 * CHORD_TOL_MM)
+    assert corner_x == pytest.approx(math.sqrt(r**2 - T**2), abs=2 * CHORD_TOL_MM)
+    arc = [p for p in g.outline if p[0] > 2 * T and p[1] > 2 * T]
+    assert arc and all(abs(math.hypot(*p) - r) <= CHORD_TOL_MM for p in arc)
     lean = offset * math.tan(math.acos(1.0 - CHORD_TOL_MM / r))
     _, _, maxx, maxy = blank.bounds
     assert corner_x - 1e-9 <= maxx <= corner_x + lean + 1e-9
@@ -266,15 +270,17 @@ def test_spline_gusset_in_inches_with_a_flanged_curve_and_drawn_pins(tmp_path):
     assert g.relief_points == ()  # the flanged curve meets only cut edges
     assert sorted((p.x, p.y) for p in g.pins) == [pytest.approx((1.5 * 25.4, 1.5 * 25.4)),
                                                   pytest.approx((4.0 * 25.4, 1.2 * 25.4))]
-    assert g.x_range_mm[0] == pytest.approx(T) and g.x_range_mm[1] < 9 * 25.4 - T  # the sharp tip moves in further
+    # the cut edge x = 0 stays on the drawn line; the sharp tip moves in by more than t (the curve's offset meets the
+    # cut bottom edge at the tip's small angle)
+    assert g.x_range_mm[0] == pytest.approx(0.0, abs=1e-9) and g.x_range_mm[1] < 9 * 25.4 - T
     curve = next(r for r in g.plain_runs if r.flanged)
     profile = strain_along(np.asarray(curve.points), 14.0, closed=False)
     assert 0.0 < profile.max_shrink < 14.0 / (14.0 + 50.0)  # a gentle convex curve (its radius is above 50 mm)
     blank = Polygon(blank_of(piece).outer)
     web = Polygon(g.outline)
-    # cut edges: the blank stops on the die's straight edges (y = t and x = t)
+    # cut edges: the blank stops on the drawn lines y = 0 and x = 0, the finished part's edges
     minx, miny, _, _ = blank.bounds
-    assert (minx, miny) == pytest.approx((T, T), abs=1e-9)
+    assert (minx, miny) == pytest.approx((0.0, 0.0), abs=1e-9)
     assert blank.contains(web)
     die_model(piece)
 

@@ -115,7 +115,7 @@ class DrawnPart:
 
     ``outline`` is counter-clockwise and split at every flange-run boundary; edges in no run are plain
     cut edges.  ``outline_is`` says whether the outline is the finished part's mold line (the die is it
-    offset inward by the sheet thickness) or the die outline itself.
+    offset inward by the sheet thickness along its flanged edges) or the die outline itself.
     """
 
     outline: Contour

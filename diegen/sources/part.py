@@ -3,7 +3,8 @@
 :func:`drawn_part` takes the largest closed contour as the outline (made counter-clockwise), the
 contours inside it as holes, and lays the flange runs on the outline's edges.  :func:`drawn_piece`
 makes the die outline — the outline itself, or for a mold-line outline the outline offset inward by
-the sheet thickness (a true normal offset with round joins, as the rib's mold-line offsets) — and
+the sheet thickness along its flanged edges (a true normal offset with round joins, as the rib's mold-line
+offsets), its cut edges left on the drawn line — and
 fills a :class:`~diegen.geometry.types.PieceGeometry` the forming analysis, blank and die layers read:
 
 * runs are split at flange-run boundaries and at corners; a run that is one straight edge is a
@@ -28,13 +29,15 @@ from dataclasses import replace
 
 import numpy as np
 import shapely
+import shapely.ops
 from shapely.geometry import LinearRing, LineString, Polygon
 from shapely.geometry import Point as ShapelyPoint
 
 from diegen.errors import DrawingError, GeometryError
 from diegen.geometry import pins as pin_rules
 from diegen.geometry.loops import CORNER_TURN_DEG, turn_angle
-from diegen.geometry.polygon import as_points, offset_inward, vertical_extents
+from diegen.geometry.pieces import ramp_shape
+from diegen.geometry.polygon import QUAD_SEGS, as_points, offset_inward, single_polygon, vertical_extents
 from diegen.geometry.types import Hole, PieceGeometry, Pin, Point, Points, Run
 from diegen.sources.contour import CHORD_TOL_MM, Contour, Place, contour_names, split_edge
 from diegen.sources.joggle import JoggleSpec, recess
@@ -234,9 +237,10 @@ def drawn_piece(part: DrawnPart, *, part_id: str, sheet_thickness_mm: float, pin
                 ramp_of: Callable[[float], float] = lambda depth: 4.0 * depth) -> DrawnPiece:
     """The drawn part as the geometry layer's piece (mm).
 
-    The die outline is the outline (``die``) or the outline offset inward by ``sheet_thickness_mm``
-    (``mold-line``).  Round holes are plain, or flanged to ``hole_flange_height_mm``.  Drawn pin spots
-    become pins of ``pin_diameter_mm``; with none drawn and ``auto_pins``, pins are placed as a rib's are,
+    The die outline is the outline (``die``) or the outline offset inward by ``sheet_thickness_mm`` along its
+    flanged edges, its cut edges left on the drawn line (``mold-line``).  Round holes are plain, or flanged to
+    ``hole_flange_height_mm``.  Drawn pin spots become pins of ``pin_diameter_mm``; with none drawn and
+    ``auto_pins``, pins are placed as a rib's are,
     ``edge_margin_mm`` clear of the flange bend line and the holes.  When every flange bends up, the piece
     is the drawing's mirror image (x → −x) so the flanges fold down over the die.
 
@@ -270,9 +274,9 @@ def drawn_piece(part: DrawnPart, *, part_id: str, sheet_thickness_mm: float, pin
         die_pts = mold_pts
         die_s = np.cumsum(np.r_[0.0, np.hypot(*np.diff(mold_pts, axis=0).T)])
     else:
-        die_poly = offset_inward(Polygon(mold_pts), sheet_thickness_mm,
-                                 f"{place.source}: offsetting the mold line inward by the sheet "
-                                 f"({sheet_thickness_mm:.3f} mm) for the die outline")
+        die_poly = _die_inside_mold_line(part, sheet_thickness_mm, ramp_of,
+                                         f"{place.source}: offsetting the mold line inward by the sheet "
+                                         f"({sheet_thickness_mm:.3f} mm) for the die outline")
         die_pts = np.asarray(as_points(die_poly), dtype=float)
         die_s = np.asarray(shapely.line_locate_point(LinearRing(mold_pts), shapely.points(die_pts)), dtype=float)
         die_pts, die_s = _unwrap(die_pts, die_s, total)
@@ -291,6 +295,78 @@ def drawn_piece(part: DrawnPart, *, part_id: str, sheet_thickness_mm: float, pin
     if mirrored:
         geometry, run_flanges, cutouts = _mirror(geometry, run_flanges, cutouts)
     return DrawnPiece(geometry, run_flanges, mirrored, cutouts)
+
+
+def _die_inside_mold_line(part: DrawnPart, sheet_thickness_mm: float, ramp_of: Callable[[float], float],
+                          what: str) -> Polygon:
+    """The die outline of a part drawn as its mold line: along a flanged edge the sheet thickness inside it (the
+    flange's outer face is the mold line), along a cut edge the drawn line itself (the part's edge is the blank's
+    edge, and the blank lies flat on the die there).
+
+    The drawn outline less every point within the sheet thickness t of a flanged run.  Where a run ends on a cut
+    edge at a convex corner, the run is taken on straight past the corner first, so the die's corner is where the
+    run's offset meets the cut edge (a mitre).  Where it ends on a cut edge without one (mid-edge, or at a concave
+    corner, where the offset also turns round the corner on a circle of radius t), the die's edge comes out from t
+    to the drawn line along the cut edge over ``ramp_of(t)``, the joggles' run-out for a step of t (:func:`taper`),
+    instead of a step no cutter could follow."""
+    mold = Polygon(part.outline.points)
+    edges = part.outline.edges
+    if sum(run.stop_edge - run.first_edge for run in part.runs) == len(edges):
+        return offset_inward(mold, sheet_thickness_mm, what)  # flanged all round
+    points = part.outline.points
+    ring = LineString([*points, points[0]])
+    offsets = part.outline.edge_offsets()
+    total = float(offsets[-1])
+    flanged = {k for run in part.runs for k in range(run.first_edge, run.stop_edge)}
+    corner = math.radians(CORNER_TURN_DEG)
+    t = sheet_thickness_mm
+    parts = []
+    for run in part.runs:
+        s0, s1 = float(offsets[run.first_edge]), float(offsets[run.stop_edge])
+        line = np.asarray(shapely.ops.substring(ring, s0, s1).coords)
+        before, after = (run.first_edge - 1) % len(edges), run.stop_edge % len(edges)
+        start_turn = turn_angle(edges[before].end_tangent(), edges[run.first_edge].start_tangent())
+        end_turn = turn_angle(edges[run.stop_edge - 1].end_tangent(), edges[after].start_tangent())
+        if before not in flanged:
+            if start_turn >= corner:
+                reach = _mitre_reach(t, start_turn)
+                line = np.vstack([line[0] - reach * np.asarray(edges[run.first_edge].start_tangent()), line])
+            else:
+                parts += [ShapelyPoint(line[0]).buffer(t, quad_segs=QUAD_SEGS),
+                          taper(ring, total, s0, -min(ramp_of(t), float(offsets[before + 1] - offsets[before])), t)]
+        if after not in flanged:
+            if end_turn >= corner:
+                reach = _mitre_reach(t, end_turn)
+                line = np.vstack([line, line[-1] + reach * np.asarray(edges[run.stop_edge - 1].end_tangent())])
+            else:
+                parts += [ShapelyPoint(line[-1]).buffer(t, quad_segs=QUAD_SEGS),
+                          taper(ring, total, s1, min(ramp_of(t), float(offsets[after + 1] - offsets[after])), t)]
+        parts.append(LineString(line).buffer(t, quad_segs=QUAD_SEGS, cap_style="flat"))
+    die = mold.difference(shapely.unary_union(parts))
+    return single_polygon(shapely.remove_repeated_points(die, MERGE_MM), what)  # where the pieces join
+
+
+def taper(ring: LineString, total: float, s_mm: float, length_mm: float, depth_mm: float) -> Polygon:
+    """The strip between the closed counter-clockwise outline ``ring`` (``total`` mm round) and a line inside it
+    that comes out from ``depth_mm`` deep at ``s_mm`` along the ring to the ring itself ``length_mm`` further on
+    (back, when negative), along the joggles' run-out profile (:func:`diegen.geometry.pieces.ramp_shape`: no kink
+    at either end)."""
+    count = max(int(abs(length_mm) / 0.25), 8) + 1
+    along = (s_mm + np.linspace(0.0, length_mm, count)) % total
+    base = np.asarray([ring.interpolate(float(v)).coords[0] for v in along])
+    step = 0.01 * np.sign(length_mm) if length_mm else 0.01
+    ahead = np.asarray([ring.interpolate(float((v + step) % total)).coords[0] for v in along])
+    tangent = (ahead - base) * np.sign(step)
+    tangent /= np.linalg.norm(tangent, axis=1, keepdims=True)
+    inward = np.column_stack([-tangent[:, 1], tangent[:, 0]])
+    depth = depth_mm * (1.0 - ramp_shape(np.linspace(0.0, 1.0, count)))
+    return Polygon(np.vstack([base, (base + depth[:, None] * inward)[::-1]])).buffer(0)
+
+
+def _mitre_reach(offset_mm: float, turn: float) -> float:
+    """How far past a convex corner turning by ``turn`` (rad) an edge's offset by ``offset_mm`` meets the next edge
+    (``offset_mm``/sin of the corner's inside angle), and a little more; bounded for a corner turned almost back."""
+    return offset_mm / max(math.sin(math.pi - turn), 0.05) + offset_mm
 
 
 def _mold_marks(part: DrawnPart) -> list[tuple[float, bool, float]]:
@@ -347,9 +423,12 @@ def _corner_index(points: list[Point], where: list[float], s_mark: float, turn: 
     """The die's own corner for a convex corner of the drawn outline offset inward by ``inset``.
 
     The offset corner's nearest points on the drawn outline are its two feet, inset/tan(half the corner's
-    inside angle) either side of the corner: the die point in that reach that turns most is the corner.
+    inside angle) either side of the corner; where a flanged edge meets a cut edge (offset by nothing) the corner
+    lies on the cut edge, inset/sin(the inside angle) from the drawn corner: the die point within the farther of
+    the two reaches that turns most is the corner.
     """
-    reach = inset / math.tan(max(math.pi - turn, math.radians(1.0)) / 2.0) + 2 * MERGE_MM
+    inside = max(math.pi - turn, math.radians(1.0))
+    reach = inset * max(1.0 / math.tan(inside / 2.0), 1.0 / math.sin(inside)) + 2 * MERGE_MM
     s = np.asarray(where)
     near = [i for i in range(len(points))
             if min(abs(s[i] - s_mark), abs(s[i] - s_mark - total), abs(s[i] - s_mark + total)) <= reach]
@@ -548,7 +627,8 @@ def _holes(part: DrawnPart, die_poly: Polygon, runs: tuple[Run, ...], bend_radiu
         name = _names(drawn.contour)
         label = f"the hole [{name}]" if name else "a hole"
         if not die_poly.contains(poly):
-            offset_note = " (the mold line offset inward by the sheet)" if part.outline_is == "mold-line" else ""
+            offset_note = (" (the mold line offset inward by the sheet along its flanged edges)"
+                           if part.outline_is == "mold-line" else "")
             raise GeometryError(f"{place.source}: {label} reaches outside the die outline{offset_note}"
                                 f" near {place.at(_some_point(poly.boundary.difference(die_poly)))}")
         if drawn.circle is not None:  # the true circle, not its flattened polygon
