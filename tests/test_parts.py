@@ -245,6 +245,26 @@ def test_a_flange_run_ending_mid_edge_comes_out_to_the_drawn_line_smoothly() -> 
     assert radius[concave].min() >= 3.0
 
 
+def test_a_sharp_inside_corner_between_cut_edges_is_rounded_and_said() -> None:
+    """An L-bracket drawn as its mold line, flanged along its long outer edge only: its inside corner lies between
+    two cut edges, which no router cutter makes sharp, so die and blank round it to the cutter's radius (3 mm here,
+    a 6 mm cutter) and a finding says where; the die is then buildable (before, the corner was refused).  The
+    corner's fillet: the die's and the blank's points near the corner lie on a circle of that radius tangent to
+    both edges (plane geometry: centre at (40 + r, 30 + r))."""
+    spec = part_spec("{points: [[0, 0], [150, 0], [150, 30], [40, 30], [40, 100], [0, 100]], is: mold-line}",
+                     "flanges: [{from: [0, 0], to: [150, 0]}]\n")
+    analysis, piece = only_piece(spec)
+    assert piece.die is not None and piece.die.refusal is None
+    (finding,) = [w for w in analysis.geometry.warnings if w.code == "cut-corner-rounded"]
+    assert "(40.0, 30.0)" in str(finding) and "R 3." in str(finding)
+    r = float(str(finding).split("R ")[1].split(" mm")[0])
+    assert r >= 3.0
+    centre = Point(40.0 + r, 30.0 + r)
+    for loop in (piece.piece.outline, piece.blank.outer):
+        near = [p for p in loop if 40.0 < p[0] < 40.0 + r and 30.0 < p[1] < 30.0 + r]
+        assert near and all(centre.distance(Point(p)) == pytest.approx(r, abs=0.02) for p in near)
+
+
 # -- spec mistakes: located, explained, nothing written --------------------------------------------------------
 
 BAD = [

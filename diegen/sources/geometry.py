@@ -37,12 +37,20 @@ def part_geometry(spec: RibSpec, die_inset_mm: float = 0.0) -> RibGeometry:
                             pin_diameter_mm=shared.pins.diameter_mm,
                             hole_flange_height_mm=rules.flange_height_mm if drawn.flanged_holes else None,
                             edge_margin_mm=rules.edge_margin_mm, joggles=drawn.joggles,
-                            ramp_of=lambda depth: ramp_length(depth, shared.joggle_runout, fair_radius))
+                            ramp_of=lambda depth: ramp_length(depth, shared.joggle_runout, fair_radius),
+                            cut_corner_radius_mm=fair_radius)
     warnings = unit_findings(spec)
     if piece.mirrored:
         warnings.append(Finding(
             "part-mirrored", "every flange bends up in the drawing: the die, the blank and their drawings are the "
             "drawing's mirror image (seen from the other face), so the flanges fold down over the die", key="flanges"))
+    if piece.rounded_corners:
+        where = "; ".join(f"({x:.1f}, {y:.1f})" for x, y in piece.rounded_corners)
+        warnings.append(Finding(
+            "cut-corner-rounded", f"{len(piece.rounded_corners)} sharp inside corner(s) between cut edges, at {where} "
+            f"mm in the drawing, are rounded to R {piece.rounded_radius_mm:.1f} mm on the die and the blank: no cutter "
+            "leaves a sharp inside corner, and in sheet one starts cracks; draw the radius you want there to keep "
+            "it", key="outline"))
     if drawn.flanged_holes and piece.cutouts:
         warnings.append(Finding(
             "cutout-not-flanged", f"{len(piece.cutouts)} inner contour(s) are not round: they are cut plain (the "

@@ -157,3 +157,5 @@ class DrawnPiece:
     run_flanges: tuple[Flange | None, ...]
     mirrored: bool
     cutouts: tuple[Points, ...] = ()
+    rounded_corners: Points = ()  # concave corners of cut edges rounded on the die and blank (drawing's frame, mm)
+    rounded_radius_mm: float = 0.0  # their radius

@@ -58,6 +58,8 @@ from diegen.sources.model import (
 SNAP_MM = 1.0  # a from/to point may lie this far from the outline (default)
 VERTEX_SNAP_MM = CHORD_TOL_MM  # a split this close to an edge end moves onto the end
 MERGE_MM = 0.05  # a run boundary this close to a die outline point moves onto that point
+MIN_CUT_CORNER_MM = 1.0  # design choice: the least radius a cut edge's concave corner gets on the die
+OVERLAP_MM = 0.01  # a flanged run's offset is taken this far on into a run-out along its own line, so they overlap
 CURVE_STEP_MM = 2.0  # longest segment inside a curve run (the die's spline then keeps straight stretches straight)
 DEPTH_SAMPLES = 64
 DEPTH_SPAN = 0.8  # the web's depth is sampled over the middle 80 % of its length (a rounded end has none)
@@ -234,7 +236,8 @@ def _chosen_edges(outer: Contour, spec: FlangeRunSpec, index: int, ends: tuple[P
 def drawn_piece(part: DrawnPart, *, part_id: str, sheet_thickness_mm: float, pin_diameter_mm: float,
                 hole_flange_height_mm: float | None = None, edge_margin_mm: float = 6.0,
                 auto_pins: bool = True, joggles: Sequence[JoggleSpec] = (),
-                ramp_of: Callable[[float], float] = lambda depth: 4.0 * depth) -> DrawnPiece:
+                ramp_of: Callable[[float], float] = lambda depth: 4.0 * depth,
+                cut_corner_radius_mm: float = 0.0) -> DrawnPiece:
     """The drawn part as the geometry layer's piece (mm).
 
     The die outline is the outline (``die``) or the outline offset inward by ``sheet_thickness_mm`` along its
@@ -270,11 +273,12 @@ def drawn_piece(part: DrawnPart, *, part_id: str, sheet_thickness_mm: float, pin
     offsets = mold.edge_offsets()
     total = float(offsets[-1])
     marks = _mold_marks(part)
+    rounded: tuple[Point, ...] = ()
     if part.outline_is == "die":
         die_pts = mold_pts
         die_s = np.cumsum(np.r_[0.0, np.hypot(*np.diff(mold_pts, axis=0).T)])
     else:
-        die_poly = _die_inside_mold_line(part, sheet_thickness_mm, ramp_of,
+        die_poly, rounded = _die_inside_mold_line(part, sheet_thickness_mm, ramp_of, cut_corner_radius_mm,
                                          f"{place.source}: offsetting the mold line inward by the sheet "
                                          f"({sheet_thickness_mm:.3f} mm) for the die outline")
         die_pts = np.asarray(as_points(die_poly), dtype=float)
@@ -294,11 +298,12 @@ def drawn_piece(part: DrawnPart, *, part_id: str, sheet_thickness_mm: float, pin
                              _depth_range(die_poly), plain)
     if mirrored:
         geometry, run_flanges, cutouts = _mirror(geometry, run_flanges, cutouts)
-    return DrawnPiece(geometry, run_flanges, mirrored, cutouts)
+    return DrawnPiece(geometry, run_flanges, mirrored, cutouts, rounded,
+                      max(cut_corner_radius_mm, MIN_CUT_CORNER_MM) if rounded else 0.0)
 
 
 def _die_inside_mold_line(part: DrawnPart, sheet_thickness_mm: float, ramp_of: Callable[[float], float],
-                          what: str) -> Polygon:
+                          cut_corner_radius_mm: float, what: str) -> tuple[Polygon, tuple[Point, ...]]:
     """The die outline of a part drawn as its mold line: along a flanged edge the sheet thickness inside it (the
     flange's outer face is the mold line), along a cut edge the drawn line itself (the part's edge is the blank's
     edge, and the blank lies flat on the die there).
@@ -308,11 +313,14 @@ def _die_inside_mold_line(part: DrawnPart, sheet_thickness_mm: float, ramp_of: C
     run's offset meets the cut edge (a mitre).  Where it ends on a cut edge without one (mid-edge, or at a concave
     corner, where the offset also turns round the corner on a circle of radius t), the die's edge comes out from t
     to the drawn line along the cut edge over ``ramp_of(t)``, the joggles' run-out for a step of t (:func:`taper`),
-    instead of a step no cutter could follow."""
+    instead of a step no cutter could follow.  A concave corner between two cut edges is rounded on the die to
+    ``cut_corner_radius_mm`` (the blank is cut sharp there; the die only holds the web flat, and no cutter leaves a
+    sharp inside corner), and at least :data:`MIN_CUT_CORNER_MM`; the corners so rounded are returned beside the
+    outline (drawing coordinates, mm)."""
     mold = Polygon(part.outline.points)
     edges = part.outline.edges
     if sum(run.stop_edge - run.first_edge for run in part.runs) == len(edges):
-        return offset_inward(mold, sheet_thickness_mm, what)  # flanged all round
+        return offset_inward(mold, sheet_thickness_mm, what), ()  # flanged all round
     points = part.outline.points
     ring = LineString([*points, points[0]])
     offsets = part.outline.edge_offsets()
@@ -328,39 +336,64 @@ def _die_inside_mold_line(part: DrawnPart, sheet_thickness_mm: float, ramp_of: C
         start_turn = turn_angle(edges[before].end_tangent(), edges[run.first_edge].start_tangent())
         end_turn = turn_angle(edges[run.stop_edge - 1].end_tangent(), edges[after].start_tangent())
         if before not in flanged:
-            if start_turn >= corner:
-                reach = _mitre_reach(t, start_turn)
-                line = np.vstack([line[0] - reach * np.asarray(edges[run.first_edge].start_tangent()), line])
-            else:
-                parts += [ShapelyPoint(line[0]).buffer(t, quad_segs=QUAD_SEGS),
-                          taper(ring, total, s0, -min(ramp_of(t), float(offsets[before + 1] - offsets[before])), t)]
+            reach = _mitre_reach(t, start_turn) if start_turn >= corner else OVERLAP_MM * (start_turn > -corner)
+            line = np.vstack([line[0] - reach * np.asarray(edges[run.first_edge].start_tangent()), line])
+            if start_turn < corner:
+                parts += _run_out(ring, total, s0, -min(ramp_of(t), float(offsets[before + 1] - offsets[before])), t,
+                                  start_turn < 0.0)
         if after not in flanged:
-            if end_turn >= corner:
-                reach = _mitre_reach(t, end_turn)
-                line = np.vstack([line, line[-1] + reach * np.asarray(edges[run.stop_edge - 1].end_tangent())])
-            else:
-                parts += [ShapelyPoint(line[-1]).buffer(t, quad_segs=QUAD_SEGS),
-                          taper(ring, total, s1, min(ramp_of(t), float(offsets[after + 1] - offsets[after])), t)]
+            reach = _mitre_reach(t, end_turn) if end_turn >= corner else OVERLAP_MM * (end_turn > -corner)
+            line = np.vstack([line, line[-1] + reach * np.asarray(edges[run.stop_edge - 1].end_tangent())])
+            if end_turn < corner:
+                parts += _run_out(ring, total, s1, min(ramp_of(t), float(offsets[after + 1] - offsets[after])), t,
+                                  end_turn < 0.0)
         parts.append(LineString(line).buffer(t, quad_segs=QUAD_SEGS, cap_style="flat"))
     die = mold.difference(shapely.unary_union(parts))
-    return single_polygon(shapely.remove_repeated_points(die, MERGE_MM), what)  # where the pieces join
+    concave = [ShapelyPoint(edges[(k + 1) % len(edges)].points[0]) for k in range(len(edges))
+               if k not in flanged and (k + 1) % len(edges) not in flanged
+               and turn_angle(edges[k].end_tangent(), edges[(k + 1) % len(edges)].start_tangent()) <= -corner]
+    if not cut_corner_radius_mm > 0.0:
+        concave = []
+    if concave:
+        r = max(cut_corner_radius_mm, MIN_CUT_CORNER_MM)
+        closed = die.buffer(r, quad_segs=QUAD_SEGS).buffer(-r, quad_segs=QUAD_SEGS)
+        die = die.union(closed.intersection(shapely.unary_union([p.buffer(10.0 * r) for p in concave])))
+    outline = Polygon(single_polygon(die, what).exterior)  # the die's outline: no sliver or hole of the pieces
+    cleaned = shapely.remove_repeated_points(outline, 1e-3)  # the pieces' points where they join (1 µm)
+    rounded = tuple((float(p.x), float(p.y)) for p in concave)
+    return (cleaned if cleaned.is_valid and not cleaned.is_empty else outline), rounded
+
+
+def _run_out(ring: LineString, total: float, s_mm: float, length_mm: float, depth_mm: float,
+             concave: bool) -> list[Polygon]:
+    """What comes off the outline where a flanged run ends on a cut edge without a convex corner: the
+    :func:`taper` along the cut edge, and where the outline turns inward there the circle of the offset turning
+    round the corner (finely divided: it meets the run's offset and the taper on their lines)."""
+    strip = [taper(ring, total, s_mm, length_mm, depth_mm)]
+    if concave:
+        strip.append(ShapelyPoint(ring.interpolate(s_mm % total)).buffer(depth_mm, quad_segs=4 * QUAD_SEGS))
+    return strip
 
 
 def taper(ring: LineString, total: float, s_mm: float, length_mm: float, depth_mm: float) -> Polygon:
-    """The strip between the closed counter-clockwise outline ``ring`` (``total`` mm round) and a line inside it
+    """The strip between the closed counter-clockwise outline ``ring`` (``total`` mm round; from just outside it)
+    and a line inside it
     that comes out from ``depth_mm`` deep at ``s_mm`` along the ring to the ring itself ``length_mm`` further on
     (back, when negative), along the joggles' run-out profile (:func:`diegen.geometry.pieces.ramp_shape`: no kink
-    at either end)."""
+    at either end), sampled closer towards its ends (cosine spacing), where it joins the run's offset and the drawn
+    line: a spline through the die's points then leaves the run's offset at the run's own direction."""
     count = max(int(abs(length_mm) / 0.25), 8) + 1
-    along = (s_mm + np.linspace(0.0, length_mm, count)) % total
+    u = 0.5 - 0.5 * np.cos(np.linspace(0.0, math.pi, count))
+    along = (s_mm + u * length_mm) % total
     base = np.asarray([ring.interpolate(float(v)).coords[0] for v in along])
     step = 0.01 * np.sign(length_mm) if length_mm else 0.01
     ahead = np.asarray([ring.interpolate(float((v + step) % total)).coords[0] for v in along])
     tangent = (ahead - base) * np.sign(step)
     tangent /= np.linalg.norm(tangent, axis=1, keepdims=True)
     inward = np.column_stack([-tangent[:, 1], tangent[:, 0]])
-    depth = depth_mm * (1.0 - ramp_shape(np.linspace(0.0, 1.0, count)))
-    return Polygon(np.vstack([base, (base + depth[:, None] * inward)[::-1]])).buffer(0)
+    depth = depth_mm * (1.0 - ramp_shape(u))
+    outside = base - 0.1 * inward  # the strip's outer side just outside the outline: no sliver along the outline
+    return Polygon(np.vstack([outside, (base + depth[:, None] * inward)[::-1]])).buffer(0)
 
 
 def _mitre_reach(offset_mm: float, turn: float) -> float:
