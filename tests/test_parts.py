@@ -265,6 +265,21 @@ def test_a_sharp_inside_corner_between_cut_edges_is_rounded_and_said() -> None:
         assert near and all(centre.distance(Point(p)) == pytest.approx(r, abs=0.02) for p in near)
 
 
+def test_a_straight_flange_ending_at_a_concave_corner_of_a_cut_edge_does_not_wrap_round_it() -> None:
+    """A straight flange whose run ends at a concave corner, the outline going on as a cut edge: the flange ends
+    where its straight offset does, so it has no plan curvature at all: no stretch, formable (before, its run took
+    in half the offset's turn round the corner, a curve of the sheet thickness's radius, and the stretch formula
+    w/(ρ − w) ran to infinity: not formable)."""
+    spec = part_spec("{points: [[0, 0], [120, 0], [120, 60], [60, 40], [0, 60]], is: mold-line}",
+                     "flanges: [{from: [120, 60], to: [60, 40]}]\n")
+    _, piece = only_piece(spec)
+    t = spec.shared.sheet.thickness_mm
+    (run,) = [r for r in piece.piece.runs if r.flanged]
+    edge = LineString([(120, 60), (60, 40)])
+    assert all(edge.distance(Point(p)) == pytest.approx(t, abs=1e-4) for p in run.points)
+    assert piece.max_stretch == 0.0 and piece.max_shrink == 0.0 and piece.flange.verdict == "formable"
+
+
 # -- spec mistakes: located, explained, nothing written --------------------------------------------------------
 
 BAD = [

@@ -229,7 +229,10 @@ def _preview(piece_analysis: Any) -> Any:
     outline = _closed(g.die_outline)
     limit = piece_analysis.flange.shrink_limit
     stretch = piece_analysis.alloy.stretch_limit
-    norm_max = max(2 * limit, piece_analysis.max_shrink, piece_analysis.max_stretch, 1e-3)
+    # the colour scale spans the finite strains; an infinite one (a stretch flange wider than its plan radius, which
+    # nothing forms) is drawn in the scale's darkest colour
+    norm_max = max(2 * limit, *(v for v in (piece_analysis.max_shrink, piece_analysis.max_stretch) if np.isfinite(v)),
+                   1e-3)
 
     segments, magnitudes, curves = [], [], []
     relieved = piece_analysis.flutes or piece_analysis.notches
@@ -275,14 +278,17 @@ def _preview(piece_analysis: Any) -> Any:
     # straight flanges only: no strain to draw, the axis still spans the outline
     xs = np.concatenate([s for s, _, style in curves if style.style == "-"]) if curves else np.array([0.0, g.length_mm])
     ys = np.concatenate([*(y for _, y, style in curves if style.style == "-"), [limit, -stretch]])
-    dx, dy = MARGIN * (xs.max() - xs.min()), MARGIN * (ys.max() - ys.min())
-    strain_ax.limits((xs.min() - dx, xs.max() + dx), (ys.min() - dy, ys.max() + dy))
+    # an infinite strain (see the colour scale) runs off the axis: it spans 3 × the limit past the zero line
+    low = min(float(ys[np.isfinite(ys)].min()), -3.0 * stretch if np.any(ys == -np.inf) else np.inf)
+    high = max(float(ys[np.isfinite(ys)].max()), 3.0 * limit if np.any(ys == np.inf) else -np.inf)
+    dx, dy = MARGIN * (xs.max() - xs.min()), MARGIN * (high - low)
+    strain_ax.limits((xs.min() - dx, xs.max() + dx), (low - dy, high + dy))
     strain_ax.grid()
     shrink_line, stretch_line = Line(TAB["blue"], 1.0, "--"), Line(TAB["red"], 1.0, "--")
     strain_ax.hline(limit, shrink_line)
     strain_ax.hline(-stretch, stretch_line)
     for s, y, style in curves:
-        strain_ax.line(s, y, style)
+        strain_ax.line(s, np.clip(y, low - dy, high + dy), style)
     shrink_label = f"wrinkle limit {limit:.3f} (dotted: shrink left after relief)"
     if piece_analysis.mixed_heights:
         shrink_label = (f"wrinkle limit {limit:.3f} of the run judged worst (each run's own dashed in its colour; "

@@ -402,9 +402,10 @@ def _mitre_reach(offset_mm: float, turn: float) -> float:
     return offset_mm / max(math.sin(math.pi - turn), 0.05) + offset_mm
 
 
-def _mold_marks(part: DrawnPart) -> list[tuple[float, bool, float]]:
+def _mold_marks(part: DrawnPart) -> list[tuple[float, bool, float, int]]:
     """Boundaries along the drawn outline, at edge starts: (arc length, is a run boundary, signed turn in rad
-    where the edges meet at a corner, else 0)."""
+    where the edges meet at a corner, else 0, which side is flanged where only one is: −1 the edge before the
+    mark, +1 the edge after it, else 0)."""
     edges = part.outline.edges
     offsets = part.outline.edge_offsets()
     run_of: list[int | None] = [None] * len(edges)
@@ -416,8 +417,10 @@ def _mold_marks(part: DrawnPart) -> list[tuple[float, bool, float]]:
         turn = turn_angle(edges[k - 1].end_tangent(), edge.start_tangent())
         boundary = run_of[k] != run_of[k - 1]
         corner = abs(math.degrees(turn)) >= CORNER_TURN_DEG
+        before, after = run_of[k - 1] is not None, run_of[k] is not None
+        side = 0 if before == after else (-1 if before else 1)
         if boundary or corner:
-            marks.append((float(offsets[k]), boundary, turn if corner else 0.0))
+            marks.append((float(offsets[k]), boundary, turn if corner else 0.0, side))
     return marks
 
 
@@ -431,7 +434,7 @@ def _unwrap(pts: np.ndarray, s: np.ndarray, total: float) -> tuple[np.ndarray, n
     return pts, np.maximum.accumulate(s)
 
 
-def _place_marks(pts: np.ndarray, s: np.ndarray, marks: list[tuple[float, bool, float]], total: float,
+def _place_marks(pts: np.ndarray, s: np.ndarray, marks: list[tuple[float, bool, float, int]], total: float,
                  inset: float) -> tuple[list[Point], list[float], list[tuple[bool, bool]]]:
     """Die outline points and footpoint positions with a point at every mark, and each point's marks
     (run boundary, corner).  ``inset`` is how far the die outline lies inside the drawn one (mm)."""
@@ -439,11 +442,11 @@ def _place_marks(pts: np.ndarray, s: np.ndarray, marks: list[tuple[float, bool, 
     where = [float(v) for v in s]
     flags: list[tuple[bool, bool]] = [(False, False)] * len(points)
     eps = 1e-6 * max(1.0, total)
-    for s_mark, boundary, turn in marks:
+    for s_mark, boundary, turn, side in marks:
         count = len(points)
         index = _corner_index(points, where, s_mark, turn, inset, total) if turn > 0 and inset > 0 else None
         if index is None:
-            index = _mark_index(points, where, s_mark, eps, total)
+            index = _mark_index(points, where, s_mark, eps, total, side)
         if len(points) > count:  # a point was put in for the mark
             flags.insert(index, (False, False))
         old = flags[index]
@@ -475,15 +478,23 @@ def _corner_index(points: list[Point], where: list[float], s_mark: float, turn: 
     return best if best is not None and best_turn >= math.radians(CORNER_TURN_DEG) / 2 else None
 
 
-def _mark_index(points: list[Point], where: list[float], s_mark: float, eps: float, total: float) -> int:
-    """The die outline point for the drawn outline's position ``s_mark`` (inserting one where needed)."""
+def _mark_index(points: list[Point], where: list[float], s_mark: float, eps: float, total: float,
+                side: int = 0) -> int:
+    """The die outline point for the drawn outline's position ``s_mark`` (inserting one where needed).
+
+    Where several die points stand over the mark (the offset turning round a concave corner on a circle), the
+    mark goes on the circle's middle, or where only one side is flanged (``side``: −1 the one before, +1 the one
+    after) on the circle's end on that side: the flange ends where its straight offset does, and does not wrap
+    round the corner of the cut edge."""
     n = len(points)
     s = np.asarray(where)
     for target in (s_mark, s_mark + total, s_mark - total):
         same = np.nonzero(np.abs(s - target) <= eps)[0]
         if len(same) == 1:
             return int(same[0])
-        if len(same) > 1:  # a round join about a concave corner: mark its middle
+        if len(same) > 1:  # a round join about a concave corner: mark its middle, or the flanged side's end
+            if side:
+                return int(same[0] if side < 0 else same[-1])
             return _middle(points, where, [int(i) for i in same])
     ext = np.r_[s, s[0] + total]
     for target in (s_mark, s_mark + total):
