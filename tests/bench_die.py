@@ -120,9 +120,9 @@ def demo_rib(out: Path) -> None:
     for piece in rib.pieces:
         die = die_input(rib, piece)
         full = die_seconds(die, out, tolerance)
-        floor = floor_seconds(list(piece.piece.outline), die.height_mm, die.top_radius_mm, out, tolerance)
+        floor = floor_seconds(list(piece.piece.die_outline), die.height_mm, die.top_radius_mm, out, tolerance)
         verdict = "meets" if full / floor <= TARGET else "misses"
-        print(f"  {piece.piece.part_id:10s} {len(piece.piece.outline):4d} vertices, {len(die.flutes)} flutes, "
+        print(f"  {piece.piece.part_id:10s} {len(piece.piece.die_outline):4d} vertices, {len(die.flutes)} flutes, "
               f"{len(die.bores)} bores, {len(die.pins)} pins: die {full:.3f} s, floor {floor:.3f} s, "
               f"ratio {full / floor:.2f}x ({verdict} the {TARGET:.1f}x target)")
         print(f"    stages: {stages(die, out, tolerance)}")

@@ -133,7 +133,7 @@ def kernel_floor(repeat: int, out: Path) -> tuple[float, float]:
           f"medians of {repeat}, wall (CPU) s")
     for piece in rib.pieces:
         die = die_input(rib, piece)
-        run = floor_run(list(piece.piece.outline), die.height_mm, die.top_radius_mm, out, tolerance)
+        run = floor_run(list(piece.piece.die_outline), die.height_mm, die.top_radius_mm, out, tolerance)
         run()
         w, c = timed(run, repeat)
         wall, cpu = wall + w, cpu + c

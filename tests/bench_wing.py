@@ -97,7 +97,7 @@ def floor_seconds(spec_path: Path) -> float:
     analysis = api.analyse(api.load(spec_path))
     piece = (analysis.ribs[0] if hasattr(analysis, "ribs") else analysis).pieces[0]
     with tempfile.TemporaryDirectory() as tmp:
-        return floor_of(list(piece.piece.outline), piece.die_height_mm, piece.springback.die_radius_mm, Path(tmp),
+        return floor_of(list(piece.piece.die_outline), piece.die_height_mm, piece.springback.die_radius_mm, Path(tmp),
                         repeat=3)
 
 
