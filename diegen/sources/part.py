@@ -312,7 +312,7 @@ def _die_inside_mold_line(part: DrawnPart, sheet_thickness_mm: float, ramp_of: C
     edge at a convex corner, the run is taken on straight past the corner first, so the die's corner is where the
     run's offset meets the cut edge (a mitre).  Where it ends on a cut edge without one (mid-edge, or at a concave
     corner, where the offset also turns round the corner on a circle of radius t), the die's edge comes out from t
-    to the drawn line along the cut edge over ``ramp_of(t)``, the joggles' run-out for a step of t (:func:`taper`),
+    to the drawn line along the cut edge over ``ramp_of(t)``, the joggles' run-out for a step of t (:func:`_taper`),
     instead of a step no cutter could follow.  A concave corner between two cut edges is rounded on the die to
     ``cut_corner_radius_mm`` (the blank is cut sharp there; the die only holds the web flat, and no cutter leaves a
     sharp inside corner), and at least :data:`MIN_CUT_CORNER_MM`; the corners so rounded are returned beside the
@@ -350,10 +350,8 @@ def _die_inside_mold_line(part: DrawnPart, sheet_thickness_mm: float, ramp_of: C
         parts.append(LineString(line).buffer(t, quad_segs=QUAD_SEGS, cap_style="flat"))
     die = mold.difference(shapely.unary_union(parts))
     concave = [ShapelyPoint(edges[(k + 1) % len(edges)].points[0]) for k in range(len(edges))
-               if k not in flanged and (k + 1) % len(edges) not in flanged
+               if cut_corner_radius_mm > 0.0 and k not in flanged and (k + 1) % len(edges) not in flanged
                and turn_angle(edges[k].end_tangent(), edges[(k + 1) % len(edges)].start_tangent()) <= -corner]
-    if not cut_corner_radius_mm > 0.0:
-        concave = []
     if concave:
         r = max(cut_corner_radius_mm, MIN_CUT_CORNER_MM)
         closed = die.buffer(r, quad_segs=QUAD_SEGS).buffer(-r, quad_segs=QUAD_SEGS)
@@ -367,21 +365,21 @@ def _die_inside_mold_line(part: DrawnPart, sheet_thickness_mm: float, ramp_of: C
 def _run_out(ring: LineString, total: float, s_mm: float, length_mm: float, depth_mm: float,
              concave: bool) -> list[Polygon]:
     """What comes off the outline where a flanged run ends on a cut edge without a convex corner: the
-    :func:`taper` along the cut edge, and where the outline turns inward there the circle of the offset turning
+    :func:`_taper` along the cut edge, and where the outline turns inward there the circle of the offset turning
     round the corner (finely divided: it meets the run's offset and the taper on their lines)."""
-    strip = [taper(ring, total, s_mm, length_mm, depth_mm)]
+    strip = [_taper(ring, total, s_mm, length_mm, depth_mm)]
     if concave:
         strip.append(ShapelyPoint(ring.interpolate(s_mm % total)).buffer(depth_mm, quad_segs=4 * QUAD_SEGS))
     return strip
 
 
-def taper(ring: LineString, total: float, s_mm: float, length_mm: float, depth_mm: float) -> Polygon:
+def _taper(ring: LineString, total: float, s_mm: float, length_mm: float, depth_mm: float) -> Polygon:
     """The strip between the closed counter-clockwise outline ``ring`` (``total`` mm round; from just outside it)
-    and a line inside it
-    that comes out from ``depth_mm`` deep at ``s_mm`` along the ring to the ring itself ``length_mm`` further on
-    (back, when negative), along the joggles' run-out profile (:func:`diegen.geometry.pieces.ramp_shape`: no kink
-    at either end), sampled closer towards its ends (cosine spacing), where it joins the run's offset and the drawn
-    line: a spline through the die's points then leaves the run's offset at the run's own direction."""
+    and a line inside it that comes out from ``depth_mm`` deep at ``s_mm`` along the ring to the ring itself
+    ``length_mm`` further on (back, when negative), along the joggles' run-out profile
+    (:func:`diegen.geometry.pieces.ramp_shape`: no kink at either end), sampled closer towards its ends (cosine
+    spacing), where it joins the run's offset and the drawn line: a spline through the die's points then leaves the
+    run's offset at the run's own direction."""
     count = max(int(abs(length_mm) / 0.25), 8) + 1
     u = 0.5 - 0.5 * np.cos(np.linspace(0.0, math.pi, count))
     along = (s_mm + u * length_mm) % total
