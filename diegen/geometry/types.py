@@ -91,6 +91,12 @@ class Pin:
     d: float
 
 
+def _loop(runs: tuple[Run, ...]) -> Points:
+    """Consecutive runs as one closed point loop (each run's last point is the next one's first; no repeated
+    closing point)."""
+    return tuple(p for run in runs for p in run.points[:-1])
+
+
 @dataclass(frozen=True)
 class PieceGeometry:
     """One rib piece's die outline and web features."""
@@ -118,19 +124,13 @@ class PieceGeometry:
     def outline(self) -> Points:
         """The piece's closed outline (the flange's inner mold line, the web's edge) as one point loop (no repeated
         closing point): the die's, except where the die runs on past a cut end (:attr:`die_outline`)."""
-        points: list[Point] = []
-        for run in self.runs:
-            points.extend(run.points[:-1])
-        return tuple(points)
+        return _loop(self.runs)
 
     @property
     def die_outline(self) -> Points:
         """The die's closed outline (no repeated closing point): the piece's, run on past a cut end where
         :attr:`die_runs` says so."""
-        points: list[Point] = []
-        for run in self.die_runs or self.runs:
-            points.extend(run.points[:-1])
-        return tuple(points)
+        return _loop(self.die_runs or self.runs)
 
     @property
     def length_mm(self) -> float:

@@ -250,6 +250,9 @@ def drawn_piece(part: DrawnPart, *, part_id: str, sheet_thickness_mm: float, pin
     ``joggles`` are recessed into the die outline (see :mod:`diegen.sources.joggle`), ``ramp_of(depth)`` giving
     their run-out length (mm); the strain is judged on the outline without them (``plain_runs``).
 
+    ``cut_corner_radius_mm``: of a mold-line outline, a sharp inside corner between two cut edges is rounded to
+    this (at least :data:`MIN_CUT_CORNER_MM`; 0 leaves it sharp), said in ``DrawnPiece.rounded_corners``.
+
     Raises :class:`GeometryError` for flanges bending both ways, a joggle off one flanged run, an offset that
     leaves nothing or splits the part, a hole that reaches the flange bend or outside the die, a pin without room.
     """
@@ -274,11 +277,12 @@ def drawn_piece(part: DrawnPart, *, part_id: str, sheet_thickness_mm: float, pin
     total = float(offsets[-1])
     marks = _mold_marks(part)
     rounded: tuple[Point, ...] = ()
+    corner_radius = max(cut_corner_radius_mm, MIN_CUT_CORNER_MM) if cut_corner_radius_mm > 0.0 else 0.0
     if part.outline_is == "die":
         die_pts = mold_pts
         die_s = np.cumsum(np.r_[0.0, np.hypot(*np.diff(mold_pts, axis=0).T)])
     else:
-        die_poly, rounded = _die_inside_mold_line(part, sheet_thickness_mm, ramp_of, cut_corner_radius_mm,
+        die_poly, rounded = _die_inside_mold_line(part, sheet_thickness_mm, ramp_of, corner_radius,
                                          f"{place.source}: offsetting the mold line inward by the sheet "
                                          f"({sheet_thickness_mm:.3f} mm) for the die outline")
         die_pts = np.asarray(as_points(die_poly), dtype=float)
@@ -298,8 +302,7 @@ def drawn_piece(part: DrawnPart, *, part_id: str, sheet_thickness_mm: float, pin
                              _depth_range(die_poly), plain)
     if mirrored:
         geometry, run_flanges, cutouts = _mirror(geometry, run_flanges, cutouts)
-    return DrawnPiece(geometry, run_flanges, mirrored, cutouts, rounded,
-                      max(cut_corner_radius_mm, MIN_CUT_CORNER_MM) if rounded else 0.0)
+    return DrawnPiece(geometry, run_flanges, mirrored, cutouts, rounded, corner_radius if rounded else 0.0)
 
 
 def _die_inside_mold_line(part: DrawnPart, sheet_thickness_mm: float, ramp_of: Callable[[float], float],
@@ -314,9 +317,9 @@ def _die_inside_mold_line(part: DrawnPart, sheet_thickness_mm: float, ramp_of: C
     corner, where the offset also turns round the corner on a circle of radius t), the die's edge comes out from t
     to the drawn line along the cut edge over ``ramp_of(t)``, the joggles' run-out for a step of t (:func:`_taper`),
     instead of a step no cutter could follow.  A concave corner between two cut edges is rounded on the die to
-    ``cut_corner_radius_mm`` (the blank is cut sharp there; the die only holds the web flat, and no cutter leaves a
-    sharp inside corner), and at least :data:`MIN_CUT_CORNER_MM`; the corners so rounded are returned beside the
-    outline (drawing coordinates, mm)."""
+    ``cut_corner_radius_mm`` (0: left sharp; the blank is cut sharp there, the die only holds the web flat, and no
+    cutter leaves a sharp inside corner); the corners so rounded are returned beside the outline (drawing
+    coordinates, mm)."""
     mold = Polygon(part.outline.points)
     edges = part.outline.edges
     if sum(run.stop_edge - run.first_edge for run in part.runs) == len(edges):
@@ -326,7 +329,6 @@ def _die_inside_mold_line(part: DrawnPart, sheet_thickness_mm: float, ramp_of: C
     offsets = part.outline.edge_offsets()
     total = float(offsets[-1])
     flanged = {k for run in part.runs for k in range(run.first_edge, run.stop_edge)}
-    corner = math.radians(CORNER_TURN_DEG)
     t = sheet_thickness_mm
     parts = []
     for run in part.runs:
@@ -336,24 +338,22 @@ def _die_inside_mold_line(part: DrawnPart, sheet_thickness_mm: float, ramp_of: C
         start_turn = turn_angle(edges[before].end_tangent(), edges[run.first_edge].start_tangent())
         end_turn = turn_angle(edges[run.stop_edge - 1].end_tangent(), edges[after].start_tangent())
         if before not in flanged:
-            reach = _mitre_reach(t, start_turn) if start_turn >= corner else OVERLAP_MM * (start_turn > -corner)
+            reach, out = _run_end(ring, total, s0, -float(offsets[before + 1] - offsets[before]), start_turn, t,
+                                  ramp_of)
             line = np.vstack([line[0] - reach * np.asarray(edges[run.first_edge].start_tangent()), line])
-            if start_turn < corner:
-                parts += _run_out(ring, total, s0, -min(ramp_of(t), float(offsets[before + 1] - offsets[before])), t,
-                                  start_turn < 0.0)
+            parts += out
         if after not in flanged:
-            reach = _mitre_reach(t, end_turn) if end_turn >= corner else OVERLAP_MM * (end_turn > -corner)
+            reach, out = _run_end(ring, total, s1, float(offsets[after + 1] - offsets[after]), end_turn, t, ramp_of)
             line = np.vstack([line, line[-1] + reach * np.asarray(edges[run.stop_edge - 1].end_tangent())])
-            if end_turn < corner:
-                parts += _run_out(ring, total, s1, min(ramp_of(t), float(offsets[after + 1] - offsets[after])), t,
-                                  end_turn < 0.0)
+            parts += out
         parts.append(LineString(line).buffer(t, quad_segs=QUAD_SEGS, cap_style="flat"))
     die = mold.difference(shapely.unary_union(parts))
+    corner = math.radians(CORNER_TURN_DEG)
     concave = [ShapelyPoint(edges[(k + 1) % len(edges)].points[0]) for k in range(len(edges))
                if cut_corner_radius_mm > 0.0 and k not in flanged and (k + 1) % len(edges) not in flanged
                and turn_angle(edges[k].end_tangent(), edges[(k + 1) % len(edges)].start_tangent()) <= -corner]
     if concave:
-        r = max(cut_corner_radius_mm, MIN_CUT_CORNER_MM)
+        r = cut_corner_radius_mm
         closed = die.buffer(r, quad_segs=QUAD_SEGS).buffer(-r, quad_segs=QUAD_SEGS)
         die = die.union(closed.intersection(shapely.unary_union([p.buffer(10.0 * r) for p in concave])))
     outline = Polygon(single_polygon(die, what).exterior)  # the die's outline: no sliver or hole of the pieces
@@ -362,15 +362,24 @@ def _die_inside_mold_line(part: DrawnPart, sheet_thickness_mm: float, ramp_of: C
     return (cleaned if cleaned.is_valid and not cleaned.is_empty else outline), rounded
 
 
-def _run_out(ring: LineString, total: float, s_mm: float, length_mm: float, depth_mm: float,
-             concave: bool) -> list[Polygon]:
-    """What comes off the outline where a flanged run ends on a cut edge without a convex corner: the
-    :func:`_taper` along the cut edge, and where the outline turns inward there the circle of the offset turning
-    round the corner (finely divided: it meets the run's offset and the taper on their lines)."""
-    strip = [_taper(ring, total, s_mm, length_mm, depth_mm)]
-    if concave:
-        strip.append(ShapelyPoint(ring.interpolate(s_mm % total)).buffer(depth_mm, quad_segs=4 * QUAD_SEGS))
-    return strip
+def _run_end(ring: LineString, total: float, s_mm: float, cut_edge_mm: float, turn: float, depth_mm: float,
+             ramp_of: Callable[[float], float]) -> tuple[float, list[Polygon]]:
+    """Where a flanged run ends on a cut edge, at ``s_mm`` along the drawn ``ring``, the outline turning by ``turn``
+    (rad) onto a cut edge ``cut_edge_mm`` long (negative: the edge before the run): how far the run's offset by
+    ``depth_mm`` is taken on straight past its end, and what else comes off the outline there.
+
+    At a convex corner the offset runs on to meet the cut edge (a mitre) and nothing else comes off.  Otherwise the
+    :func:`_taper` along the cut edge over the joggles' run-out (``ramp_of``), which the offset overlaps a little
+    where the two run on in one line; where the outline turns inward, also the circle of the offset turning round
+    the corner (finely divided: it meets the run's offset and the taper on their lines)."""
+    corner = math.radians(CORNER_TURN_DEG)
+    if turn >= corner:
+        return _mitre_reach(depth_mm, turn), []
+    length = math.copysign(min(ramp_of(depth_mm), abs(cut_edge_mm)), cut_edge_mm)
+    out = [_taper(ring, total, s_mm, length, depth_mm)]
+    if turn < 0.0:
+        out.append(ShapelyPoint(ring.interpolate(s_mm % total)).buffer(depth_mm, quad_segs=4 * QUAD_SEGS))
+    return (OVERLAP_MM if turn > -corner else 0.0), out
 
 
 def _taper(ring: LineString, total: float, s_mm: float, length_mm: float, depth_mm: float) -> Polygon:
